@@ -1,0 +1,63 @@
+//! `isoline info FILE [--format text|json]`.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use isoline_core::io;
+
+/// Output format of `info`.
+#[derive(Debug, Clone, Copy, Default, clap::ValueEnum)]
+pub enum InfoFormat {
+    /// Lines for people.
+    #[default]
+    Text,
+    /// One JSON object.
+    Json,
+}
+
+/// Arguments of `isoline info`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Recording: .hea (or WFDB record path without extension), .edf, .csv.
+    pub file: PathBuf,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: InfoFormat,
+    /// Sampling rate for a CSV file without a time_s column.
+    #[arg(long)]
+    pub rate: Option<f64>,
+}
+
+/// Runs the command.
+pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
+    let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
+    for w in &opened.warnings {
+        eprintln!("isoline: warning: {w}");
+    }
+    let r = &opened.recording;
+    let leads: Vec<String> = r.leads.iter().map(|l| l.name.to_string()).collect();
+    match args.format {
+        InfoFormat::Json => {
+            let v = serde_json::json!({
+                "file": args.file.display().to_string(),
+                "format": opened.format.as_str(),
+                "sample_rate_hz": r.sample_rate.hz(),
+                "samples": r.len(),
+                "duration_s": r.duration_s(),
+                "leads": leads,
+                "annotations": r.annotations.len(),
+            });
+            println!("{}", serde_json::to_string_pretty(&v)?);
+        }
+        InfoFormat::Text => {
+            println!("file:         {}", args.file.display());
+            println!("format:       {}", opened.format);
+            println!("sample rate:  {} Hz", r.sample_rate.hz());
+            println!("samples:      {} per lead", r.len());
+            println!("duration:     {:.3} s", r.duration_s());
+            println!("leads:        {} ({})", leads.len(), leads.join(", "));
+            println!("annotations:  {}", r.annotations.len());
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}

@@ -1,0 +1,16 @@
+//! `isoline measure`.
+
+use std::process::ExitCode;
+
+/// Arguments of `isoline measure`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Input files.
+    pub files: Vec<std::path::PathBuf>,
+}
+
+/// Runs the command.
+pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
+    let _ = args;
+    anyhow::bail!("isoline measure is not available yet")
+}

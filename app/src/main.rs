@@ -1,0 +1,65 @@
+//! `isoline`: the ECG review workstation. Without a subcommand it opens the GUI; subcommands run headless.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+mod cli;
+mod gui;
+
+/// Isoline — review and measure ECGs on true-scale paper.
+///
+/// Review aid only: automated values must be checked by qualified personnel. Follow local protocols and
+/// licensed practice.
+#[derive(Debug, Parser)]
+#[command(name = "isoline", version, about, long_about = None)]
+struct Cli {
+    /// Recording (.hea, .edf, .csv) or review (.review.ron) to open in the workstation.
+    file: Option<PathBuf>,
+    #[command(subcommand)]
+    command: Option<Command>,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Format, leads, sample rate, duration and annotation count of a recording.
+    Info(cli::info::Args),
+    /// Convert a recording to .edf or .csv ("-" writes CSV to stdout).
+    Convert(cli::convert::Args),
+    /// Write a demo recording from the dynamical ECG model, with its known truth.
+    Synth(cli::synth::Args),
+    /// One row per detected beat with its wave boundaries.
+    Beats(cli::beats::Args),
+    /// Measure recordings (files or folders): intervals, QTc, axis, ST, rate variability.
+    Measure(cli::measure::Args),
+    /// Work with review files.
+    #[command(subcommand)]
+    Review(cli::review::Command),
+    /// Draw a page of a recording (and a review's calipers and marks) to PNG.
+    Render(cli::render::Args),
+    /// Compare reviews by different readers: differences and Bland–Altman limits.
+    Agreement(cli::agreement::Args),
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        None => gui::run(cli.file),
+        Some(Command::Info(a)) => cli::info::run(&a),
+        Some(Command::Convert(a)) => cli::convert::run(&a),
+        Some(Command::Synth(a)) => cli::synth::run(&a),
+        Some(Command::Beats(a)) => cli::beats::run(&a),
+        Some(Command::Measure(a)) => cli::measure::run(&a),
+        Some(Command::Review(c)) => cli::review::run(&c),
+        Some(Command::Render(a)) => cli::render::run(&a),
+        Some(Command::Agreement(a)) => cli::agreement::run(&a),
+    };
+    match result {
+        Ok(code) => code,
+        Err(e) => {
+            eprintln!("isoline: {e:#}");
+            ExitCode::from(2)
+        }
+    }
+}

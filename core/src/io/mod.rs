@@ -1,0 +1,146 @@
+//! Readers and writers of recording formats, one file per format.
+//!
+//! Every reader validates sizes against the real file length before allocating, and its errors name the file
+//! and the field or byte offset at fault.
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+use thiserror::Error;
+
+use crate::recording::Recording;
+
+pub mod csv;
+pub mod edf;
+pub mod wfdb;
+pub mod wfdb_annotations;
+
+/// Most samples (all leads together) a reader will hold in memory: 1.5 × 10⁹ samples = 6 GB of f32.
+pub const MAX_TOTAL_SAMPLES: u64 = 1_500_000_000;
+
+/// A reading or writing failure. Every variant names the file.
+#[derive(Debug, Error)]
+#[non_exhaustive]
+pub enum ReadError {
+    /// The operating system refused (missing file, permission, …).
+    #[error("{}: {source}", path.display())]
+    Io {
+        /// File concerned.
+        path: PathBuf,
+        /// Underlying error.
+        #[source]
+        source: std::io::Error,
+    },
+    /// The content is malformed; `what` names the field or byte offset.
+    #[error("{}: {what}", path.display())]
+    Invalid {
+        /// File concerned.
+        path: PathBuf,
+        /// What is wrong and where.
+        what: String,
+    },
+    /// A valid but unsupported variant of the format.
+    #[error("{}: not supported: {what}", path.display())]
+    Unsupported {
+        /// File concerned.
+        path: PathBuf,
+        /// Which feature.
+        what: String,
+    },
+}
+
+impl ReadError {
+    /// A malformed-content error.
+    pub fn invalid(path: &Path, what: impl Into<String>) -> Self {
+        Self::Invalid { path: path.to_path_buf(), what: what.into() }
+    }
+
+    /// An unsupported-feature error.
+    pub fn unsupported(path: &Path, what: impl Into<String>) -> Self {
+        Self::Unsupported { path: path.to_path_buf(), what: what.into() }
+    }
+
+    /// An I/O error.
+    pub fn io(path: &Path, source: std::io::Error) -> Self {
+        Self::Io { path: path.to_path_buf(), source }
+    }
+}
+
+/// Recording formats Isoline reads.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum Format {
+    /// PhysioNet WFDB record (`.hea` + signal files).
+    Wfdb,
+    /// European Data Format.
+    Edf,
+    /// EDF+ (continuous).
+    EdfPlus,
+    /// Comma-separated values in mV.
+    Csv,
+}
+
+impl Format {
+    /// Short name as printed by `isoline info` (`wfdb`, `edf`, `edf+`, `csv`).
+    #[must_use]
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::Wfdb => "wfdb",
+            Self::Edf => "edf",
+            Self::EdfPlus => "edf+",
+            Self::Csv => "csv",
+        }
+    }
+}
+
+impl fmt::Display for Format {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+/// A recording read from a file, with what the reader noticed on the way.
+#[derive(Debug, Clone)]
+pub struct Opened {
+    /// The recording.
+    pub recording: Recording,
+    /// Which format it was read as.
+    pub format: Format,
+    /// Files read (header and signal files), for identity and messages.
+    pub files: Vec<PathBuf>,
+    /// Things the reader accepted but the user should know (e.g. a signal file shorter than its header says).
+    pub warnings: Vec<String>,
+}
+
+/// Options for opening a file.
+#[derive(Debug, Clone, Default)]
+pub struct OpenOptions {
+    /// Sampling rate for CSV files that have no `time_s` column.
+    pub csv_rate_hz: Option<f64>,
+}
+
+/// Opens a recording, choosing the reader from the file name: `.hea` (or a WFDB record path without
+/// extension), `.edf`, `.csv`.
+///
+/// # Errors
+/// [`ReadError`] naming the file and the problem.
+pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
+    let ext = path.extension().and_then(|e| e.to_str()).map(str::to_ascii_lowercase);
+    match ext.as_deref() {
+        Some("hea") => wfdb::read_record(path),
+        Some("edf") | Some("bdf") => edf::read(path),
+        Some("csv") | Some("txt") => csv::read(path, options.csv_rate_hz),
+        _ if wfdb::header_path(path).is_some() => wfdb::read_record(path),
+        Some("dat") => Err(ReadError::unsupported(path, "open the record's .hea header, not its .dat signal file")),
+        _ => Err(ReadError::unsupported(path, "unknown file type (expected .hea, .edf or .csv)")),
+    }
+}
+
+/// Reads a whole file, mapping the error to [`ReadError::Io`].
+pub(crate) fn read_bytes(path: &Path) -> Result<Vec<u8>, ReadError> {
+    std::fs::read(path).map_err(|e| ReadError::io(path, e))
+}
+
+/// Length of a file in bytes.
+pub(crate) fn file_len(path: &Path) -> Result<u64, ReadError> {
+    std::fs::metadata(path).map(|m| m.len()).map_err(|e| ReadError::io(path, e))
+}

@@ -1,0 +1,337 @@
+//! The recording model: leads of samples in microvolts at one sampling rate, with start time and metadata.
+
+use std::fmt;
+
+use crate::units::Hertz;
+
+/// The twelve standard lead names, in the standard order.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize)]
+pub enum StandardLead {
+    I,
+    II,
+    III,
+    AVR,
+    AVL,
+    AVF,
+    V1,
+    V2,
+    V3,
+    V4,
+    V5,
+    V6,
+}
+
+impl StandardLead {
+    /// All twelve in the standard order (I, II, III, aVR, aVL, aVF, V1–V6).
+    pub const ALL: [StandardLead; 12] = [
+        Self::I, Self::II, Self::III, Self::AVR, Self::AVL, Self::AVF,
+        Self::V1, Self::V2, Self::V3, Self::V4, Self::V5, Self::V6,
+    ];
+
+    /// The conventional spelling (`aVR`, `V1`, …).
+    #[must_use]
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::I => "I",
+            Self::II => "II",
+            Self::III => "III",
+            Self::AVR => "aVR",
+            Self::AVL => "aVL",
+            Self::AVF => "aVF",
+            Self::V1 => "V1",
+            Self::V2 => "V2",
+            Self::V3 => "V3",
+            Self::V4 => "V4",
+            Self::V5 => "V5",
+            Self::V6 => "V6",
+        }
+    }
+
+    /// Angle of a limb lead in the hexaxial frontal reference system, degrees (I 0°, II +60°, III +120°,
+    /// aVR −150°, aVL −30°, aVF +90°); `None` for chest leads.
+    ///
+    /// Source: references.md §5 (hexaxial reference system).
+    #[must_use]
+    pub fn frontal_angle_deg(self) -> Option<f64> {
+        match self {
+            Self::I => Some(0.0),
+            Self::II => Some(60.0),
+            Self::III => Some(120.0),
+            Self::AVR => Some(-150.0),
+            Self::AVL => Some(-30.0),
+            Self::AVF => Some(90.0),
+            _ => None,
+        }
+    }
+
+    /// Parses a lead name case-insensitively (`avr` → aVR). Accepts `lead II` / `Lead_II` prefixes too.
+    #[must_use]
+    pub fn parse(name: &str) -> Option<Self> {
+        let t = name.trim();
+        let lower = t.to_ascii_lowercase();
+        let lower = lower
+            .strip_prefix("lead")
+            .map(|s| s.trim_start_matches([' ', '_', '-']))
+            .unwrap_or(&lower);
+        Self::ALL.into_iter().find(|l| l.as_str().eq_ignore_ascii_case(lower))
+    }
+}
+
+impl fmt::Display for StandardLead {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+/// A lead's name: one of the twelve standard leads, or any other label (e.g. `MLII`, `X`).
+#[derive(Debug, Clone, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+pub enum LeadName {
+    /// A standard 12-lead name.
+    Standard(StandardLead),
+    /// Any other name, kept as written (trimmed).
+    Other(String),
+}
+
+impl LeadName {
+    /// Parses a name: standard names case-insensitively, anything else kept as written.
+    #[must_use]
+    pub fn parse(name: &str) -> Self {
+        StandardLead::parse(name).map_or_else(|| Self::Other(name.trim().to_string()), Self::Standard)
+    }
+
+    /// The standard lead, if this is one.
+    #[must_use]
+    pub fn standard(&self) -> Option<StandardLead> {
+        match self {
+            Self::Standard(s) => Some(*s),
+            Self::Other(_) => None,
+        }
+    }
+}
+
+impl fmt::Display for LeadName {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::Standard(s) => f.write_str(s.as_str()),
+            Self::Other(o) => f.write_str(o),
+        }
+    }
+}
+
+impl From<StandardLead> for LeadName {
+    fn from(s: StandardLead) -> Self {
+        Self::Standard(s)
+    }
+}
+
+/// One lead: a name and its samples in microvolts. An invalid or missing sample is `f32::NAN`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Lead {
+    /// The lead's name.
+    pub name: LeadName,
+    /// Samples in µV, one per sampling period.
+    pub samples: Vec<f32>,
+}
+
+/// Descriptive data about the recording and the person recorded. Everything here except `device` and
+/// `recording_info` may identify a patient; [`Meta::deidentified`] clears it.
+#[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Meta {
+    /// Patient code or identifier as stored in the file.
+    pub patient_id: Option<String>,
+    /// Patient name as stored in the file.
+    pub patient_name: Option<String>,
+    /// Sex as stored (`F`, `M`, free text).
+    pub sex: Option<String>,
+    /// Birth date as stored (free text, format varies by source).
+    pub birth_date: Option<String>,
+    /// Age in years, if the file gives it.
+    pub age_years: Option<f64>,
+    /// Free-text recording description (e.g. EDF recording field, WFDB comments).
+    pub recording_info: Option<String>,
+    /// Equipment, if known.
+    pub device: Option<String>,
+}
+
+impl Meta {
+    /// A copy with every field that may identify a person removed (id, name, birth date, free-text comments).
+    /// Sex and age are kept: they decide the usual ranges and do not identify on their own.
+    #[must_use]
+    pub fn deidentified(&self) -> Self {
+        Self {
+            patient_id: None,
+            patient_name: None,
+            sex: self.sex.clone(),
+            birth_date: None,
+            age_years: self.age_years,
+            recording_info: None,
+            device: self.device.clone(),
+        }
+    }
+}
+
+/// An annotation carried by the recording (WFDB annotation file, EDF+ annotation list).
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Annotation {
+    /// Sample index the annotation refers to.
+    pub sample: u64,
+    /// WFDB mnemonic (`N`, `V`, `(`, `)`, `p`, `t`, …) or EDF+ annotation text.
+    pub label: String,
+    /// WFDB `num` field (0 for P, 1 for QRS, 2 for T in wave-boundary files); 0 otherwise.
+    pub num: i32,
+    /// WFDB `chan` field; 0 otherwise.
+    pub chan: i32,
+    /// WFDB `subtyp` field; 0 otherwise.
+    pub subtype: i32,
+    /// WFDB auxiliary text, if any.
+    pub aux: Option<String>,
+    /// EDF+ duration in seconds, if any.
+    pub duration_s: Option<f64>,
+}
+
+impl Annotation {
+    /// A plain annotation with only a sample and label.
+    #[must_use]
+    pub fn new(sample: u64, label: impl Into<String>) -> Self {
+        Self { sample, label: label.into(), num: 0, chan: 0, subtype: 0, aux: None, duration_s: None }
+    }
+}
+
+/// A whole recording: every lead sampled at one rate.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Recording {
+    /// The leads, in file order. All have the same length.
+    pub leads: Vec<Lead>,
+    /// Sampling rate shared by every lead.
+    pub sample_rate: Hertz,
+    /// Start of the recording (local clock time as stored by the source), if known.
+    pub start: Option<time::PrimitiveDateTime>,
+    /// Descriptive metadata.
+    pub meta: Meta,
+    /// Annotations stored with the recording.
+    pub annotations: Vec<Annotation>,
+}
+
+impl Recording {
+    /// Number of samples per lead (0 for a recording without leads).
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.leads.first().map_or(0, |l| l.samples.len())
+    }
+
+    /// True when there are no samples.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Duration in seconds (samples / rate).
+    #[must_use]
+    pub fn duration_s(&self) -> f64 {
+        self.len() as f64 / self.sample_rate.hz()
+    }
+
+    /// Index of the lead with this name, if present.
+    #[must_use]
+    pub fn lead_index(&self, name: &LeadName) -> Option<usize> {
+        self.leads.iter().position(|l| &l.name == name)
+    }
+
+    /// The lead with this standard name, if present.
+    #[must_use]
+    pub fn standard_lead(&self, lead: StandardLead) -> Option<&Lead> {
+        self.leads.iter().find(|l| l.name == LeadName::Standard(lead))
+    }
+
+    /// Adds the limb leads III, aVR, aVL and aVF that are missing, computed from I and II.
+    /// Returns the leads that were added (none when I or II is absent).
+    ///
+    /// III = II − I (Einthoven); aVR = −(I + II)/2, aVL = I − II/2, aVF = II − I/2 (Goldberger).
+    /// Source: references.md §5 (Goldberger, Am Heart J 1942;23:483).
+    pub fn derive_limb_leads(&mut self) -> Vec<StandardLead> {
+        let (Some(i), Some(ii)) = (self.standard_lead(StandardLead::I), self.standard_lead(StandardLead::II))
+        else {
+            return Vec::new();
+        };
+        let (i, ii) = (i.samples.clone(), ii.samples.clone());
+        let rules: [(StandardLead, fn(f32, f32) -> f32); 4] = [
+            (StandardLead::III, |i, ii| ii - i),
+            (StandardLead::AVR, |i, ii| -(i + ii) / 2.0),
+            (StandardLead::AVL, |i, ii| i - ii / 2.0),
+            (StandardLead::AVF, |i, ii| ii - i / 2.0),
+        ];
+        let mut added = Vec::new();
+        for (lead, rule) in rules {
+            if self.standard_lead(lead).is_none() {
+                let samples = i.iter().zip(&ii).map(|(&a, &b)| rule(a, b)).collect();
+                self.leads.push(Lead { name: lead.into(), samples });
+                added.push(lead);
+            }
+        }
+        added
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn rec(leads: Vec<Lead>) -> Recording {
+        Recording {
+            leads,
+            sample_rate: Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!()),
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn lead_names_parse_case_insensitively() {
+        assert_eq!(LeadName::parse("avr"), LeadName::Standard(StandardLead::AVR));
+        assert_eq!(LeadName::parse("AVF"), LeadName::Standard(StandardLead::AVF));
+        assert_eq!(LeadName::parse(" v5 "), LeadName::Standard(StandardLead::V5));
+        assert_eq!(LeadName::parse("Lead II"), LeadName::Standard(StandardLead::II));
+        assert_eq!(LeadName::parse("i"), LeadName::Standard(StandardLead::I));
+        assert_eq!(LeadName::parse("MLII"), LeadName::Other("MLII".into()));
+        assert_eq!(LeadName::parse("aVR").to_string(), "aVR");
+    }
+
+    #[test]
+    fn derived_limb_leads_obey_einthoven_and_goldberger() {
+        let i: Vec<f32> = (0..100).map(|k| (k as f32 * 0.1).sin() * 800.0).collect();
+        let ii: Vec<f32> = (0..100).map(|k| (k as f32 * 0.07).cos() * 1200.0).collect();
+        let mut r = rec(vec![
+            Lead { name: StandardLead::I.into(), samples: i.clone() },
+            Lead { name: StandardLead::II.into(), samples: ii.clone() },
+        ]);
+        let added = r.derive_limb_leads();
+        assert_eq!(added.len(), 4);
+        let get = |l| r.standard_lead(l).map(|x| x.samples.clone()).unwrap_or_default();
+        let (iii, avr, avl, avf) =
+            (get(StandardLead::III), get(StandardLead::AVR), get(StandardLead::AVL), get(StandardLead::AVF));
+        for k in 0..100 {
+            // Source: Einthoven's law II = I + III; Goldberger 1942: aVR + aVL + aVF = 0 (references.md §5).
+            assert!((ii[k] - (i[k] + iii[k])).abs() < 1e-3);
+            assert!((avr[k] + avl[k] + avf[k]).abs() < 1e-3);
+            assert!((avr[k] + (i[k] + ii[k]) / 2.0).abs() < 1e-3);
+        }
+    }
+
+    #[test]
+    fn deidentified_meta_drops_identifiers() {
+        let m = Meta {
+            patient_id: Some("W3-017".into()),
+            patient_name: Some("Test Person".into()),
+            sex: Some("F".into()),
+            birth_date: Some("01-JAN-1970".into()),
+            age_years: Some(56.0),
+            recording_info: Some("bed 4".into()),
+            device: None,
+        };
+        let d = m.deidentified();
+        assert!(d.patient_id.is_none() && d.patient_name.is_none() && d.birth_date.is_none());
+        assert!(d.recording_info.is_none());
+        assert_eq!(d.sex.as_deref(), Some("F"));
+    }
+}

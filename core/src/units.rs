@@ -1,0 +1,115 @@
+//! Units used across Isoline, with their conventions.
+//!
+//! Samples are stored as `f32` microvolts (µV). Times are seconds (`f64`) or sample indices (`usize`, 0-based,
+//! counted from the first sample of the recording). Paper distances are millimetres (`f64`).
+
+use thiserror::Error;
+
+/// A unit value that failed validation when it was built.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[non_exhaustive]
+pub enum UnitError {
+    /// A sampling rate that is not a finite positive number.
+    #[error("sampling rate must be a finite number above 0 Hz, got {0}")]
+    SampleRate(f64),
+}
+
+/// A sampling rate in hertz: finite and strictly positive.
+#[derive(Debug, Clone, Copy, PartialEq, PartialOrd, serde::Serialize, serde::Deserialize)]
+#[serde(try_from = "f64", into = "f64")]
+pub struct Hertz(f64);
+
+impl Hertz {
+    /// Builds a rate.
+    ///
+    /// # Errors
+    /// [`UnitError::SampleRate`] for zero, negative, NaN or infinite values.
+    pub fn from_hz(hz: f64) -> Result<Self, UnitError> {
+        if hz.is_finite() && hz > 0.0 { Ok(Self(hz)) } else { Err(UnitError::SampleRate(hz)) }
+    }
+
+    /// The rate in hertz.
+    #[must_use]
+    pub fn hz(self) -> f64 {
+        self.0
+    }
+
+    /// Seconds between two samples.
+    #[must_use]
+    pub fn period_s(self) -> f64 {
+        1.0 / self.0
+    }
+
+    /// Time in seconds of sample `index` (sample 0 is at t = 0).
+    #[must_use]
+    pub fn seconds_from_sample(self, index: f64) -> f64 {
+        index / self.0
+    }
+
+    /// Sample position (fractional) of time `seconds`.
+    #[must_use]
+    pub fn sample_from_seconds(self, seconds: f64) -> f64 {
+        seconds * self.0
+    }
+
+    /// Milliseconds spanned by `samples` sample intervals.
+    #[must_use]
+    pub fn ms_from_samples(self, samples: f64) -> f64 {
+        samples * 1000.0 / self.0
+    }
+}
+
+impl TryFrom<f64> for Hertz {
+    type Error = UnitError;
+    fn try_from(hz: f64) -> Result<Self, Self::Error> {
+        Self::from_hz(hz)
+    }
+}
+
+impl From<Hertz> for f64 {
+    fn from(h: Hertz) -> f64 {
+        h.0
+    }
+}
+
+/// Microvolts per millivolt.
+pub const UV_PER_MV: f64 = 1000.0;
+
+/// Heart rate in beats per minute from an RR interval in milliseconds (60000 / RR).
+///
+/// Returns `None` for a non-positive or non-finite interval.
+#[must_use]
+pub fn bpm_from_rr_ms(rr_ms: f64) -> Option<f64> {
+    (rr_ms.is_finite() && rr_ms > 0.0).then(|| 60_000.0 / rr_ms)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rate_rejects_nonsense() {
+        assert!(Hertz::from_hz(0.0).is_err());
+        assert!(Hertz::from_hz(-250.0).is_err());
+        assert!(Hertz::from_hz(f64::NAN).is_err());
+        assert!(Hertz::from_hz(f64::INFINITY).is_err());
+        assert_eq!(Hertz::from_hz(500.0).map(Hertz::hz), Ok(500.0));
+    }
+
+    #[test]
+    fn sample_time_conversions() -> Result<(), UnitError> {
+        let fs = Hertz::from_hz(250.0)?;
+        assert_eq!(fs.seconds_from_sample(500.0), 2.0);
+        assert_eq!(fs.sample_from_seconds(1.5), 375.0);
+        assert_eq!(fs.ms_from_samples(1.0), 4.0);
+        Ok(())
+    }
+
+    #[test]
+    fn bpm_rule() {
+        // Source: references.md §10 (Kligfield 2007 grid; HR = 60 / RR in seconds).
+        assert_eq!(bpm_from_rr_ms(800.0), Some(75.0));
+        assert_eq!(bpm_from_rr_ms(1000.0), Some(60.0));
+        assert_eq!(bpm_from_rr_ms(0.0), None);
+    }
+}
