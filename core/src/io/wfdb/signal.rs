@@ -157,7 +157,7 @@ mod tests {
         // Source: WFDB signal(5) format descriptions.
         let d = decode(16, &[0x34, 0x12, 0xFF, 0xFF], 2, 1);
         assert_eq!((d[0][0], d[1][0]), (4660.0, -1.0));
-        let d = decode(61, &[0x12, 0x34, 0x00, 0x80], 1, 2);
+        let d = decode(61, &[0x12, 0x34, 0x80, 0x00], 1, 2);
         assert_eq!(d[0][0], 4660.0);
         assert!(d[0][1].is_nan());
         let d = decode(80, &[0x80, 0x00, 0xFF], 1, 3);
