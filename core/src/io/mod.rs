@@ -27,8 +27,7 @@ pub enum ReadError {
     Io {
         /// File concerned.
         path: PathBuf,
-        /// Underlying error.
-        #[source]
+        /// Underlying error (shown in the message, so not chained again as a source).
         source: std::io::Error,
     },
     /// The content is malformed; `what` names the field or byte offset.
