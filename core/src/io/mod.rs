@@ -23,12 +23,12 @@ pub const MAX_TOTAL_SAMPLES: u64 = 1_500_000_000;
 #[non_exhaustive]
 pub enum ReadError {
     /// The operating system refused (missing file, permission, …).
-    #[error("{}: {source}", path.display())]
+    #[error("{}: {cause}", path.display())]
     Io {
         /// File concerned.
         path: PathBuf,
         /// Underlying error (shown in the message, so not chained again as a source).
-        source: std::io::Error,
+        cause: std::io::Error,
     },
     /// The content is malformed; `what` names the field or byte offset.
     #[error("{}: {what}", path.display())]
@@ -61,7 +61,7 @@ impl ReadError {
 
     /// An I/O error.
     pub fn io(path: &Path, source: std::io::Error) -> Self {
-        Self::Io { path: path.to_path_buf(), source }
+        Self::Io { path: path.to_path_buf(), cause: source }
     }
 }
 
