@@ -27,7 +27,7 @@ pub use intervals::{Intervals, intervals, median_intervals};
 pub use qtc::{Qtc, qtc_checked};
 pub use ranges::{RangeNote, Sex};
 pub use st::StLevel;
-pub use values::MeasuredValue;
+pub use values::{KEYS, MeasuredValue};
 
 use crate::beat::{Beat, BeatKind, Boundaries};
 use crate::recording::{Recording, StandardLead};
