@@ -15,9 +15,10 @@ use super::level::{isoelectric_level, pre_p_level};
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum AxisBasis {
     /// Net area of the wave above minus below the reference level.
-    #[default]
     NetArea,
-    /// Net amplitude: largest positive plus largest negative deflection.
+    /// Net amplitude: largest positive plus largest negative deflection (the default: on LUDB records 1–50 it
+    /// agreed with the cardiologists' axis categories more often than net area, 33 vs 28 of 47 records).
+    #[default]
     NetAmplitude,
 }
 

@@ -85,10 +85,10 @@ pub struct Measurements {
 /// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
 ///
 /// `recording` gives the lead names (matched by position to `template.leads`), the sampling rate of `beats`
-/// and the sex for the usual ranges. Axes use [`AxisBasis::NetArea`].
+/// and the sex for the usual ranges. Axes use the default [`AxisBasis`] (net amplitude).
 #[must_use]
 pub fn measure(recording: &Recording, beats: &[Beat], template: Option<&Template<'_>>) -> Measurements {
-    measure_with(recording, beats, template, AxisBasis::NetArea)
+    measure_with(recording, beats, template, AxisBasis::default())
 }
 
 /// [`measure`] with a chosen axis basis.
