@@ -147,3 +147,52 @@ impl Measurements {
         self.values().into_iter().filter_map(|v| v.note).collect()
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::recording::{Lead, LeadName, Meta};
+    use proptest::prelude::*;
+
+    fn any_bound() -> impl Strategy<Value = Option<usize>> {
+        prop_oneof![Just(None), (0usize..400).prop_map(Some), Just(Some(usize::MAX))]
+    }
+
+    proptest! {
+        /// Any boundaries, any lengths, NaN samples: measurement never panics, and what it reports is finite.
+        #[test]
+        fn never_panics(
+            b in (any_bound(), any_bound(), any_bound(), any_bound(), any_bound()),
+            len in 0usize..300,
+            nan_at in 0usize..300,
+            rs in proptest::collection::vec(0usize..5000, 0..20),
+        ) {
+            let bounds = Boundaries { p_on: b.0, p_end: b.1, qrs_on: b.2, qrs_end: b.3, t_end: b.4 };
+            let names = ["I", "II", "aVF", "V2", "X"];
+            let leads: Vec<Vec<f32>> = names.iter().enumerate()
+                .map(|(i, _)| (0..len).map(|k| if k == nan_at { f32::NAN } else { ((k * (i + 1)) % 17) as f32 }).collect())
+                .collect();
+            let rec = Recording {
+                leads: names.iter().zip(&leads).map(|(n, s)| Lead { name: LeadName::parse(n), samples: s.clone() }).collect(),
+                sample_rate: Hertz::from_hz(250.0).unwrap_or_else(|_| unreachable!()),
+                start: None,
+                meta: Meta::default(),
+                annotations: Vec::new(),
+            };
+            let mut sorted = rs.clone();
+            sorted.sort_unstable();
+            let beats: Vec<Beat> = sorted.iter().enumerate()
+                .map(|(i, &r)| Beat { r, kind: if i % 3 == 0 { BeatKind::Other } else { BeatKind::Dominant }, bounds })
+                .collect();
+            let t = Template { leads: &leads, sample_rate: rec.sample_rate, bounds };
+            let m = measure(&rec, &beats, Some(&t));
+            for v in m.values() {
+                prop_assert!(v.value.is_none_or(f64::is_finite), "{} = {:?}", v.key, v.value);
+            }
+            let i = intervals(&bounds, rec.sample_rate);
+            for x in [i.p_duration_ms, i.pr_ms, i.qrs_ms, i.qt_ms].into_iter().flatten() {
+                prop_assert!(x > 0.0);
+            }
+        }
+    }
+}

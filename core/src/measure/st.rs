@@ -34,7 +34,7 @@ pub fn st_level(lead: LeadName, samples: &[f32], bounds: &Boundaries, fs: Hertz)
     StLevel {
         lead,
         j_uv: rel(bounds.qrs_end),
-        j60_uv: rel(bounds.qrs_end.map(|j| j + delay)),
+        j60_uv: rel(bounds.qrs_end.map(|j| j.saturating_add(delay))),
     }
 }
 
