@@ -13,6 +13,7 @@
 pub mod beat;
 pub mod caliper;
 pub mod io;
+pub mod measure;
 pub mod paper;
 pub mod recording;
 pub mod units;
