@@ -56,16 +56,23 @@ fn plate_text(canvas: &mut Canvas, fonts: &Fonts, text: &str, x: f64, baseline: 
 pub(super) fn draw_marks(canvas: &mut Canvas, fonts: &Fonts, page: &Page, marks: &[(MarkKind, f64)], pal: &Palette) {
     let st = Style { pt: SMALL_PT, bold: false, color: pal.mark };
     let lh = Fonts::line_mm(st);
-    for (row, cell) in cells(page) {
-        for &(kind, t) in marks {
-            if !cell.contains_time(t) {
-                continue;
+    // Lines first, then labels, so no line crosses another mark's label.
+    for labels in [false, true] {
+        for (row, cell) in cells(page) {
+            for &(kind, t) in marks {
+                if !cell.contains_time(t) {
+                    continue;
+                }
+                let x = cell.x_from_time(&page.paper, t);
+                let bottom = row.top_mm + row.height_mm;
+                let label_y = bottom - 0.8 - tier(kind) as f64 * lh;
+                if labels {
+                    plate_text(canvas, fonts, short(kind), x, label_y, st, Align::Center, pal.background);
+                } else {
+                    let end = label_y - Fonts::cap_mm(st) - 0.6;
+                    canvas.segment((x, row.top_mm + 6.0), (x, end), pal.mark, MARK_MM, Some((0.8, 0.5)));
+                }
             }
-            let x = cell.x_from_time(&page.paper, t);
-            let bottom = row.top_mm + row.height_mm;
-            let label_y = bottom - 0.8 - tier(kind) as f64 * lh;
-            canvas.segment((x, row.top_mm + 6.0), (x, label_y - Fonts::cap_mm(st) - 0.6), pal.mark, MARK_MM, Some((0.8, 0.5)));
-            plate_text(canvas, fonts, short(kind), x, label_y, st, Align::Center, pal.background);
         }
     }
 }
