@@ -16,6 +16,7 @@ pub mod io;
 pub mod measure;
 pub mod paper;
 pub mod recording;
+pub mod render;
 pub mod units;
 
 pub use beat::{Beat, BeatKind, Boundaries, MarkKind};
