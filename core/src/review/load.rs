@@ -17,7 +17,12 @@ pub const MAX_REVIEW_BYTES: u64 = 64 << 20;
 /// Only the version, read first to choose the layout.
 #[derive(Deserialize)]
 struct VersionOnly {
+    #[serde(default, deserialize_with = "present")]
     format_version: Option<u64>,
+}
+
+fn present<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u64>, D::Error> {
+    u64::deserialize(d).map(Some)
 }
 
 /// Loads a review, migrating older format versions. The file is only read, never changed.
