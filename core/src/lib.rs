@@ -17,6 +17,7 @@ pub mod measure;
 pub mod paper;
 pub mod recording;
 pub mod render;
+pub mod review;
 pub mod units;
 
 pub use beat::{Beat, BeatKind, Boundaries, MarkKind};
