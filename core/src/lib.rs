@@ -15,6 +15,7 @@ pub mod caliper;
 pub mod io;
 pub mod paper;
 pub mod recording;
+pub mod synth;
 pub mod units;
 
 pub use beat::{Beat, BeatKind, Boundaries, MarkKind};
