@@ -18,6 +18,7 @@ pub mod paper;
 pub mod recording;
 pub mod render;
 pub mod review;
+pub mod synth;
 pub mod units;
 
 pub use beat::{Beat, BeatKind, Boundaries, MarkKind};
