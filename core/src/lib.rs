@@ -12,6 +12,9 @@
 
 pub mod beat;
 pub mod caliper;
+pub mod delineate;
+pub mod detect;
+pub mod filter;
 pub mod io;
 pub mod measure;
 pub mod paper;
