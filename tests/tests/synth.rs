@@ -331,3 +331,20 @@ fn holter_day_is_fast_and_frugal() {
     eprintln!("24-h holter: {} beats in {:.2} s", s.truth.beats.len(), took.as_secs_f64());
     assert!(s.truth.ectopic_beats > 100);
 }
+
+#[test]
+#[ignore = "scratch timing"]
+fn scratch_timing() {
+    for (k, spec) in [
+        Scenario::Holter.spec(),
+        SynthSpec { noise: NoiseSpec::NONE, ..Scenario::Holter.spec() },
+        SynthSpec { noise: NoiseSpec::NONE, rate_hz: 1000.0, seconds: 21600.0, ..Scenario::Holter.spec() },
+    ]
+    .iter()
+    .enumerate()
+    {
+        let start = std::time::Instant::now();
+        let _ = make(spec);
+        eprintln!("{k}: {:.2} s", start.elapsed().as_secs_f64());
+    }
+}
