@@ -52,7 +52,10 @@ fn analyze(recording: &Recording) -> anyhow::Result<Measurements> {
     anyhow::bail!("automatic measurement needs beat detection and wave boundaries, not in this build yet")
 }
 
-fn measure_file(path: &Path, rate: Option<f64>) -> anyhow::Result<(Row, Vec<String>)> {
+/// A measured row with the reader's warnings, or why the file could not be measured.
+type Outcome = anyhow::Result<(Row, Vec<String>)>;
+
+fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
     let opened = io::open(path, &io::OpenOptions { csv_rate_hz: rate })?;
     let m = analyze(&opened.recording)?;
     let r = &opened.recording;
@@ -93,7 +96,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if let Ok(style) = ProgressStyle::with_template("{bar:30} {pos}/{len} recordings measured, {elapsed} {msg}") {
         bar.set_style(style);
     }
-    let results: Vec<(PathBuf, anyhow::Result<(Row, Vec<String>)>)> = found
+    let results: Vec<(PathBuf, Outcome)> = found
         .files
         .par_iter()
         .map(|p| {
