@@ -10,6 +10,7 @@ use std::process::ExitCode;
 
 use anyhow::Context as _;
 use indicatif::{ProgressBar, ProgressStyle};
+use isoline_core::filter::FilterSettings;
 use isoline_core::io;
 use isoline_core::measure::Measurements;
 use isoline_core::recording::Recording;
@@ -47,9 +48,8 @@ pub struct Args {
 }
 
 /// Measures one recording: filters, beats, boundaries, representative beat, measurements.
-fn analyze(recording: &Recording) -> anyhow::Result<Measurements> {
-    let _ = recording;
-    anyhow::bail!("automatic measurement needs beat detection and wave boundaries, not in this build yet")
+fn analyze(recording: &Recording) -> Measurements {
+    isoline_core::analysis::analyze(recording, &FilterSettings::default()).measurements
 }
 
 /// A measured row with the reader's warnings, or why the file could not be measured.
@@ -57,7 +57,7 @@ type Outcome = anyhow::Result<(Row, Vec<String>)>;
 
 fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
     let opened = io::open(path, &io::OpenOptions { csv_rate_hz: rate })?;
-    let m = analyze(&opened.recording)?;
+    let m = analyze(&opened.recording);
     let r = &opened.recording;
     let row = Row {
         file: path.display().to_string(),
