@@ -3,7 +3,7 @@
 //! Coordinate spaces: "paper" is mm from the page's top-left corner (as in [`crate::paper`]); "image" is pixels.
 //! `image_from_paper(mm) = mm × dpi / 25.4`.
 
-use tiny_skia::{Color, FillRule, LineCap, LineJoin, Paint, Path, Pixmap, Rect, Stroke, StrokeDash, Transform};
+use tiny_skia::{Color, LineCap, LineJoin, Paint, Path, Pixmap, Rect, Stroke, StrokeDash, Transform};
 
 use crate::paper::Rgba;
 
@@ -99,11 +99,5 @@ impl Canvas {
             let path = tiny_skia::PathBuilder::from_rect(r);
             self.stroke(&path, c, width_mm, None);
         }
-    }
-
-    /// Fills a closed path in image pixels.
-    #[allow(dead_code)]
-    pub fn fill_path(&mut self, path: &Path, c: Rgba) {
-        self.pixmap.fill_path(path, &paint(c, true), FillRule::Winding, Transform::identity(), None);
     }
 }
