@@ -92,13 +92,25 @@ fn ron_error(path: &Path, e: &ron::error::SpannedError) -> ReviewError {
         E::DuplicateStructField { field, outer } => {
             (Some(*field), format!("field `{field}` given twice{}", within(outer.as_deref())))
         }
+        E::Eof => (None, "the file ends early (cut short?)".to_owned()),
         other => (None, other.to_string()),
     };
     parse_error(path, pos.line, pos.col, field, message)
 }
 
+/// Names the part of the file a Rust struct stands for.
 fn within(outer: Option<&str>) -> String {
-    outer.map(|o| format!(" in {o}")).unwrap_or_default()
+    let part = match outer {
+        None => return String::new(),
+        Some("Review" | "ReviewV1") => "the review",
+        Some("RecordingIdentity") => "`recording`",
+        Some("Mark") => "a `marks` entry",
+        Some("Measurement") => "a `measurements` entry",
+        Some("Change") => "a `history` entry",
+        Some("Caliper") => "a `calipers` entry",
+        Some(other) => other,
+    };
+    format!(" in {part}")
 }
 
 fn line_col(prefix: &[u8]) -> (usize, usize) {
