@@ -140,3 +140,15 @@ fn truncated_or_garbage_file_gives_position() {
     parse_err(&p);
     assert!(matches!(load(&dir.path().join("missing.review.ron")), Err(ReviewError::Io { .. })));
 }
+
+#[test]
+fn impossible_values_are_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text();
+    let p = write(dir.path(), &text.replacen(&"ab".repeat(32), "not-a-hash", 1));
+    let (line, _, field, msg) = parse_err(&p);
+    assert_eq!(field.as_deref(), Some("sha256"), "{msg}");
+    assert_eq!(line, 1 + text.lines().position(|l| l.contains("sha256:")).unwrap());
+    let p = write(dir.path(), &text.replacen("sample_rate_hz: 500.0", "sample_rate_hz: -1.0", 1));
+    assert_eq!(parse_err(&p).2.as_deref(), Some("sample_rate_hz"));
+}
