@@ -6,7 +6,7 @@ use std::process::ExitCode;
 use clap::{Parser, Subcommand};
 
 mod cli;
-mod gui;
+use isoline::gui;
 
 /// Isoline — review and measure ECGs on true-scale paper.
 ///

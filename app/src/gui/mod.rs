@@ -1,10 +1,311 @@
-//! The workstation window (eframe/egui).
+//! The workstation window (eframe/egui): a shell around the Sheet, Tape, Beat lens and Ledger.
+//!
+//! [`IsolineApp`] holds all state and draws itself into any [`egui::Ui`], so UI tests drive it with
+//! egui_kittest without a window; the eframe [`App`](eframe::App) only delegates to it and persists settings.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use std::sync::Arc;
+
+use anyhow::Context as _;
+use isoline_core::caliper::CaliperKind;
+use isoline_core::io::{self, OpenOptions};
+
+pub mod beat_lens;
+pub mod calipers_ui;
+pub mod command;
+pub mod derived;
+pub mod intervals;
+pub mod ledger;
+pub mod settings;
+mod shell;
+pub mod sheet;
+pub mod state;
+pub mod tape;
+
+use command::{Command, History};
+use settings::Settings;
+use state::{Document, Loaded, Part, Tool, UiState};
+
+/// The whole workstation.
+pub struct IsolineApp {
+    /// Settings remembered between runs.
+    pub settings: Settings,
+    /// The open recording and derived data.
+    pub loaded: Option<Loaded>,
+    /// The reader's work (what undo/redo restores).
+    pub doc: Document,
+    /// Undo/redo history.
+    pub history: History,
+    /// Throwaway interaction state.
+    pub ui_state: UiState,
+    /// Tool for clicks on the Sheet.
+    pub tool: Tool,
+    /// Start of the Sheet's window, s.
+    pub start_s: f64,
+    /// Length of the Sheet's window in the last frame, s.
+    pub window_s: f64,
+    /// A file dialog was asked for (handled by the eframe shell, never in tests).
+    pub wants_dialog: bool,
+}
+
+impl IsolineApp {
+    /// A workstation with default settings, opening `file` if given. A file that cannot be read leaves the
+    /// workstation empty with the error shown.
+    #[must_use]
+    pub fn new(file: Option<PathBuf>) -> Self {
+        Self::with_settings(file, Settings::default())
+    }
+
+    /// As [`IsolineApp::new`], with remembered settings.
+    #[must_use]
+    pub fn with_settings(file: Option<PathBuf>, settings: Settings) -> Self {
+        let mut app = Self {
+            settings,
+            loaded: None,
+            doc: Document::default(),
+            history: History::default(),
+            ui_state: UiState::default(),
+            tool: Tool::Pointer,
+            start_s: 0.0,
+            window_s: 10.0,
+            wants_dialog: false,
+        };
+        if let Some(f) = file {
+            app.run_cmd(Command::Open(f));
+        }
+        app
+    }
+
+    /// Draws the whole workstation and applies the commands its views returned.
+    pub fn ui(&mut self, ui: &mut egui::Ui) {
+        let t0 = std::time::Instant::now();
+        let commands = shell::shell_ui(self, ui);
+        if !ui.ctx().input(|i| i.pointer.any_down()) {
+            self.history.end_drag();
+        }
+        for c in commands {
+            self.run_cmd(c);
+        }
+        self.ui_state.last_frame_ms = t0.elapsed().as_secs_f64() * 1000.0;
+    }
+
+    /// The Ledger rows as they stand.
+    #[must_use]
+    pub fn ledger_rows(&self) -> Vec<ledger::LedgerRow> {
+        self.loaded.as_ref().map(|l| ledger::rows(l, &self.doc)).unwrap_or_default()
+    }
+
+    /// Applies one command.
+    pub fn run_cmd(&mut self, cmd: Command) {
+        if cmd.edits_document() {
+            let before = self.doc.clone();
+            if self.apply_edit(&cmd) && self.doc != before {
+                self.history.record(&cmd, &before);
+            }
+            return;
+        }
+        let view = &mut self.settings.view;
+        match cmd {
+            Command::Open(path) => self.open(&path),
+            Command::OpenDialog => self.wants_dialog = true,
+            Command::SetLayout(l) => view.layout = l,
+            Command::SetOrder(o) => view.order = o,
+            Command::SetSpeed(s) => view.paper.speed_mm_per_s = s,
+            Command::SetGain(g) => view.paper.gain_mm_per_mv = g,
+            Command::SetScheme(s) => view.scheme = s,
+            Command::SetDark(d) => view.dark = d,
+            Command::SetSnap(s) => view.snap = s,
+            Command::SetFilters(f) => view.filters = f,
+            Command::SetStart(t) => self.set_start(t),
+            Command::Page(n) => self.set_start(self.start_s + n * self.window_s),
+            Command::SetTool(t) => self.tool = t,
+            Command::Select(s) => self.ui_state.selected = s,
+            Command::Undo => {
+                if let Some(d) = self.history.undo(&self.doc) {
+                    self.doc = d;
+                }
+            }
+            Command::Redo => {
+                if let Some(d) = self.history.redo(&self.doc) {
+                    self.doc = d;
+                }
+            }
+            Command::ShowHelp(b) => self.ui_state.help_open = b,
+            Command::ShowRuler(b) => {
+                self.ui_state.ruler_open = b;
+                self.ui_state.ruler_bar_points = 0.0;
+            }
+            Command::SetRuler(px) => self.settings.ruler_px_per_mm = px,
+            Command::DismissError => self.ui_state.error = None,
+            // Edits are handled above.
+            _ => {}
+        }
+    }
+
+    fn set_start(&mut self, t: f64) {
+        let duration = self.loaded.as_ref().map_or(0.0, |l| l.recording.duration_s());
+        self.start_s = t.clamp(0.0, (duration - self.window_s).max(0.0));
+    }
+
+    /// Applies a document edit; false when it does not apply (unknown caliper, locked, …).
+    fn apply_edit(&mut self, cmd: &Command) -> bool {
+        let rate = self.loaded.as_ref().map_or(500.0, |l| l.recording.sample_rate.hz());
+        let doc = &mut self.doc;
+        match cmd {
+            Command::AddCaliper { kind, lead } => {
+                doc.next_caliper_id += 1;
+                let id = doc.next_caliper_id;
+                doc.calipers.push(state::new_caliper(id, *kind, lead.clone()));
+                self.ui_state.selected = Some((id, Part::Second));
+                self.tool = Tool::Pointer;
+            }
+            Command::MoveCaliper { id, kind } => match doc.caliper_mut(*id) {
+                Some(c) if !c.locked => c.kind = *kind,
+                _ => return false,
+            },
+            Command::Nudge(n) => {
+                let Some((id, part)) = self.ui_state.selected else { return false };
+                let Some(c) = doc.caliper_mut(id).filter(|c| !c.locked) else { return false };
+                let dt = *n as f64 / rate;
+                c.kind = match (c.kind, part) {
+                    (CaliperKind::Time { t1_s, t2_s }, Part::First) => CaliperKind::Time { t1_s: t1_s + dt, t2_s },
+                    (CaliperKind::Time { t1_s, t2_s }, Part::Second) => CaliperKind::Time { t1_s, t2_s: t2_s + dt },
+                    (CaliperKind::Plumb { t_s }, _) => CaliperKind::Plumb { t_s: t_s + dt },
+                    // Voltage levels step by 10 µV (0.1 mm at 10 mm/mV) per press.
+                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::First) => CaliperKind::Voltage { t_s, uv1: uv1 + 10.0 * *n as f64, uv2 },
+                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::Second) => CaliperKind::Voltage { t_s, uv1, uv2: uv2 + 10.0 * *n as f64 },
+                };
+            }
+            Command::DeleteCaliper(id) => {
+                let n = doc.calipers.len();
+                doc.calipers.retain(|c| c.id != *id);
+                if doc.calipers.len() == n {
+                    return false;
+                }
+                if self.ui_state.selected.is_some_and(|s| s.0 == *id) {
+                    self.ui_state.selected = None;
+                }
+            }
+            Command::SetLocked(id, b) => match doc.caliper_mut(*id) {
+                Some(c) => c.locked = *b,
+                None => return false,
+            },
+            Command::SetMarch(id, b) => match doc.caliper_mut(*id) {
+                Some(c) => c.march = *b,
+                None => return false,
+            },
+            Command::MoveMark(kind, s) => {
+                doc.marks.insert(*kind, *s);
+            }
+            Command::ResetMark(kind) => {
+                doc.marks.remove(kind);
+            }
+            Command::SetReviewed(key, v) => match v {
+                Some(v) => {
+                    doc.reviewed.insert(key.clone(), *v);
+                }
+                None => {
+                    doc.reviewed.remove(key);
+                }
+            },
+            Command::TakeCaliper { id, key } => {
+                let Some(ms) = doc.caliper(*id).and_then(isoline_core::caliper::Caliper::interval_ms) else { return false };
+                doc.reviewed.insert(key.clone(), ms);
+            }
+            _ => return false,
+        }
+        true
+    }
+
+    /// Opens a recording; on failure keeps the current one and shows the error.
+    fn open(&mut self, path: &Path) {
+        match load(path) {
+            Ok(loaded) => {
+                self.settings.remember(path);
+                self.loaded = Some(loaded);
+                self.doc = Document::default();
+                self.history.clear();
+                self.ui_state = UiState::default();
+                self.start_s = 0.0;
+            }
+            Err(e) => self.ui_state.error = Some(format!("Could not open {}: {e:#}", path.display())),
+        }
+    }
+}
+
+/// Reads a recording and derives what the views need.
+///
+/// # Errors
+/// The reader's error, naming the file and the problem.
+pub fn load(path: &Path) -> anyhow::Result<Loaded> {
+    let opened = io::open(path, &OpenOptions::default()).with_context(|| "reading the recording")?;
+    let rec = opened.recording;
+    if rec.leads.is_empty() || rec.is_empty() {
+        anyhow::bail!("the recording has no samples");
+    }
+    let order = isoline_core::paper::ordered_leads(&rec, isoline_core::paper::LeadOrder::Standard);
+    let tape_lead = rec
+        .lead_index(&isoline_core::LeadName::Standard(isoline_core::StandardLead::II))
+        .or_else(|| order.first().map(|o| o.0))
+        .unwrap_or(0);
+    let tape = derived::TapeEnvelope::new(&rec, tape_lead);
+    let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
+    let beats_source = if beats.is_empty() { "no beats".to_string() } else { format!("{} beats from annotations", beats.len()) };
+    let representative = derived::RepresentativeBeat::median_of(&rec, &beats, 60);
+    Ok(Loaded {
+        path: path.to_path_buf(),
+        format: opened.format,
+        recording: Arc::new(rec),
+        warnings: opened.warnings,
+        tape,
+        beats,
+        beats_source,
+        representative,
+        auto_marks: isoline_core::beat::Boundaries::default(),
+    })
+}
+
+struct EframeApp {
+    app: IsolineApp,
+}
+
+impl eframe::App for EframeApp {
+    fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
+        self.app.ui(ui);
+        if std::mem::take(&mut self.app.wants_dialog) {
+            let picked = rfd::FileDialog::new()
+                .add_filter("Recordings", &["hea", "edf", "csv"])
+                .add_filter("All files", &["*"])
+                .pick_file();
+            if let Some(p) = picked {
+                self.app.run_cmd(Command::Open(p));
+            }
+        }
+    }
+
+    fn save(&mut self, storage: &mut dyn eframe::Storage) {
+        self.app.settings.save(storage);
+    }
+}
 
 /// Opens the workstation, optionally on a file.
+///
+/// # Errors
+/// When the window cannot be created (no display, no GL).
 pub fn run(file: Option<PathBuf>) -> anyhow::Result<ExitCode> {
-    let _ = file;
-    anyhow::bail!("the workstation window is not available yet")
+    let options = eframe::NativeOptions {
+        viewport: egui::ViewportBuilder::default().with_inner_size([1500.0, 950.0]).with_title("Isoline"),
+        ..Default::default()
+    };
+    eframe::run_native(
+        "Isoline",
+        options,
+        Box::new(move |cc| {
+            let settings = Settings::load(cc.storage);
+            Ok(Box::new(EframeApp { app: IsolineApp::with_settings(file, settings) }))
+        }),
+    )
+    .map_err(|e| anyhow::anyhow!("could not open the window: {e}"))?;
+    Ok(ExitCode::SUCCESS)
 }

@@ -1,0 +1,214 @@
+//! Data derived from the open recording for the views: the Tape envelope, beats, the representative beat.
+//!
+//! Beats come from the recording's own beat annotations (WFDB `.atr`) until the core detector is wired in; a
+//! recording without them shows no beats, never invented ones.
+
+use isoline_core::beat::{Beat, BeatKind};
+use isoline_core::recording::{Annotation, Recording};
+
+/// Whole-recording min/max envelope of one lead, in equal time buckets.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct TapeEnvelope {
+    /// Index of the lead in `Recording::leads`.
+    pub lead: usize,
+    /// Seconds per bucket.
+    pub bucket_s: f64,
+    /// Smallest sample of each bucket, µV.
+    pub min: Vec<f32>,
+    /// Largest sample of each bucket, µV.
+    pub max: Vec<f32>,
+}
+
+/// Largest number of buckets in the Tape envelope: far more than any screen is wide.
+pub const TAPE_BUCKETS: usize = 4096;
+
+impl TapeEnvelope {
+    /// Envelope of `lead` in at most [`TAPE_BUCKETS`] buckets. Cost: one pass over the samples.
+    #[must_use]
+    pub fn new(recording: &Recording, lead: usize) -> Self {
+        let Some(samples) = recording.leads.get(lead).map(|l| l.samples.as_slice()) else {
+            return Self::default();
+        };
+        if samples.is_empty() {
+            return Self { lead, ..Self::default() };
+        }
+        let per = samples.len().div_ceil(TAPE_BUCKETS).max(1);
+        let (min, max): (Vec<f32>, Vec<f32>) = samples.chunks(per).map(min_max).unzip();
+        Self { lead, bucket_s: per as f64 / recording.sample_rate.hz(), min, max }
+    }
+}
+
+/// Smallest and largest finite value of a slice (0, 0 when there is none).
+#[must_use]
+pub fn min_max(xs: &[f32]) -> (f32, f32) {
+    let (mut lo, mut hi) = (f32::INFINITY, f32::NEG_INFINITY);
+    for &x in xs {
+        if x.is_finite() {
+            lo = lo.min(x);
+            hi = hi.max(x);
+        }
+    }
+    if lo > hi { (0.0, 0.0) } else { (lo, hi) }
+}
+
+/// Whether a WFDB annotation label marks a beat, and of which kind. Normal and bundle-branch beats count as
+/// dominant; premature, escape, fusion, paced and unclassifiable beats as other; rhythm and signal notes are
+/// not beats.
+///
+/// Source: PhysioNet WFDB annotation codes (ecgcodes.h), MIT-BIH Arrhythmia Database directory of records.
+#[must_use]
+pub fn beat_kind_from_label(label: &str) -> Option<BeatKind> {
+    match label {
+        "N" | "L" | "R" | "B" => Some(BeatKind::Dominant),
+        "A" | "a" | "J" | "S" | "V" | "r" | "F" | "e" | "j" | "n" | "E" | "/" | "f" | "Q" | "?" => {
+            Some(BeatKind::Other)
+        }
+        _ => None,
+    }
+}
+
+/// Beats from the recording's beat annotations, in time order.
+#[must_use]
+pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Beat> {
+    let mut beats: Vec<Beat> = annotations
+        .iter()
+        .filter_map(|a| {
+            let kind = beat_kind_from_label(&a.label)?;
+            let r = usize::try_from(a.sample).ok().filter(|&r| r < len)?;
+            Some(Beat::at(r, kind))
+        })
+        .collect();
+    beats.sort_by_key(|b| b.r);
+    beats
+}
+
+/// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats.
+///
+/// Source: references.md §10 (HR = 60 / RR in s).
+#[must_use]
+pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<[f64; 2]> {
+    beats
+        .windows(2)
+        .filter(|w| w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant)
+        .filter_map(|w| {
+            let rr_ms = (w[1].r - w[0].r) as f64 * 1000.0 / rate_hz;
+            (rr_ms > 0.0).then(|| [w[1].r as f64 / rate_hz, 60_000.0 / rr_ms])
+        })
+        .collect()
+}
+
+/// Median RR of consecutive dominant beats, ms.
+#[must_use]
+pub fn median_rr_ms(beats: &[Beat], rate_hz: f64) -> Option<f64> {
+    let mut rr: Vec<f64> = beats
+        .windows(2)
+        .filter(|w| w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant)
+        .map(|w| (w[1].r - w[0].r) as f64 * 1000.0 / rate_hz)
+        .collect();
+    median(&mut rr)
+}
+
+fn median(xs: &mut [f64]) -> Option<f64> {
+    if xs.is_empty() {
+        return None;
+    }
+    xs.sort_by(f64::total_cmp);
+    let n = xs.len();
+    Some(if n % 2 == 1 { xs[n / 2] } else { (xs[n / 2 - 1] + xs[n / 2]) / 2.0 })
+}
+
+/// The representative (median) beat of every lead, aligned on the R peak.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RepresentativeBeat {
+    /// Samples before the R peak; the R peak is at index `pre` of every lead's beat.
+    pub pre: usize,
+    /// Per lead (same order as `Recording::leads`), the median beat in µV.
+    pub leads: Vec<Vec<f32>>,
+    /// Number of dominant beats that went into the median.
+    pub beats_used: usize,
+    /// Sampling rate, Hz.
+    pub rate_hz: f64,
+}
+
+impl RepresentativeBeat {
+    /// Median of up to `max_beats` dominant beats over a window from 300 ms before to 500 ms after each R peak,
+    /// sample by sample. `None` with fewer than 3 usable beats.
+    #[must_use]
+    pub fn median_of(recording: &Recording, beats: &[Beat], max_beats: usize) -> Option<Self> {
+        let fs = recording.sample_rate.hz();
+        let pre = (0.3 * fs).round() as usize;
+        let post = (0.5 * fs).round() as usize;
+        let len = recording.len();
+        let rs: Vec<usize> = beats
+            .iter()
+            .filter(|b| b.kind == BeatKind::Dominant && b.r >= pre && b.r + post < len)
+            .map(|b| b.r)
+            .take(max_beats)
+            .collect();
+        if rs.len() < 3 {
+            return None;
+        }
+        let mut column = vec![0.0_f64; rs.len()];
+        let leads = recording
+            .leads
+            .iter()
+            .map(|lead| {
+                (0..pre + post)
+                    .map(|k| {
+                        for (c, &r) in column.iter_mut().zip(&rs) {
+                            *c = f64::from(lead.samples[r - pre + k]);
+                        }
+                        median(&mut column).unwrap_or(0.0) as f32
+                    })
+                    .collect()
+            })
+            .collect();
+        Some(Self { pre, leads, beats_used: rs.len(), rate_hz: fs })
+    }
+
+    /// Length of each lead's beat, samples.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.leads.first().map_or(0, Vec::len)
+    }
+
+    /// True when there are no samples.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Time of beat sample `k` relative to the R peak, ms.
+    #[must_use]
+    pub fn ms_from_sample(&self, k: f64) -> f64 {
+        (k - self.pre as f64) * 1000.0 / self.rate_hz
+    }
+
+    /// Beat sample (fractional) at a time relative to the R peak, ms.
+    #[must_use]
+    pub fn sample_from_ms(&self, ms: f64) -> f64 {
+        ms * self.rate_hz / 1000.0 + self.pre as f64
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn min_max_matches_sorting() {
+        let xs = [3.0, -1.0, f32::NAN, 7.5, 0.0];
+        assert_eq!(min_max(&xs), (-1.0, 7.5));
+        assert_eq!(min_max(&[]), (0.0, 0.0));
+    }
+
+    #[test]
+    fn rate_trend_uses_dominant_pairs() {
+        let beats = [Beat::at(0, BeatKind::Dominant), Beat::at(400, BeatKind::Dominant), Beat::at(600, BeatKind::Other)];
+        let t = rate_trend(&beats, 500.0);
+        // 400 samples at 500 Hz = 800 ms -> 75 bpm (references.md §10).
+        assert_eq!(t.len(), 1);
+        assert!((t[0][1] - 75.0).abs() < 1e-9);
+        assert_eq!(median_rr_ms(&beats, 500.0), Some(800.0));
+    }
+}

@@ -1,0 +1,379 @@
+//! The shell: menu, toolbar, status bar, caution, error banner, help overlay, keyboard shortcuts, drag and drop,
+//! and the panels around the Sheet.
+
+use egui::{Key, KeyboardShortcut, Modifiers, Sense, Vec2};
+use isoline_core::paper::{Layout, LeadOrder, PageSpec, Scheme, GAINS_MM_PER_MV, SPEEDS_MM_PER_S};
+use isoline_core::{LeadName, StandardLead, CAUTION};
+
+use super::command::Command;
+use super::state::Tool;
+use super::{beat_lens, calipers_ui, ledger, settings, sheet, tape, IsolineApp};
+
+const SHORTCUTS: [(&str, &str); 14] = [
+    ("Ctrl+O", "Open a recording"),
+    ("Ctrl+Z", "Undo"),
+    ("Ctrl+Shift+Z / Ctrl+Y", "Redo"),
+    ("T", "Time caliper tool"),
+    ("V", "Voltage caliper tool"),
+    ("P", "Plumb line tool"),
+    ("Esc", "Pointer tool, clear selection"),
+    ("← / →", "Nudge the selected leg by one sample"),
+    ("↑ / ↓", "Nudge the selected level by 10 µV"),
+    ("Delete", "Delete the selected caliper"),
+    ("M", "March the selected time caliper on/off"),
+    ("L", "Lock the selected caliper on/off"),
+    ("PageUp / PageDown", "Previous / next window"),
+    ("F1", "This help"),
+];
+
+/// Draws the shell and every view; returns the commands to apply after layout.
+pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
+    let mut out = Vec::new();
+    let ctx = ui.ctx().clone();
+    if ui.visuals().dark_mode != app.settings.view.dark {
+        ctx.set_visuals(if app.settings.view.dark { egui::Visuals::dark() } else { egui::Visuals::light() });
+    }
+    out.extend(keyboard(app, &ctx));
+    for f in ctx.input(|i| i.raw.dropped_files.clone()) {
+        out.push(Command::Open(f.path().to_path_buf()));
+    }
+    egui::Panel::top("menu").show(ui, |ui| {
+        egui::MenuBar::new().ui(ui, |ui| menu_ui(app, ui, &mut out));
+        toolbar_ui(app, ui, &mut out);
+    });
+    if let Some(err) = app.ui_state.error.clone() {
+        egui::Panel::top("error").show(ui, |ui| {
+            ui.horizontal_wrapped(|ui| {
+                ui.colored_label(ui.visuals().error_fg_color, format!("Error: {err}"));
+                if ui.button("Dismiss").clicked() {
+                    out.push(Command::DismissError);
+                }
+            });
+        });
+    }
+    egui::Panel::bottom("status").show(ui, |ui| {
+        ui.colored_label(ui.visuals().warn_fg_color, CAUTION);
+        ui.label(status_text(app));
+    });
+    if let Some(loaded) = &app.loaded {
+        egui::Panel::bottom("tape").resizable(false).show(ui, |ui| {
+            out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s));
+        });
+        egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
+            egui::ScrollArea::vertical().show(ui, |ui| {
+                out.extend(beat_lens::beat_lens_ui(ui, loaded, &app.doc, &app.settings.view, &mut app.ui_state));
+                ui.separator();
+                ui.strong("Calipers");
+                out.extend(calipers_ui::caliper_list_ui(ui, &app.doc, app.ui_state.selected));
+                ui.separator();
+                ui.strong("Ledger");
+                let rows = ledger::rows(loaded, &app.doc);
+                out.extend(ledger::ledger_ui(ui, &rows, &app.doc));
+            });
+        });
+    }
+    egui::CentralPanel::default().show(ui, |ui| sheet_panel_ui(app, ui, &mut out));
+    if app.ui_state.help_open {
+        let mut open = true;
+        egui::Window::new("Keyboard shortcuts").open(&mut open).collapsible(false).show(&ctx, |ui| {
+            egui::Grid::new("shortcuts").striped(true).show(ui, |ui| {
+                for (k, what) in SHORTCUTS {
+                    ui.monospace(k);
+                    ui.label(what);
+                    ui.end_row();
+                }
+            });
+        });
+        if !open {
+            out.push(Command::ShowHelp(false));
+        }
+    }
+    if app.ui_state.ruler_open {
+        let mut bar = app.ui_state.ruler_bar_points;
+        out.extend(settings::ruler_ui(&ctx, &app.settings, &mut bar));
+        app.ui_state.ruler_bar_points = bar;
+    }
+    out
+}
+
+fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
+    let Some(loaded) = &app.loaded else {
+        ui.centered_and_justified(|ui| {
+            ui.heading("Open a recording (Ctrl+O) or drop a .hea, .edf or .csv file here.");
+        });
+        app.ui_state.sheet = None;
+        return;
+    };
+    let view = &app.settings.view;
+    let ppmm = app.settings.points_per_mm(ui.ctx().pixels_per_point());
+    let available_mm = f64::from((ui.available_width() - 12.0) / ppmm);
+    app.window_s = sheet::window_seconds(view, available_mm, loaded.recording.duration_s());
+    let spec = PageSpec {
+        layout: view.layout.clone(),
+        order: view.order,
+        paper: view.paper,
+        start_s: app.start_s,
+        seconds: app.window_s,
+    };
+    let page = spec.page(&loaded.recording);
+    let size = Vec2::new(page.width_mm as f32, page.height_mm as f32) * ppmm;
+    let name = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
+    let header = format!(
+        "{name}   {}   {}   filters: {}   {} – {}",
+        view.paper.describe(),
+        view.layout,
+        filter_text(view.filters),
+        tape::clock(app.start_s),
+        tape::clock(app.start_s + app.window_s)
+    );
+    egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
+        let (rect, response) = ui.allocate_exact_size(size, Sense::click_and_drag());
+        let painter = ui.painter_at(rect);
+        let geo = sheet::draw_page(&painter, loaded, view, &spec, rect.min, ppmm, &header);
+        out.extend(calipers_ui::calipers_ui(
+            ui,
+            &response,
+            &geo,
+            loaded,
+            &app.doc,
+            view,
+            app.tool,
+            &mut app.ui_state,
+        ));
+        app.ui_state.sheet = Some(geo);
+    });
+}
+
+/// What the filter setting means for the signal on screen.
+fn filter_text(on: bool) -> &'static str {
+    if on { "requested (filter module not yet available: raw signal shown)" } else { "off (raw signal)" }
+}
+
+fn status_text(app: &IsolineApp) -> String {
+    let Some(l) = &app.loaded else { return format!("No recording open   frame {:.1} ms", app.ui_state.last_frame_ms) };
+    let rec = &l.recording;
+    let name = l.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
+    let rate = super::derived::median_rr_ms(&l.beats, rec.sample_rate.hz())
+        .map_or_else(|| "rate —".to_string(), |rr| format!("rate {:.0} bpm", 60_000.0 / rr));
+    let cursor = app
+        .ui_state
+        .cursor
+        .map_or_else(String::new, |(t, uv)| format!("   cursor {t:.3} s  {:.2} mV", uv / 1000.0));
+    format!(
+        "{name} ({})   {} leads   {} Hz   {}   {rate}   {}   filters: {}{cursor}   frame {:.1} ms",
+        l.format,
+        rec.leads.len(),
+        rec.sample_rate.hz(),
+        tape::clock(rec.duration_s()),
+        l.beats_source,
+        filter_text(app.settings.view.filters),
+        app.ui_state.last_frame_ms
+    )
+}
+
+fn menu_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
+    ui.menu_button("File", |ui| {
+        if ui.button("Open…  (Ctrl+O)").clicked() {
+            out.push(Command::OpenDialog);
+            ui.close();
+        }
+        ui.menu_button("Open recent", |ui| {
+            if app.settings.recent.is_empty() {
+                ui.weak("none yet");
+            }
+            for p in &app.settings.recent {
+                if ui.button(p.display().to_string()).clicked() {
+                    out.push(Command::Open(p.clone()));
+                    ui.close();
+                }
+            }
+        });
+    });
+    ui.menu_button("Edit", |ui| {
+        let undo = app.history.undo_label().map_or("Undo".to_string(), |w| format!("Undo {w}"));
+        if ui.add_enabled(app.history.undo_label().is_some(), egui::Button::new(undo)).clicked() {
+            out.push(Command::Undo);
+            ui.close();
+        }
+        let redo = app.history.redo_label().map_or("Redo".to_string(), |w| format!("Redo {w}"));
+        if ui.add_enabled(app.history.redo_label().is_some(), egui::Button::new(redo)).clicked() {
+            out.push(Command::Redo);
+            ui.close();
+        }
+    });
+    ui.menu_button("View", |ui| {
+        let v = &app.settings.view;
+        for order in [LeadOrder::Standard, LeadOrder::Cabrera] {
+            if ui.radio(v.order == order, format!("Lead order: {}", order.as_str())).clicked() {
+                out.push(Command::SetOrder(order));
+            }
+        }
+        ui.separator();
+        for s in Scheme::ALL {
+            if ui.radio(v.scheme == s, format!("Paper: {}", scheme_name(s))).clicked() {
+                out.push(Command::SetScheme(s));
+            }
+        }
+        ui.separator();
+        if ui.checkbox(&mut v.dark.clone(), "Dark window").clicked() {
+            out.push(Command::SetDark(!v.dark));
+        }
+        if ui.button("Ruler calibration…").clicked() {
+            out.push(Command::ShowRuler(true));
+            ui.close();
+        }
+    });
+    ui.menu_button("Help", |ui| {
+        if ui.button("Keyboard shortcuts  (F1)").clicked() {
+            out.push(Command::ShowHelp(true));
+            ui.close();
+        }
+    });
+}
+
+/// Display name of a scheme (vocabulary: Rose, Graphite, Mono).
+fn scheme_name(s: Scheme) -> &'static str {
+    match s {
+        Scheme::Rose => "Rose",
+        Scheme::Graphite => "Graphite",
+        Scheme::Mono => "Mono",
+    }
+}
+
+fn toolbar_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
+    let v = &app.settings.view;
+    let lead_of_layout = match &v.layout {
+        Layout::ThreeByFourPlusOne { rhythm } => rhythm.clone(),
+        Layout::Strip(l) => l.clone(),
+        _ => LeadName::Standard(StandardLead::II),
+    };
+    ui.horizontal_wrapped(|ui| {
+        let layouts = [
+            ("3x4+1", Layout::ThreeByFourPlusOne { rhythm: lead_of_layout.clone() }),
+            ("6x2", Layout::SixByTwo),
+            ("12x1", Layout::TwelveByOne),
+            ("strip", Layout::Strip(lead_of_layout.clone())),
+        ];
+        for (name, l) in layouts {
+            let on = std::mem::discriminant(&v.layout) == std::mem::discriminant(&l);
+            if ui.selectable_label(on, name).clicked() {
+                out.push(Command::SetLayout(l));
+            }
+        }
+        if let (Some(loaded), Layout::ThreeByFourPlusOne { .. } | Layout::Strip(_)) = (&app.loaded, &v.layout) {
+            egui::ComboBox::from_id_salt("layout_lead").selected_text(format!("lead {lead_of_layout}")).show_ui(ui, |ui| {
+                for lead in &loaded.recording.leads {
+                    if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
+                        out.push(Command::SetLayout(match v.layout {
+                            Layout::Strip(_) => Layout::Strip(lead.name.clone()),
+                            _ => Layout::ThreeByFourPlusOne { rhythm: lead.name.clone() },
+                        }));
+                    }
+                }
+            });
+        }
+        ui.separator();
+        for s in SPEEDS_MM_PER_S {
+            if ui.selectable_label(v.paper.speed_mm_per_s == s, format!("{s} mm/s")).clicked() {
+                out.push(Command::SetSpeed(s));
+            }
+        }
+        ui.separator();
+        for g in GAINS_MM_PER_MV {
+            if ui.selectable_label(v.paper.gain_mm_per_mv == g, format!("{g} mm/mV")).clicked() {
+                out.push(Command::SetGain(g));
+            }
+        }
+        ui.separator();
+        for t in [Tool::Pointer, Tool::TimeCaliper, Tool::VoltageCaliper, Tool::PlumbLine] {
+            if ui.selectable_label(app.tool == t, t.label()).clicked() {
+                out.push(Command::SetTool(t));
+            }
+        }
+        ui.separator();
+        let mut snap = v.snap;
+        if ui.checkbox(&mut snap, "Snap").changed() {
+            out.push(Command::SetSnap(snap));
+        }
+        let mut filters = v.filters;
+        if ui.checkbox(&mut filters, "Filters").changed() {
+            out.push(Command::SetFilters(filters));
+        }
+        ui.separator();
+        if ui.add_enabled(app.history.undo_label().is_some(), egui::Button::new("Undo")).clicked() {
+            out.push(Command::Undo);
+        }
+        if ui.add_enabled(app.history.redo_label().is_some(), egui::Button::new("Redo")).clicked() {
+            out.push(Command::Redo);
+        }
+        if app.loaded.is_some() {
+            ui.separator();
+            if ui.button("Previous window").clicked() {
+                out.push(Command::Page(-1.0));
+            }
+            if ui.button("Next window").clicked() {
+                out.push(Command::Page(1.0));
+            }
+        }
+    });
+}
+
+fn keyboard(app: &IsolineApp, ctx: &egui::Context) -> Vec<Command> {
+    let mut out = Vec::new();
+    let typing = ctx.memory(|m| m.focused().is_some()) && ctx.egui_wants_keyboard_input();
+    let ctrl = |k| KeyboardShortcut::new(Modifiers::COMMAND, k);
+    let ctrl_shift = |k| KeyboardShortcut::new(Modifiers::COMMAND | Modifiers::SHIFT, k);
+    ctx.input_mut(|i| {
+        if i.consume_shortcut(&ctrl(Key::O)) {
+            out.push(Command::OpenDialog);
+        }
+        if i.consume_shortcut(&ctrl_shift(Key::Z)) || i.consume_shortcut(&ctrl(Key::Y)) {
+            out.push(Command::Redo);
+        }
+        if i.consume_shortcut(&ctrl(Key::Z)) {
+            out.push(Command::Undo);
+        }
+        if i.key_pressed(Key::F1) {
+            out.push(Command::ShowHelp(!app.ui_state.help_open));
+        }
+        if typing {
+            return;
+        }
+        let sel = app.ui_state.selected;
+        let plain = |i: &egui::InputState, k| i.modifiers.is_none() && i.key_pressed(k);
+        for (k, t) in [(Key::T, Tool::TimeCaliper), (Key::V, Tool::VoltageCaliper), (Key::P, Tool::PlumbLine)] {
+            if plain(i, k) {
+                out.push(Command::SetTool(t));
+            }
+        }
+        if i.key_pressed(Key::Escape) {
+            out.push(Command::SetTool(Tool::Pointer));
+            out.push(Command::Select(None));
+        }
+        for (k, n) in [(Key::ArrowLeft, -1), (Key::ArrowRight, 1), (Key::ArrowDown, -1), (Key::ArrowUp, 1)] {
+            if sel.is_some() && i.key_pressed(k) {
+                out.push(Command::Nudge(n));
+            }
+        }
+        if let Some((id, _)) = sel {
+            if i.key_pressed(Key::Delete) || i.key_pressed(Key::Backspace) {
+                out.push(Command::DeleteCaliper(id));
+            }
+            if let Some(c) = app.doc.caliper(id) {
+                if plain(i, Key::M) {
+                    out.push(Command::SetMarch(id, !c.march));
+                }
+                if plain(i, Key::L) {
+                    out.push(Command::SetLocked(id, !c.locked));
+                }
+            }
+        }
+        if i.key_pressed(Key::PageDown) {
+            out.push(Command::Page(1.0));
+        }
+        if i.key_pressed(Key::PageUp) {
+            out.push(Command::Page(-1.0));
+        }
+    });
+    out
+}

@@ -1,0 +1,221 @@
+//! The workstation's state, in three kinds that never mix:
+//!
+//! - [`Document`]: the reader's work (calipers, moved marks, reviewed values). Saved with the review; every change
+//!   to it goes through a [`Command`](super::command::Command) and can be undone.
+//! - [`Loaded`]: the open recording and data derived from it (Tape envelope, beats, representative beat,
+//!   automatic marks). Recomputed when its inputs change, never saved.
+//! - [`UiState`]: throwaway interaction state (selection, hover, open overlays, last error).
+
+use std::collections::BTreeMap;
+use std::path::PathBuf;
+use std::sync::Arc;
+
+use isoline_core::beat::{Beat, Boundaries, MarkKind};
+use isoline_core::caliper::{Caliper, CaliperKind};
+use isoline_core::io::Format;
+use isoline_core::paper::{LeadOrder, Layout, Paper, Scheme};
+use isoline_core::recording::Recording;
+
+use super::derived::{RepresentativeBeat, TapeEnvelope};
+
+/// Where a value or mark came from (see the vocabulary: `auto`, `moved`, `placed`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum Origin {
+    /// Computed by Isoline.
+    Auto,
+    /// Computed, then adjusted by the reader.
+    Moved,
+    /// Added by the reader.
+    Placed,
+}
+
+impl Origin {
+    /// `auto`, `moved` or `placed`.
+    #[must_use]
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::Auto => "auto",
+            Self::Moved => "moved",
+            Self::Placed => "placed",
+        }
+    }
+}
+
+/// The reader's work on one recording: what a review saves and what undo/redo restores.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Document {
+    /// Calipers on the Sheet.
+    pub calipers: Vec<Caliper>,
+    /// Next caliper id to hand out.
+    pub next_caliper_id: u32,
+    /// Marks on the representative beat that the reader moved or placed, as sample indices on that beat's axis.
+    /// A kind not present here uses the automatic mark.
+    pub marks: BTreeMap<MarkKind, usize>,
+    /// Values the reader typed or took from a caliper, by Ledger key (`qt_ms`, …), in the row's unit.
+    pub reviewed: BTreeMap<String, f64>,
+}
+
+impl Document {
+    /// The caliper with this id.
+    #[must_use]
+    pub fn caliper(&self, id: u32) -> Option<&Caliper> {
+        self.calipers.iter().find(|c| c.id == id)
+    }
+
+    /// Mutable access to the caliper with this id.
+    pub fn caliper_mut(&mut self, id: u32) -> Option<&mut Caliper> {
+        self.calipers.iter_mut().find(|c| c.id == id)
+    }
+
+    /// Marks in effect on the representative beat: the reader's where present, else the automatic ones.
+    #[must_use]
+    pub fn effective_marks(&self, auto: &Boundaries) -> Boundaries {
+        let mut b = *auto;
+        for (&kind, &s) in &self.marks {
+            b.set(kind, Some(s));
+        }
+        b
+    }
+
+    /// Origin of one mark given the automatic marks.
+    #[must_use]
+    pub fn mark_origin(&self, kind: MarkKind, auto: &Boundaries) -> Option<Origin> {
+        match (self.marks.get(&kind), auto.get(kind)) {
+            (Some(&s), Some(a)) if s == a => Some(Origin::Auto),
+            (Some(_), Some(_)) => Some(Origin::Moved),
+            (Some(_), None) => Some(Origin::Placed),
+            (None, Some(_)) => Some(Origin::Auto),
+            (None, None) => None,
+        }
+    }
+}
+
+/// The tool a click on the Sheet uses.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum Tool {
+    /// Select and drag existing calipers.
+    #[default]
+    Pointer,
+    /// A click places a time caliper.
+    TimeCaliper,
+    /// A click places a voltage caliper.
+    VoltageCaliper,
+    /// A click places a plumb line.
+    PlumbLine,
+}
+
+impl Tool {
+    /// Label on the toolbar.
+    #[must_use]
+    pub fn label(self) -> &'static str {
+        match self {
+            Self::Pointer => "Pointer",
+            Self::TimeCaliper => "Time caliper",
+            Self::VoltageCaliper => "Voltage caliper",
+            Self::PlumbLine => "Plumb line",
+        }
+    }
+}
+
+/// How the Sheet is shown: remembered between runs, not part of the review, not undone.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+#[serde(default)]
+pub struct ViewSettings {
+    /// Page layout.
+    pub layout: Layout,
+    /// Lead order.
+    pub order: LeadOrder,
+    /// Speed and gain.
+    pub paper: Paper,
+    /// Paper colour scheme.
+    pub scheme: Scheme,
+    /// Dark window chrome.
+    pub dark: bool,
+    /// Snap caliper legs to detected beats and boundaries.
+    pub snap: bool,
+    /// Show the filtered signal (when filters are available).
+    pub filters: bool,
+}
+
+impl Default for ViewSettings {
+    fn default() -> Self {
+        Self {
+            layout: Layout::default(),
+            order: LeadOrder::Standard,
+            paper: Paper::STANDARD,
+            scheme: Scheme::Rose,
+            dark: false,
+            snap: true,
+            filters: false,
+        }
+    }
+}
+
+/// The open recording and everything derived from it.
+#[derive(Debug, Clone)]
+pub struct Loaded {
+    /// File the user opened.
+    pub path: PathBuf,
+    /// Format it was read as.
+    pub format: Format,
+    /// The recording (shared: views read it every frame).
+    pub recording: Arc<Recording>,
+    /// What the reader noticed while reading.
+    pub warnings: Vec<String>,
+    /// Whole-recording min/max envelope of the Tape lead.
+    pub tape: TapeEnvelope,
+    /// Beats (from the recording's annotations until the detector is wired).
+    pub beats: Vec<Beat>,
+    /// Where the beats came from, for the status bar.
+    pub beats_source: String,
+    /// Representative beat of every lead, if there are enough dominant beats.
+    pub representative: Option<RepresentativeBeat>,
+    /// Automatic marks on the representative beat (none until the delineator is wired).
+    pub auto_marks: Boundaries,
+}
+
+/// What the selected caliper part is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Part {
+    /// First leg (time) or first level (voltage), or the plumb line itself.
+    First,
+    /// Second leg or level.
+    Second,
+}
+
+/// Throwaway interaction state.
+#[derive(Debug, Clone, Default)]
+pub struct UiState {
+    /// Selected caliper and part (the target of arrow-key nudges).
+    pub selected: Option<(u32, Part)>,
+    /// Caliper part being dragged on the Sheet, with the row and cell the drag started in.
+    pub drag: Option<(u32, Part, usize, usize)>,
+    /// Cursor position on the Sheet: recording time (s) and amplitude (µV) on the lead under it.
+    pub cursor: Option<(f64, f64)>,
+    /// Beat lens: the one lead shown (`None`: every lead overlaid).
+    pub lens_lead: Option<usize>,
+    /// Beat lens: the mark a click places.
+    pub lens_active: Option<MarkKind>,
+    /// Beat lens: the mark being dragged.
+    pub lens_drag: Option<MarkKind>,
+    /// Help overlay open.
+    pub help_open: bool,
+    /// Ruler calibration window open.
+    pub ruler_open: bool,
+    /// Width of the on-screen ruler bar in points while calibrating.
+    pub ruler_bar_points: f32,
+    /// Last error, shown in a banner until dismissed.
+    pub error: Option<String>,
+    /// CPU time of the last frame's `ui`, ms.
+    pub last_frame_ms: f64,
+    /// Geometry of the Sheet as drawn in the last frame (for hit tests from outside, e.g. UI tests).
+    pub sheet: Option<super::sheet::SheetGeometry>,
+    /// Screen rectangle of the Beat lens plot area and its time axis, from the last frame.
+    pub lens: Option<super::beat_lens::LensGeometry>,
+}
+
+/// Convenience: a new caliper of a kind.
+#[must_use]
+pub fn new_caliper(id: u32, kind: CaliperKind, lead: Option<String>) -> Caliper {
+    Caliper { id, kind, lead, locked: false, march: false }
+}

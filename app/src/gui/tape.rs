@@ -1,0 +1,123 @@
+//! The Tape: the whole recording as a min/max envelope with the heart-rate trend below it. A click or drag moves
+//! the Sheet there; the Sheet's window is outlined. Drawing cost follows the Tape's width in pixels: the stored
+//! envelope (at most 4096 buckets) is merged down to one bucket per pixel column.
+
+use egui_plot::{FilledArea, Line, Plot, PlotPoints, Polygon};
+
+use super::command::Command;
+use super::derived::{rate_trend, TapeEnvelope};
+use super::state::Loaded;
+
+/// Draws the Tape; returns a command to move the Sheet when clicked or dragged.
+pub fn tape_ui(ui: &mut egui::Ui, loaded: &Loaded, start_s: f64, window_s: f64) -> Vec<Command> {
+    let mut out = Vec::new();
+    let duration = loaded.recording.duration_s();
+    let lead_name = loaded.recording.leads.get(loaded.tape.lead).map(|l| l.name.to_string()).unwrap_or_default();
+    let columns = (ui.available_width() * ui.ctx().pixels_per_point()).max(16.0) as usize;
+    let (xs, lo, hi) = merged_columns(&loaded.tape, columns);
+    let (y_lo, y_hi) = lo.iter().chain(&hi).fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
+    let (y_lo, y_hi) = if y_lo < y_hi { (y_lo, y_hi) } else { (-1.0, 1.0) };
+    let window = move |y0: f64, y1: f64| {
+        Polygon::new(
+            "Sheet window",
+            PlotPoints::new(vec![[start_s, y0], [start_s + window_s, y0], [start_s + window_s, y1], [start_s, y1]]),
+        )
+        .fill_color(egui::Color32::from_rgba_unmultiplied(40, 110, 220, 40))
+        .stroke(egui::Stroke::new(1.5, egui::Color32::from_rgb(40, 110, 220)))
+    };
+    ui.label(format!("Tape: {lead_name}, whole recording ({})", clock(duration)));
+    let fill = ui.visuals().text_color().gamma_multiply(0.6);
+    let env = Plot::new("tape_envelope")
+        .height(70.0)
+        .allow_drag(false)
+        .allow_zoom(false)
+        .allow_scroll(false)
+        .allow_boxed_zoom(false)
+        .allow_double_click_reset(false)
+        .show_y(false)
+        .y_axis_label("mV")
+        .include_x(0.0)
+        .include_x(duration)
+        .show(ui, |p| {
+            p.add(FilledArea::new(lead_name.as_str(), &xs, &lo, &hi).fill_color(fill));
+            p.add(window(y_lo, y_hi));
+        });
+    out.extend(jump(&env.response, &env.transform, window_s, duration));
+    let trend = rate_trend(&loaded.beats, loaded.recording.sample_rate.hz());
+    if trend.is_empty() {
+        ui.weak("Heart-rate trend: no beats yet (needs beat annotations or the detector).");
+    } else {
+        let hr = Plot::new("tape_rate")
+            .height(60.0)
+            .allow_drag(false)
+            .allow_zoom(false)
+            .allow_scroll(false)
+            .allow_boxed_zoom(false)
+            .allow_double_click_reset(false)
+            .y_axis_label("bpm")
+            .include_x(0.0)
+            .include_x(duration)
+            .include_y(40.0)
+            .include_y(120.0)
+            .show(ui, |p| {
+                let pts = thin(&trend, columns);
+                p.add(Line::new("heart rate", PlotPoints::new(pts)).color(egui::Color32::from_rgb(200, 60, 60)));
+                p.add(window(0.0, 250.0));
+            });
+        out.extend(jump(&hr.response, &hr.transform, window_s, duration));
+    }
+    out
+}
+
+fn jump(response: &egui::Response, transform: &egui_plot::PlotTransform, window_s: f64, duration: f64) -> Option<Command> {
+    if !(response.clicked() || response.dragged()) {
+        return None;
+    }
+    let p = response.interact_pointer_pos()?;
+    let t = transform.value_from_position(p).x;
+    Some(Command::SetStart((t - window_s / 2.0).clamp(0.0, (duration - window_s).max(0.0))))
+}
+
+/// Merges envelope buckets down to at most `columns`, returning bucket centre times (s) and min/max in mV.
+#[must_use]
+pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
+    let n = env.min.len();
+    let per = n.div_ceil(columns.max(1)).max(1);
+    let mut xs = Vec::with_capacity(n / per + 1);
+    let mut lo = Vec::with_capacity(n / per + 1);
+    let mut hi = Vec::with_capacity(n / per + 1);
+    for (k, (a, b)) in env.min.chunks(per).zip(env.max.chunks(per)).enumerate() {
+        xs.push((k * per) as f64 * env.bucket_s + a.len() as f64 * env.bucket_s / 2.0);
+        lo.push(f64::from(a.iter().copied().fold(f32::INFINITY, f32::min)) / 1000.0);
+        hi.push(f64::from(b.iter().copied().fold(f32::NEG_INFINITY, f32::max)) / 1000.0);
+    }
+    (xs, lo, hi)
+}
+
+/// Keeps at most about `2 × columns` points of a trend (every k-th point).
+fn thin(points: &[[f64; 2]], columns: usize) -> Vec<[f64; 2]> {
+    let step = points.len().div_ceil(2 * columns.max(1)).max(1);
+    points.iter().step_by(step).copied().collect()
+}
+
+/// `h:mm:ss` for a duration in seconds.
+#[must_use]
+pub fn clock(seconds: f64) -> String {
+    let s = seconds.max(0.0).round() as u64;
+    format!("{}:{:02}:{:02}", s / 3600, (s / 60) % 60, s % 60)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn merged_columns_keep_extremes() {
+        let env = TapeEnvelope { lead: 0, bucket_s: 1.0, min: vec![0.0, -500.0, 10.0, 20.0], max: vec![100.0, 50.0, 2000.0, 30.0] };
+        let (xs, lo, hi) = merged_columns(&env, 2);
+        assert_eq!(xs, vec![1.0, 3.0]);
+        assert_eq!(lo, vec![-0.5, 0.01]);
+        assert_eq!(hi, vec![0.1, 2.0]);
+        assert_eq!(clock(3725.0), "1:02:05");
+    }
+}
