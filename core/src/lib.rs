@@ -12,9 +12,16 @@
 
 pub mod beat;
 pub mod caliper;
+pub mod delineate;
+pub mod detect;
+pub mod filter;
 pub mod io;
+pub mod measure;
 pub mod paper;
 pub mod recording;
+pub mod render;
+pub mod review;
+pub mod synth;
 pub mod units;
 
 pub use beat::{Beat, BeatKind, Boundaries, MarkKind};

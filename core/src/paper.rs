@@ -404,7 +404,7 @@ impl PageSpec {
         let paper = self.paper;
         let leads = ordered_leads(recording, self.order);
         let row_h = (3.0 * paper.gain_mm_per_mv).max(margins::MIN_ROW_MM);
-        let trace_x = margins::LEFT_MM + margins::CALIBRATION_MM;
+        let trace_x = margins::LEFT_MM + calibration_space_mm(&paper);
         let total_w = paper.mm_from_seconds(self.seconds);
         let find = |name: &LeadName| -> Option<(usize, String, bool)> {
             recording.lead_index(name).map(|i| (i, name.to_string(), false)).or_else(|| leads.first().cloned())
@@ -460,6 +460,15 @@ impl PageSpec {
             rows,
         }
     }
+}
+
+/// Space before the traces for the calibration pulse, mm: `margins::CALIBRATION_MM`, or more at fast speeds
+/// where the 200 ms pulse is wider (2 mm offset + 1 mm lead-in + pulse + 1 mm lead-out + 1 mm gap), rounded up
+/// to whole 5 mm squares so traces still start on a heavy line.
+#[must_use]
+pub fn calibration_space_mm(paper: &Paper) -> f64 {
+    let need = 2.0 + 1.0 + paper.mm_from_seconds(CALIBRATION_PULSE_S) + 1.0 + 1.0;
+    if need <= margins::CALIBRATION_MM { margins::CALIBRATION_MM } else { (need / MAJOR_MM).ceil() * MAJOR_MM }
 }
 
 fn row(top: f64, height: f64, cells: Vec<Cell>) -> Row {

@@ -1,4 +1,6 @@
-//! `isoline info FILE [--format text|json]`.
+//! `isoline info FILE [--format text|json]`: format, leads, sample rate, duration and annotation count. Reading
+//! the whole recording checks that the signal data holds what the header promises; what the reader accepted
+//! with a doubt is printed as a warning on stderr.
 
 use std::path::PathBuf;
 use std::process::ExitCode;

@@ -1,14 +1,246 @@
-//! CSV: a header row of lead names, an optional `time_s` column, values in mV.
+//! CSV recordings: a header row of lead names, an optional `time_s` column, values in mV.
+//!
+//! Reading: lines starting with `#` and blank lines before the header are skipped; lead names are matched to the
+//! standard names case-insensitively (`avr` → aVR); the rate comes from an evenly spaced `time_s` column or is
+//! given. An empty cell or `NaN` is an invalid sample. Writing: `time_s` (6 decimals), then one column per lead
+//! in mV with 4 decimals (0.1 µV), an empty cell for an invalid sample.
 
+use std::io::{BufRead, Write};
 use std::path::Path;
 
-use super::{Opened, ReadError};
+use super::{write_atomic, Format, Opened, ReadError, MAX_TOTAL_SAMPLES};
+use crate::recording::{Lead, LeadName, Meta, Recording};
+use crate::units::Hertz;
 
-/// Reads a CSV recording. Without a `time_s` column, `rate_hz` must be given.
+/// Longest line accepted, bytes.
+const MAX_LINE: usize = 1 << 20;
+
+fn cells(line: &str) -> impl Iterator<Item = &str> {
+    line.split(',').map(|c| c.trim().trim_matches('"').trim())
+}
+
+/// Parses one value cell; `Ok(None)` for an invalid (empty or NaN) sample.
+fn value(cell: &str) -> Result<Option<f64>, ()> {
+    if cell.is_empty() || cell.eq_ignore_ascii_case("nan") {
+        return Ok(None);
+    }
+    match cell.parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(Some(v)),
+        _ => Err(()),
+    }
+}
+
+/// Reads a CSV recording. Without a `time_s` column, `rate_hz` must be given; with both, they must agree.
 ///
 /// # Errors
 /// [`ReadError`] naming the line and column at fault.
 pub fn read(path: &Path, rate_hz: Option<f64>) -> Result<Opened, ReadError> {
-    let _ = rate_hz;
-    Err(ReadError::unsupported(path, "CSV reading is not written yet"))
+    let file = std::fs::File::open(path).map_err(|e| ReadError::io(path, e))?;
+    read_from(path, std::io::BufReader::with_capacity(1 << 20, file), rate_hz)
+}
+
+/// Reads a CSV recording from any reader; `path` names it in messages.
+///
+/// # Errors
+/// As [`read`].
+pub fn read_from(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>) -> Result<Opened, ReadError> {
+    let err = |line: usize, what: String| ReadError::invalid(path, format!("line {line}: {what}"));
+    let mut raw = Vec::new();
+    let mut line_no = 0usize;
+    // Reads the next line into `raw`; false at the end of the input.
+    let mut next_line = |raw: &mut Vec<u8>, line_no: &mut usize| -> Result<bool, ReadError> {
+        raw.clear();
+        let n = std::io::Read::take(&mut input, MAX_LINE as u64 + 1).read_until(b'\n', raw).map_err(|e| ReadError::io(path, e))?;
+        *line_no += 1;
+        if raw.len() > MAX_LINE {
+            return Err(err(*line_no, format!("line longer than {MAX_LINE} bytes")));
+        }
+        while raw.last().is_some_and(|b| *b == b'\n' || *b == b'\r') {
+            raw.pop();
+        }
+        Ok(n > 0)
+    };
+    let header = loop {
+        if !next_line(&mut raw, &mut line_no)? {
+            return Err(ReadError::invalid(path, "no header row of lead names"));
+        }
+        let text = std::str::from_utf8(&raw).map_err(|_| err(line_no, "not UTF-8 text".into()))?;
+        if !text.trim().is_empty() && !text.trim_start().starts_with('#') {
+            break text.to_string();
+        }
+    };
+    let header_line = line_no;
+    let names: Vec<String> = cells(&header).map(str::to_string).collect();
+    let mut time_col = None;
+    let mut lead_names: Vec<(usize, LeadName)> = Vec::new();
+    for (c, name) in names.iter().enumerate() {
+        if name.is_empty() {
+            return Err(err(header_line, format!("column {}: empty column name", c + 1)));
+        }
+        if name.eq_ignore_ascii_case("time_s") {
+            if time_col.replace(c).is_some() {
+                return Err(err(header_line, format!("column {}: a second time_s column", c + 1)));
+            }
+            continue;
+        }
+        let lead = LeadName::parse(name);
+        if lead_names.iter().any(|(_, l)| *l == lead) {
+            return Err(err(header_line, format!("column {}: lead {lead} appears twice", c + 1)));
+        }
+        lead_names.push((c, lead));
+    }
+    if lead_names.is_empty() {
+        return Err(err(header_line, "no lead columns in the header row".into()));
+    }
+    let mut samples: Vec<Vec<f32>> = vec![Vec::new(); lead_names.len()];
+    let (mut t_first, mut t_prev, mut dt0) = (None::<f64>, 0.0f64, None::<f64>);
+    let mut rows = 0usize;
+    while next_line(&mut raw, &mut line_no)? {
+        let text = std::str::from_utf8(&raw).map_err(|_| err(line_no, "not UTF-8 text".into()))?;
+        if text.trim().is_empty() {
+            continue;
+        }
+        let row: Vec<&str> = cells(text).collect();
+        if row.len() != names.len() {
+            return Err(err(line_no, format!("{} columns, the header row has {}", row.len(), names.len())));
+        }
+        if (rows as u64 + 1) * lead_names.len() as u64 > MAX_TOTAL_SAMPLES {
+            return Err(err(line_no, format!("more than {MAX_TOTAL_SAMPLES} samples")));
+        }
+        let bad = |c: usize| err(line_no, format!("column {} ('{}'): '{}' is not a number", c + 1, names[c], row[c]));
+        if let Some(tc) = time_col {
+            let t = value(row[tc]).ok().flatten().ok_or_else(|| bad(tc))?;
+            match (t_first, dt0) {
+                (None, _) => t_first = Some(t),
+                (Some(_), None) => {
+                    if t <= t_prev {
+                        return Err(err(line_no, format!("column {} (time_s): {t} does not increase", tc + 1)));
+                    }
+                    dt0 = Some(t - t_prev);
+                }
+                (Some(_), Some(dt)) => {
+                    // Tolerance: 1 % of the step plus the rounding of 6-decimal times.
+                    if ((t - t_prev) - dt).abs() > 0.01 * dt + 2e-6 {
+                        return Err(err(
+                            line_no,
+                            format!("column {} (time_s): step {:.6} s differs from the first step {dt:.6} s", tc + 1, t - t_prev),
+                        ));
+                    }
+                }
+            }
+            t_prev = t;
+        }
+        for (k, &(c, _)) in lead_names.iter().enumerate() {
+            let v = value(row[c]).map_err(|()| bad(c))?;
+            samples[k].push(v.map_or(f32::NAN, |mv| (mv * 1000.0) as f32));
+        }
+        rows += 1;
+    }
+    if rows == 0 {
+        return Err(err(line_no, "no data rows".into()));
+    }
+    let from_time = match (t_first, rows) {
+        (Some(t0), n) if n >= 2 => {
+            let fs = (n - 1) as f64 / (t_prev - t0);
+            Some(if (fs - fs.round()).abs() < 1e-3 * fs { fs.round() } else { fs })
+        }
+        _ => None,
+    };
+    let fs = match (rate_hz, from_time) {
+        (Some(given), Some(t)) if (given - t).abs() > 1e-3 * given => {
+            return Err(ReadError::invalid(path, format!("time_s gives {t} Hz but the rate given is {given} Hz")));
+        }
+        (Some(given), _) => given,
+        (None, Some(t)) => t,
+        (None, None) => {
+            return Err(ReadError::invalid(path, "no time_s column with two or more rows: give the sampling rate (--rate)"));
+        }
+    };
+    let sample_rate = Hertz::from_hz(fs).map_err(|e| ReadError::invalid(path, format!("sampling rate: {e}")))?;
+    for s in &mut samples {
+        s.shrink_to_fit();
+    }
+    let leads = lead_names.into_iter().zip(samples).map(|((_, name), samples)| Lead { name, samples }).collect();
+    let recording = Recording { leads, sample_rate, start: None, meta: Meta::default(), annotations: Vec::new() };
+    Ok(Opened { recording, format: Format::Csv, files: vec![path.to_path_buf()], warnings: Vec::new() })
+}
+
+/// Writes `rec` as CSV: `time_s`, then one column per lead in mV with 4 decimals.
+///
+/// # Errors
+/// Any error of `out`.
+pub fn write_to(out: &mut impl Write, rec: &Recording) -> std::io::Result<()> {
+    let names: Vec<String> = rec.leads.iter().map(|l| l.name.to_string().replace([',', '"', '\n', '\r'], " ")).collect();
+    writeln!(out, "time_s,{}", names.join(","))?;
+    let fs = rec.sample_rate.hz();
+    for k in 0..rec.len() {
+        write!(out, "{:.6}", k as f64 / fs)?;
+        for l in &rec.leads {
+            match l.samples.get(k) {
+                Some(v) if v.is_finite() => write!(out, ",{:.4}", f64::from(*v) / 1000.0)?,
+                _ => out.write_all(b",")?,
+            }
+        }
+        out.write_all(b"\n")?;
+    }
+    Ok(())
+}
+
+/// Writes `rec` as CSV to `path`, atomically (temporary file in the same folder, then rename).
+///
+/// # Errors
+/// [`ReadError::Io`] naming `path`.
+pub fn write(path: &Path, rec: &Recording) -> Result<(), ReadError> {
+    write_atomic(path, |w| write_to(w, rec))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(text: &str, rate: Option<f64>) -> Result<Opened, ReadError> {
+        read_from(Path::new("t.csv"), text.as_bytes(), rate)
+    }
+
+    #[test]
+    fn reads_time_and_names() -> Result<(), ReadError> {
+        let o = parse("# made by hand\ntime_s,avr,Lead II,MLII\n0.000,0.5,-1,\n0.004,0.25,1.5,2\n0.008,0,0,NaN\n", None)?;
+        let r = &o.recording;
+        assert_eq!(r.sample_rate.hz(), 250.0);
+        assert_eq!(r.leads[0].name.to_string(), "aVR");
+        assert_eq!(r.leads[1].name.to_string(), "II");
+        assert_eq!(r.leads[2].name.to_string(), "MLII");
+        assert_eq!(r.leads[1].samples, vec![-1000.0, 1500.0, 0.0]);
+        assert!(r.leads[2].samples[0].is_nan() && r.leads[2].samples[2].is_nan());
+        Ok(())
+    }
+
+    #[test]
+    fn errors_name_line_and_column() {
+        let e = parse("time_s,I\n0,1\n0.004,x\n", None).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(e.contains("line 3") && e.contains("column 2"), "{e}");
+        let e = parse("time_s,I\n0,1\n0.004,1\n0.010,1\n", None).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(e.contains("line 4") && e.contains("time_s"), "{e}");
+        let e = parse("I,II\n1,2\n", None).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(e.contains("--rate"), "{e}");
+        assert!(parse("I,II\n1,2\n", Some(500.0)).is_ok());
+        assert!(parse("time_s,I\n0,1\n0.004,1\n", Some(500.0)).is_err(), "rates disagree");
+        assert!(parse("I,i\n1,2\n", Some(500.0)).is_err(), "duplicate lead");
+        assert!(parse("I,II\n1,2,3\n", Some(500.0)).is_err());
+    }
+
+    #[test]
+    fn round_trip_to_a_tenth_of_a_microvolt() -> Result<(), Box<dyn std::error::Error>> {
+        let o = parse("time_s,I,V1\n0,0.12346,-3.2\n0.002,1.00004,\n0.004,-0.5,7\n", None)?;
+        let mut out = Vec::new();
+        write_to(&mut out, &o.recording)?;
+        let text = String::from_utf8(out)?;
+        assert!(text.starts_with("time_s,I,V1\n0.000000,0.1235,-3.2000\n0.002000,1.0000,\n"), "{text}");
+        let back = parse(&text, None)?;
+        assert_eq!(back.recording.sample_rate.hz(), 500.0);
+        for (a, b) in o.recording.leads[0].samples.iter().zip(&back.recording.leads[0].samples) {
+            assert!((a - b).abs() <= 0.05 + 1e-3, "{a} {b}");
+        }
+        Ok(())
+    }
 }

@@ -23,13 +23,12 @@ pub const MAX_TOTAL_SAMPLES: u64 = 1_500_000_000;
 #[non_exhaustive]
 pub enum ReadError {
     /// The operating system refused (missing file, permission, …).
-    #[error("{}: {source}", path.display())]
+    #[error("{}: {cause}", path.display())]
     Io {
         /// File concerned.
         path: PathBuf,
-        /// Underlying error.
-        #[source]
-        source: std::io::Error,
+        /// Underlying error (shown in the message, so not chained again as a source).
+        cause: std::io::Error,
     },
     /// The content is malformed; `what` names the field or byte offset.
     #[error("{}: {what}", path.display())]
@@ -62,7 +61,7 @@ impl ReadError {
 
     /// An I/O error.
     pub fn io(path: &Path, source: std::io::Error) -> Self {
-        Self::Io { path: path.to_path_buf(), source }
+        Self::Io { path: path.to_path_buf(), cause: source }
     }
 }
 
@@ -138,6 +137,36 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
 /// Reads a whole file, mapping the error to [`ReadError::Io`].
 pub(crate) fn read_bytes(path: &Path) -> Result<Vec<u8>, ReadError> {
     std::fs::read(path).map_err(|e| ReadError::io(path, e))
+}
+
+/// Writes a file atomically: `fill` writes into a temporary file in the same folder, which is synced and then
+/// renamed over `path`. On any error the temporary file is removed and `path` is left as it was.
+///
+/// # Errors
+/// [`ReadError::Io`] naming `path`.
+pub fn write_atomic(
+    path: &Path,
+    fill: impl FnOnce(&mut std::io::BufWriter<std::fs::File>) -> std::io::Result<()>,
+) -> Result<(), ReadError> {
+    let dir = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p,
+        _ => Path::new("."),
+    };
+    let name = path.file_name().ok_or_else(|| ReadError::invalid(path, "not a file name"))?;
+    let tmp = dir.join(format!(".{}.{}.partial", name.to_string_lossy(), std::process::id()));
+    let result = (|| {
+        let file = std::fs::File::create(&tmp)?;
+        let mut w = std::io::BufWriter::with_capacity(1 << 20, file);
+        fill(&mut w)?;
+        let file = w.into_inner().map_err(std::io::IntoInnerError::into_error)?;
+        file.sync_all()?;
+        std::fs::rename(&tmp, path)
+    })();
+    if let Err(e) = result {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(ReadError::io(path, e));
+    }
+    Ok(())
 }
 
 /// Length of a file in bytes.

@@ -1,0 +1,87 @@
+//! The representative beat: the sample-by-sample median of the dominant beats aligned on their R peaks, per
+//! lead, delineated with the same method as single beats (its P wave only when the record's P is consistent).
+
+use super::{Signals, T_MAX_S, T_RR_FRACTION, delineate_with, median_rr, qrs, twave};
+use crate::beat::{Beat, BeatKind, Boundaries};
+use crate::recording::Recording;
+use crate::units::Hertz;
+
+/// Span of the representative beat before and after R, s.
+const BEFORE_S: f64 = 0.45;
+const AFTER_S: f64 = 0.70;
+
+/// The median beat of each lead, µV, with its global boundaries on its own sample axis.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RepresentativeBeat {
+    /// One median beat per lead of the recording (same order), µV.
+    pub leads: Vec<Vec<f32>>,
+    /// Sampling rate of the beat.
+    pub sample_rate: Hertz,
+    /// Index of the R peak in each lead's samples.
+    pub r_index: usize,
+    /// Global boundaries, indices into `leads[_]`.
+    pub bounds: Boundaries,
+    /// Number of beats in the median.
+    pub n_beats: usize,
+}
+
+/// Builds and delineates the representative beat from the dominant beats (all beats when none is dominant).
+/// `recording` should be baseline-corrected. `None` with fewer than 3 usable beats.
+#[must_use]
+pub fn representative_beat(recording: &Recording, beats: &[Beat]) -> Option<RepresentativeBeat> {
+    let fs = recording.sample_rate.hz();
+    let n = recording.len();
+    let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+    let rr = median_rr(&rs)?;
+    let before = ((BEFORE_S * fs) as usize).min(rr * 6 / 10);
+    let after = ((AFTER_S * fs) as usize).min(rr);
+    let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
+    let chosen: Vec<usize> = beats
+        .iter()
+        .filter(|b| !any_dominant || b.kind == BeatKind::Dominant)
+        .map(|b| b.r)
+        .filter(|&r| r >= before && r + after < n)
+        .filter(|&r| recording.leads.iter().all(|l| l.samples[r - before..r + after].iter().all(|v| v.is_finite())))
+        .collect();
+    if chosen.len() < 3 {
+        return None;
+    }
+    let mut col = Vec::with_capacity(chosen.len());
+    let leads: Vec<Vec<f32>> = recording
+        .leads
+        .iter()
+        .map(|l| {
+            (0..before + after)
+                .map(|k| {
+                    col.clear();
+                    col.extend(chosen.iter().map(|&r| l.samples[r - before + k]));
+                    let mid = col.len() / 2;
+                    *col.select_nth_unstable_by(mid, f32::total_cmp).1
+                })
+                .collect()
+        })
+        .collect();
+    // The record's P model comes from delineating the beats themselves.
+    let views: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
+    let full = Signals::new(&views, fs);
+    let mut scratch = beats.to_vec();
+    let p_model = delineate_with(&full, &mut scratch);
+
+    let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
+    let sig = Signals::new(&refs, fs);
+    let (on, end) = qrs::qrs_bounds(&sig, before, 0, before + after);
+    let from = end.map_or(before + sig.samples(0.100), |e| (e + sig.samples(0.050)).max(before + sig.samples(0.100)));
+    let to = (before + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(before + after - 1);
+    let t_end = on.and_then(|q| twave::t_end(&sig, q.saturating_sub(sig.samples(0.008)), from, to));
+    let (p_on, p_end) = match (p_model, on) {
+        (Some(m), Some(q)) => m.for_beat(&sig, q, 0).map_or((None, None), |(a, b)| (Some(a), Some(b))),
+        _ => (None, None),
+    };
+    Some(RepresentativeBeat {
+        leads,
+        sample_rate: recording.sample_rate,
+        r_index: before,
+        bounds: Boundaries { p_on, p_end, qrs_on: on, qrs_end: end, t_end },
+        n_beats: chosen.len(),
+    })
+}

@@ -1,0 +1,88 @@
+//! Wave boundaries: QRS onset and J point from the multi-lead slope envelope, T end by the tangent method,
+//! P onset and end only where the record has a consistent P wave; and the representative (median) beat per
+//! lead with its own global boundaries found by the same method.
+//!
+//! All leads are combined, so the boundaries are global (earliest onset and latest end over the leads, as the
+//! usual 12-lead global intervals are defined). A boundary that cannot be found is `None`, never a guess.
+
+mod median;
+mod pwave;
+mod qrs;
+mod signals;
+mod twave;
+
+pub use median::{RepresentativeBeat, representative_beat};
+pub use pwave::PModel;
+pub use signals::Signals;
+
+use crate::beat::{Beat, BeatKind, Boundaries};
+use crate::recording::Recording;
+
+/// Longest QT search after the R peak, s.
+// Common practice, no source: QT rarely exceeds 700 ms even when markedly prolonged.
+const T_MAX_S: f64 = 0.70;
+/// The T search ends at this fraction of the RR interval after R (before the next P wave).
+// Common practice, no source.
+const T_RR_FRACTION: f64 = 0.65;
+
+/// Fills every beat's boundaries from `recording`, which should be baseline-corrected (see
+/// [`crate::filter::apply`]). Beats must be in time order.
+pub fn delineate_beats(recording: &Recording, beats: &mut [Beat]) {
+    let leads: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
+    let sig = Signals::new(&leads, recording.sample_rate.hz());
+    delineate_with(&sig, beats);
+}
+
+/// Delineates beats on prepared signals and returns the record's P model (if it has a consistent P wave).
+pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
+    let n = sig.len();
+    let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+    let typical_rr = median_rr(&rs).unwrap_or(sig.samples(1.0));
+    for i in 0..beats.len() {
+        let r = rs[i];
+        let min_start = if i > 0 { rs[i - 1] + sig.samples(0.150).min((r - rs[i - 1]) / 2) } else { 0 };
+        let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
+        let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
+        let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
+        let from = end.map_or(r + sig.samples(0.100), |e| (e + sig.samples(0.050)).max(r + sig.samples(0.100)));
+        let to = r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr_next as f64) as usize);
+        let t = on.and_then(|q| twave::t_end(sig, q.saturating_sub(sig.samples(0.008)), from, to));
+        beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: t };
+    }
+    // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R).
+    let earliest: Vec<usize> = (0..beats.len())
+        .map(|i| {
+            if i == 0 {
+                return 0;
+            }
+            let prev = &beats[i - 1];
+            prev.bounds.t_end.unwrap_or(prev.r + (rs[i] - prev.r) * 6 / 10)
+        })
+        .collect();
+    let onsets: Vec<(usize, usize)> = beats
+        .iter()
+        .zip(&earliest)
+        .filter(|(b, _)| b.kind == BeatKind::Dominant)
+        .filter_map(|(b, &e)| b.bounds.qrs_on.map(|q| (q, e)))
+        .collect();
+    let model = pwave::model(sig, &onsets)?;
+    for (b, &e) in beats.iter_mut().zip(&earliest) {
+        if let Some(q) = b.bounds.qrs_on {
+            if let Some((on, end)) = model.for_beat(sig, q, e) {
+                b.bounds.p_on = Some(on);
+                b.bounds.p_end = Some(end);
+            }
+        }
+    }
+    Some(model)
+}
+
+/// Median RR of R peaks, samples.
+fn median_rr(rs: &[usize]) -> Option<usize> {
+    let mut rr: Vec<usize> = rs.windows(2).map(|w| w[1] - w[0]).collect();
+    if rr.is_empty() {
+        return None;
+    }
+    let mid = rr.len() / 2;
+    Some(*rr.select_nth_unstable(mid).1)
+}

@@ -1,0 +1,180 @@
+//! P waves. A P wave is only reported when the record has a consistent one: the median of the PR windows of
+//! the dominant beats (aligned on QRS onset) shows a P wave, and the individual beats resemble that median
+//! (an irregular rhythm with fibrillatory waves gives a flat median and low resemblance, so no P).
+//! Boundaries are found on the median with a multi-lead slope envelope, and carried to each beat at the lag
+//! where the beat best matches the median.
+
+use super::signals::Signals;
+use crate::detect::correlation;
+
+/// Length of the PR window before QRS onset, s.
+const WINDOW_S: f64 = 0.300;
+/// The median P wave must be at least this big on its clearest lead, µV.
+// Common practice, no source: normal P waves are 50–250 µV; the median of fibrillatory waves is far smaller.
+const MIN_P_UV: f32 = 20.0;
+/// Mean correlation of the beats' P waves with the median needed to call the P wave consistent.
+// Common practice, no source.
+const MIN_CONSISTENCY: f64 = 0.45;
+/// A beat gets a P wave when its PR window correlates at least this well with the median one.
+// Common practice, no source.
+const MIN_BEAT_CORR: f64 = 0.30;
+/// Fraction of the P envelope's rise marking onset and end.
+// Common practice, no source.
+const EDGE_FRACTION: f32 = 0.20;
+/// Largest lag tried when matching a beat to the median P, s.
+const MAX_LAG_S: f64 = 0.024;
+
+/// The record's P wave: offsets of its onset and end from QRS onset (samples, negative = before), and the
+/// median P window used to match beats.
+#[derive(Debug, Clone)]
+pub struct PModel {
+    /// P onset − QRS onset, samples (negative).
+    pub on_rel: isize,
+    /// P end − QRS onset, samples (negative).
+    pub end_rel: isize,
+    /// Median PR window per lead, baseline at the PR segment, µV; index 0 is `qrs_on − window`.
+    template: Vec<Vec<f32>>,
+    /// Mean correlation of the beats with the template (0–1).
+    pub consistency: f64,
+}
+
+fn window(sig: &Signals) -> usize {
+    sig.samples(WINDOW_S)
+}
+
+/// The PR window of one beat (per lead, relative to the PR-segment level), if it lies inside the recording.
+fn segment(sig: &Signals, qrs_on: usize, lag: isize) -> Option<Vec<Vec<f32>>> {
+    let w = window(sig);
+    let end = qrs_on as isize + lag;
+    if end < w as isize + 1 || end as usize >= sig.len() {
+        return None;
+    }
+    let end = end as usize;
+    let ref_a = end - sig.samples(0.012).max(1);
+    Some(
+        sig.slow
+            .iter()
+            .map(|x| {
+                let base = x[ref_a..end].iter().sum::<f32>() / (end - ref_a) as f32;
+                x[end - w..end].iter().map(|v| v - base).collect()
+            })
+            .collect(),
+    )
+}
+
+/// Builds the P model from dominant beats' QRS onsets; `earliest` is, per beat, the first sample the P wave
+/// may occupy (after the previous T wave). `None` when the record has no consistent P wave.
+#[must_use]
+pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
+    let w = window(sig);
+    let segs: Vec<(Vec<Vec<f32>>, usize)> =
+        onsets.iter().filter_map(|&(on, earliest)| segment(sig, on, 0).map(|s| (s, on.saturating_sub(earliest)))).collect();
+    if segs.len() < 3 {
+        return None;
+    }
+    let leads = sig.slow.len();
+    let mut col = Vec::with_capacity(segs.len());
+    let template: Vec<Vec<f32>> = (0..leads)
+        .map(|l| {
+            (0..w)
+                .map(|k| {
+                    col.clear();
+                    col.extend(segs.iter().map(|(s, _)| s[l][k]));
+                    let mid = col.len() / 2;
+                    *col.select_nth_unstable_by(mid, f32::total_cmp).1
+                })
+                .collect()
+        })
+        .collect();
+    // Search region in the template: after the typical previous T end, and 20 ms clear of the QRS.
+    let mut room: Vec<usize> = segs.iter().map(|(_, r)| *r).collect();
+    room.sort_unstable();
+    let room = room[room.len() / 2].min(w);
+    let start = w - room + sig.samples(0.010).min(room);
+    let stop = w - sig.samples(0.020);
+    if start + sig.samples(0.040) >= stop {
+        return None;
+    }
+    // Clearest lead and its P peak, measured from a straight line joining the region's ends.
+    let (mut best_amp, mut peak) = (0.0f32, 0usize);
+    for t in &template {
+        let (ya, yb) = (t[start], t[stop]);
+        for k in start..=stop {
+            let line = ya + (yb - ya) * (k - start) as f32 / (stop - start) as f32;
+            let d = (t[k] - line).abs();
+            if d > best_amp {
+                best_amp = d;
+                peak = k;
+            }
+        }
+    }
+    if best_amp < MIN_P_UV || peak <= start || peak >= stop {
+        return None;
+    }
+    // Slope envelope of the template over the leads.
+    let env: Vec<f32> = (0..w)
+        .map(|k| {
+            if k == 0 || k + 1 >= w {
+                return 0.0;
+            }
+            template.iter().map(|t| ((t[k + 1] - t[k - 1]) * 0.5).abs()).sum()
+        })
+        .collect();
+    let up = (start..peak).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
+    let down = (peak + 1..=stop).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
+    let quiet_before = env[start..=up].iter().copied().fold(f32::INFINITY, f32::min);
+    let quiet_after = env[down..=stop].iter().copied().fold(f32::INFINITY, f32::min);
+    let on = (start..=up).rev().find(|&k| env[k] <= quiet_before + EDGE_FRACTION * (env[up] - quiet_before))?;
+    let end = (down..=stop).find(|&k| env[k] <= quiet_after + EDGE_FRACTION * (env[down] - quiet_after))?;
+    let mut m = PModel {
+        on_rel: on as isize - w as isize,
+        end_rel: end as isize - w as isize,
+        template,
+        consistency: 0.0,
+    };
+    let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
+    m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
+    (m.consistency >= MIN_CONSISTENCY).then_some(m)
+}
+
+impl PModel {
+    /// Correlation of a beat's PR window with the template over the P wave (±20 ms), all leads together.
+    fn similarity(&self, seg: &[Vec<f32>]) -> f64 {
+        let w = self.template.first().map_or(0, Vec::len) as isize;
+        let margin = (w as f64 * 0.020 / WINDOW_S).round() as isize;
+        let a = (w + self.on_rel - margin).clamp(0, w - 1) as usize;
+        let b = (w + self.end_rel + margin).clamp(0, w) as usize;
+        if b <= a + 2 {
+            return 0.0;
+        }
+        let flat = |v: &[Vec<f32>]| v.iter().flat_map(|t| t[a..b].iter().copied()).collect::<Vec<f32>>();
+        correlation(&flat(seg), &flat(&self.template))
+    }
+
+    /// P onset and end of the beat with this QRS onset: the template's boundaries at the lag (±24 ms) where
+    /// the beat matches it best; `None` when the beat does not resemble the record's P wave or the P wave would
+    /// start before `earliest`.
+    #[must_use]
+    pub fn for_beat(&self, sig: &Signals, qrs_on: usize, earliest: usize) -> Option<(usize, usize)> {
+        let max_lag = sig.samples(MAX_LAG_S) as isize;
+        let step = if sig.fs > 300.0 { 2 } else { 1 };
+        let mut best: Option<(isize, f64)> = None;
+        let mut lag = -max_lag;
+        while lag <= max_lag {
+            if let Some(seg) = segment(sig, qrs_on, lag) {
+                let c = self.similarity(&seg);
+                if best.is_none_or(|(_, b)| c > b) {
+                    best = Some((lag, c));
+                }
+            }
+            lag += step;
+        }
+        let (lag, c) = best?;
+        if c < MIN_BEAT_CORR {
+            return None;
+        }
+        let on = qrs_on as isize + lag + self.on_rel;
+        let end = qrs_on as isize + lag + self.end_rel;
+        (on >= earliest as isize && end > on && end < qrs_on as isize).then(|| (on as usize, end as usize))
+    }
+}

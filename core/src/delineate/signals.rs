@@ -1,0 +1,77 @@
+//! Signals shared by the boundary finders: each lead low-passed for the QRS (40 Hz) and for P and T (12 Hz),
+//! and the multi-lead QRS slope envelope.
+
+use crate::filter::{Biquad, filtfilt, fill_invalid};
+
+/// Low-pass cutoff for QRS boundaries, Hz.
+const QRS_LP_HZ: f64 = 40.0;
+/// Low-pass cutoff for P and T waves, Hz.
+const WAVE_LP_HZ: f64 = 12.0;
+
+/// Prepared signals of a multi-lead recording (or of a representative beat).
+pub struct Signals {
+    /// Sampling rate, Hz.
+    pub fs: f64,
+    /// Each lead low-passed at 40 Hz, µV.
+    pub qrs: Vec<Vec<f32>>,
+    /// Each lead low-passed at 12 Hz, µV.
+    pub slow: Vec<Vec<f32>>,
+    /// Sum over leads of |slope| of the 40 Hz signals (µV per sample), smoothed over ≈ 10 ms.
+    pub env: Vec<f32>,
+}
+
+impl Signals {
+    /// Prepares `leads` (µV, NaN = invalid; interpolated here).
+    #[must_use]
+    pub fn new(leads: &[&[f32]], fs: f64) -> Self {
+        let n = leads.first().map_or(0, |l| l.len());
+        let pad = (fs * 0.3) as usize;
+        let lp_q = [Biquad::lowpass(QRS_LP_HZ.min(fs * 0.45), fs)];
+        let lp_w = [Biquad::lowpass(WAVE_LP_HZ, fs)];
+        let mut qrs = Vec::with_capacity(leads.len());
+        let mut slow = Vec::with_capacity(leads.len());
+        let mut raw_env = vec![0.0f32; n];
+        for lead in leads {
+            let x = fill_invalid(lead);
+            let q: Vec<f32> = filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect();
+            for k in 1..n.saturating_sub(1) {
+                raw_env[k] += ((q[k + 1] - q[k - 1]) * 0.5).abs();
+            }
+            qrs.push(q);
+            slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
+        }
+        let w = ((0.010 * fs).round() as usize).max(1) | 1;
+        Self { fs, qrs, slow, env: smooth(&raw_env, w) }
+    }
+
+    /// Number of samples.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.env.len()
+    }
+
+    /// Samples in `s` seconds (rounded).
+    #[must_use]
+    pub fn samples(&self, s: f64) -> usize {
+        (s * self.fs).round() as usize
+    }
+}
+
+/// Centred moving average over an odd `w` samples.
+pub fn smooth(x: &[f32], w: usize) -> Vec<f32> {
+    let n = x.len();
+    let h = w / 2;
+    let mut prefix = Vec::with_capacity(n + 1);
+    prefix.push(0.0f64);
+    let mut acc = 0.0f64;
+    for &v in x {
+        acc += f64::from(v);
+        prefix.push(acc);
+    }
+    (0..n)
+        .map(|k| {
+            let (a, b) = (k.saturating_sub(h), (k + h + 1).min(n));
+            ((prefix[b] - prefix[a]) / (b - a) as f64) as f32
+        })
+        .collect()
+}

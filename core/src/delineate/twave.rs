@@ -1,0 +1,113 @@
+//! T wave end by the tangent method: the tangent at the steepest point of the T wave's terminal limb meets the
+//! isoelectric level (McLaughlin, Campbell & Murray, Br Heart J 1995;74:84-9; references.md §8). Works for
+//! upright, inverted and biphasic T waves (the terminal lobe is used). Each lead gives a T end when its T wave
+//! is clear; the global T end is the latest over the reliable leads.
+
+use super::signals::Signals;
+
+/// The second lobe of a biphasic T counts as terminal when at least this fraction of the main lobe.
+// Common practice, no source.
+const BIPHASIC: f32 = 0.35;
+/// A lead's T wave is used when its amplitude is at least this fraction of the largest T over the leads.
+// Common practice, no source: leads with a near-flat T give unreliable tangents.
+const RELIABLE: f32 = 0.35;
+/// A T wave smaller than this (µV) is not delineated.
+// Common practice, no source.
+const MIN_T_UV: f32 = 25.0;
+
+/// One lead's T wave: amplitude of the lobe used (µV, signed) and its T end (fractional sample).
+#[derive(Debug, Clone, Copy)]
+struct LeadT {
+    amplitude: f32,
+    end: f64,
+}
+
+/// Global T end for a beat. `iso_at` is where the isoelectric level is read (just before QRS onset), `from`
+/// the start of the T search (after the J point) and `to` its end (before the next beat's P).
+#[must_use]
+pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usize> {
+    let n = sig.len();
+    let to = to.min(n.saturating_sub(2));
+    if from + sig.samples(0.060) >= to || iso_at < sig.samples(0.020) {
+        return None;
+    }
+    let found: Vec<LeadT> = sig
+        .slow
+        .iter()
+        .zip(&sig.qrs)
+        .filter_map(|(slow, q)| {
+            let a = iso_at - sig.samples(0.016);
+            let iso = q[a..=iso_at].iter().sum::<f32>() / (iso_at - a + 1) as f32;
+            lead_t_end(slow, iso, from, to, sig.samples(0.250))
+        })
+        .collect();
+    let biggest = found.iter().map(|t| t.amplitude.abs()).fold(0.0f32, f32::max);
+    if biggest < MIN_T_UV {
+        return None;
+    }
+    let latest = found
+        .iter()
+        .filter(|t| t.amplitude.abs() >= RELIABLE * biggest)
+        .map(|t| t.end)
+        .fold(f64::NEG_INFINITY, f64::max);
+    (latest.is_finite() && latest >= from as f64).then(|| latest.round() as usize)
+}
+
+/// T end on one lead, or `None` when the tangent is flat or lands outside the search window.
+fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize) -> Option<LeadT> {
+    let dev = |k: usize| x[k] - iso;
+    let main = (from..=to).max_by(|&i, &j| dev(i).abs().total_cmp(&dev(j).abs()))?;
+    let a_main = dev(main);
+    // Terminal lobe: an opposite-sign extremum after the main one, big enough, makes the T biphasic.
+    let mut peak = main;
+    if main < to {
+        let opp = (main + 1..=to).max_by(|&i, &j| (-dev(i) * a_main.signum()).total_cmp(&(-dev(j) * a_main.signum())));
+        if let Some(o) = opp {
+            if -dev(o) * a_main.signum() >= BIPHASIC * a_main.abs() && o + 2 < to {
+                peak = o;
+            }
+        }
+    }
+    let amp = dev(peak);
+    let sign = amp.signum();
+    // Steepest descent back toward the isoelectric level after the peak.
+    let stop = (peak + max_limb).min(to + max_limb / 2).min(x.len() - 2);
+    let mut best: Option<(usize, f32)> = None;
+    for k in peak + 1..=stop {
+        let slope = (x[k + 1] - x[k - 1]) * 0.5;
+        let toward = -slope * sign; // positive when heading back to baseline
+        if dev(k) * sign < 0.0 {
+            break; // crossed the baseline: the limb is over
+        }
+        if best.is_none_or(|(_, s)| toward > s) {
+            best = Some((k, toward));
+        }
+    }
+    let (k, s) = best?;
+    if s <= 1e-3 {
+        return None;
+    }
+    let end = k as f64 + f64::from(dev(k) * sign) / f64::from(s);
+    (end > peak as f64 && end <= (to + max_limb / 2) as f64).then_some(LeadT { amplitude: amp, end })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn tangent_of_a_triangle_ends_where_the_line_meets_zero() {
+        // A T wave shaped as a rise then a straight fall from 300 µV at sample 100 to 0 at sample 160.
+        let mut x = vec![0.0f32; 300];
+        for k in 40..100 {
+            x[k] = 300.0 * (k - 40) as f32 / 60.0;
+        }
+        for k in 100..160 {
+            x[k] = 300.0 * (160 - k) as f32 / 60.0;
+        }
+        let t = lead_t_end(&x, 0.0, 30, 200, 100).map(|t| t.end.round() as usize);
+        assert_eq!(t, Some(160));
+        let inv: Vec<f32> = x.iter().map(|v| -v).collect();
+        assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100).map(|t| t.end.round() as usize), Some(160));
+    }
+}

@@ -1,0 +1,130 @@
+//! Adaptive-threshold peak picking on the combined feature, after Pan & Tompkins (IEEE Trans Biomed Eng
+//! 1985;32:230-6): running signal and noise peak levels, threshold a quarter of the way from noise to signal,
+//! 200 ms refractory period, T-wave test within 360 ms, search-back at half threshold after 1.66 mean RR.
+
+/// Refractory period, s. Source: Pan & Tompkins 1985.
+const REFRACTORY_S: f64 = 0.200;
+/// A peak this soon after a QRS must be at least half its height, or it is taken as a T wave, s.
+/// Source: Pan & Tompkins 1985 (360 ms T-wave discrimination).
+const T_WAVE_S: f64 = 0.360;
+/// Search back when no QRS has come for this many mean RR intervals. Source: Pan & Tompkins 1985.
+const SEARCH_BACK_RR: f64 = 1.66;
+
+/// Local maxima of `x` that are the largest value within ± the refractory period.
+fn candidates(x: &[f32], fs: f64) -> Vec<usize> {
+    let r = ((REFRACTORY_S * fs) as usize).max(1);
+    let n = x.len();
+    let mut out = Vec::new();
+    // Sliding-window maximum over [k − r, k + r] with a monotone deque.
+    let mut dq: std::collections::VecDeque<usize> = std::collections::VecDeque::new();
+    let mut next = 0;
+    for k in 0..n {
+        while next < n && next <= k + r {
+            while dq.back().is_some_and(|&b| x[b] <= x[next]) {
+                dq.pop_back();
+            }
+            dq.push_back(next);
+            next += 1;
+        }
+        while dq.front().is_some_and(|&f| f + r < k) {
+            dq.pop_front();
+        }
+        if dq.front() == Some(&k) && x[k] > 0.0 && out.last().is_none_or(|&l: &usize| k - l > r / 2) {
+            out.push(k);
+        }
+    }
+    out
+}
+
+/// QRS positions (feature peak samples) found on the combined, normalised feature `x` (≈ 1 at a typical QRS).
+pub fn pick(x: &[f32], fs: f64) -> Vec<usize> {
+    let cand = candidates(x, fs);
+    let t_wave = (T_WAVE_S * fs) as usize;
+    // The feature is normalised, so levels start from the typical QRS height and a low noise level.
+    let mut spk = 1.0f64;
+    let mut npk = 0.1f64;
+    let mut rr: Vec<f64> = Vec::new();
+    let mut beats: Vec<usize> = Vec::new();
+    let mut pending: Vec<usize> = Vec::new(); // rejected candidates since the last QRS
+    let thr = |spk: f64, npk: f64| npk + 0.25 * (spk - npk);
+    let rr_mean = |rr: &[f64]| -> Option<f64> {
+        (rr.len() >= 2).then(|| rr.iter().rev().take(8).sum::<f64>() / rr.len().min(8) as f64)
+    };
+    let accept = |p: usize, beats: &mut Vec<usize>, rr: &mut Vec<f64>| {
+        if let Some(&last) = beats.last() {
+            rr.push((p - last) as f64);
+        }
+        beats.push(p);
+    };
+    for &c in &cand {
+        // Search-back: a long gap since the last QRS → take the largest pending peak above half threshold.
+        if let (Some(&last), Some(m)) = (beats.last(), rr_mean(&rr)) {
+            if (c - last) as f64 > SEARCH_BACK_RR * m {
+                let th2 = 0.5 * thr(spk, npk);
+                let best = pending
+                    .iter()
+                    .copied()
+                    .filter(|&p| p > last + t_wave.min((0.6 * m) as usize) / 2 && f64::from(x[p]) > th2)
+                    .max_by(|&a, &b| x[a].total_cmp(&x[b]));
+                if let Some(p) = best {
+                    spk = 0.25 * f64::from(x[p]) + 0.75 * spk;
+                    accept(p, &mut beats, &mut rr);
+                    pending.retain(|&q| q > p);
+                }
+            }
+        }
+        let v = f64::from(x[c]);
+        let is_qrs = v > thr(spk, npk)
+            && match beats.last() {
+                Some(&last) if c - last < t_wave => v > 0.5 * f64::from(x[last]),
+                _ => true,
+            };
+        if is_qrs {
+            spk = 0.125 * v + 0.875 * spk;
+            accept(c, &mut beats, &mut rr);
+            pending.clear();
+        } else {
+            npk = 0.125 * v + 0.875 * npk;
+            pending.push(c);
+        }
+    }
+    beats
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn picks_regular_peaks_and_skips_small_waves() {
+        let fs = 250.0;
+        let mut x = vec![0.0f32; 5000];
+        for b in 0..19 {
+            let r = 125 + b * 250;
+            for k in r.saturating_sub(10)..r + 10 {
+                x[k] = 1.0 - (k as f32 - r as f32).abs() / 10.0;
+            }
+            let t = r + 75;
+            for k in t - 15..t + 15 {
+                x[k] = 0.15 * (1.0 - (k as f32 - t as f32).abs() / 15.0);
+            }
+        }
+        let b = pick(&x, fs);
+        assert_eq!(b.len(), 19);
+        assert!(b.iter().enumerate().all(|(i, &p)| p == 125 + i * 250));
+    }
+
+    #[test]
+    fn search_back_finds_a_small_beat() {
+        let fs = 250.0;
+        let mut x = vec![0.0f32; 5000];
+        for b in 0..19 {
+            let r = 125 + b * 250;
+            let h = if b == 10 { 0.2 } else { 1.0 };
+            for k in r - 10..r + 10 {
+                x[k] = h * (1.0 - (k as f32 - r as f32).abs() / 10.0);
+            }
+        }
+        assert_eq!(pick(&x, fs).len(), 19);
+    }
+}

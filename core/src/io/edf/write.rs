@@ -1,0 +1,216 @@
+//! Writing EDF / EDF+C (Kemp et al. 1992; Kemp & Olivan 2003).
+//!
+//! 16-bit samples; each lead gets the physical range of its own data (digital −32767…32767), so reading back
+//! is exact to half a digital step. −32768 (below the digital minimum) marks an invalid sample and pads the last
+//! data record. With annotations the file is EDF+C with an `EDF Annotations` signal whose first TAL in every
+//! record keeps the record's start time; without, plain EDF with EDF+-style patient and recording fields.
+
+use std::io::Write;
+use std::path::Path;
+
+use super::header::bound_field;
+use super::{meta, tal, ANNOTATION_LABEL};
+use crate::io::{write_atomic, ReadError};
+use crate::recording::{LeadName, Recording};
+
+/// Options for [`write`].
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct EdfWriteOptions {
+    /// Write the patient's identifiers, name, birth date and the recording date. Off by default: the file is
+    /// de-identified ([`crate::recording::Meta::deidentified`], start date 01.01.85, start time kept).
+    pub identify: bool,
+}
+
+/// Largest data record Kemp et al. (1992) recommend, bytes. From memory.
+const MAX_RECORD_BYTES: usize = 61_440;
+/// Digital range used for samples; −32768 is the invalid/padding marker.
+const DIG_MIN: i32 = -32_767;
+const DIG_MAX: i32 = 32_767;
+
+/// One lead's header entry as written, and the values the reader will parse back.
+struct LeadPlan {
+    label: String,
+    phys_min_text: String,
+    phys_max_text: String,
+    phys_min: f64,
+    phys_max: f64,
+}
+
+/// Picks a data record duration (seconds) giving a whole number of samples per record.
+fn record_duration(fs: f64, n_leads: usize) -> Option<(f64, usize)> {
+    let candidates = [1.0, 0.5, 0.25, 0.2, 0.1, 0.05, 0.04, 0.02, 0.01, 2.0, 4.0, 5.0, 10.0, 20.0, 50.0, 100.0];
+    let whole: Vec<(f64, usize)> = candidates
+        .iter()
+        .filter_map(|&d| {
+            let spr = fs * d;
+            let r = spr.round();
+            ((spr - r).abs() < 1e-9 * r.max(1.0) && r >= 1.0 && r <= 1.0e7).then_some((d, r as usize))
+        })
+        .collect();
+    whole.iter().copied().find(|&(_, spr)| 2 * spr * n_leads <= MAX_RECORD_BYTES).or_else(|| whole.first().copied())
+}
+
+/// The EDF+ label of a lead: `ECG <name>`, at most 16 ASCII characters.
+fn label(name: &LeadName) -> String {
+    let s = format!("ECG {name}");
+    s.chars().map(|c| if c.is_ascii_graphic() || c == ' ' { c } else { '_' }).take(16).collect()
+}
+
+fn plan_lead(path: &Path, name: &LeadName, samples: &[f32]) -> Result<LeadPlan, ReadError> {
+    let (mut lo, mut hi) = samples
+        .iter()
+        .filter(|v| v.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &v| (lo.min(f64::from(v)), hi.max(f64::from(v))));
+    if lo > hi {
+        (lo, hi) = (-1.0, 1.0);
+    }
+    if hi - lo < 1e-3 {
+        (lo, hi) = (lo - 1.0, hi + 1.0);
+    }
+    let too_big = || ReadError::invalid(path, format!("lead {name}: values beyond ±10⁷ µV cannot be written to EDF"));
+    let phys_min_text = bound_field(lo, 8, true).ok_or_else(too_big)?;
+    let phys_max_text = bound_field(hi, 8, false).ok_or_else(too_big)?;
+    let phys_min = phys_min_text.parse().map_err(|_| too_big())?;
+    let phys_max = phys_max_text.parse().map_err(|_| too_big())?;
+    Ok(LeadPlan { label: label(name), phys_min_text, phys_max_text, phys_min, phys_max })
+}
+
+fn field(out: &mut Vec<u8>, text: &str, width: usize) {
+    let bytes: Vec<u8> = text.bytes().map(|b| if (32..127).contains(&b) { b } else { b'_' }).take(width).collect();
+    out.extend(&bytes);
+    out.extend(std::iter::repeat_n(b' ', width - bytes.len()));
+}
+
+/// Writes `rec` to `path` as EDF (or EDF+C when it has annotations), atomically: a temporary file in the same
+/// folder, synced, then renamed over `path`. On error no file is left at `path` (an existing one is untouched).
+///
+/// # Errors
+/// [`ReadError`] when the recording cannot be represented (no samples, a rate giving no whole number of samples
+/// per data record, values beyond ±10⁷ µV) or the file cannot be written.
+pub fn write(path: &Path, rec: &Recording, opts: &EdfWriteOptions) -> Result<(), ReadError> {
+    let n = rec.len();
+    if n == 0 || rec.leads.iter().any(|l| l.samples.len() != n) {
+        return Err(ReadError::invalid(path, "nothing to write: no samples, or leads of different lengths"));
+    }
+    let fs = rec.sample_rate.hz();
+    let (duration, spr) = record_duration(fs, rec.leads.len()).ok_or_else(|| {
+        ReadError::unsupported(path, format!("sampling rate {fs} Hz gives no whole number of samples per data record"))
+    })?;
+    let n_records = n.div_ceil(spr);
+    if n_records > 99_999_999 {
+        return Err(ReadError::invalid(path, "more than 99 999 999 data records"));
+    }
+    let leads =
+        rec.leads.iter().map(|l| plan_lead(path, &l.name, &l.samples)).collect::<Result<Vec<_>, _>>()?;
+
+    // Annotations: each goes into the record holding its sample (the last record for any beyond the end).
+    let mut by_record: Vec<(usize, usize)> =
+        rec.annotations.iter().enumerate().map(|(i, a)| (((a.sample as usize) / spr).min(n_records - 1), i)).collect();
+    by_record.sort_unstable();
+    let tal_of = |i: usize| {
+        let a = &rec.annotations[i];
+        tal::annotation(a.sample as f64 / fs, a.duration_s, &a.label)
+    };
+    let ann_spr = if rec.annotations.is_empty() {
+        0
+    } else {
+        let mut per_record = vec![0usize; n_records];
+        for &(r, i) in &by_record {
+            per_record[r] += tal_of(i).len();
+        }
+        let keeping = tal::timekeeping((n_records - 1) as f64 * duration).len();
+        (keeping + per_record.iter().max().copied().unwrap_or(0)).div_ceil(2)
+    };
+
+    let meta = if opts.identify { rec.meta.clone() } else { rec.meta.deidentified() };
+    let (mut date, time) = meta::start_fields(rec.start);
+    let start_for_field = if opts.identify { rec.start } else { None };
+    if !opts.identify {
+        date = "01.01.85".into();
+    }
+    let ns = leads.len() + usize::from(ann_spr > 0);
+    let mut h = Vec::with_capacity(256 * (ns + 1));
+    field(&mut h, "0", 8);
+    field(&mut h, &meta::patient_field(&meta), 80);
+    field(&mut h, &meta::recording_field(start_for_field, &meta), 80);
+    field(&mut h, &date, 8);
+    field(&mut h, &time, 8);
+    field(&mut h, &(256 * (ns + 1)).to_string(), 8);
+    field(&mut h, if ann_spr > 0 { "EDF+C" } else { "" }, 44);
+    field(&mut h, &n_records.to_string(), 8);
+    field(&mut h, &tal::format_time(duration, false), 8);
+    field(&mut h, &ns.to_string(), 4);
+    let ann = (ann_spr > 0).then_some(ann_spr);
+    for l in &leads {
+        field(&mut h, &l.label, 16);
+    }
+    ann.iter().for_each(|_| field(&mut h, ANNOTATION_LABEL, 16));
+    for _ in 0..ns {
+        field(&mut h, "", 80);
+    }
+    leads.iter().for_each(|_| field(&mut h, "uV", 8));
+    ann.iter().for_each(|_| field(&mut h, "", 8));
+    leads.iter().for_each(|l| field(&mut h, &l.phys_min_text, 8));
+    ann.iter().for_each(|_| field(&mut h, "-1", 8));
+    leads.iter().for_each(|l| field(&mut h, &l.phys_max_text, 8));
+    ann.iter().for_each(|_| field(&mut h, "1", 8));
+    leads.iter().for_each(|_| field(&mut h, &DIG_MIN.to_string(), 8));
+    ann.iter().for_each(|_| field(&mut h, "-32768", 8));
+    leads.iter().for_each(|_| field(&mut h, &DIG_MAX.to_string(), 8));
+    ann.iter().for_each(|_| field(&mut h, "32767", 8));
+    for _ in 0..ns {
+        field(&mut h, "", 80);
+    }
+    leads.iter().for_each(|_| field(&mut h, &spr.to_string(), 8));
+    ann.iter().for_each(|a| field(&mut h, &a.to_string(), 8));
+    for _ in 0..ns {
+        field(&mut h, "", 32);
+    }
+
+    write_atomic(path, |w| {
+        w.write_all(&h)?;
+        let mut next_ann = by_record.iter().peekable();
+        let mut buf = Vec::with_capacity(2 * spr * leads.len() + 2 * ann_spr);
+        for r in 0..n_records {
+            buf.clear();
+            for (lead, plan) in rec.leads.iter().zip(&leads) {
+                let scale = f64::from(DIG_MAX - DIG_MIN) / (plan.phys_max - plan.phys_min);
+                for k in r * spr..(r + 1) * spr {
+                    let d = match lead.samples.get(k) {
+                        Some(v) if v.is_finite() => {
+                            let d = ((f64::from(*v) - plan.phys_min) * scale + f64::from(DIG_MIN)).round();
+                            d.clamp(f64::from(DIG_MIN), f64::from(DIG_MAX)) as i16
+                        }
+                        _ => i16::MIN,
+                    };
+                    buf.extend(d.to_le_bytes());
+                }
+            }
+            if ann_spr > 0 {
+                let start = buf.len();
+                buf.extend(tal::timekeeping(r as f64 * duration));
+                while let Some(&(_, i)) = next_ann.next_if(|(rr, _)| *rr == r) {
+                    buf.extend(tal_of(i));
+                }
+                buf.resize(start + 2 * ann_spr, 0);
+            }
+            w.write_all(&buf)?;
+        }
+        Ok(())
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn record_durations_give_whole_samples() {
+        assert_eq!(record_duration(250.0, 3), Some((1.0, 250)));
+        assert_eq!(record_duration(360.0, 2), Some((1.0, 360)));
+        // 12 leads at 5000 Hz: 1 s records would be 120 000 bytes; 0.5 s records (60 000 bytes) stay under 61 440.
+        assert_eq!(record_duration(5000.0, 12), Some((0.5, 2500)));
+        assert_eq!(record_duration(128.5, 1), Some((2.0, 257)));
+        assert_eq!(record_duration(std::f64::consts::PI, 1), None);
+    }
+}

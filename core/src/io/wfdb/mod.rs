@@ -1,0 +1,271 @@
+//! WFDB records (PhysioNet): the `.hea` header and its signal files in formats 16, 61, 80 and 212.
+//!
+//! Header grammar (WFDB `header(5)`): comment lines start with `#`; blank lines are skipped; CRLF accepted.
+//! Record line: `name[/nseg] nsig [fs[/counterfreq][(basecounter)] [nsamp [basetime [basedate]]]]`.
+//! Signal line: `file format[xsamp][:skew][+offset] gain[(baseline)][/units] adcres adczero initval checksum
+//! blocksize description`. Physical value = (digital − baseline) / gain; baseline defaults to adczero; a gain
+//! of 0 means 200 per unit; units default to mV. Signals sharing a file are interleaved; a record may spread
+//! its signals over several files (e.g. PTB's `.dat` and `.xyz`).
+
+use std::path::{Path, PathBuf};
+
+use super::{file_len, read_bytes, Format, Opened, ReadError, MAX_TOTAL_SAMPLES};
+use crate::recording::{Lead, LeadName, Meta, Recording};
+use crate::units::Hertz;
+
+mod header;
+pub mod signal;
+
+pub use header::{header_path, parse_header, Header, RecordLine, SignalLine};
+
+/// Largest header read (1 MiB).
+const MAX_HEADER_BYTES: u64 = 1 << 20;
+
+/// One signal file of a record and the signals it holds.
+struct FilePlan {
+    path: PathBuf,
+    format: u32,
+    offset: u64,
+    /// Header indices of the signals interleaved in this file, in file order.
+    signals: Vec<usize>,
+    /// Whole frames the file holds after the offset.
+    frames_avail: u64,
+}
+
+/// Reads a WFDB record given its `.hea` path or its path without extension. Loads `NAME.atr` beside it as the
+/// recording's annotations when present. Signals whose unit is not a voltage are skipped with a warning.
+///
+/// # Errors
+/// [`ReadError`] naming the header line, field or signal file at fault. A signal file holding fewer samples than
+/// the header promises is accepted with a warning when at least 99 % are there, and rejected otherwise.
+pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
+    let hea = header_path(path).ok_or_else(|| ReadError::unsupported(path, "no WFDB header (.hea) found"))?;
+    let hea_len = file_len(&hea)?;
+    if hea_len > MAX_HEADER_BYTES {
+        return Err(ReadError::invalid(&hea, format!("header is {hea_len} bytes, more than 1 MiB")));
+    }
+    let bytes = read_bytes(&hea)?;
+    let text = String::from_utf8_lossy(&bytes);
+    let header = parse_header(&hea, &text)?;
+    let dir = hea.parent().map(Path::to_path_buf).unwrap_or_default();
+    if header.signals.is_empty() {
+        return Err(ReadError::invalid(&hea, "record line: the record has no signals"));
+    }
+    let sample_rate =
+        Hertz::from_hz(header.record.fs_hz).map_err(|e| ReadError::invalid(&hea, format!("record line: {e}")))?;
+    let mut warnings = Vec::new();
+
+    // Which signals are voltages, and their scale to µV.
+    let mut scales = Vec::with_capacity(header.signals.len());
+    for (i, s) in header.signals.iter().enumerate() {
+        let uv = uv_per_unit(&s.units);
+        if uv.is_none() {
+            warnings.push(format!(
+                "{}: signal {} ('{}') skipped: unit '{}' is not a voltage",
+                hea.display(),
+                i + 1,
+                s.description,
+                s.units
+            ));
+        }
+        scales.push(uv.map(|u| (u / s.gain, s.baseline)));
+    }
+    if scales.iter().all(Option::is_none) {
+        return Err(ReadError::unsupported(&hea, "no signal of the record is a voltage (mV, µV or V)"));
+    }
+
+    let plans = plan_files(&hea, &dir, &header)?;
+    let frames_avail = plans.iter().map(|p| p.frames_avail).min().unwrap_or(0);
+    let promised = header.record.n_samples;
+    let n_frames = match promised {
+        Some(promised) if frames_avail < promised => {
+            let short = plans.iter().find(|p| p.frames_avail < promised).map_or(&hea, |p| &p.path);
+            if (frames_avail as f64) < 0.99 * promised as f64 {
+                return Err(ReadError::invalid(
+                    short,
+                    format!("header promises {promised} samples per signal but the signal file holds {frames_avail}"),
+                ));
+            }
+            warnings.push(format!(
+                "{}: header promises {promised} samples per signal; the signal file holds {frames_avail}, reading those",
+                short.display()
+            ));
+            frames_avail
+        }
+        Some(promised) => promised,
+        None => frames_avail,
+    };
+    let n_leads = scales.iter().flatten().count() as u64;
+    if n_frames.saturating_mul(n_leads) > MAX_TOTAL_SAMPLES {
+        return Err(ReadError::invalid(
+            &hea,
+            format!("{n_frames} samples × {n_leads} signals is more than {MAX_TOTAL_SAMPLES} samples"),
+        ));
+    }
+    let n_frames = usize::try_from(n_frames).map_err(|_| ReadError::invalid(&hea, "record line: too many samples"))?;
+    let complete = promised.is_none_or(|p| p == n_frames as u64);
+
+    let mut leads: Vec<Option<Lead>> = vec![None; header.signals.len()];
+    let mut files = vec![hea.clone()];
+    for plan in plans {
+        let group_scales: Vec<(f64, f64)> =
+            plan.signals.iter().map(|&i| scales[i].unwrap_or((0.0, 0.0))).collect();
+        let decoded = signal::read_signals(
+            &plan.path,
+            plan.format,
+            plan.offset,
+            plan.signals.len(),
+            n_frames,
+            &group_scales,
+        )?;
+        for ((samples, sum), &sig) in decoded.samples.into_iter().zip(decoded.checksums).zip(&plan.signals) {
+            let s = &header.signals[sig];
+            if complete && s.checksum.is_some_and(|c| c != sum) {
+                warnings.push(format!(
+                    "{}: signal {} ('{}'): checksum {} in the header, {sum} in the signal file",
+                    plan.path.display(),
+                    sig + 1,
+                    s.description,
+                    s.checksum.unwrap_or_default()
+                ));
+            }
+            if scales[sig].is_some() {
+                let name = if s.description.is_empty() { format!("signal {}", sig + 1) } else { s.description.clone() };
+                leads[sig] = Some(Lead { name: LeadName::parse(&name), samples });
+            }
+        }
+        files.push(plan.path);
+    }
+    let leads: Vec<Lead> = leads.into_iter().flatten().collect();
+
+    let mut meta =
+        Meta { recording_info: (!header.comments.is_empty()).then(|| header.comments.join("\n")), ..Meta::default() };
+    parse_comment_fields(&header.comments, &mut meta);
+    let start = parse_base_datetime(&header.record);
+    let mut recording = Recording { leads, sample_rate, start, meta, annotations: Vec::new() };
+    let atr = hea.with_extension("atr");
+    if atr.is_file() {
+        match super::wfdb_annotations::read(&atr) {
+            Ok(a) => {
+                files.push(atr);
+                recording.annotations = a;
+            }
+            Err(e) => warnings.push(format!("annotations not loaded: {e}")),
+        }
+    }
+    Ok(Opened { recording, format: Format::Wfdb, files, warnings })
+}
+
+/// Groups the signals by file (signals of one file are interleaved, in header order) and measures each file.
+fn plan_files(hea: &Path, dir: &Path, header: &Header) -> Result<Vec<FilePlan>, ReadError> {
+    let mut plans: Vec<FilePlan> = Vec::new();
+    for (i, s) in header.signals.iter().enumerate() {
+        if let Some(p) = plans.iter_mut().find(|p| p.path == dir.join(&s.file)) {
+            if p.format != s.format {
+                return Err(ReadError::unsupported(
+                    hea,
+                    format!("signals {} and {} share file {} with different formats", p.signals[0] + 1, i + 1, s.file),
+                ));
+            }
+            if p.signals.last().is_some_and(|&last| last + 1 != i) {
+                return Err(ReadError::unsupported(hea, format!("signal {}: file {} is not contiguous", i + 1, s.file)));
+            }
+            p.signals.push(i);
+        } else {
+            plans.push(FilePlan {
+                path: dir.join(&s.file),
+                format: s.format,
+                offset: s.byte_offset,
+                signals: vec![i],
+                frames_avail: 0,
+            });
+        }
+    }
+    for p in &mut plans {
+        let fb = signal::frame_bytes(p.format, p.signals.len()).ok_or_else(|| {
+            ReadError::unsupported(hea, format!("signal format {} (supported: 16, 61, 80, 212)", p.format))
+        })?;
+        let len = file_len(&p.path)?;
+        p.frames_avail = (len.saturating_sub(p.offset) as f64 / fb).floor() as u64;
+    }
+    Ok(plans)
+}
+
+/// Factor from a signal's physical unit to µV; `None` when the unit is not a voltage.
+fn uv_per_unit(units: &str) -> Option<f64> {
+    match units.to_ascii_lowercase().as_str() {
+        "mv" => Some(1000.0),
+        "uv" | "µv" | "μv" => Some(1.0),
+        "v" => Some(1.0e6),
+        _ => None,
+    }
+}
+
+/// Picks age and sex from comment lines such as `<age>: 51`, `age: 81`, `sex: female`.
+fn parse_comment_fields(comments: &[String], meta: &mut Meta) {
+    for c in comments {
+        let lower = c.to_ascii_lowercase();
+        let lower = lower.replace(['<', '>'], "");
+        if let Some(v) = lower.strip_prefix("age:") {
+            meta.age_years = v.trim().parse().ok();
+        } else if let Some(v) = lower.strip_prefix("sex:") {
+            let v = v.trim();
+            meta.sex = match v {
+                "f" | "female" => Some("F".into()),
+                "m" | "male" => Some("M".into()),
+                "" => None,
+                other => Some(other.to_string()),
+            };
+        }
+    }
+}
+
+fn parse_base_datetime(r: &RecordLine) -> Option<time::PrimitiveDateTime> {
+    let t = r.base_time.as_deref()?;
+    let mut hms = t.split(':').map(|x| x.parse::<f64>().ok());
+    let (h, m, s) = (hms.next()??, hms.next()??, hms.next().flatten().unwrap_or(0.0));
+    let time = time::Time::from_hms(h as u8, m as u8, s as u8).ok()?;
+    let date = match r.base_date.as_deref() {
+        Some(d) => {
+            let p: Vec<i32> = d.split('/').filter_map(|x| x.parse().ok()).collect();
+            let month = time::Month::try_from(u8::try_from(*p.get(1)?).ok()?).ok()?;
+            time::Date::from_calendar_date(*p.get(2)?, month, u8::try_from(*p.first()?).ok()?).ok()?
+        }
+        None => return None,
+    };
+    Some(time::PrimitiveDateTime::new(date, time))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn parses_quirky_headers() -> Result<(), ReadError> {
+        let p = Path::new("x.hea");
+        let h = parse_header(p, "# c\r\n\r\nsel100 2 250/360 225000\r\nsel100.dat 212 200(0) 11 1024 945 -13873 0 MLII\r\nsel100.dat 212 200(0) 11 1024 955 14507 0 V5\r\n")?;
+        assert_eq!(h.record.fs_hz, 250.0);
+        assert_eq!(h.record.n_samples, Some(225000));
+        assert_eq!(h.signals[0].baseline, 0.0);
+        assert_eq!(h.signals[0].checksum, Some(-13873));
+        assert_eq!(h.signals[1].description, "V5");
+        let h = parse_header(p, "1 1 500 5000\n1.dat 16 1716(6)/mV 0 0 -120 -32198 0 i\n")?;
+        assert_eq!(h.signals[0].gain, 1716.0);
+        assert_eq!(h.signals[0].baseline, 6.0);
+        let h = parse_header(p, "r 1 250/128 10\nr.dat 212 0 12 7 -16 12292 0 ECG1\n")?;
+        assert_eq!(h.signals[0].gain, 200.0);
+        assert_eq!(h.signals[0].baseline, 7.0, "baseline defaults to adczero");
+        assert!(parse_header(p, "r 3 250\nr.dat 16 200 12 0 0 0 0 I\n").is_err());
+        assert!(parse_header(p, "r/2 1 250\n").is_err());
+        assert!(parse_header(p, "r 1 250\nr.dat 16 200(nan) 12 0 0 0 0 I\n").is_err());
+        Ok(())
+    }
+
+    #[test]
+    fn units_to_microvolts() {
+        assert_eq!(uv_per_unit("mV"), Some(1000.0));
+        assert_eq!(uv_per_unit("uV"), Some(1.0));
+        assert_eq!(uv_per_unit("V"), Some(1.0e6));
+        assert_eq!(uv_per_unit("mmHg"), None);
+    }
+}

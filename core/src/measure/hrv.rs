@@ -1,0 +1,162 @@
+//! RR statistics: mean RR and heart rate, SDNN and RMSSD over normal-to-normal intervals, rhythm regularity.
+//!
+//! Source: Task Force of the ESC and NASPE, Heart rate variability: standards of measurement, physiological
+//! interpretation and clinical use, Circulation 1996;93:1043-65 — SDNN is the standard deviation of the NN
+//! intervals; RMSSD the square root of the mean of the squared differences of successive NN intervals.
+//! Here an NN interval is the interval between two consecutive beats that are both typed dominant.
+
+use crate::beat::{Beat, BeatKind};
+use crate::units::{Hertz, bpm_from_rr_ms};
+
+use super::stats::{mean, sample_sd};
+
+/// Coefficient of variation of RR above which the rhythm is called irregular (10 %).
+// Common practice, no source: a plain screening threshold, not a diagnostic criterion.
+pub const IRREGULAR_CV: f64 = 0.10;
+
+/// Fewest RR intervals for a regularity call.
+pub const MIN_RR_FOR_REGULARITY: usize = 4;
+
+/// RR-interval statistics.
+#[derive(Debug, Clone, Copy, Default, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct RrStats {
+    /// Number of NN intervals (dominant to dominant).
+    pub nn_count: usize,
+    /// Mean NN interval, ms.
+    pub rr_ms: Option<f64>,
+    /// 60 000 / mean NN, beats per minute.
+    pub heart_rate_bpm: Option<f64>,
+    /// SDNN, ms (n − 1 denominator).
+    pub sdnn_ms: Option<f64>,
+    /// RMSSD, ms (successive differences only between adjacent NN intervals).
+    pub rmssd_ms: Option<f64>,
+    /// Rhythm regularity over all RR intervals (any beat kind).
+    pub rhythm: Rhythm,
+}
+
+/// Regularity of the RR intervals between consecutive beats of any kind: a measurement, not a diagnosis.
+#[derive(Debug, Clone, Copy, Default, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Rhythm {
+    /// Number of RR intervals.
+    pub rr_count: usize,
+    /// Coefficient of variation of RR (SD / mean, a fraction: 0.05 = 5 %).
+    pub rr_cv: Option<f64>,
+    /// `Some(true)` regular, `Some(false)` irregular, `None` with too few intervals.
+    pub regular: Option<bool>,
+}
+
+impl Rhythm {
+    /// `regular`, `irregular` or `not enough beats`.
+    #[must_use]
+    pub fn describe(&self) -> &'static str {
+        match self.regular {
+            Some(true) => "regular",
+            Some(false) => "irregular",
+            None => "not enough beats",
+        }
+    }
+}
+
+/// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts.
+#[must_use]
+pub fn nn_runs(beats: &[Beat], fs: Hertz) -> Vec<Vec<f64>> {
+    let mut runs: Vec<Vec<f64>> = Vec::new();
+    let mut current = Vec::new();
+    for w in beats.windows(2) {
+        if w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant && w[1].r > w[0].r {
+            current.push(fs.ms_from_samples((w[1].r - w[0].r) as f64));
+        } else if !current.is_empty() {
+            runs.push(std::mem::take(&mut current));
+        }
+    }
+    if !current.is_empty() {
+        runs.push(current);
+    }
+    runs
+}
+
+/// SDNN of NN intervals (ms); `None` for fewer than two.
+#[must_use]
+pub fn sdnn(nn_ms: &[f64]) -> Option<f64> {
+    sample_sd(nn_ms)
+}
+
+/// RMSSD of one run of adjacent NN intervals (ms); `None` for fewer than two intervals.
+#[must_use]
+pub fn rmssd(nn_ms: &[f64]) -> Option<f64> {
+    rmssd_runs(&[nn_ms.to_vec()])
+}
+
+/// RMSSD pooled over several runs: differences are taken only inside each run.
+#[must_use]
+pub fn rmssd_runs(runs: &[Vec<f64>]) -> Option<f64> {
+    let sq: Vec<f64> = runs.iter().flat_map(|r| r.windows(2).map(|w| (w[1] - w[0]).powi(2))).collect();
+    mean(&sq).map(f64::sqrt)
+}
+
+/// Regularity of all RR intervals between consecutive beats.
+#[must_use]
+pub fn rhythm(beats: &[Beat], fs: Hertz) -> Rhythm {
+    let rr: Vec<f64> = beats
+        .windows(2)
+        .filter(|w| w[1].r > w[0].r)
+        .map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64))
+        .collect();
+    let rr_cv = match (mean(&rr), sample_sd(&rr)) {
+        (Some(m), Some(sd)) if m > 0.0 => Some(sd / m),
+        _ => None,
+    };
+    let regular = rr_cv.filter(|_| rr.len() >= MIN_RR_FOR_REGULARITY).map(|cv| cv < IRREGULAR_CV);
+    Rhythm { rr_count: rr.len(), rr_cv, regular }
+}
+
+/// All RR statistics of a beat list at rate `fs`.
+#[must_use]
+pub fn rr_stats(beats: &[Beat], fs: Hertz) -> RrStats {
+    let runs = nn_runs(beats, fs);
+    let nn: Vec<f64> = runs.iter().flatten().copied().collect();
+    let rr_ms = mean(&nn);
+    RrStats {
+        nn_count: nn.len(),
+        rr_ms,
+        heart_rate_bpm: rr_ms.and_then(bpm_from_rr_ms),
+        sdnn_ms: sdnn(&nn),
+        rmssd_ms: rmssd_runs(&runs),
+        rhythm: rhythm(beats, fs),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn fs() -> Hertz {
+        Hertz::from_hz(1000.0).unwrap_or_else(|_| unreachable!())
+    }
+
+    fn beats(rs: &[(usize, BeatKind)]) -> Vec<Beat> {
+        rs.iter().map(|&(r, k)| Beat::at(r, k)).collect()
+    }
+
+    #[test]
+    fn runs_break_at_other_beats() {
+        use BeatKind::{Dominant as D, Other as O};
+        let b = beats(&[(0, D), (800, D), (1600, D), (2100, O), (3000, D), (3800, D)]);
+        assert_eq!(nn_runs(&b, fs()), vec![vec![800.0, 800.0], vec![800.0]]);
+        let s = rr_stats(&b, fs());
+        assert_eq!(s.nn_count, 3);
+        assert_eq!(s.rr_ms, Some(800.0));
+        assert_eq!(s.heart_rate_bpm, Some(75.0));
+        assert_eq!(s.rmssd_ms, Some(0.0));
+        assert_eq!(s.rhythm.rr_count, 5);
+        assert_eq!(s.rhythm.regular, Some(false));
+    }
+
+    #[test]
+    fn steady_rhythm_is_regular_and_few_beats_undecided() {
+        let b: Vec<Beat> = (0..10).map(|k| Beat::at(k * 1000 + (k % 2) * 20, BeatKind::Dominant)).collect();
+        assert_eq!(rhythm(&b, fs()).regular, Some(true));
+        assert_eq!(rhythm(&b[..3], fs()).regular, None);
+        assert_eq!(rr_stats(&b[..1], fs()).rr_ms, None);
+    }
+}

@@ -1,0 +1,198 @@
+//! Measurements of a recording: RR and heart rate, P duration, PR, QRS, QT, five QTc formulas, frontal axes of
+//! P, QRS and T, ST levels per lead, SDNN and RMSSD, rhythm regularity, and range notes with their sources.
+//!
+//! A value that cannot be measured is `None`, never a guess. Intervals, axes and ST come from the
+//! representative beat ([`Template`]); the medians of the per-beat intervals are kept as a cross-check and
+//! stand in only when there is no representative beat at all.
+//!
+//! ```
+//! use isoline_core::measure::qtc::qtc;
+//! // Source: Bazett, Heart 1920;7:353-70 — QT 400 ms at RR 800 ms gives 447.2 ms.
+//! assert!((qtc(400.0, 800.0).bazett - 447.21).abs() < 0.01);
+//! ```
+
+pub mod axis;
+pub mod hrv;
+pub mod intervals;
+pub mod level;
+pub mod qtc;
+pub mod ranges;
+pub mod st;
+pub mod stats;
+mod values;
+
+pub use axis::{AxisBasis, Axes};
+pub use hrv::{RrStats, Rhythm};
+pub use intervals::{Intervals, intervals, median_intervals};
+pub use qtc::{Qtc, qtc_checked};
+pub use ranges::{RangeNote, Sex};
+pub use st::StLevel;
+pub use values::{KEYS, MeasuredValue};
+
+use crate::beat::{Beat, BeatKind, Boundaries};
+use crate::recording::{Recording, StandardLead};
+use crate::units::Hertz;
+
+/// A representative beat as measurement sees it: one sample vector per lead, **in the order of the
+/// recording's leads**, on the beat's own sample axis, with its global boundaries on that axis.
+#[derive(Debug, Clone, Copy)]
+pub struct Template<'a> {
+    /// Samples per lead, µV.
+    pub leads: &'a [Vec<f32>],
+    /// Sampling rate of the template.
+    pub sample_rate: Hertz,
+    /// Global boundaries on the template's axis.
+    pub bounds: Boundaries,
+}
+
+/// Where [`Measurements::intervals`] came from.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum IntervalSource {
+    /// The representative beat's boundaries.
+    Representative,
+    /// Medians of the dominant beats' own intervals (no representative beat was available).
+    BeatMedians,
+    /// Nothing to measure.
+    #[default]
+    None,
+}
+
+/// Everything measured on one recording.
+#[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Measurements {
+    /// Number of beats.
+    pub beats: usize,
+    /// Number of dominant beats.
+    pub dominant_beats: usize,
+    /// RR statistics: mean NN, heart rate, SDNN, RMSSD, regularity.
+    pub rr: RrStats,
+    /// P duration, PR, QRS, QT in ms.
+    pub intervals: Intervals,
+    /// Where `intervals` came from.
+    pub intervals_source: IntervalSource,
+    /// Medians of the per-beat intervals over dominant beats (cross-check).
+    pub beat_medians: Intervals,
+    /// QTc from `intervals.qt_ms` and the mean NN interval.
+    pub qtc: Option<Qtc>,
+    /// Frontal axes.
+    pub axes: Axes,
+    /// ST levels per lead, in the recording's lead order (empty without a representative beat).
+    pub st: Vec<StLevel>,
+    /// Sex used for the usual ranges.
+    pub sex: Sex,
+}
+
+/// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
+///
+/// `recording` gives the lead names (matched by position to `template.leads`), the sampling rate of `beats`
+/// and the sex for the usual ranges. Axes use the default [`AxisBasis`] (net amplitude).
+#[must_use]
+pub fn measure(recording: &Recording, beats: &[Beat], template: Option<&Template<'_>>) -> Measurements {
+    measure_with(recording, beats, template, AxisBasis::default())
+}
+
+/// [`measure`] with a chosen axis basis.
+#[must_use]
+pub fn measure_with(
+    recording: &Recording,
+    beats: &[Beat],
+    template: Option<&Template<'_>>,
+    basis: AxisBasis,
+) -> Measurements {
+    let fs = recording.sample_rate;
+    let rr = hrv::rr_stats(beats, fs);
+    let beat_medians = median_intervals(beats, fs);
+    let (intervals, intervals_source) = match template {
+        Some(t) => (intervals(&t.bounds, t.sample_rate), IntervalSource::Representative),
+        None if beat_medians != Intervals::default() => (beat_medians, IntervalSource::BeatMedians),
+        None => (Intervals::default(), IntervalSource::None),
+    };
+    let (axes, st) = match template {
+        Some(t) => {
+            let names = recording.leads.iter().map(|l| &l.name);
+            let limb: Vec<(StandardLead, &[f32])> = names
+                .clone()
+                .zip(t.leads)
+                .filter_map(|(n, x)| n.standard().map(|s| (s, x.as_slice())))
+                .collect();
+            let st = names.zip(t.leads).map(|(n, x)| st::st_level(n.clone(), x, &t.bounds, t.sample_rate)).collect();
+            (axis::axes(&limb, &t.bounds, t.sample_rate, basis), st)
+        }
+        None => (Axes::default(), Vec::new()),
+    };
+    Measurements {
+        beats: beats.len(),
+        dominant_beats: beats.iter().filter(|b| b.kind == BeatKind::Dominant).count(),
+        qtc: qtc_checked(intervals.qt_ms, rr.rr_ms),
+        rr,
+        intervals,
+        intervals_source,
+        beat_medians,
+        axes,
+        st,
+        sex: ranges::Sex::parse(recording.meta.sex.as_deref()),
+    }
+}
+
+impl Measurements {
+    /// The ST level at J + 60 ms of a lead, µV.
+    #[must_use]
+    pub fn st_j60(&self, lead: &crate::recording::LeadName) -> Option<f64> {
+        self.st.iter().find(|s| &s.lead == lead).and_then(|s| s.j60_uv)
+    }
+
+    /// Every range note, in the order of [`Measurements::values`].
+    #[must_use]
+    pub fn notes(&self) -> Vec<RangeNote> {
+        self.values().into_iter().filter_map(|v| v.note).collect()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::recording::{Lead, LeadName, Meta};
+    use proptest::prelude::*;
+
+    fn any_bound() -> impl Strategy<Value = Option<usize>> {
+        prop_oneof![Just(None), (0usize..400).prop_map(Some), Just(Some(usize::MAX))]
+    }
+
+    proptest! {
+        /// Any boundaries, any lengths, NaN samples: measurement never panics, and what it reports is finite.
+        #[test]
+        fn never_panics(
+            b in (any_bound(), any_bound(), any_bound(), any_bound(), any_bound()),
+            len in 0usize..300,
+            nan_at in 0usize..300,
+            rs in proptest::collection::vec(0usize..5000, 0..20),
+        ) {
+            let bounds = Boundaries { p_on: b.0, p_end: b.1, qrs_on: b.2, qrs_end: b.3, t_end: b.4 };
+            let names = ["I", "II", "aVF", "V2", "X"];
+            let leads: Vec<Vec<f32>> = names.iter().enumerate()
+                .map(|(i, _)| (0..len).map(|k| if k == nan_at { f32::NAN } else { ((k * (i + 1)) % 17) as f32 }).collect())
+                .collect();
+            let rec = Recording {
+                leads: names.iter().zip(&leads).map(|(n, s)| Lead { name: LeadName::parse(n), samples: s.clone() }).collect(),
+                sample_rate: Hertz::from_hz(250.0).unwrap_or_else(|_| unreachable!()),
+                start: None,
+                meta: Meta::default(),
+                annotations: Vec::new(),
+            };
+            let mut sorted = rs.clone();
+            sorted.sort_unstable();
+            let beats: Vec<Beat> = sorted.iter().enumerate()
+                .map(|(i, &r)| Beat { r, kind: if i % 3 == 0 { BeatKind::Other } else { BeatKind::Dominant }, bounds })
+                .collect();
+            let t = Template { leads: &leads, sample_rate: rec.sample_rate, bounds };
+            let m = measure(&rec, &beats, Some(&t));
+            for v in m.values() {
+                prop_assert!(v.value.is_none_or(f64::is_finite), "{} = {:?}", v.key, v.value);
+            }
+            let i = intervals(&bounds, rec.sample_rate);
+            for x in [i.p_duration_ms, i.pr_ms, i.qrs_ms, i.qt_ms].into_iter().flatten() {
+                prop_assert!(x > 0.0);
+            }
+        }
+    }
+}

@@ -1,0 +1,172 @@
+//! Range notes: a measured value outside the usual range, with the source of the range named.
+//! The wording is Isoline's own; the notes measure, they do not diagnose.
+
+/// Sex as far as it decides a usual range.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum Sex {
+    /// Female.
+    Female,
+    /// Male.
+    Male,
+    /// Not known.
+    #[default]
+    Unknown,
+}
+
+impl Sex {
+    /// Reads `Meta::sex` as stored (`F`, `female`, `W`, `M`, `male`, …); anything else is unknown.
+    #[must_use]
+    pub fn parse(text: Option<&str>) -> Self {
+        let t = text.map(|t| t.trim().to_ascii_lowercase()).unwrap_or_default();
+        match t.as_str() {
+            "f" | "female" | "w" | "woman" | "women" => Self::Female,
+            "m" | "male" | "man" | "men" => Self::Male,
+            _ => Self::Unknown,
+        }
+    }
+}
+
+/// A value outside its usual range.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct RangeNote {
+    /// Key of the value (as in [`super::MeasuredValue::key`]).
+    pub key: String,
+    /// The note for people, e.g. `QTc (Bazett) 478 ms — above the usual upper limit of 460 ms for women
+    /// (Rautaharju et al. 2009)`.
+    pub text: String,
+    /// Where the range comes from.
+    pub source: &'static str,
+}
+
+/// Source of the QRS duration limits.
+pub const SOURCE_QRS: &str = "Surawicz et al. 2009, J Am Coll Cardiol 53:976-81";
+/// Source of the QTc limits. // From memory (references.md §4): Rautaharju et al. 2009, J Am Coll Cardiol 53:982-91.
+pub const SOURCE_QTC: &str = "Rautaharju et al. 2009, J Am Coll Cardiol 53:982-91";
+/// Source of the 500 ms QTc threshold.
+pub const SOURCE_QTC_500: &str = "Johnson & Ackerman 2009, Br J Sports Med";
+/// Source of the PR, heart-rate and axis ranges (references.md §4: textbook values, no single paper).
+pub const SOURCE_TEXTBOOK: &str = "usual textbook range";
+/// Source of the regularity threshold.
+pub const SOURCE_COMMON: &str = "common practice";
+
+fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
+    Some(RangeNote { key: key.to_string(), text, source })
+}
+
+/// Heart rate outside 60–100 bpm. // Source: references.md §4 (textbook resting range).
+#[must_use]
+pub fn heart_rate(bpm: f64) -> Option<RangeNote> {
+    let side = if bpm < 60.0 { "below" } else if bpm > 100.0 { "above" } else { return None };
+    note("heart_rate_bpm", format!("Heart rate {bpm:.0} bpm — {side} the usual resting range of 60–100 bpm \
+        ({SOURCE_TEXTBOOK})"), SOURCE_TEXTBOOK)
+}
+
+/// PR outside 120–200 ms. // Source: references.md §4 (textbook range).
+#[must_use]
+pub fn pr(ms: f64) -> Option<RangeNote> {
+    let text = if ms > 200.0 {
+        format!("PR {ms:.0} ms — above the usual upper limit of 200 ms ({SOURCE_TEXTBOOK})")
+    } else if ms < 120.0 {
+        format!("PR {ms:.0} ms — below the usual lower limit of 120 ms ({SOURCE_TEXTBOOK})")
+    } else {
+        return None;
+    };
+    note("pr_ms", text, SOURCE_TEXTBOOK)
+}
+
+/// QRS above 110 ms (adults); 120 ms named separately. // Source: Surawicz et al. 2009 (references.md §4).
+#[must_use]
+pub fn qrs(ms: f64) -> Option<RangeNote> {
+    let text = if ms >= 120.0 {
+        format!("QRS {ms:.0} ms — at or above 120 ms, beyond the usual adult upper limit of 110 ms (Surawicz et al. 2009)")
+    } else if ms > 110.0 {
+        format!("QRS {ms:.0} ms — above the usual adult upper limit of 110 ms (Surawicz et al. 2009)")
+    } else {
+        return None;
+    };
+    note("qrs_ms", text, SOURCE_QRS)
+}
+
+/// QTc by one formula against the usual limits: ≥ 450 ms men, ≥ 460 ms women, ≤ 390 ms short (Rautaharju et
+/// al. 2009 — from memory), > 500 ms (Johnson & Ackerman 2009).
+#[must_use]
+pub fn qtc(key: &str, formula: &str, ms: f64, sex: Sex) -> Option<RangeNote> {
+    let head = format!("QTc ({formula}) {ms:.0} ms");
+    if ms > 500.0 {
+        return note(key, format!("{head} — above 500 ms ({SOURCE_QTC_500})"), SOURCE_QTC_500);
+    }
+    // From memory: Rautaharju et al. 2009 limits (references.md §4).
+    let text = match sex {
+        Sex::Female if ms >= 460.0 => {
+            format!("{head} — at or above the usual upper limit of 460 ms for women (Rautaharju et al. 2009)")
+        }
+        Sex::Male if ms >= 450.0 => {
+            format!("{head} — at or above the usual upper limit of 450 ms for men (Rautaharju et al. 2009)")
+        }
+        Sex::Unknown if ms >= 450.0 => format!(
+            "{head} — at or above the usual upper limit of 450 ms for men (460 ms for women; sex not recorded) \
+             (Rautaharju et al. 2009)"
+        ),
+        _ if ms <= 390.0 => format!("{head} — at or below the usual lower limit of 390 ms (Rautaharju et al. 2009)"),
+        _ => return None,
+    };
+    note(key, text, SOURCE_QTC)
+}
+
+/// QRS axis outside −30° to +90°. // Source: references.md §4 (textbook frontal axis ranges).
+#[must_use]
+pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
+    let side = if (-90.0..-30.0).contains(&deg) {
+        "to the left"
+    } else if deg > 90.0 {
+        "to the right"
+    } else if deg < -90.0 {
+        "between −90° and ±180°"
+    } else {
+        return None;
+    };
+    note("axis_qrs_deg", format!("QRS axis {deg:.0}° — outside the usual range of −30° to +90°, {side} \
+        ({SOURCE_TEXTBOOK})"), SOURCE_TEXTBOOK)
+}
+
+/// RR intervals irregular (coefficient of variation ≥ the threshold in [`super::hrv::IRREGULAR_CV`]).
+#[must_use]
+pub fn rr_variation(cv: f64) -> Option<RangeNote> {
+    let limit = super::hrv::IRREGULAR_CV;
+    (cv >= limit).then(|| RangeNote {
+        key: "rr_cv_pct".into(),
+        text: format!("RR intervals irregular: variation {:.0} % (regular below {:.0} %, {SOURCE_COMMON})",
+            cv * 100.0, limit * 100.0),
+        source: SOURCE_COMMON,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn qtc_limits_by_sex() {
+        let n = qtc("qtc_bazett_ms", "Bazett", 478.0, Sex::Female).map(|n| n.text).unwrap_or_default();
+        assert_eq!(n, "QTc (Bazett) 478 ms — at or above the usual upper limit of 460 ms for women (Rautaharju et al. 2009)");
+        assert!(qtc("k", "Bazett", 455.0, Sex::Female).is_none());
+        assert!(qtc("k", "Bazett", 455.0, Sex::Male).is_some());
+        assert!(qtc("k", "Bazett", 455.0, Sex::Unknown).is_some());
+        assert!(qtc("k", "Bazett", 420.0, Sex::Unknown).is_none());
+        assert!(qtc("k", "Bazett", 385.0, Sex::Male).is_some());
+        assert_eq!(qtc("k", "Bazett", 520.0, Sex::Female).map(|n| n.source), Some(SOURCE_QTC_500));
+    }
+
+    #[test]
+    fn other_limits() {
+        assert!(pr(210.0).is_some() && pr(110.0).is_some() && pr(160.0).is_none());
+        assert!(qrs(100.0).is_none() && qrs(115.0).is_some() && qrs(130.0).is_some());
+        assert!(heart_rate(55.0).is_some() && heart_rate(75.0).is_none() && heart_rate(110.0).is_some());
+        assert!(qrs_axis(-45.0).is_some() && qrs_axis(60.0).is_none() && qrs_axis(120.0).is_some());
+        assert!(qrs_axis(-30.0).is_none() && qrs_axis(-150.0).is_some());
+        assert!(rr_variation(0.04).is_none() && rr_variation(0.2).is_some());
+        assert_eq!(Sex::parse(Some(" F ")), Sex::Female);
+        assert_eq!(Sex::parse(Some("male")), Sex::Male);
+        assert_eq!(Sex::parse(None), Sex::Unknown);
+    }
+}

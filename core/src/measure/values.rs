@@ -1,0 +1,102 @@
+//! The uniform list of measured values for the Ledger, reviews, exports and tables.
+
+use crate::recording::LeadName;
+
+use super::Measurements;
+use super::ranges::{self, RangeNote};
+
+/// One measured value with its stable key, label, unit and range note.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct MeasuredValue {
+    /// Stable key (`pr_ms`, `qtc_bazett_ms`, `axis_qrs_deg`, `st_j60_uv`, …). Per-lead values (ST) share a key
+    /// and differ by `lead`.
+    pub key: &'static str,
+    /// Label for people (`PR`, `QTc (Bazett)`, `ST at J+60 ms (V2)`).
+    pub label: String,
+    /// The value, `None` where it could not be measured.
+    pub value: Option<f64>,
+    /// Unit (`ms`, `bpm`, `deg`, `µV`, `%`).
+    pub unit: &'static str,
+    /// A note when the value is outside its usual range.
+    pub note: Option<RangeNote>,
+    /// The lead, for per-lead values.
+    pub lead: Option<LeadName>,
+}
+
+/// Every key [`Measurements::values`] can produce, in order (ST keys repeat once per lead).
+pub const KEYS: [&str; 19] = [
+    "heart_rate_bpm", "rr_ms", "rr_sdnn_ms", "rr_rmssd_ms", "rr_cv_pct", "p_duration_ms", "pr_ms", "qrs_ms",
+    "qt_ms", "qtc_bazett_ms", "qtc_fridericia_ms", "qtc_framingham_ms", "qtc_hodges_ms", "qtc_rautaharju_ms",
+    "axis_p_deg", "axis_qrs_deg", "axis_t_deg", "st_j_uv", "st_j60_uv",
+];
+
+fn v(key: &'static str, label: &str, value: Option<f64>, unit: &'static str) -> MeasuredValue {
+    MeasuredValue { key, label: label.to_string(), value, unit, note: None, lead: None }
+}
+
+fn with_note(mut m: MeasuredValue, f: impl Fn(f64) -> Option<RangeNote>) -> MeasuredValue {
+    m.note = m.value.and_then(f);
+    m
+}
+
+impl Measurements {
+    /// The values in a fixed order: rate, RR statistics, intervals, QTc ×5, axes, then ST at J and J+60 ms
+    /// for each lead. Keys are listed in [`KEYS`].
+    #[must_use]
+    pub fn values(&self) -> Vec<MeasuredValue> {
+        let i = &self.intervals;
+        let q = self.qtc;
+        let sex = self.sex;
+        let mut out = vec![
+            with_note(v("heart_rate_bpm", "Heart rate", self.rr.heart_rate_bpm, "bpm"), ranges::heart_rate),
+            v("rr_ms", "RR", self.rr.rr_ms, "ms"),
+            v("rr_sdnn_ms", "SDNN", self.rr.sdnn_ms, "ms"),
+            v("rr_rmssd_ms", "RMSSD", self.rr.rmssd_ms, "ms"),
+            with_note(v("rr_cv_pct", "RR variation", self.rr.rhythm.rr_cv.map(|c| c * 100.0), "%"), |p| {
+                // Only a regularity call with enough intervals makes a note.
+                self.rr.rhythm.regular.and_then(|_| ranges::rr_variation(p / 100.0))
+            }),
+            v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
+            with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr),
+            with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs),
+            v("qt_ms", "QT", i.qt_ms, "ms"),
+        ];
+        let formulas: [(&'static str, &str, Option<f64>); 5] = [
+            ("qtc_bazett_ms", "Bazett", q.map(|q| q.bazett)),
+            ("qtc_fridericia_ms", "Fridericia", q.map(|q| q.fridericia)),
+            ("qtc_framingham_ms", "Framingham", q.map(|q| q.framingham)),
+            ("qtc_hodges_ms", "Hodges", q.map(|q| q.hodges)),
+            ("qtc_rautaharju_ms", "Rautaharju", q.map(|q| q.rautaharju)),
+        ];
+        for (key, name, value) in formulas {
+            out.push(with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex)));
+        }
+        out.push(v("axis_p_deg", "P axis", self.axes.p_deg, "deg"));
+        out.push(with_note(v("axis_qrs_deg", "QRS axis", self.axes.qrs_deg, "deg"), ranges::qrs_axis));
+        out.push(v("axis_t_deg", "T axis", self.axes.t_deg, "deg"));
+        for s in &self.st {
+            let mut a = v("st_j_uv", &format!("ST at J ({})", s.lead), s.j_uv, "µV");
+            a.lead = Some(s.lead.clone());
+            let mut b = v("st_j60_uv", &format!("ST at J+60 ms ({})", s.lead), s.j60_uv, "µV");
+            b.lead = Some(s.lead.clone());
+            out.extend([a, b]);
+        }
+        out
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_key_is_listed() {
+        let m = Measurements {
+            st: vec![super::super::StLevel { lead: LeadName::parse("V2"), j_uv: None, j60_uv: None }],
+            ..Measurements::default()
+        };
+        let keys: Vec<&str> = m.values().iter().map(|v| v.key).collect();
+        assert_eq!(keys, KEYS.to_vec());
+        assert!(m.values().iter().all(|v| v.value.is_none() && v.note.is_none()));
+    }
+}

@@ -1,0 +1,157 @@
+//! The page renderer: draws a recording on true-scale paper into an RGBA image and encodes it as PNG, with no
+//! window and no GPU (tiny-skia for shapes, ab_glyph with the bundled DejaVu Sans for text).
+//!
+//! Geometry comes from [`crate::paper`], the same module the GUI's Sheet uses, so an exported page matches the
+//! screen. Scale: 1 mm of paper = `dpi / 25.4` pixels (1 inch = 25.4 mm exactly, 1959 agreement).
+//!
+//! ```
+//! use isoline_core::paper::{Layout, PageSpec};
+//! use isoline_core::render::{RenderInput, render_page};
+//! use isoline_core::recording::{Lead, Meta, Recording, StandardLead};
+//! use isoline_core::units::Hertz;
+//!
+//! let recording = Recording {
+//!     leads: vec![Lead { name: StandardLead::II.into(), samples: vec![0.0; 2500] }],
+//!     sample_rate: Hertz::from_hz(500.0).unwrap(),
+//!     start: None,
+//!     meta: Meta::default(),
+//!     annotations: vec![],
+//! };
+//! let spec = PageSpec { layout: Layout::Strip(StandardLead::II.into()), seconds: 5.0, ..PageSpec::default() };
+//! let input = RenderInput::new(&recording, spec, 100.0);
+//! let pixmap = render_page(&input).unwrap();
+//! assert!(pixmap.width() > 500);
+//! ```
+
+mod canvas;
+mod furniture;
+mod grid;
+mod ledger;
+mod overlay;
+mod page;
+mod png;
+mod text;
+mod trace;
+
+use thiserror::Error;
+
+use crate::beat::MarkKind;
+use crate::caliper::Caliper;
+use crate::paper::{PageSpec, Scheme};
+use crate::recording::Recording;
+
+pub use self::furniture::header_lines;
+pub use self::png::{encode_png, write_png_atomic};
+pub use self::trace::{Column, decimate_min_max};
+
+/// Highest resolution accepted, dots per inch.
+pub const MAX_DPI: f64 = 1200.0;
+/// Largest image accepted, pixels (width × height).
+pub const MAX_PIXELS: u64 = 100_000_000;
+
+/// One line of the measurement box on an exported page.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct LedgerLine {
+    /// What was measured (`QTc Bazett`).
+    pub label: String,
+    /// Automatic value as text, if any.
+    pub auto: Option<String>,
+    /// Value set by the reader, if any.
+    pub reviewed: Option<String>,
+    /// Unit (`ms`, `bpm`, `°`).
+    pub unit: String,
+}
+
+/// Everything one page shows. Independent of the review model: callers translate a review into this.
+#[derive(Debug, Clone)]
+pub struct RenderInput<'a> {
+    /// The recording to draw.
+    pub recording: &'a Recording,
+    /// Layout, lead order, speed, gain and time window.
+    pub spec: PageSpec,
+    /// Paper colours.
+    pub scheme: Scheme,
+    /// Resolution, dots per inch (1 mm = dpi / 25.4 px).
+    pub dpi: f64,
+    /// First header line, usually the recording's file name.
+    pub title: String,
+    /// Extra header fields shown as `name: value` (reader, stage, …).
+    pub header: Vec<(String, String)>,
+    /// Filter settings as text; `None` prints that the traces are unfiltered.
+    pub filter_text: Option<String>,
+    /// Calipers to draw with their readouts.
+    pub calipers: Vec<Caliper>,
+    /// Boundary marks: kind and recording time in s.
+    pub marks: Vec<(MarkKind, f64)>,
+    /// Lines of the measurement box (empty: no box).
+    pub ledger: Vec<LedgerLine>,
+    /// Show the patient fields of `recording.meta`; otherwise only what [`crate::recording::Meta::deidentified`]
+    /// keeps.
+    pub identify: bool,
+}
+
+impl<'a> RenderInput<'a> {
+    /// A plain page: Rose scheme, no header fields, calipers, marks or measurements, de-identified.
+    #[must_use]
+    pub fn new(recording: &'a Recording, spec: PageSpec, dpi: f64) -> Self {
+        Self {
+            recording,
+            spec,
+            scheme: Scheme::Rose,
+            dpi,
+            title: String::new(),
+            header: Vec::new(),
+            filter_text: None,
+            calipers: Vec::new(),
+            marks: Vec::new(),
+            ledger: Vec::new(),
+            identify: false,
+        }
+    }
+}
+
+/// Why a page could not be drawn or written.
+#[derive(Debug, Error)]
+#[non_exhaustive]
+pub enum RenderError {
+    /// Resolution out of range.
+    #[error("resolution {0} dpi is out of range (must be above 0 and at most 1200)")]
+    Dpi(f64),
+    /// Speed, gain or time window not usable.
+    #[error("cannot lay out the page: {0}")]
+    Spec(String),
+    /// The page would be too large an image.
+    #[error("page of {width} x {height} px is too large (limit 100 million pixels)")]
+    TooLarge {
+        /// Width, px.
+        width: u64,
+        /// Height, px.
+        height: u64,
+    },
+    /// Nothing to draw.
+    #[error("the recording has no leads")]
+    NoLeads,
+    /// The bundled font could not be read.
+    #[error("bundled font unreadable")]
+    Font,
+    /// PNG encoding failed.
+    #[error("PNG encoding failed: {0}")]
+    Encode(String),
+    /// Writing the file failed.
+    #[error("cannot write {path}: {source}")]
+    Write {
+        /// Target path.
+        path: std::path::PathBuf,
+        /// Cause.
+        source: std::io::Error,
+    },
+}
+
+/// Draws one page.
+///
+/// # Errors
+/// [`RenderError::Dpi`] for a resolution ≤ 0 or above [`MAX_DPI`], [`RenderError::Spec`] for a non-positive or
+/// non-finite speed, gain or window, [`RenderError::TooLarge`] above [`MAX_PIXELS`], [`RenderError::NoLeads`].
+pub fn render_page(input: &RenderInput) -> Result<tiny_skia::Pixmap, RenderError> {
+    page::render(input)
+}

@@ -1,0 +1,119 @@
+//! PNG output: encoding with the resolution recorded (pHYs chunk) and an atomic write.
+
+use std::fs::{self, File};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use tiny_skia::Pixmap;
+
+use super::RenderError;
+
+/// Inches per metre: 1 inch = 0.0254 m exactly (1959 international yard and pound agreement).
+const INCH_M: f64 = 0.0254;
+
+/// Encodes a page as 8-bit RGB PNG whose pHYs chunk states `dpi` (as pixels per metre), so printing at 100 %
+/// gives true scale.
+///
+/// # Errors
+/// [`RenderError::Encode`] if the encoder fails or `dpi` is not positive.
+pub fn encode_png(pixmap: &Pixmap, dpi: f64) -> Result<Vec<u8>, RenderError> {
+    if !dpi.is_finite() || dpi <= 0.0 {
+        return Err(RenderError::Dpi(dpi));
+    }
+    let ppm = (dpi / INCH_M).round() as u32;
+    // Un-premultiply into RGB (pages are opaque; alpha is dropped).
+    let mut rgb = Vec::with_capacity(pixmap.width() as usize * pixmap.height() as usize * 3);
+    for p in pixmap.pixels() {
+        let c = p.demultiply();
+        rgb.extend_from_slice(&[c.red(), c.green(), c.blue()]);
+    }
+    let mut out = Vec::new();
+    {
+        let mut enc = ::png::Encoder::new(&mut out, pixmap.width(), pixmap.height());
+        enc.set_color(::png::ColorType::Rgb);
+        enc.set_depth(::png::BitDepth::Eight);
+        enc.set_compression(::png::Compression::Fast);
+        enc.set_pixel_dims(Some(::png::PixelDimensions { xppu: ppm, yppu: ppm, unit: ::png::Unit::Meter }));
+        let mut w = enc.write_header().map_err(|e| RenderError::Encode(e.to_string()))?;
+        w.write_image_data(&rgb).map_err(|e| RenderError::Encode(e.to_string()))?;
+        w.finish().map_err(|e| RenderError::Encode(e.to_string()))?;
+    }
+    Ok(out)
+}
+
+/// Writes `bytes` to `path` atomically: a temporary file in the same folder, flushed and synced, then renamed
+/// over `path`. On error the temporary file is removed and `path` is untouched.
+///
+/// # Errors
+/// [`RenderError::Write`] naming `path`.
+pub fn write_png_atomic(path: &Path, bytes: &[u8]) -> Result<(), RenderError> {
+    let err = |source| RenderError::Write { path: path.to_path_buf(), source };
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let name = path.file_name().ok_or_else(|| err(std::io::Error::other("no file name")))?;
+    let nanos = std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.subsec_nanos());
+    let tmp = dir.join(format!(".{}.{}-{nanos}.tmp", name.to_string_lossy(), std::process::id()));
+    let result = (|| {
+        let mut f = File::options().write(true).create_new(true).open(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        drop(f);
+        fs::rename(&tmp, path)
+    })();
+    if let Err(e) = result {
+        let _ = fs::remove_file(&tmp);
+        return Err(err(e));
+    }
+    // Make the rename durable where the platform allows syncing a folder; failure here loses nothing.
+    if let Ok(d) = File::open(&dir) {
+        let _ = d.sync_all();
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn atomic_write_replaces_and_leaves_no_temp() -> Result<(), Box<dyn std::error::Error>> {
+        let dir = tempfile::tempdir()?;
+        let p = dir.path().join("page.png");
+        write_png_atomic(&p, b"first")?;
+        write_png_atomic(&p, b"second")?;
+        assert_eq!(fs::read(&p)?, b"second");
+        assert_eq!(fs::read_dir(dir.path())?.count(), 1);
+        Ok(())
+    }
+
+    #[test]
+    fn failed_write_leaves_nothing() -> Result<(), Box<dyn std::error::Error>> {
+        let dir = tempfile::tempdir()?;
+        // The target is an existing non-empty folder: the rename fails, and the temporary file must go.
+        let target = dir.path().join("taken");
+        fs::create_dir(&target)?;
+        fs::write(target.join("keep"), b"x")?;
+        assert!(write_png_atomic(&target, b"data").is_err());
+        let names: Vec<_> = fs::read_dir(dir.path())?.filter_map(|e| e.ok()).map(|e| e.file_name()).collect();
+        assert_eq!(names, vec![std::ffi::OsString::from("taken")]);
+        // A missing folder: nothing is created.
+        assert!(write_png_atomic(&dir.path().join("no/such/page.png"), b"data").is_err());
+        assert!(!dir.path().join("no").exists());
+        Ok(())
+    }
+
+    #[test]
+    fn phys_chunk_states_dpi() -> Result<(), Box<dyn std::error::Error>> {
+        let pm = Pixmap::new(4, 3).ok_or("pixmap")?;
+        let bytes = encode_png(&pm, 300.0)?;
+        let dec = ::png::Decoder::new(std::io::Cursor::new(bytes));
+        let reader = dec.read_info()?;
+        let dims = reader.info().pixel_dims.ok_or("no pHYs")?;
+        // Source: 1 inch = 25.4 mm exactly: 300 dpi = 300 / 0.0254 = 11811.02 px/m.
+        assert_eq!((dims.xppu, dims.yppu), (11811, 11811));
+        assert_eq!(dims.unit, ::png::Unit::Meter);
+        Ok(())
+    }
+}

@@ -1,0 +1,108 @@
+//! Loading reviews: any known `format_version` (older ones migrate to the current model), errors that name
+//! the file, line, column and field, and a recording check that never lets a review of another recording
+//! through silently.
+
+use std::path::Path;
+
+use serde::Deserialize;
+
+use super::identity::signal_sha256;
+use super::model::{FORMAT_VERSION, Review};
+use super::v1::ReviewV1;
+use super::ReviewError;
+
+/// Largest review file read, bytes (a review is a few kB; this guards against opening the wrong file).
+pub const MAX_REVIEW_BYTES: u64 = 64 << 20;
+
+/// Only the version, read first to choose the layout.
+#[derive(Deserialize)]
+struct VersionOnly {
+    #[serde(default, deserialize_with = "present")]
+    format_version: Option<u64>,
+}
+
+fn present<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u64>, D::Error> {
+    u64::deserialize(d).map(Some)
+}
+
+/// Loads a review, migrating older format versions. The file is only read, never changed.
+///
+/// # Errors
+/// [`ReviewError::Io`] when unreadable; [`ReviewError::Parse`] naming line, column and field for bad RON or
+/// an unknown or missing field; [`ReviewError::UnsupportedVersion`] for a version this program does not read.
+pub fn load(path: &Path) -> Result<Review, ReviewError> {
+    let io = |source| ReviewError::Io { path: path.to_path_buf(), source };
+    let len = std::fs::metadata(path).map_err(io)?.len();
+    if len > MAX_REVIEW_BYTES {
+        return Err(parse_error(path, 1, 1, None, format!("{len} bytes is too large for a review file")));
+    }
+    let bytes = std::fs::read(path).map_err(io)?;
+    let text = std::str::from_utf8(&bytes).map_err(|e| {
+        let (line, column) = line_col(&bytes[..e.valid_up_to()]);
+        parse_error(path, line, column, None, "not UTF-8 text".to_owned())
+    })?;
+    from_ron(path, text)
+}
+
+/// Parses review text; `path` is only used in messages.
+///
+/// # Errors
+/// As [`load`].
+pub fn from_ron(path: &Path, text: &str) -> Result<Review, ReviewError> {
+    let version: VersionOnly = ron::from_str(text).map_err(|e| ron_error(path, &e))?;
+    match version.format_version {
+        None => Err(parse_error(path, 1, 1, Some("format_version"), "missing field `format_version`".to_owned())),
+        Some(1) => ron::from_str::<ReviewV1>(text).map(ReviewV1::migrate).map_err(|e| ron_error(path, &e)),
+        Some(v) if v == u64::from(FORMAT_VERSION) => ron::from_str::<Review>(text).map_err(|e| ron_error(path, &e)),
+        Some(found) => Err(ReviewError::UnsupportedVersion { path: path.to_path_buf(), found }),
+    }
+}
+
+/// Loads a review and checks that it belongs to the recording at `recording_path` (as given to
+/// [`crate::io::open`]) by the SHA-256 of its signal content.
+///
+/// # Errors
+/// As [`load`]; [`ReviewError::Recording`] when the recording cannot be read;
+/// [`ReviewError::RecordingMismatch`] when the review was made on other signal content — the CLI refuses,
+/// the GUI asks the reader.
+pub fn load_for(review_path: &Path, recording_path: &Path) -> Result<Review, ReviewError> {
+    let review = load(review_path)?;
+    let found = signal_sha256(recording_path)?;
+    if !review.recording.sha256.eq_ignore_ascii_case(&found) {
+        return Err(ReviewError::RecordingMismatch { expected: review.recording.sha256, found });
+    }
+    Ok(review)
+}
+
+fn parse_error(path: &Path, line: usize, column: usize, field: Option<&str>, message: String) -> ReviewError {
+    ReviewError::Parse { path: path.to_path_buf(), line, column, field: field.map(str::to_owned), message }
+}
+
+fn ron_error(path: &Path, e: &ron::error::SpannedError) -> ReviewError {
+    use ron::error::Error as E;
+    let pos = e.span.start;
+    let (field, message) = match &e.code {
+        E::MissingStructField { field, outer } => {
+            (Some(*field), format!("missing field `{field}`{}", within(outer.as_deref())))
+        }
+        E::NoSuchStructField { expected, found, outer } => (
+            Some(found.as_str()),
+            format!("unknown field `{found}`{} (expected one of: {})", within(outer.as_deref()), expected.join(", ")),
+        ),
+        E::DuplicateStructField { field, outer } => {
+            (Some(*field), format!("field `{field}` given twice{}", within(outer.as_deref())))
+        }
+        other => (None, other.to_string()),
+    };
+    parse_error(path, pos.line, pos.col, field, message)
+}
+
+fn within(outer: Option<&str>) -> String {
+    outer.map(|o| format!(" in {o}")).unwrap_or_default()
+}
+
+fn line_col(prefix: &[u8]) -> (usize, usize) {
+    let line = 1 + prefix.iter().filter(|&&b| b == b'\n').count();
+    let col = 1 + prefix.iter().rev().take_while(|&&b| b != b'\n').count();
+    (line, col)
+}

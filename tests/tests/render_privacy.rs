@@ -1,0 +1,118 @@
+//! Exports are de-identified unless the user asks otherwise (`Meta::deidentified`), and every page carries the
+//! caution. Also the renderer's guards against unusable requests.
+
+mod render_common;
+
+use isoline_core::paper::{Layout, PageSpec};
+use isoline_core::recording::{Lead, Meta, Recording, StandardLead};
+use isoline_core::render::{RenderError, RenderInput, header_lines, render_page};
+use isoline_core::units::Hertz;
+use render_common::{Res, render_png};
+
+/// A made-up demo patient (invented for this test; no real person).
+fn demo_recording() -> Res<Recording> {
+    let fs = 500.0;
+    let samples: Vec<f32> = (0..5000).map(|i| (800.0 * (i as f64 / fs * 2.0 * std::f64::consts::PI).sin()) as f32).collect();
+    Ok(Recording {
+        leads: vec![Lead { name: StandardLead::II.into(), samples }],
+        sample_rate: Hertz::from_hz(fs)?,
+        start: None,
+        meta: Meta {
+            patient_id: Some("WARD7-0042".into()),
+            patient_name: Some("Quill Marrowby".into()),
+            sex: Some("F".into()),
+            birth_date: Some("1950-03-04".into()),
+            age_years: Some(74.0),
+            recording_info: Some("Bed 3, Ward 7 (demo)".into()),
+            device: None,
+        },
+        annotations: vec![],
+    })
+}
+
+fn spec() -> PageSpec {
+    PageSpec { layout: Layout::Strip(StandardLead::II.into()), ..PageSpec::default() }
+}
+
+#[test]
+fn patient_fields_only_when_identify() -> Res {
+    let rec = demo_recording()?;
+    let hidden = header_lines(&RenderInput::new(&rec, spec(), 150.0)).join("\n");
+    for secret in ["Quill", "Marrowby", "WARD7-0042", "1950-03-04", "Bed 3"] {
+        assert!(!hidden.contains(secret), "de-identified header shows {secret:?}:\n{hidden}");
+    }
+    // Sex and age stay: they decide usual ranges and do not identify on their own (Meta::deidentified).
+    assert!(hidden.contains("Sex: F") && hidden.contains("Age: 74"), "{hidden}");
+    let shown = header_lines(&RenderInput { identify: true, ..RenderInput::new(&rec, spec(), 150.0) }).join("\n");
+    for secret in ["Quill Marrowby", "WARD7-0042", "1950-03-04"] {
+        assert!(shown.contains(secret), "identified header lacks {secret:?}:\n{shown}");
+    }
+    // The drawn header differs accordingly (the name is text only present when identify is set).
+    let (_, a) = render_png(&RenderInput::new(&rec, spec(), 150.0))?;
+    let (_, b) = render_png(&RenderInput { identify: true, ..RenderInput::new(&rec, spec(), 150.0) })?;
+    assert_eq!((a.width, a.height), (b.width, b.height));
+    assert_ne!(a.rgb, b.rgb);
+    Ok(())
+}
+
+#[test]
+fn caution_is_drawn_on_every_page() -> Res {
+    // The footer band below the traces holds dark text; compare with a page whose footer is cut off.
+    let rec = demo_recording()?;
+    let input = RenderInput::new(&rec, spec(), 150.0);
+    let (_, img) = render_png(&input)?;
+    let page = input.spec.page(&rec);
+    let grid_bottom = page.rows.last().map_or(0.0, |r| r.top_mm + r.height_mm) * 150.0 / 25.4;
+    let bg = {
+        let p = isoline_core::paper::Scheme::Rose.palette().background;
+        [p[0], p[1], p[2]]
+    };
+    let ink_rows = ((grid_bottom.ceil() as usize + 2)..img.height)
+        .filter(|&y| (0..img.width).any(|x| img.px(x, y) != bg))
+        .count();
+    // 8 pt bold text has capitals about 2 mm (12 px at 150 dpi) tall.
+    assert!(ink_rows >= 10, "footer has {ink_rows} rows with ink");
+    assert!(isoline_core::CAUTION.contains("qualified personnel"));
+    Ok(())
+}
+
+#[test]
+fn absurd_requests_are_refused() -> Res {
+    let rec = demo_recording()?;
+    assert!(matches!(render_page(&RenderInput::new(&rec, spec(), 1201.0)), Err(RenderError::Dpi(_))));
+    assert!(matches!(render_page(&RenderInput::new(&rec, spec(), 0.0)), Err(RenderError::Dpi(_))));
+    assert!(matches!(render_page(&RenderInput::new(&rec, spec(), f64::NAN)), Err(RenderError::Dpi(_))));
+    // A day of paper at 1200 dpi: 2.16 km wide.
+    let long = PageSpec { seconds: 86_400.0, ..spec() };
+    assert!(matches!(render_page(&RenderInput::new(&rec, long, 1200.0)), Err(RenderError::TooLarge { .. })));
+    let bad = PageSpec { seconds: -1.0, ..spec() };
+    assert!(matches!(render_page(&RenderInput::new(&rec, bad, 100.0)), Err(RenderError::Spec(_))));
+    let empty = Recording { leads: vec![], ..rec.clone() };
+    assert!(matches!(render_page(&RenderInput::new(&empty, spec(), 100.0)), Err(RenderError::NoLeads)));
+    Ok(())
+}
+
+#[test]
+fn nan_gap_is_left_blank() -> Res {
+    // A 1-s run of missing samples in a strip: no trace ink in that stretch of the row.
+    let mut rec = demo_recording()?;
+    for v in &mut rec.leads[0].samples[2000..2500] {
+        *v = f32::NAN;
+    }
+    let dpi = 150.0;
+    let input = RenderInput::new(&rec, spec(), dpi);
+    let (_, img) = render_png(&input)?;
+    let page = input.spec.page(&rec);
+    let (row, cell) = (&page.rows[0], &page.rows[0].cells[0]);
+    let px = |mm: f64| (mm * dpi / 25.4).round() as usize;
+    let dark = |p: [u8; 3]| p.iter().all(|&v| v < 110);
+    let ink_in = |t0: f64, t1: f64| {
+        (px(cell.x_from_time(&page.paper, t0))..px(cell.x_from_time(&page.paper, t1)))
+            .filter(|&x| (px(row.top_mm)..px(row.top_mm + row.height_mm)).any(|y| dark(img.px(x, y))))
+            .count()
+    };
+    // Samples 2000..2500 at 500 Hz = 4.0..5.0 s; keep 0.05 s clear of the ends for the stroke's round caps.
+    assert_eq!(ink_in(4.05, 4.95), 0);
+    assert!(ink_in(2.0, 3.0) > 0);
+    Ok(())
+}

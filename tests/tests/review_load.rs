@@ -1,0 +1,140 @@
+//! Loading reviews: the version-1 file kept in tests/data migrates; bad files give messages naming the file,
+//! the line, the column and the field; loading never changes the file.
+
+mod review_support;
+
+use std::path::Path;
+
+use isoline_core::MarkKind;
+use isoline_core::review::{FORMAT_VERSION, MarkOn, Origin, ReviewError, Stage, load, load_for};
+use isoline_tests::data;
+
+#[test]
+fn version_1_file_migrates() {
+    let path = data("review-v1.review.ron");
+    let before = std::fs::read(&path).unwrap();
+    let r = load(&path).unwrap();
+    assert_eq!(r.format_version, FORMAT_VERSION);
+    assert_eq!(r.reader, "J. Demo", "v1 `reviewer` becomes `reader`");
+    assert_eq!(r.stage, Stage::Checked);
+    assert_eq!(r.created.to_iso8601(), "2025-03-14T09:26:53Z");
+    assert_eq!(r.modified.to_iso8601(), "2025-03-14T09:41:07.25Z");
+    assert_eq!(r.recording.file_name, "sel100.hea");
+    assert_eq!(r.recording.leads, ["MLII", "V5"]);
+    assert_eq!(r.calipers.len(), 2);
+    assert!(r.calipers[0].locked && r.calipers[0].march);
+    let t_end = r.mark(MarkKind::TEnd, MarkOn::Representative).unwrap();
+    assert_eq!((t_end.sample, t_end.origin, t_end.auto_sample), (160, Origin::Moved, Some(157)));
+    assert_eq!(r.mark(MarkKind::POnset, MarkOn::Beat(12)).unwrap().origin, Origin::Placed);
+    let qt = r.measurement("qt_ms").unwrap();
+    assert_eq!((qt.auto_value, qt.reviewed_value, qt.value()), (Some(380.0), Some(392.0), Some(392.0)));
+    assert!(r.summary.starts_with("Demo review"));
+    // v1 kept no history: the migration is the first entry.
+    assert_eq!(r.history.len(), 1);
+    assert_eq!(r.history[0].by, "isoline");
+    assert_eq!(r.history[0].old.as_deref(), Some("1"));
+    assert_eq!(r.history[0].new.as_deref(), Some("2"));
+    // Loading never writes.
+    assert_eq!(std::fs::read(&path).unwrap(), before);
+}
+
+#[test]
+fn version_1_file_belongs_to_sel100() {
+    // The SHA-256 in the v1 file was computed with GNU coreutils `sha256sum qtdb/sel100.dat`, independently
+    // of Isoline's hashing.
+    let r = load_for(&data("review-v1.review.ron"), &data("qtdb/sel100.hea")).unwrap();
+    assert_eq!(r.recording.recording_path(&data("review-v1.review.ron")), data("qtdb/sel100.hea"));
+    assert!(matches!(
+        load_for(&data("review-v1.review.ron"), &data("qtdb/sel117.hea")),
+        Err(ReviewError::RecordingMismatch { .. })
+    ));
+}
+
+fn write(dir: &Path, text: &str) -> std::path::PathBuf {
+    let p = dir.join("bad.review.ron");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn current_text() -> String {
+    review_support::sample_review("AB").to_ron().unwrap()
+}
+
+fn parse_err(path: &Path) -> (usize, usize, Option<String>, String) {
+    match load(path) {
+        Err(e @ ReviewError::Parse { .. }) => {
+            let msg = e.to_string();
+            assert!(msg.contains(&path.display().to_string()), "message names the file: {msg}");
+            let ReviewError::Parse { line, column, field, .. } = e else { unreachable!() };
+            (line, column, field, msg)
+        }
+        other => panic!("expected a parse error, got {other:?}"),
+    }
+}
+
+#[test]
+fn unknown_field_is_named_with_its_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text().replacen("  summary:", "  colour: \"red\",\n  summary:", 1);
+    let line = 1 + text.lines().position(|l| l.contains("colour")).unwrap();
+    let p = write(dir.path(), &text);
+    let (l, _, field, msg) = parse_err(&p);
+    assert_eq!(field.as_deref(), Some("colour"), "{msg}");
+    assert_eq!(l, line, "{msg}");
+    assert!(msg.contains("unknown field `colour`"), "{msg}");
+}
+
+#[test]
+fn missing_field_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let text: String = current_text().lines().filter(|l| !l.starts_with("  stage:")).map(|l| format!("{l}\n")).collect();
+    let p = write(dir.path(), &text);
+    let (_, _, field, msg) = parse_err(&p);
+    assert_eq!(field.as_deref(), Some("stage"), "{msg}");
+    assert!(msg.contains("missing field `stage`"), "{msg}");
+}
+
+#[test]
+fn missing_field_inside_a_mark_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text().replacen("      origin: moved,\n      auto_sample", "      auto_sample", 1);
+    let p = write(dir.path(), &text);
+    let (_, _, field, msg) = parse_err(&p);
+    assert_eq!(field.as_deref(), Some("origin"), "{msg}");
+}
+
+#[test]
+fn v2_field_in_a_v1_file_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let v1 = std::fs::read_to_string(data("review-v1.review.ron")).unwrap();
+    let p = write(dir.path(), &v1.replacen("  summary:", "  history: [],\n  summary:", 1));
+    let (_, _, field, _) = parse_err(&p);
+    assert_eq!(field.as_deref(), Some("history"));
+}
+
+#[test]
+fn missing_or_future_version_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text();
+    let p = write(dir.path(), &text.replacen("  format_version: 2,\n", "", 1));
+    assert_eq!(parse_err(&p).2.as_deref(), Some("format_version"));
+    let p = write(dir.path(), &text.replacen("format_version: 2", "format_version: 9", 1));
+    match load(&p) {
+        Err(ReviewError::UnsupportedVersion { found: 9, path }) => assert_eq!(path, p),
+        other => panic!("{other:?}"),
+    }
+}
+
+#[test]
+fn truncated_or_garbage_file_gives_position() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text();
+    let p = write(dir.path(), &text[..text.len() / 2]);
+    let (line, _, _, msg) = parse_err(&p);
+    assert!(line > 1, "{msg}");
+    let p = write(dir.path(), "this is not a review");
+    parse_err(&p);
+    std::fs::write(&p, [0xff, 0xfe, 0x00, 0x41]).unwrap();
+    parse_err(&p);
+    assert!(matches!(load(&dir.path().join("missing.review.ron")), Err(ReviewError::Io { .. })));
+}
