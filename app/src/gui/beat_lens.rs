@@ -55,7 +55,7 @@ pub fn beat_lens_ui(
     ui.horizontal_wrapped(|ui| {
         ui.label(format!("Beat lens ({} beats)", rep.beats_used));
         let current = state.lens_lead.and_then(|i| loaded.recording.leads.get(i)).map_or("all leads".to_string(), |l| l.name.to_string());
-        egui::ComboBox::from_id_salt("lens_lead").selected_text(current).show_ui(ui, |ui| {
+        egui::ComboBox::new("lens_lead", "shown").selected_text(current).show_ui(ui, |ui| {
             ui.selectable_value(&mut state.lens_lead, None, "all leads");
             for (i, l) in loaded.recording.leads.iter().enumerate() {
                 ui.selectable_value(&mut state.lens_lead, Some(i), l.name.to_string());
@@ -107,7 +107,7 @@ pub fn beat_lens_ui(
         painter.text(Pos2::new(x, y), Align2::CENTER_TOP, short(kind), font.clone(), col);
     }
     if response.drag_started()
-        && let Some(p) = response.interact_pointer_pos()
+        && let Some(p) = ui.input(|i| i.pointer.press_origin()).or(response.interact_pointer_pos())
     {
         state.lens_drag = MarkKind::BOUNDARIES
             .into_iter()

@@ -61,7 +61,8 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
         row("qrs_ms", "QRS", "ms", auto_iv.qrs_ms, pick("qrs_ms", rev_iv.qrs_ms)),
         row("qt_ms", "QT", "ms", auto_iv.qt_ms, qt),
     ];
-    let qtc_rows: [(&'static str, &'static str, fn(&Qtc) -> f64); 5] = [
+    type QtcRow = (&'static str, &'static str, fn(&Qtc) -> f64);
+    let qtc_rows: [QtcRow; 5] = [
         ("qtc_bazett_ms", "QTc Bazett", |q| q.bazett),
         ("qtc_fridericia_ms", "QTc Fridericia", |q| q.fridericia),
         ("qtc_framingham_ms", "QTc Framingham", |q| q.framingham),

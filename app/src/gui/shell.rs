@@ -57,10 +57,10 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
     });
     if let Some(loaded) = &app.loaded {
         egui::Panel::bottom("tape").resizable(false).show(ui, |ui| {
-            out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s));
+            out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s, &mut app.ui_state.tape));
         });
         egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
-            egui::ScrollArea::vertical().show(ui, |ui| {
+            egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
                 out.extend(beat_lens::beat_lens_ui(ui, loaded, &app.doc, &app.settings.view, &mut app.ui_state));
                 ui.separator();
                 ui.strong("Calipers");
@@ -130,16 +130,8 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
         let (rect, response) = ui.allocate_exact_size(size, Sense::click_and_drag());
         let painter = ui.painter_at(rect);
         let geo = sheet::draw_page(&painter, loaded, view, &spec, rect.min, ppmm, &header);
-        out.extend(calipers_ui::calipers_ui(
-            ui,
-            &response,
-            &geo,
-            loaded,
-            &app.doc,
-            view,
-            app.tool,
-            &mut app.ui_state,
-        ));
+        let cx = calipers_ui::SheetContext { geo: &geo, loaded, doc: &app.doc, view, tool: app.tool };
+        out.extend(calipers_ui::calipers_ui(ui, &response, &cx, &mut app.ui_state));
         app.ui_state.sheet = Some(geo);
     });
 }
@@ -261,7 +253,7 @@ fn toolbar_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
             }
         }
         if let (Some(loaded), Layout::ThreeByFourPlusOne { .. } | Layout::Strip(_)) = (&app.loaded, &v.layout) {
-            egui::ComboBox::from_id_salt("layout_lead").selected_text(format!("lead {lead_of_layout}")).show_ui(ui, |ui| {
+            egui::ComboBox::new("layout_lead", "strip lead").selected_text(lead_of_layout.to_string()).show_ui(ui, |ui| {
                 for lead in &loaded.recording.leads {
                     if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
                         out.push(Command::SetLayout(match v.layout {

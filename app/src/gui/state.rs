@@ -210,6 +210,8 @@ pub struct UiState {
     pub last_frame_ms: f64,
     /// Geometry of the Sheet as drawn in the last frame (for hit tests from outside, e.g. UI tests).
     pub sheet: Option<super::sheet::SheetGeometry>,
+    /// Tape envelope on screen, last frame: (centre y, x at time 0, x at the recording's end).
+    pub tape: Option<(f32, f32, f32)>,
     /// Screen rectangle of the Beat lens plot area and its time axis, from the last frame.
     pub lens: Option<super::beat_lens::LensGeometry>,
 }
