@@ -211,6 +211,26 @@ fn hand_made_edf_plus_with_annotations() -> TestResult {
         r.annotations.iter().map(|a| (a.sample, a.label.as_str(), a.duration_s)).collect();
     // Onsets × 8 Hz: 0.25 s → 2, 0.875 s → 7.
     assert_eq!(anns, vec![(2, "Pace", Some(0.1)), (7, "Tilt up", None), (7, "Cough", None)]);
+    assert!(o.warnings.iter().all(|w| !w.contains("start at a time")), "{:?}", o.warnings);
+
+    // The same file starting 0.125 s after the header's start time (Kemp & Olivan 2003: the first record's
+    // time-keeping TAL gives its start): onsets count from the header time, samples from the first record.
+    let mut shifted = bytes.clone();
+    let base = bytes.len() - data.len();
+    for (rec_start, tal_at) in [(b"+0.125\x14\x14\x00".to_vec(), 0usize), (b"+0.625\x14\x14\x00".to_vec(), 1)] {
+        let at = base + tal_at * (data.len() / 2) + 2 * (4 + 4 + 1);
+        let mut t = rec_start.clone();
+        let rest: &[u8] = if tal_at == 0 { b"+0.375\x150.1\x14Pace\x14\x00" } else { b"+1\x14Tilt up\x14Cough\x14\x00" };
+        t.extend(rest);
+        t.resize(40, 0);
+        shifted[at..at + 40].copy_from_slice(&t);
+    }
+    let path = dir.path().join("shifted.edf");
+    std::fs::write(&path, &shifted)?;
+    let o = io::open(&path, &io::OpenOptions::default())?;
+    let anns: Vec<(u64, &str)> = o.recording.annotations.iter().map(|a| (a.sample, a.label.as_str())).collect();
+    assert_eq!(anns, vec![(2, "Pace"), (7, "Tilt up"), (7, "Cough")]);
+    assert!(o.warnings.iter().all(|w| !w.contains("start at a time")), "{:?}", o.warnings);
     assert_eq!(r.meta.patient_id.as_deref(), Some("ABC-123"));
     assert_eq!(r.meta.sex.as_deref(), Some("M"));
     assert_eq!(r.meta.patient_name.as_deref(), Some("Made Up"));
