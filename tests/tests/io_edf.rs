@@ -318,3 +318,37 @@ fn only_ecg_signals_at_the_highest_rate_are_leads() -> TestResult {
     assert!(w.contains("EEG Fpz-Cz") && w.contains("not an ECG"), "{w}");
     Ok(())
 }
+
+#[test]
+fn reads_an_edf_plus_file_from_an_independent_writer() -> TestResult {
+    // Source: tests/data/edf/pyedflib-sample.* written and read back by pyedflib 0.1.42 (EDFlib); see the
+    // README beside them.
+    let o = io::open(&data("edf/pyedflib-sample.edf"), &io::OpenOptions::default())?;
+    let r = &o.recording;
+    assert_eq!(o.format, Format::EdfPlus);
+    assert_eq!(r.sample_rate.hz(), 256.0);
+    assert_eq!(r.len(), 2560);
+    let names: Vec<String> = r.leads.iter().map(|l| l.name.to_string()).collect();
+    assert_eq!(names, ["I", "II"]);
+    assert!(o.warnings.iter().any(|w| w.contains("Resp")), "{:?}", o.warnings);
+    let values = std::fs::read_to_string(data("edf/pyedflib-sample.values.csv"))?;
+    let mut checked = 0;
+    for line in values.lines().skip(1) {
+        let f: Vec<&str> = line.split(',').collect();
+        let lead = r.leads.iter().find(|l| format!("ECG {}", l.name) == f[0]).ok_or("lead")?;
+        let (k, uv): (usize, f64) = (f[1].parse()?, f[2].parse()?);
+        assert!((f64::from(lead.samples[k]) - uv).abs() < 0.01, "{} sample {k}: {} vs {uv}", f[0], lead.samples[k]);
+        checked += 1;
+    }
+    assert_eq!(checked, 16);
+    let anns: Vec<(u64, &str, Option<f64>)> =
+        r.annotations.iter().map(|a| (a.sample, a.label.as_str(), a.duration_s)).collect();
+    // Onsets 0.5, 2.25, 7.75 s × 256 Hz (pyedflib-sample.annotations.csv).
+    assert_eq!(anns, vec![(128, "Made-up start", None), (576, "Pace", Some(0.5)), (1984, "Made-up end", None)]);
+    assert_eq!(r.meta.patient_id.as_deref(), Some("BENCH-07"));
+    assert_eq!(r.meta.sex.as_deref(), Some("M"));
+    assert_eq!(r.meta.patient_name.as_deref(), Some("Bench Test"));
+    assert_eq!(r.meta.device.as_deref(), Some("Rig 3"));
+    assert_eq!(r.start.map(|s| (s.year(), u8::from(s.month()), s.day())), Some((2026, 12, 2)));
+    Ok(())
+}
