@@ -49,7 +49,7 @@ fn record_duration(fs: f64, n_leads: usize, n: usize) -> Option<(f64, usize)> {
         })
         .collect();
     let fits = |&&(_, spr): &&(f64, usize)| 2 * spr * n_leads <= MAX_RECORD_BYTES;
-    let divides = |&&(_, spr): &&(f64, usize)| n % spr == 0 && spr >= 10;
+    let divides = |&&(_, spr): &&(f64, usize)| n.is_multiple_of(spr) && spr >= 10;
     whole
         .iter()
         .find(|c| fits(c) && divides(c))
