@@ -49,7 +49,7 @@ fn truth_intervals_match_the_parameters_within_one_sample() {
     for scenario in Scenario::ALL {
         let mut spec = scenario.spec();
         spec.seconds = spec.seconds.min(30.0);
-        for rate in [250.0, 500.0, 1000.0] {
+        for rate in [250.0, 360.0, 500.0, 1000.0] {
             spec.rate_hz = rate;
             let s = make(&spec);
             let t = &s.truth;
@@ -298,6 +298,8 @@ fn bad_parameters_are_refused_with_their_name() {
     // 150 bpm leaves no room for PR 160 + QT 380.
     assert!(bad(|s| s.heart_rate_bpm = 150.0).is_err_and(|e| e.contains("bpm")));
     assert!(bad(|s| s.ectopics = Ectopics::Chance(2.0)).is_err());
+    // A week at 20 kHz on 12 leads would not fit in memory: refused before any allocation.
+    assert!(bad(|s| (s.seconds, s.rate_hz) = (7.0 * 86_400.0, 20_000.0)).is_err_and(|e| e.contains("leads")));
 }
 
 #[test]
