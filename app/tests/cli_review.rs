@@ -131,3 +131,89 @@ fn migrated_v1_review_is_read_by_agreement_without_change() {
     assert_eq!(std::fs::read(&v1).unwrap(), before);
     assert_eq!(load(&v1).unwrap().reader, "J. Demo");
 }
+
+fn copy_ludb_1(dir: &Path) -> PathBuf {
+    for ext in ["hea", "dat"] {
+        std::fs::copy(data(&format!("ludb/1.{ext}")), dir.join(format!("1.{ext}"))).unwrap();
+    }
+    dir.join("1.hea")
+}
+
+#[test]
+fn review_new_writes_a_draft_with_every_automatic_value() {
+    use isoline_core::MarkKind;
+    use isoline_core::review::{MarkOn, Origin, Stage, load_for};
+
+    let dir = tempfile::tempdir().unwrap();
+    let hea = copy_ludb_1(dir.path());
+    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("AB")]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let path = dir.path().join("1.review.ron");
+    let r = load_for(&path, &hea).unwrap();
+    assert_eq!((r.reader.as_str(), r.stage), ("AB", Stage::Draft));
+    assert_eq!(r.recording.file_name, "1.hea");
+    assert_eq!(r.recording.relative_path, "1.hea");
+    assert_eq!(r.recording.leads.len(), 12);
+    assert_eq!(r.recording.sample_rate_hz, 500.0);
+    assert!(r.history.is_empty(), "automatic values are not a reader's change");
+
+    // The values are the engine's, for every key it produces (per-lead values keyed `KEY.LEAD`).
+    let opened = isoline_core::io::open(&hea, &Default::default()).unwrap();
+    let analysis = isoline_core::analysis::analyze(&opened.recording, &Default::default());
+    let expected = analysis.measurements.values();
+    assert_eq!(r.measurements.len(), expected.len());
+    for v in &expected {
+        let key = isoline_core::review::automatic::review_key(v);
+        let m = r.measurement(&key).unwrap_or_else(|| panic!("{key} missing"));
+        assert_eq!((m.auto_value, m.reviewed_value, m.origin), (v.value, None, Origin::Auto), "{key}");
+        assert_eq!(m.unit, v.unit);
+    }
+    assert!(r.measurement("qt_ms").unwrap().auto_value.is_some(), "LUDB record 1 has a measurable QT");
+    let rep = analysis.representative.unwrap();
+    for kind in MarkKind::BOUNDARIES {
+        assert_eq!(r.mark(kind, MarkOn::Representative).map(|m| m.sample), rep.bounds.get(kind), "{kind}");
+    }
+    assert_eq!(r.mark(MarkKind::RPeak, MarkOn::Representative).unwrap().sample, rep.r_index);
+    assert!(r.marks.iter().all(|m| m.origin == Origin::Auto));
+
+    // An existing review is never overwritten without --force.
+    let before = std::fs::read(&path).unwrap();
+    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("CD")]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("1.review.ron") && stderr(&o).contains("--force"), "{}", stderr(&o));
+    assert_eq!(std::fs::read(&path).unwrap(), before);
+    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("CD"), Path::new("--force")]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(load(&path).unwrap().reader, "CD");
+    assert_eq!(std::fs::read(dir.path().join("1.review.ron.bak")).unwrap(), before, "old review kept as .bak");
+}
+
+#[test]
+fn review_new_out_elsewhere_records_the_relative_path() {
+    let dir = tempfile::tempdir().unwrap();
+    let rec_dir = dir.path().join("recordings");
+    let out_dir = dir.path().join("reviews");
+    std::fs::create_dir_all(&rec_dir).unwrap();
+    std::fs::create_dir_all(&out_dir).unwrap();
+    let hea = copy_ludb_1(&rec_dir);
+    let out = out_dir.join("ludb-1-ab.review.ron");
+    // Named by the record path without extension.
+    let o = run(&[Path::new("review"), Path::new("new"), &rec_dir.join("1"), Path::new("--reader"), Path::new("AB"), Path::new("--out"), &out]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r = load(&out).unwrap();
+    assert_eq!(r.recording.relative_path, "../recordings/1");
+    assert_eq!(r.recording.sha256, isoline_core::review::signal_sha256(&hea).unwrap());
+}
+
+#[test]
+fn review_new_refuses_bad_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let missing = dir.path().join("nothing.hea");
+    let o = run(&[Path::new("review"), Path::new("new"), &missing, Path::new("--reader"), Path::new("AB")]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("nothing.hea"), "{}", stderr(&o));
+    let hea = copy_ludb_1(dir.path());
+    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("  ")]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(!dir.path().join("1.review.ron").exists());
+}

@@ -1,5 +1,5 @@
-//! Beat lens and Ledger: placing and dragging marks recomputes intervals and every QTc; the Tape moves the
-//! Sheet (egui_kittest, no GPU).
+//! Beat lens and Ledger: automatic marks fill the Ledger; dragging a handle recomputes QT and every QTc; the Tape
+//! moves the Sheet (egui_kittest, no GPU).
 
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
@@ -9,77 +9,88 @@ use egui::Pos2;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
 use gui_support::{click_at, drag, harness, settle};
+use isoline::gui::state::Origin;
 use isoline::gui::IsolineApp;
 use isoline_core::beat::MarkKind;
 
-fn lens_x(h: &Harness<'static, IsolineApp>, ms: f64) -> Pos2 {
-    let app = h.state();
-    let rep = app.loaded.as_ref().unwrap().representative.as_ref().unwrap();
-    let geo = app.ui_state.lens.unwrap();
-    Pos2::new(geo.x_of_sample(rep.sample_from_ms(ms)), geo.rect.center().y)
+fn lens_point(h: &Harness<'static, IsolineApp>, sample: usize) -> Pos2 {
+    let geo = h.state().ui_state.lens.unwrap();
+    Pos2::new(geo.x_of_sample(sample as f64), geo.rect.center().y)
 }
 
-fn reviewed(h: &Harness<'static, IsolineApp>, key: &str) -> f64 {
-    h.state().ledger_rows().into_iter().find(|r| r.key == key).and_then(|r| r.reviewed).unwrap()
+fn row(h: &Harness<'static, IsolineApp>, key: &str) -> isoline::gui::ledger::LedgerRow {
+    h.state().ledger_rows().into_iter().find(|r| r.key == key).unwrap()
 }
 
-/// QT database record sel100 (250 Hz): its beat annotations give the representative beat. Places the five marks
-/// at known times from the R peak (multiples of the 4 ms sample period).
-fn with_marks() -> Harness<'static, IsolineApp> {
-    let mut h = harness(Some("qtdb/sel100.hea"));
-    assert!(h.state().loaded.as_ref().unwrap().representative.is_some(), "representative beat from annotations");
-    h.get_by_label("P onset").click();
-    settle(&mut h);
-    for ms in [-200.0, -100.0, -48.0, 48.0, 352.0] {
-        let p = lens_x(&h, ms);
-        click_at(&mut h, p);
-    }
-    assert_eq!(h.state().doc.marks.len(), 5);
-    h
+fn auto_t_end(h: &Harness<'static, IsolineApp>) -> usize {
+    h.state().loaded.as_ref().unwrap().auto_marks().t_end.expect("automatic T end")
 }
 
 #[test]
-fn placed_marks_give_intervals_in_the_ledger() {
-    let h = with_marks();
-    assert!((reviewed(&h, "pr_ms") - 152.0).abs() < 1e-9);
-    assert!((reviewed(&h, "qrs_ms") - 96.0).abs() < 1e-9);
-    assert!((reviewed(&h, "qt_ms") - 400.0).abs() < 1e-9);
-    assert!((reviewed(&h, "p_duration_ms") - 100.0).abs() < 1e-9);
-    let qt = h.state().ledger_rows().into_iter().find(|r| r.key == "qt_ms").unwrap();
-    assert_eq!(qt.origin, Some(isoline::gui::state::Origin::Placed));
+fn automatic_marks_fill_the_ledger() {
+    let h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let loaded = h.state().loaded.as_ref().unwrap();
+    let rep = loaded.representative().expect("representative beat");
+    assert!(rep.n_beats >= 3);
+    let qt = row(&h, "qt_ms");
+    let auto = qt.auto.expect("automatic QT");
+    assert!((300.0..500.0).contains(&auto), "QT {auto}");
+    assert_eq!(qt.reviewed, qt.auto);
+    assert_eq!(qt.origin, Some(Origin::Auto));
+    assert_eq!(qt.difference(), Some(0.0));
+    h.get_by_label("QT");
+    h.get_by_label("QTc (Bazett)");
 }
 
 #[test]
 fn dragging_t_end_recomputes_qt_and_every_qtc() {
-    let mut h = with_marks();
-    let rr = reviewed(&h, "rr_ms");
-    assert!(rr > 300.0 && rr < 2000.0, "RR from the annotated beats: {rr}");
-    let bazett_before = reviewed(&h, "qtc_bazett_ms");
-    let from = lens_x(&h, 352.0);
-    let to = lens_x(&h, 392.0);
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let qt_auto = row(&h, "qt_ms").auto.unwrap();
+    let t_end = auto_t_end(&h);
+    // 1000 Hz: 40 samples = 40 ms later.
+    let from = lens_point(&h, t_end);
+    let to = lens_point(&h, t_end + 40);
     drag(&mut h, from, to);
-    assert_eq!(h.state().doc.marks.get(&MarkKind::TEnd).copied(), Some(h.state().loaded.as_ref().unwrap().representative.as_ref().unwrap().sample_from_ms(392.0).round() as usize));
-    let qt = reviewed(&h, "qt_ms");
-    assert!((qt - 440.0).abs() < 1e-9, "QT after the drag: {qt}");
-    let (qt_s, rr_s) = (qt / 1000.0, rr / 1000.0);
-    let hr = 60.0 / rr_s;
+    assert_eq!(h.state().doc.marks.get(&MarkKind::TEnd).copied(), Some(t_end + 40));
+    let qt = row(&h, "qt_ms");
+    assert!((qt.reviewed.unwrap() - (qt_auto + 40.0)).abs() < 1e-6, "{qt:?}");
+    assert_eq!(qt.origin, Some(Origin::Moved));
+    assert!((qt.difference().unwrap() - 40.0).abs() < 1e-6);
+    let (qt_ms, rr_ms) = (qt.reviewed.unwrap(), row(&h, "rr_ms").reviewed.unwrap());
+    let (qt_s, rr_s, hr) = (qt_ms / 1000.0, rr_ms / 1000.0, 60_000.0 / rr_ms);
     // Sources: Bazett 1920; Fridericia 1920; Sagie et al. 1992; Hodges et al. 1983; Rautaharju et al. 2014
-    // (formulas as in references.md §3), computed here independently of the app.
+    // (references.md §3), computed here independently of the app.
     let expect = [
         ("qtc_bazett_ms", qt_s / rr_s.sqrt() * 1000.0),
         ("qtc_fridericia_ms", qt_s / rr_s.powf(1.0 / 3.0) * 1000.0),
         ("qtc_framingham_ms", (qt_s + 0.154 * (1.0 - rr_s)) * 1000.0),
-        ("qtc_hodges_ms", qt + 1.75 * (hr - 60.0)),
-        ("qtc_rautaharju_ms", qt * (120.0 + hr) / 180.0),
+        ("qtc_hodges_ms", qt_ms + 1.75 * (hr - 60.0)),
+        ("qtc_rautaharju_ms", qt_ms * (120.0 + hr) / 180.0),
     ];
     for (key, v) in expect {
-        assert!((reviewed(&h, key) - v).abs() < 1e-6, "{key}: {} vs {v}", reviewed(&h, key));
+        let r = row(&h, key);
+        assert!((r.reviewed.unwrap() - v).abs() < 1e-6, "{key}: {r:?} vs {v}");
+        assert_eq!(r.origin, Some(Origin::Moved));
     }
-    assert!(reviewed(&h, "qtc_bazett_ms") > bazett_before);
     // Undo puts T end back in one step.
     h.get_by_label("Undo").click();
     settle(&mut h);
-    assert!((reviewed(&h, "qt_ms") - 400.0).abs() < 1e-9);
+    assert!(h.state().doc.marks.is_empty());
+    assert_eq!(row(&h, "qt_ms").origin, Some(Origin::Auto));
+}
+
+#[test]
+fn reset_puts_a_moved_mark_back() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let t_end = auto_t_end(&h);
+    let from = lens_point(&h, t_end);
+    let to = lens_point(&h, t_end.saturating_sub(30));
+    drag(&mut h, from, to);
+    assert_eq!(h.state().doc.marks.get(&MarkKind::TEnd).copied(), Some(t_end - 30));
+    h.get_by_label("Reset T end").click();
+    settle(&mut h);
+    assert!(h.state().doc.marks.is_empty());
+    assert_eq!(row(&h, "qt_ms").origin, Some(Origin::Auto));
 }
 
 #[test]

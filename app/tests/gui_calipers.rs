@@ -12,9 +12,12 @@ use gui_support::{click_at, drag, harness, settle, sheet_point};
 use isoline::gui::IsolineApp;
 use isoline_core::caliper::CaliperKind;
 
-/// Opens the PTB record (1000 Hz, no beat annotations: nothing to snap to) and places a time caliper at 2 s.
+/// Opens the PTB record (1000 Hz), switches snapping off and places a time caliper at 2 s.
 fn with_time_caliper() -> Harness<'static, IsolineApp> {
     let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("Snap").click();
+    settle(&mut h);
+    assert!(!h.state().settings.view.snap);
     h.get_by_label("Time caliper").click();
     settle(&mut h);
     let p = sheet_point(&h, 2.0);
@@ -35,7 +38,10 @@ fn placing_and_dragging_a_time_caliper_reads_ms_and_bpm() {
     let mut h = with_time_caliper();
     let (t1, t2) = legs(&h);
     assert!((t1 - 2.0).abs() < 0.02, "first leg where clicked: {t1}");
-    assert!((t2 - t1 - 1.0).abs() < 1e-9, "default span 1 s without beats");
+    // A new time caliper spans the median RR of the detected beats.
+    let loaded = h.state().loaded.as_ref().unwrap();
+    let rr_s = isoline::gui::derived::median_rr_ms(&loaded.beats, 1000.0).unwrap() / 1000.0;
+    assert!((t2 - t1 - rr_s).abs() < 1e-9, "span {} vs RR {rr_s}", t2 - t1);
     // Drag the second leg to 800 ms after the first.
     let from = sheet_point(&h, t2);
     let to = Pos2::new(sheet_point(&h, t1 + 0.8).x, from.y);
@@ -54,11 +60,12 @@ fn marching_repeats_the_span() {
     settle(&mut h);
     let c = h.state().doc.calipers[0].clone();
     assert!(c.march);
+    let span = c.interval_ms().unwrap() / 1000.0;
     let legs = c.march_times(0.0, 10.0);
-    // A 1 s span from ~2 s marched over a 10 s window: legs at every whole second step.
-    assert!(legs.len() >= 9, "{legs:?}");
+    // The span marched over the 10 s window, both ways from the first leg.
+    assert!(legs.len() >= (10.0 / span) as usize, "{legs:?}");
     for w in legs.windows(2) {
-        assert!((w[1] - w[0] - 1.0).abs() < 1e-9);
+        assert!((w[1] - w[0] - span).abs() < 1e-9);
     }
     // Undo turns marching off again.
     h.get_by_label("Undo").click();
@@ -158,8 +165,13 @@ fn a_caliper_reading_goes_into_the_ledger() {
     settle(&mut h);
     h.get_by_label("as QT").click();
     settle(&mut h);
+    let ms = h.state().doc.calipers[0].interval_ms().unwrap();
     let rows = h.state().ledger_rows();
-    let qt = rows.iter().find(|r| r.key == "qt_ms").unwrap();
-    assert!((qt.reviewed.unwrap() - 1000.0).abs() < 1e-6);
-    assert_eq!(qt.origin, Some(isoline::gui::state::Origin::Placed));
+    let row = |k: &str| rows.iter().find(|r| r.key == k).unwrap().clone();
+    let qt = row("qt_ms");
+    assert!((qt.reviewed.unwrap() - ms).abs() < 1e-6);
+    assert_eq!(qt.origin, Some(isoline::gui::state::Origin::Moved));
+    // QTc follows the reviewed QT. Source: Bazett, Heart 1920;7:353-70 (QT/√RR).
+    let rr = row("rr_ms").reviewed.unwrap();
+    assert!((row("qtc_bazett_ms").reviewed.unwrap() - ms / (rr / 1000.0).sqrt()).abs() < 1e-6);
 }

@@ -130,7 +130,7 @@ fn truth_agrees_with_the_waveform() {
 
 #[test]
 fn frontal_qrs_axis_is_the_one_asked_for() {
-    for (scenario, want) in [(Scenario::Normal, 60.0), (Scenario::WideQrs, -30.0)] {
+    for (scenario, want) in [(Scenario::Normal, 50.0), (Scenario::WideQrs, -30.0)] {
         let s = make(&scenario.spec());
         let (i, avf) = (lead(&s, L::I), lead(&s, L::AVF));
         let (mut area_i, mut area_f) = (0.0, 0.0);
@@ -330,21 +330,4 @@ fn holter_day_is_fast_and_frugal() {
     assert!(bytes <= n * 3 * 4 * 3 / 2, "{bytes} bytes");
     eprintln!("24-h holter: {} beats in {:.2} s", s.truth.beats.len(), took.as_secs_f64());
     assert!(s.truth.ectopic_beats > 100);
-}
-
-#[test]
-#[ignore = "scratch timing"]
-fn scratch_timing() {
-    for (k, spec) in [
-        Scenario::Holter.spec(),
-        SynthSpec { noise: NoiseSpec::NONE, ..Scenario::Holter.spec() },
-        SynthSpec { noise: NoiseSpec::NONE, rate_hz: 1000.0, seconds: 21600.0, ..Scenario::Holter.spec() },
-    ]
-    .iter()
-    .enumerate()
-    {
-        let start = std::time::Instant::now();
-        let _ = make(spec);
-        eprintln!("{k}: {:.2} s", start.elapsed().as_secs_f64());
-    }
 }

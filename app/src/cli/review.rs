@@ -5,6 +5,8 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::{Context, bail};
+use isoline_core::analysis::analyze;
+use isoline_core::filter::FilterSettings;
 use isoline_core::io;
 use isoline_core::recording::Recording;
 use isoline_core::review::{REVIEW_SUFFIX, RecordingIdentity, Review};
@@ -75,8 +77,10 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-/// Puts the measurement engine's automatic values and representative-beat marks into the review.
+/// Runs the measurement engine (default filters) and puts its automatic values and representative-beat marks
+/// into the review.
 fn fill_automatic(review: &mut Review, recording: &Recording) -> anyhow::Result<()> {
-    let _ = (review, recording);
-    Err(anyhow::anyhow!("the measurement engine is not merged yet")).context("isoline review new")
+    let analysis = analyze(recording, &FilterSettings::default());
+    review.put_analysis(&analysis).context("filling the new review")?;
+    Ok(())
 }

@@ -1,12 +1,11 @@
 //! `isoline synth --scenario NAME --out FILE [--seconds N] [--leads N] [--rate HZ] [--seed N] [--truth JSON]`:
 //! writes a demo recording from the dynamical ECG model (McSharry et al. 2003) and, if asked, its truth.
 
-use std::io::Write;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, bail};
-use isoline_core::Recording;
+use isoline_core::io;
 use isoline_core::synth::{self, LeadSet, Scenario};
 
 /// Arguments of `isoline synth`.
@@ -33,7 +32,7 @@ pub struct Args {
     /// Mains frequency of the hum in noisy scenarios, Hz (50 or 60).
     #[arg(long)]
     pub mains: Option<f64>,
-    /// Patient code written into the file (invented; default none).
+    /// Patient code written into the file (a made-up code for demos; the file is de-identified without it).
     #[arg(long)]
     pub patient: Option<String>,
     /// Recording description written into the file (default: scenario and seed).
@@ -82,8 +81,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         rec.meta.recording_info = Some(l.clone());
     }
     match ext.as_deref() {
-        Some("csv") => write_csv(&args.out, &rec)?,
-        _ => write_edf(&args.out, &rec)?,
+        Some("csv") => io::csv::write(&args.out, &rec)?,
+        // The file names a patient only when a (made-up) code was given on purpose.
+        _ => io::edf::write(&args.out, &rec, &io::edf::EdfWriteOptions { identify: args.patient.is_some() })?,
     }
     if let Some(t) = &args.truth {
         let json = demo.truth.to_json().context("serialising the truth")?;
@@ -99,26 +99,4 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         isoline_core::CAUTION
     );
     Ok(ExitCode::SUCCESS)
-}
-
-fn write_edf(path: &Path, _rec: &Recording) -> anyhow::Result<()> {
-    bail!("{}: EDF writing is not available yet; write .csv", path.display())
-}
-
-/// CSV as `isoline convert` writes it: `time_s`, then one column per lead in mV with 4 decimals.
-fn write_csv(path: &Path, rec: &Recording) -> anyhow::Result<()> {
-    let file = std::fs::File::create(path).with_context(|| format!("{}: cannot create", path.display()))?;
-    let mut w = std::io::BufWriter::with_capacity(1 << 20, file);
-    let io = |e| anyhow::Error::from(e).context(format!("{}: write failed", path.display()));
-    let names: Vec<String> = rec.leads.iter().map(|l| l.name.to_string()).collect();
-    writeln!(w, "time_s,{}", names.join(",")).map_err(io)?;
-    let fs = rec.sample_rate.hz();
-    for i in 0..rec.len() {
-        write!(w, "{:.4}", i as f64 / fs).map_err(io)?;
-        for l in &rec.leads {
-            write!(w, ",{:.4}", f64::from(l.samples[i]) / 1000.0).map_err(io)?;
-        }
-        writeln!(w).map_err(io)?;
-    }
-    w.flush().map_err(io)
 }

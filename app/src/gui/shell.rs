@@ -55,6 +55,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         ui.colored_label(ui.visuals().warn_fg_color, CAUTION);
         ui.label(status_text(app));
     });
+    let ledger_rows = app.cached_ledger_rows();
     if let Some(loaded) = &app.loaded {
         egui::Panel::bottom("tape").resizable(false).show(ui, |ui| {
             out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s, &mut app.ui_state.tape));
@@ -67,8 +68,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
                 out.extend(calipers_ui::caliper_list_ui(ui, &app.doc, app.ui_state.selected));
                 ui.separator();
                 ui.strong("Ledger");
-                let rows = ledger::rows(loaded, &app.doc);
-                out.extend(ledger::ledger_ui(ui, &rows, &app.doc));
+                out.extend(ledger::ledger_ui(ui, &ledger_rows, &app.doc));
             });
         });
     }
@@ -115,14 +115,14 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
         start_s: app.start_s,
         seconds: app.window_s,
     };
-    let page = spec.page(&loaded.recording);
+    let page = spec.page(loaded.shown(view.filters));
     let size = Vec2::new(page.width_mm as f32, page.height_mm as f32) * ppmm;
     let name = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
     let header = format!(
         "{name}   {}   {}   filters: {}   {} – {}",
         view.paper.describe(),
         view.layout,
-        filter_text(view.filters),
+        filter_text(loaded, view.filters),
         tape::clock(app.start_s),
         tape::clock(app.start_s + app.window_s)
     );
@@ -137,8 +137,8 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
 }
 
 /// What the filter setting means for the signal on screen.
-fn filter_text(on: bool) -> &'static str {
-    if on { "requested (filter module not yet available: raw signal shown)" } else { "off (raw signal)" }
+fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
+    if on { loaded.analysis.filtered.description.clone() } else { "off (signal as recorded)".to_string() }
 }
 
 fn status_text(app: &IsolineApp) -> String {
@@ -158,7 +158,7 @@ fn status_text(app: &IsolineApp) -> String {
         rec.sample_rate.hz(),
         tape::clock(rec.duration_s()),
         l.beats_source,
-        filter_text(app.settings.view.filters),
+        filter_text(l, app.settings.view.filters),
         app.ui_state.last_frame_ms
     )
 }

@@ -98,7 +98,7 @@ impl Default for SynthSpec {
             p_ms: 100.0,
             qrs_ms: 90.0,
             qt_ms: 380.0,
-            axis_deg: 60.0,
+            axis_deg: 50.0,
             p_axis_deg: 50.0,
             t_axis_deg: 45.0,
             r_amplitude_uv: 1000.0,
@@ -222,7 +222,7 @@ pub fn generate(spec: &SynthSpec) -> Result<Synthetic, SynthError> {
         start: None,
         meta: Meta {
             recording_info: Some(format!("Isoline synthetic demo, scenario {}, seed {}", spec.scenario, spec.seed)),
-            device: Some("isoline synth (McSharry et al. 2003 model)".into()),
+            device: Some("isoline-synth".into()),
             ..Meta::default()
         },
         annotations: Vec::new(),
