@@ -171,3 +171,27 @@ fn time_caliper_legs_fall_on_expected_columns() -> Res {
     }
     Ok(())
 }
+
+#[test]
+fn mark_is_drawn_on_every_row_showing_its_time() -> Res {
+    // On a 3x4+1 page the time 3.0 s lies in the second column of the three lead rows and in the rhythm row,
+    // 3.0 s x 25 mm/s = 75 mm right of where the traces start.
+    let rec = ptb()?;
+    let spec = PageSpec::default();
+    let input =
+        RenderInput { marks: vec![(isoline_core::MarkKind::JPoint, 3.0)], ..RenderInput::new(&rec, spec.clone(), DPI) };
+    let (_, img) = render_png(&input)?;
+    let page = spec.page(&rec);
+    let green = |p: [u8; 3]| p[1] > 100 && p[0] < 90 && p[2] < 140;
+    let trace_x = page.rows[0].cells[0].x_mm;
+    let expect = (trace_x + 75.0) * PX_MM;
+    for row in &page.rows {
+        let (y0, y1) = ((row.top_mm * PX_MM) as usize, ((row.top_mm + row.height_mm) * PX_MM) as usize);
+        let xs: Vec<usize> =
+            (0..img.width).filter(|&x| (y0..y1).filter(|&y| green(img.px(x, y))).count() > 60).collect();
+        let lines: Vec<f64> = runs(&xs, 1).into_iter().map(centre).collect();
+        assert_eq!(lines.len(), 1, "row at {} mm: mark lines {lines:?}", row.top_mm);
+        assert!((lines[0] - expect).abs() <= 1.5, "mark at {} px, expected {expect:.2}", lines[0]);
+    }
+    Ok(())
+}
