@@ -10,6 +10,7 @@
 //! assert!((Paper::STANDARD.seconds_from_mm(5.0) - 0.2).abs() < 1e-12);
 //! ```
 
+pub mod analysis;
 pub mod beat;
 pub mod caliper;
 pub mod delineate;

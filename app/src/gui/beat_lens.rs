@@ -6,7 +6,6 @@ use egui::{Align2, Color32, FontId, Pos2, Rect, Sense, Shape, Stroke, Vec2};
 use isoline_core::beat::MarkKind;
 
 use super::command::Command;
-use super::derived::RepresentativeBeat;
 use super::sheet::color;
 use super::state::{Document, Loaded, UiState, ViewSettings};
 
@@ -20,6 +19,10 @@ pub struct LensGeometry {
     pub rect: Rect,
     /// Number of samples in the beat.
     pub len: usize,
+    /// Index of the R peak in the beat.
+    pub r_index: usize,
+    /// Sampling rate of the beat, Hz.
+    pub rate_hz: f64,
 }
 
 impl LensGeometry {
@@ -27,6 +30,24 @@ impl LensGeometry {
     #[must_use]
     pub fn x_of_sample(&self, k: f64) -> f32 {
         self.rect.left() + (k / (self.len.max(2) - 1) as f64) as f32 * self.rect.width()
+    }
+
+    /// Beat sample (fractional) at a time relative to the R peak, ms.
+    #[must_use]
+    pub fn sample_from_ms(&self, ms: f64) -> f64 {
+        self.r_index as f64 + ms * self.rate_hz / 1000.0
+    }
+
+    /// Time relative to the R peak of beat sample `k`, ms.
+    #[must_use]
+    pub fn ms_from_sample(&self, k: f64) -> f64 {
+        (k - self.r_index as f64) * 1000.0 / self.rate_hz
+    }
+
+    /// Screen x of a time relative to the R peak, ms.
+    #[must_use]
+    pub fn x_of_ms(&self, ms: f64) -> f32 {
+        self.x_of_sample(self.sample_from_ms(ms))
     }
 
     /// Beat sample nearest to screen x, clamped to the beat.
@@ -46,16 +67,17 @@ pub fn beat_lens_ui(
     state: &mut UiState,
 ) -> Vec<Command> {
     let mut out = Vec::new();
-    let Some(rep) = &loaded.representative else {
-        ui.weak("Beat lens: no representative beat (needs at least 3 dominant beats).");
+    let Some(rep) = loaded.representative() else {
+        ui.weak("Beat lens: no representative beat (needs at least 3 detected beats).");
         state.lens = None;
         return out;
     };
-    let marks = doc.effective_marks(&loaded.auto_marks);
+    let auto = loaded.auto_marks();
+    let marks = doc.effective_marks(&auto);
     ui.horizontal_wrapped(|ui| {
-        ui.label(format!("Beat lens ({} beats)", rep.beats_used));
+        ui.label(format!("Beat lens ({} beats)", rep.n_beats));
         let current = state.lens_lead.and_then(|i| loaded.recording.leads.get(i)).map_or("all leads".to_string(), |l| l.name.to_string());
-        egui::ComboBox::from_id_salt("lens_lead").selected_text(current).show_ui(ui, |ui| {
+        egui::ComboBox::new("lens_lead", "shown").selected_text(current).show_ui(ui, |ui| {
             ui.selectable_value(&mut state.lens_lead, None, "all leads");
             for (i, l) in loaded.recording.leads.iter().enumerate() {
                 ui.selectable_value(&mut state.lens_lead, Some(i), l.name.to_string());
@@ -77,9 +99,10 @@ pub fn beat_lens_ui(
     let painter = ui.painter_at(rect);
     painter.rect_filled(rect, 2.0, color(pal.background));
     let plot = rect.shrink2(Vec2::new(6.0, 18.0));
-    let geo = LensGeometry { rect: plot, len: rep.len() };
+    let len = rep.leads.first().map_or(0, Vec::len);
+    let geo = LensGeometry { rect: plot, len, r_index: rep.r_index, rate_hz: rep.sample_rate.hz() };
     state.lens = Some(geo);
-    draw_grid(&painter, rep, &geo, &pal);
+    draw_grid(&painter, &geo, &pal);
     let shown: Vec<usize> = match state.lens_lead {
         Some(i) if i < rep.leads.len() => vec![i],
         _ => (0..rep.leads.len()).collect(),
@@ -99,7 +122,7 @@ pub fn beat_lens_ui(
     for (n, kind) in MarkKind::BOUNDARIES.into_iter().enumerate() {
         let Some(s) = marks.get(kind) else { continue };
         let x = geo.x_of_sample(s as f64);
-        let origin = doc.mark_origin(kind, &loaded.auto_marks);
+        let origin = doc.mark_origin(kind, &auto);
         let col = if origin == Some(super::state::Origin::Auto) { color(pal.mark) } else { color(pal.caliper) };
         let w = if state.lens_drag == Some(kind) { 2.5 } else { 1.5 };
         painter.line_segment([Pos2::new(x, rect.top() + 14.0), Pos2::new(x, rect.bottom())], Stroke::new(w, col));
@@ -107,7 +130,7 @@ pub fn beat_lens_ui(
         painter.text(Pos2::new(x, y), Align2::CENTER_TOP, short(kind), font.clone(), col);
     }
     if response.drag_started()
-        && let Some(p) = response.interact_pointer_pos()
+        && let Some(p) = ui.input(|i| i.pointer.press_origin()).or(response.interact_pointer_pos())
     {
         state.lens_drag = MarkKind::BOUNDARIES
             .into_iter()
@@ -131,7 +154,7 @@ pub fn beat_lens_ui(
         && let (Some(kind), Some(p)) = (state.lens_active, response.interact_pointer_pos())
     {
         out.push(Command::MoveMark(kind, geo.sample_of_x(p.x)));
-        state.lens_active = next_missing(&doc.effective_marks(&loaded.auto_marks), kind);
+        state.lens_active = next_missing(&marks, kind);
     }
     ui.horizontal_wrapped(|ui| {
         for kind in MarkKind::BOUNDARIES {
@@ -159,13 +182,13 @@ fn short(kind: MarkKind) -> &'static str {
     }
 }
 
-fn draw_grid(painter: &egui::Painter, rep: &RepresentativeBeat, geo: &LensGeometry, pal: &isoline_core::paper::Palette) {
+fn draw_grid(painter: &egui::Painter, geo: &LensGeometry, pal: &isoline_core::paper::Palette) {
     // A vertical line every 40 ms (1 mm at 25 mm/s), stronger every 200 ms, aligned on the R peak.
-    let ms0 = rep.ms_from_sample(0.0);
-    let ms1 = rep.ms_from_sample((rep.len().max(1) - 1) as f64);
+    let ms0 = geo.ms_from_sample(0.0);
+    let ms1 = geo.ms_from_sample((geo.len.max(1) - 1) as f64);
     let mut ms = (ms0 / 40.0).ceil() * 40.0;
     while ms <= ms1 {
-        let x = geo.x_of_sample(rep.sample_from_ms(ms));
+        let x = geo.x_of_ms(ms);
         let major = (ms / 200.0).round() * 200.0 == ms;
         let c: Color32 = color(if major { pal.major } else { pal.minor });
         painter.line_segment([Pos2::new(x, geo.rect.top()), Pos2::new(x, geo.rect.bottom())], Stroke::new(if major { 1.0 } else { 0.5 }, c));

@@ -11,24 +11,30 @@ use super::state::{Document, Loaded, Part, Tool, UiState, ViewSettings};
 /// Grab distance for legs and levels, points.
 const GRAB_POINTS: f32 = 6.0;
 
+/// What the caliper layer reads: the Sheet as drawn and the state it shows.
+pub struct SheetContext<'a> {
+    /// Geometry of the Sheet this frame.
+    pub geo: &'a SheetGeometry,
+    /// The open recording.
+    pub loaded: &'a Loaded,
+    /// The review.
+    pub doc: &'a Document,
+    /// View settings.
+    pub view: &'a ViewSettings,
+    /// Tool for clicks.
+    pub tool: Tool,
+}
+
 /// Draws every caliper and handles the pointer on the Sheet. `response` is the Sheet's response.
-pub fn calipers_ui(
-    ui: &egui::Ui,
-    response: &Response,
-    geo: &SheetGeometry,
-    loaded: &Loaded,
-    doc: &Document,
-    view: &ViewSettings,
-    tool: Tool,
-    state: &mut UiState,
-) -> Vec<Command> {
+pub fn calipers_ui(ui: &egui::Ui, response: &Response, cx: &SheetContext<'_>, state: &mut UiState) -> Vec<Command> {
+    let SheetContext { geo, loaded, doc, view, tool } = *cx;
     let mut out = Vec::new();
     let rate = loaded.recording.sample_rate.hz();
     // Cursor readout for the status bar.
     state.cursor = response.hover_pos().and_then(|p| time_uv_at(geo, loaded, p).map(|(t, uv, _, _)| (t, uv)));
 
     if response.drag_started()
-        && let Some(p) = response.interact_pointer_pos()
+        && let Some(p) = ui.input(|i| i.pointer.press_origin()).or(response.interact_pointer_pos())
     {
         state.drag = hit(geo, loaded, doc, p).filter(|h| doc.caliper(h.0).is_some_and(|c| !c.locked));
         if let Some((id, part, _, _)) = state.drag {

@@ -1,7 +1,5 @@
-//! Data derived from the open recording for the views: the Tape envelope, beats, the representative beat.
-//!
-//! Beats come from the recording's own beat annotations (WFDB `.atr`) until the core detector is wired in; a
-//! recording without them shows no beats, never invented ones.
+//! Data derived from the open recording for the views: the Tape envelope, the heart-rate trend, and beats from
+//! the recording's own annotations (used only when the detector finds none).
 
 use isoline_core::beat::{Beat, BeatKind};
 use isoline_core::recording::{Annotation, Recording};
@@ -115,80 +113,6 @@ fn median(xs: &mut [f64]) -> Option<f64> {
     xs.sort_by(f64::total_cmp);
     let n = xs.len();
     Some(if n % 2 == 1 { xs[n / 2] } else { (xs[n / 2 - 1] + xs[n / 2]) / 2.0 })
-}
-
-/// The representative (median) beat of every lead, aligned on the R peak.
-#[derive(Debug, Clone, PartialEq)]
-pub struct RepresentativeBeat {
-    /// Samples before the R peak; the R peak is at index `pre` of every lead's beat.
-    pub pre: usize,
-    /// Per lead (same order as `Recording::leads`), the median beat in µV.
-    pub leads: Vec<Vec<f32>>,
-    /// Number of dominant beats that went into the median.
-    pub beats_used: usize,
-    /// Sampling rate, Hz.
-    pub rate_hz: f64,
-}
-
-impl RepresentativeBeat {
-    /// Median of up to `max_beats` dominant beats over a window from 300 ms before to 500 ms after each R peak,
-    /// sample by sample. `None` with fewer than 3 usable beats.
-    #[must_use]
-    pub fn median_of(recording: &Recording, beats: &[Beat], max_beats: usize) -> Option<Self> {
-        let fs = recording.sample_rate.hz();
-        let pre = (0.3 * fs).round() as usize;
-        let post = (0.5 * fs).round() as usize;
-        let len = recording.len();
-        let rs: Vec<usize> = beats
-            .iter()
-            .filter(|b| b.kind == BeatKind::Dominant && b.r >= pre && b.r + post < len)
-            .map(|b| b.r)
-            .take(max_beats)
-            .collect();
-        if rs.len() < 3 {
-            return None;
-        }
-        let mut column = vec![0.0_f64; rs.len()];
-        let leads = recording
-            .leads
-            .iter()
-            .map(|lead| {
-                (0..pre + post)
-                    .map(|k| {
-                        for (c, &r) in column.iter_mut().zip(&rs) {
-                            *c = f64::from(lead.samples[r - pre + k]);
-                        }
-                        median(&mut column).unwrap_or(0.0) as f32
-                    })
-                    .collect()
-            })
-            .collect();
-        Some(Self { pre, leads, beats_used: rs.len(), rate_hz: fs })
-    }
-
-    /// Length of each lead's beat, samples.
-    #[must_use]
-    pub fn len(&self) -> usize {
-        self.leads.first().map_or(0, Vec::len)
-    }
-
-    /// True when there are no samples.
-    #[must_use]
-    pub fn is_empty(&self) -> bool {
-        self.len() == 0
-    }
-
-    /// Time of beat sample `k` relative to the R peak, ms.
-    #[must_use]
-    pub fn ms_from_sample(&self, k: f64) -> f64 {
-        (k - self.pre as f64) * 1000.0 / self.rate_hz
-    }
-
-    /// Beat sample (fractional) at a time relative to the R peak, ms.
-    #[must_use]
-    pub fn sample_from_ms(&self, ms: f64) -> f64 {
-        ms * self.rate_hz / 1000.0 + self.pre as f64
-    }
 }
 
 #[cfg(test)]

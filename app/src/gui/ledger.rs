@@ -1,11 +1,11 @@
 //! The Ledger: every measurement with its automatic value, reviewed value, difference, origin, unit and range
-//! note. Reviewed intervals follow the marks on the Beat lens; a typed value or a caliper reading overrides them.
+//! note. Automatic values come from `core::measure` on the automatic marks; reviewed values from the same
+//! measurement on the review's marks, with values the reader typed or took from a caliper taking precedence
+//! (QTc then follows the reviewed QT and RR through `measure::qtc_checked`).
 
-use isoline_core::beat::Boundaries;
+use isoline_core::measure::{self, ranges, MeasuredValue, Sex, Template};
 
 use super::command::Command;
-use super::derived::median_rr_ms;
-use super::intervals::{Intervals, Qtc};
 use super::state::{Document, Loaded, Origin};
 
 /// One Ledger row.
@@ -14,7 +14,7 @@ pub struct LedgerRow {
     /// Stable key (`qt_ms`, `qtc_bazett_ms`, …), as in `measure --format json`.
     pub key: &'static str,
     /// Label shown to the reader.
-    pub label: &'static str,
+    pub label: String,
     /// Unit.
     pub unit: &'static str,
     /// Value computed by Isoline.
@@ -39,79 +39,90 @@ impl LedgerRow {
 pub const CALIPER_KEYS: [(&str, &str); 5] =
     [("rr_ms", "RR"), ("p_duration_ms", "P duration"), ("pr_ms", "PR"), ("qrs_ms", "QRS"), ("qt_ms", "QT")];
 
-/// Computes the Ledger rows from the automatic marks, the review's marks and reviewed values.
+const QTC_KEYS: [(&str, &str); 5] = [
+    ("qtc_bazett_ms", "Bazett"),
+    ("qtc_fridericia_ms", "Fridericia"),
+    ("qtc_framingham_ms", "Framingham"),
+    ("qtc_hodges_ms", "Hodges"),
+    ("qtc_rautaharju_ms", "Rautaharju"),
+];
+
+/// Computes the Ledger rows from the automatic measurements, the review's marks and reviewed values.
 #[must_use]
 pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
-    let fs = loaded.representative.as_ref().map_or(loaded.recording.sample_rate.hz(), |r| r.rate_hz);
-    let auto_iv = Intervals::from_marks(&loaded.auto_marks, fs);
-    let rev_marks: Boundaries = doc.effective_marks(&loaded.auto_marks);
-    let rev_iv = Intervals::from_marks(&rev_marks, fs);
-    let auto_rr = median_rr_ms(&loaded.beats, loaded.recording.sample_rate.hz());
-    let pick = |key: &str, computed: Option<f64>| doc.reviewed.get(key).copied().or(computed);
-    let rr = pick("rr_ms", auto_rr);
-    let qt = pick("qt_ms", rev_iv.qt_ms);
-    let female = loaded.recording.meta.sex.as_deref().is_some_and(|s| s.trim().to_ascii_lowercase().starts_with('f'));
-    let auto_qtc = auto_iv.qt_ms.zip(auto_rr).and_then(|(q, r)| Qtc::new(q, r));
-    let rev_qtc = qt.zip(rr).and_then(|(q, r)| Qtc::new(q, r));
-    let mut out = vec![
-        row("heart_rate_bpm", "Heart rate", "bpm", auto_rr.map(|r| 60_000.0 / r), rr.map(|r| 60_000.0 / r)),
-        row("rr_ms", "RR", "ms", auto_rr, rr),
-        row("p_duration_ms", "P duration", "ms", auto_iv.p_ms, pick("p_duration_ms", rev_iv.p_ms)),
-        row("pr_ms", "PR", "ms", auto_iv.pr_ms, pick("pr_ms", rev_iv.pr_ms)),
-        row("qrs_ms", "QRS", "ms", auto_iv.qrs_ms, pick("qrs_ms", rev_iv.qrs_ms)),
-        row("qt_ms", "QT", "ms", auto_iv.qt_ms, qt),
-    ];
-    let qtc_rows: [(&'static str, &'static str, fn(&Qtc) -> f64); 5] = [
-        ("qtc_bazett_ms", "QTc Bazett", |q| q.bazett),
-        ("qtc_fridericia_ms", "QTc Fridericia", |q| q.fridericia),
-        ("qtc_framingham_ms", "QTc Framingham", |q| q.framingham),
-        ("qtc_hodges_ms", "QTc Hodges", |q| q.hodges),
-        ("qtc_rautaharju_ms", "QTc Rautaharju", |q| q.rautaharju),
-    ];
-    for (key, label, f) in qtc_rows {
-        out.push(row(key, label, "ms", auto_qtc.as_ref().map(f), rev_qtc.as_ref().map(f)));
-    }
-    for r in &mut out {
-        r.note = r.reviewed.and_then(|v| range_note(r.key, v, female));
-    }
-    out
+    let an = &loaded.analysis;
+    let auto = an.measurements.values();
+    let mut rev = match loaded.representative() {
+        Some(rep) if !doc.marks.is_empty() => {
+            let bounds = doc.effective_marks(&rep.bounds);
+            let t = Template { leads: &rep.leads, sample_rate: rep.sample_rate, bounds };
+            measure::measure(&an.filtered.recording, &an.beats, Some(&t)).values()
+        }
+        _ => auto.clone(),
+    };
+    apply_overrides(&mut rev, doc, an.measurements.sex);
+    auto.iter()
+        .zip(&rev)
+        // ST at J is in the review and exports; the Ledger shows J+60 ms to stay short.
+        .filter(|(a, _)| a.key != "st_j_uv")
+        .map(|(a, r)| LedgerRow {
+            key: a.key,
+            label: a.label.clone(),
+            unit: a.unit,
+            auto: a.value,
+            reviewed: r.value,
+            origin: origin(a.value, r.value),
+            note: r.note.as_ref().map(|n| n.text.clone()),
+        })
+        .collect()
 }
 
-fn row(key: &'static str, label: &'static str, unit: &'static str, auto: Option<f64>, reviewed: Option<f64>) -> LedgerRow {
-    let origin = match (auto, reviewed) {
+/// Puts typed and caliper values in place and recomputes what depends on them (rate from RR, QTc from QT and RR).
+fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
+    if doc.reviewed.is_empty() {
+        return;
+    }
+    for v in rev.iter_mut().filter(|v| v.lead.is_none()) {
+        if let Some(&x) = doc.reviewed.get(v.key) {
+            v.value = Some(x);
+            v.note = match v.key {
+                "pr_ms" => ranges::pr(x),
+                "qrs_ms" => ranges::qrs(x),
+                _ => None,
+            };
+        }
+    }
+    let get = |rev: &[MeasuredValue], key: &str| rev.iter().find(|v| v.key == key).and_then(|v| v.value);
+    let (qt, rr) = (get(rev, "qt_ms"), get(rev, "rr_ms"));
+    if doc.reviewed.contains_key("rr_ms")
+        && let Some(v) = rev.iter_mut().find(|v| v.key == "heart_rate_bpm")
+    {
+        // Source: references.md §10 (HR = 60000 / RR in ms).
+        v.value = rr.filter(|&r| r > 0.0).map(|r| 60_000.0 / r);
+        v.note = v.value.and_then(ranges::heart_rate);
+    }
+    if doc.reviewed.contains_key("qt_ms") || doc.reviewed.contains_key("rr_ms") {
+        let q = measure::qtc_checked(qt, rr);
+        for (key, name) in QTC_KEYS {
+            if let Some(v) = rev.iter_mut().find(|v| v.key == key) {
+                v.value = q.map(|q| match key {
+                    "qtc_bazett_ms" => q.bazett,
+                    "qtc_fridericia_ms" => q.fridericia,
+                    "qtc_framingham_ms" => q.framingham,
+                    "qtc_hodges_ms" => q.hodges,
+                    _ => q.rautaharju,
+                });
+                v.note = v.value.and_then(|x| ranges::qtc(key, name, x, sex));
+            }
+        }
+    }
+}
+
+fn origin(auto: Option<f64>, reviewed: Option<f64>) -> Option<Origin> {
+    match (auto, reviewed) {
         (Some(a), Some(r)) if (a - r).abs() < 1e-9 => Some(Origin::Auto),
         (Some(_), Some(_)) => Some(Origin::Moved),
         (None, Some(_)) => Some(Origin::Placed),
-        _ => None,
-    };
-    LedgerRow { key, label, unit, auto, reviewed, origin, note: None }
-}
-
-/// A range note for a value outside the usual range, naming its source.
-#[must_use]
-pub fn range_note(key: &str, v: f64, female: bool) -> Option<String> {
-    match key {
-        // Source: references.md §4, resting sinus rate 60–100 bpm (textbook).
-        "heart_rate_bpm" if v < 60.0 => Some(format!("{v:.0} bpm: below usual 60–100 bpm (textbook range)")),
-        "heart_rate_bpm" if v > 100.0 => Some(format!("{v:.0} bpm: above usual 60–100 bpm (textbook range)")),
-        // Source: references.md §4, PR 120–200 ms (textbook).
-        "pr_ms" if v > 200.0 => Some(format!("PR {v:.0} ms: above usual upper limit (200 ms, textbook range)")),
-        "pr_ms" if v < 120.0 => Some(format!("PR {v:.0} ms: below usual lower limit (120 ms, textbook range)")),
-        // Source: Surawicz et al., J Am Coll Cardiol 2009;53:976-81 (QRS > 110 ms abnormal in adults).
-        "qrs_ms" if v > 110.0 => Some(format!("QRS {v:.0} ms: above 110 ms (Surawicz et al. 2009)")),
-        k if k.starts_with("qtc_") => {
-            // Source: Johnson & Ackerman, Br J Sports Med 2009 (> 500 ms); Rautaharju et al., J Am Coll Cardiol
-            // 2009;53:982-91 (≥ 450 ms men, ≥ 460 ms women) — from memory (references.md §4).
-            let limit = if female { 460.0 } else { 450.0 };
-            let who = if female { "women" } else { "men" };
-            if v > 500.0 {
-                Some(format!("QTc {v:.0} ms: above 500 ms (Johnson & Ackerman 2009)"))
-            } else if v >= limit {
-                Some(format!("QTc {v:.0} ms: at or above usual upper limit ({limit:.0} ms, {who}; Rautaharju et al. 2009)"))
-            } else {
-                None
-            }
-        }
         _ => None,
     }
 }
@@ -126,7 +137,7 @@ pub fn ledger_ui(ui: &mut egui::Ui, rows: &[LedgerRow], doc: &Document) -> Vec<C
         }
         ui.end_row();
         for r in rows {
-            ui.label(r.label);
+            ui.label(&r.label);
             ui.label(fmt(r.auto));
             ui.horizontal(|ui| {
                 ui.label(fmt(r.reviewed));
@@ -144,8 +155,8 @@ pub fn ledger_ui(ui: &mut egui::Ui, rows: &[LedgerRow], doc: &Document) -> Vec<C
             ui.end_row();
         }
     });
-    if rows.iter().all(|r| r.auto.is_none()) {
-        ui.weak("Automatic values appear once the measurement engine is wired in; place marks on the Beat lens or take caliper readings.");
+    if rows.is_empty() {
+        ui.weak("No measurements.");
     }
     out
 }
@@ -155,11 +166,10 @@ mod tests {
     use super::*;
 
     #[test]
-    fn range_notes_name_their_source() {
-        assert!(range_note("qtc_bazett_ms", 455.0, false).is_some_and(|n| n.contains("Rautaharju")));
-        assert!(range_note("qtc_bazett_ms", 455.0, true).is_none());
-        assert!(range_note("qtc_hodges_ms", 510.0, true).is_some_and(|n| n.contains("Johnson")));
-        assert!(range_note("qrs_ms", 124.0, false).is_some_and(|n| n.contains("Surawicz")));
-        assert!(range_note("pr_ms", 160.0, false).is_none());
+    fn origin_follows_the_vocabulary() {
+        assert_eq!(origin(Some(400.0), Some(400.0)), Some(Origin::Auto));
+        assert_eq!(origin(Some(400.0), Some(420.0)), Some(Origin::Moved));
+        assert_eq!(origin(None, Some(420.0)), Some(Origin::Placed));
+        assert_eq!(origin(Some(400.0), None), None);
     }
 }

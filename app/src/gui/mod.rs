@@ -9,13 +9,13 @@ use std::sync::Arc;
 
 use anyhow::Context as _;
 use isoline_core::caliper::CaliperKind;
+use isoline_core::filter::FilterSettings;
 use isoline_core::io::{self, OpenOptions};
 
 pub mod beat_lens;
 pub mod calipers_ui;
 pub mod command;
 pub mod derived;
-pub mod intervals;
 pub mod ledger;
 pub mod settings;
 mod shell;
@@ -47,6 +47,8 @@ pub struct IsolineApp {
     pub window_s: f64,
     /// A file dialog was asked for (handled by the eframe shell, never in tests).
     pub wants_dialog: bool,
+    /// Ledger rows as of the last change (derived data, dropped whenever a command runs).
+    ledger_cache: Option<Vec<ledger::LedgerRow>>,
 }
 
 impl IsolineApp {
@@ -70,6 +72,7 @@ impl IsolineApp {
             start_s: 0.0,
             window_s: 10.0,
             wants_dialog: false,
+            ledger_cache: None,
         };
         if let Some(f) = file {
             app.run_cmd(Command::Open(f));
@@ -96,8 +99,17 @@ impl IsolineApp {
         self.loaded.as_ref().map(|l| ledger::rows(l, &self.doc)).unwrap_or_default()
     }
 
+    /// The Ledger rows, computed once per change.
+    pub fn cached_ledger_rows(&mut self) -> Vec<ledger::LedgerRow> {
+        if self.ledger_cache.is_none() {
+            self.ledger_cache = Some(self.ledger_rows());
+        }
+        self.ledger_cache.clone().unwrap_or_default()
+    }
+
     /// Applies one command.
     pub fn run_cmd(&mut self, cmd: Command) {
+        self.ledger_cache = None;
         if cmd.edits_document() {
             let before = self.doc.clone();
             if self.apply_edit(&cmd) && self.doc != before {
@@ -234,7 +246,8 @@ impl IsolineApp {
     }
 }
 
-/// Reads a recording and derives what the views need.
+/// Reads a recording and derives what the views need: filters, beats, representative beat and automatic
+/// measurements (`core::analysis`), and the Tape envelope.
 ///
 /// # Errors
 /// The reader's error, naming the file and the problem.
@@ -244,25 +257,29 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
     if rec.leads.is_empty() || rec.is_empty() {
         anyhow::bail!("the recording has no samples");
     }
+    let analysis = isoline_core::analysis::analyze(&rec, &FilterSettings::default());
     let order = isoline_core::paper::ordered_leads(&rec, isoline_core::paper::LeadOrder::Standard);
     let tape_lead = rec
         .lead_index(&isoline_core::LeadName::Standard(isoline_core::StandardLead::II))
         .or_else(|| order.first().map(|o| o.0))
         .unwrap_or(0);
-    let tape = derived::TapeEnvelope::new(&rec, tape_lead);
-    let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
-    let beats_source = if beats.is_empty() { "no beats".to_string() } else { format!("{} beats from annotations", beats.len()) };
-    let representative = derived::RepresentativeBeat::median_of(&rec, &beats, 60);
+    let tape = derived::TapeEnvelope::new(&analysis.filtered.recording, tape_lead);
+    let (beats, beats_source) = if analysis.beats.is_empty() {
+        let b = derived::beats_from_annotations(&rec.annotations, rec.len());
+        let text = if b.is_empty() { "no beats found".to_string() } else { format!("{} annotated beats (none detected)", b.len()) };
+        (b, text)
+    } else {
+        (analysis.beats.clone(), format!("{} beats detected", analysis.beats.len()))
+    };
     Ok(Loaded {
         path: path.to_path_buf(),
         format: opened.format,
         recording: Arc::new(rec),
+        analysis,
         warnings: opened.warnings,
         tape,
         beats,
         beats_source,
-        representative,
-        auto_marks: isoline_core::beat::Boundaries::default(),
     })
 }
 

@@ -105,7 +105,7 @@ pub fn draw_page(
     points_per_mm: f32,
     header: &str,
 ) -> SheetGeometry {
-    let rec: &Recording = &loaded.recording;
+    let rec: &Recording = loaded.shown(view.filters);
     let page = spec.page(rec);
     let geo = SheetGeometry { origin, points_per_mm, page };
     let pal = view.scheme.palette();

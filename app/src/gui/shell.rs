@@ -55,20 +55,20 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         ui.colored_label(ui.visuals().warn_fg_color, CAUTION);
         ui.label(status_text(app));
     });
+    let ledger_rows = app.cached_ledger_rows();
     if let Some(loaded) = &app.loaded {
         egui::Panel::bottom("tape").resizable(false).show(ui, |ui| {
-            out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s));
+            out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s, &mut app.ui_state.tape));
         });
         egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
-            egui::ScrollArea::vertical().show(ui, |ui| {
+            egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
                 out.extend(beat_lens::beat_lens_ui(ui, loaded, &app.doc, &app.settings.view, &mut app.ui_state));
                 ui.separator();
                 ui.strong("Calipers");
                 out.extend(calipers_ui::caliper_list_ui(ui, &app.doc, app.ui_state.selected));
                 ui.separator();
                 ui.strong("Ledger");
-                let rows = ledger::rows(loaded, &app.doc);
-                out.extend(ledger::ledger_ui(ui, &rows, &app.doc));
+                out.extend(ledger::ledger_ui(ui, &ledger_rows, &app.doc));
             });
         });
     }
@@ -115,14 +115,14 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
         start_s: app.start_s,
         seconds: app.window_s,
     };
-    let page = spec.page(&loaded.recording);
+    let page = spec.page(loaded.shown(view.filters));
     let size = Vec2::new(page.width_mm as f32, page.height_mm as f32) * ppmm;
     let name = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
     let header = format!(
         "{name}   {}   {}   filters: {}   {} – {}",
         view.paper.describe(),
         view.layout,
-        filter_text(view.filters),
+        filter_text(loaded, view.filters),
         tape::clock(app.start_s),
         tape::clock(app.start_s + app.window_s)
     );
@@ -130,23 +130,15 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
         let (rect, response) = ui.allocate_exact_size(size, Sense::click_and_drag());
         let painter = ui.painter_at(rect);
         let geo = sheet::draw_page(&painter, loaded, view, &spec, rect.min, ppmm, &header);
-        out.extend(calipers_ui::calipers_ui(
-            ui,
-            &response,
-            &geo,
-            loaded,
-            &app.doc,
-            view,
-            app.tool,
-            &mut app.ui_state,
-        ));
+        let cx = calipers_ui::SheetContext { geo: &geo, loaded, doc: &app.doc, view, tool: app.tool };
+        out.extend(calipers_ui::calipers_ui(ui, &response, &cx, &mut app.ui_state));
         app.ui_state.sheet = Some(geo);
     });
 }
 
 /// What the filter setting means for the signal on screen.
-fn filter_text(on: bool) -> &'static str {
-    if on { "requested (filter module not yet available: raw signal shown)" } else { "off (raw signal)" }
+fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
+    if on { loaded.analysis.filtered.description.clone() } else { "off (signal as recorded)".to_string() }
 }
 
 fn status_text(app: &IsolineApp) -> String {
@@ -166,7 +158,7 @@ fn status_text(app: &IsolineApp) -> String {
         rec.sample_rate.hz(),
         tape::clock(rec.duration_s()),
         l.beats_source,
-        filter_text(app.settings.view.filters),
+        filter_text(l, app.settings.view.filters),
         app.ui_state.last_frame_ms
     )
 }
@@ -261,7 +253,7 @@ fn toolbar_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
             }
         }
         if let (Some(loaded), Layout::ThreeByFourPlusOne { .. } | Layout::Strip(_)) = (&app.loaded, &v.layout) {
-            egui::ComboBox::from_id_salt("layout_lead").selected_text(format!("lead {lead_of_layout}")).show_ui(ui, |ui| {
+            egui::ComboBox::new("layout_lead", "strip lead").selected_text(lead_of_layout.to_string()).show_ui(ui, |ui| {
                 for lead in &loaded.recording.leads {
                     if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
                         out.push(Command::SetLayout(match v.layout {

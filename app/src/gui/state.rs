@@ -16,7 +16,10 @@ use isoline_core::io::Format;
 use isoline_core::paper::{LeadOrder, Layout, Paper, Scheme};
 use isoline_core::recording::Recording;
 
-use super::derived::{RepresentativeBeat, TapeEnvelope};
+use isoline_core::analysis::Analysis;
+use isoline_core::delineate::RepresentativeBeat;
+
+use super::derived::TapeEnvelope;
 
 /// Where a value or mark came from (see the vocabulary: `auto`, `moved`, `placed`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -146,7 +149,7 @@ impl Default for ViewSettings {
             scheme: Scheme::Rose,
             dark: false,
             snap: true,
-            filters: false,
+            filters: true,
         }
     }
 }
@@ -158,20 +161,39 @@ pub struct Loaded {
     pub path: PathBuf,
     /// Format it was read as.
     pub format: Format,
-    /// The recording (shared: views read it every frame).
+    /// The recording as read (shared: views read it every frame).
     pub recording: Arc<Recording>,
+    /// Filters, beats, representative beat and automatic measurements (computed on the filtered copy).
+    pub analysis: Analysis,
     /// What the reader noticed while reading.
     pub warnings: Vec<String>,
     /// Whole-recording min/max envelope of the Tape lead.
     pub tape: TapeEnvelope,
-    /// Beats (from the recording's annotations until the detector is wired).
+    /// Beats for the Tape's rate trend and caliper snapping: the detector's, or the file's annotated beats
+    /// when the detector found none.
     pub beats: Vec<Beat>,
     /// Where the beats came from, for the status bar.
     pub beats_source: String,
-    /// Representative beat of every lead, if there are enough dominant beats.
-    pub representative: Option<RepresentativeBeat>,
-    /// Automatic marks on the representative beat (none until the delineator is wired).
-    pub auto_marks: Boundaries,
+}
+
+impl Loaded {
+    /// The representative beat, if there were enough beats.
+    #[must_use]
+    pub fn representative(&self) -> Option<&RepresentativeBeat> {
+        self.analysis.representative.as_ref()
+    }
+
+    /// Automatic marks on the representative beat.
+    #[must_use]
+    pub fn auto_marks(&self) -> Boundaries {
+        self.representative().map(|r| r.bounds).unwrap_or_default()
+    }
+
+    /// The signal the Sheet shows: filtered or as read.
+    #[must_use]
+    pub fn shown(&self, filters: bool) -> &Recording {
+        if filters { &self.analysis.filtered.recording } else { &self.recording }
+    }
 }
 
 /// What the selected caliper part is.
@@ -210,6 +232,8 @@ pub struct UiState {
     pub last_frame_ms: f64,
     /// Geometry of the Sheet as drawn in the last frame (for hit tests from outside, e.g. UI tests).
     pub sheet: Option<super::sheet::SheetGeometry>,
+    /// Tape envelope on screen, last frame: (centre y, x at time 0, x at the recording's end).
+    pub tape: Option<(f32, f32, f32)>,
     /// Screen rectangle of the Beat lens plot area and its time axis, from the last frame.
     pub lens: Option<super::beat_lens::LensGeometry>,
 }

@@ -9,7 +9,15 @@ use super::derived::{rate_trend, TapeEnvelope};
 use super::state::Loaded;
 
 /// Draws the Tape; returns a command to move the Sheet when clicked or dragged.
-pub fn tape_ui(ui: &mut egui::Ui, loaded: &Loaded, start_s: f64, window_s: f64) -> Vec<Command> {
+///
+/// `geometry` receives the Tape's screen mapping: `(y, x at time 0, x at the end of the recording)`.
+pub fn tape_ui(
+    ui: &mut egui::Ui,
+    loaded: &Loaded,
+    start_s: f64,
+    window_s: f64,
+    geometry: &mut Option<(f32, f32, f32)>,
+) -> Vec<Command> {
     let mut out = Vec::new();
     let duration = loaded.recording.duration_s();
     let lead_name = loaded.recording.leads.get(loaded.tape.lead).map(|l| l.name.to_string()).unwrap_or_default();
@@ -42,6 +50,11 @@ pub fn tape_ui(ui: &mut egui::Ui, loaded: &Loaded, start_s: f64, window_s: f64) 
             p.add(FilledArea::new(lead_name.as_str(), &xs, &lo, &hi).fill_color(fill));
             p.add(window(y_lo, y_hi));
         });
+    *geometry = Some((
+        env.response.rect.center().y,
+        env.transform.position_from_point_x(0.0),
+        env.transform.position_from_point_x(duration),
+    ));
     out.extend(jump(&env.response, &env.transform, window_s, duration));
     let trend = rate_trend(&loaded.beats, loaded.recording.sample_rate.hz());
     if trend.is_empty() {

@@ -1,0 +1,111 @@
+//! Beat lens and Ledger: automatic marks fill the Ledger; dragging a handle recomputes QT and every QTc; the Tape
+//! moves the Sheet (egui_kittest, no GPU).
+
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+mod gui_support;
+
+use egui::Pos2;
+use egui_kittest::kittest::Queryable;
+use egui_kittest::Harness;
+use gui_support::{click_at, drag, harness, settle};
+use isoline::gui::state::Origin;
+use isoline::gui::IsolineApp;
+use isoline_core::beat::MarkKind;
+
+fn lens_point(h: &Harness<'static, IsolineApp>, sample: usize) -> Pos2 {
+    let geo = h.state().ui_state.lens.unwrap();
+    Pos2::new(geo.x_of_sample(sample as f64), geo.rect.center().y)
+}
+
+fn row(h: &Harness<'static, IsolineApp>, key: &str) -> isoline::gui::ledger::LedgerRow {
+    h.state().ledger_rows().into_iter().find(|r| r.key == key).unwrap()
+}
+
+fn auto_t_end(h: &Harness<'static, IsolineApp>) -> usize {
+    h.state().loaded.as_ref().unwrap().auto_marks().t_end.expect("automatic T end")
+}
+
+#[test]
+fn automatic_marks_fill_the_ledger() {
+    let h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let loaded = h.state().loaded.as_ref().unwrap();
+    let rep = loaded.representative().expect("representative beat");
+    assert!(rep.n_beats >= 3);
+    let qt = row(&h, "qt_ms");
+    let auto = qt.auto.expect("automatic QT");
+    assert!((300.0..500.0).contains(&auto), "QT {auto}");
+    assert_eq!(qt.reviewed, qt.auto);
+    assert_eq!(qt.origin, Some(Origin::Auto));
+    assert_eq!(qt.difference(), Some(0.0));
+    h.get_by_label("QT");
+    h.get_by_label("QTc (Bazett)");
+}
+
+#[test]
+fn dragging_t_end_recomputes_qt_and_every_qtc() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let qt_auto = row(&h, "qt_ms").auto.unwrap();
+    let t_end = auto_t_end(&h);
+    // 1000 Hz: 40 samples = 40 ms later.
+    let from = lens_point(&h, t_end);
+    let to = lens_point(&h, t_end + 40);
+    drag(&mut h, from, to);
+    assert_eq!(h.state().doc.marks.get(&MarkKind::TEnd).copied(), Some(t_end + 40));
+    let qt = row(&h, "qt_ms");
+    assert!((qt.reviewed.unwrap() - (qt_auto + 40.0)).abs() < 1e-6, "{qt:?}");
+    assert_eq!(qt.origin, Some(Origin::Moved));
+    assert!((qt.difference().unwrap() - 40.0).abs() < 1e-6);
+    let (qt_ms, rr_ms) = (qt.reviewed.unwrap(), row(&h, "rr_ms").reviewed.unwrap());
+    let (qt_s, rr_s, hr) = (qt_ms / 1000.0, rr_ms / 1000.0, 60_000.0 / rr_ms);
+    // Sources: Bazett 1920; Fridericia 1920; Sagie et al. 1992; Hodges et al. 1983; Rautaharju et al. 2014
+    // (references.md §3), computed here independently of the app.
+    let expect = [
+        ("qtc_bazett_ms", qt_s / rr_s.sqrt() * 1000.0),
+        ("qtc_fridericia_ms", qt_s / rr_s.powf(1.0 / 3.0) * 1000.0),
+        ("qtc_framingham_ms", (qt_s + 0.154 * (1.0 - rr_s)) * 1000.0),
+        ("qtc_hodges_ms", qt_ms + 1.75 * (hr - 60.0)),
+        ("qtc_rautaharju_ms", qt_ms * (120.0 + hr) / 180.0),
+    ];
+    for (key, v) in expect {
+        let r = row(&h, key);
+        assert!((r.reviewed.unwrap() - v).abs() < 1e-6, "{key}: {r:?} vs {v}");
+        assert_eq!(r.origin, Some(Origin::Moved));
+    }
+    // Undo puts T end back in one step.
+    h.get_by_label("Undo").click();
+    settle(&mut h);
+    assert!(h.state().doc.marks.is_empty());
+    assert_eq!(row(&h, "qt_ms").origin, Some(Origin::Auto));
+}
+
+#[test]
+fn reset_puts_a_moved_mark_back() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let t_end = auto_t_end(&h);
+    let from = lens_point(&h, t_end);
+    let to = lens_point(&h, t_end.saturating_sub(30));
+    drag(&mut h, from, to);
+    assert_eq!(h.state().doc.marks.get(&MarkKind::TEnd).copied(), Some(t_end - 30));
+    h.get_by_label("Reset T end").click();
+    settle(&mut h);
+    assert!(h.state().doc.marks.is_empty());
+    assert_eq!(row(&h, "qt_ms").origin, Some(Origin::Auto));
+}
+
+#[test]
+fn clicking_the_tape_moves_the_sheet() {
+    let mut h = harness(Some("qtdb/sel100.hea"));
+    let (y, x0, x1) = h.state().ui_state.tape.unwrap();
+    let duration = h.state().loaded.as_ref().unwrap().recording.duration_s();
+    assert!(duration > 800.0, "15-minute record");
+    let t = 400.0;
+    let x = x0 + (x1 - x0) * (t / duration) as f32;
+    click_at(&mut h, Pos2::new(x, y));
+    let app = h.state();
+    let centre = app.start_s + app.window_s / 2.0;
+    // One screen pixel on the Tape is about duration / width seconds.
+    assert!((centre - t).abs() < 2.0 * duration / f64::from(x1 - x0), "centre {centre}");
+    let g = app.ui_state.sheet.as_ref().unwrap();
+    assert!((g.page.rows.last().unwrap().cells[0].t0_s - app.start_s).abs() < 1e-9);
+}

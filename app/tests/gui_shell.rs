@@ -1,0 +1,141 @@
+//! Workstation shell: opening files, errors, layout, speed, gain, scheme, help (egui_kittest, no GPU).
+
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+mod gui_support;
+
+use egui_kittest::kittest::Queryable;
+use gui_support::{data, harness, settle};
+use isoline::gui::IsolineApp;
+use isoline_core::paper::{Layout, Scheme};
+
+#[test]
+fn opening_a_sample_shows_its_leads_and_the_caution() {
+    let h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let app = h.state();
+    let loaded = app.loaded.as_ref().expect("recording open");
+    assert_eq!(loaded.recording.leads.len(), 15);
+    assert!(app.ui_state.error.is_none());
+    // 3x4+1: three rows of four leads and the rhythm strip.
+    let geo = app.ui_state.sheet.as_ref().expect("Sheet drawn");
+    assert_eq!(geo.page.rows.len(), 4);
+    assert_eq!(geo.page.rows[0].cells.iter().map(|c| c.label.as_str()).collect::<Vec<_>>(), ["I", "aVR", "V1", "V4"]);
+    h.get_by_label(isoline_core::CAUTION);
+    h.get_by_label_contains("s0010_re.hea (wfdb)   15 leads   1000 Hz");
+}
+
+#[test]
+fn an_unreadable_file_shows_an_error_instead_of_crashing() {
+    let dir = tempfile::tempdir().unwrap();
+    let bad = dir.path().join("broken.hea");
+    std::fs::write(&bad, "this is not a WFDB header\n\u{0}\u{1}garbage").unwrap();
+    let app = IsolineApp::new(Some(bad.clone()));
+    let mut h = egui_kittest::Harness::builder()
+        .with_size(egui::Vec2::new(1400.0, 900.0))
+        .build_ui_state(|ui, app: &mut IsolineApp| app.ui(ui), app);
+    settle(&mut h);
+    assert!(h.state().loaded.is_none());
+    let err = h.state().ui_state.error.clone().expect("error kept");
+    assert!(err.contains("broken.hea"), "{err}");
+    h.get_by_label_contains("Error: Could not open");
+    h.get_by_label("Dismiss").click();
+    settle(&mut h);
+    assert!(h.state().ui_state.error.is_none());
+    assert!(h.query_by_label_contains("Error:").is_none());
+}
+
+#[test]
+fn a_missing_file_keeps_the_open_recording() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.state_mut().run_cmd(isoline::gui::command::Command::Open(data("no/such/record.hea")));
+    settle(&mut h);
+    assert!(h.state().loaded.is_some(), "the open recording stays");
+    assert!(h.state().ui_state.error.as_deref().is_some_and(|e| e.contains("record.hea")));
+}
+
+#[test]
+fn switching_layouts_relays_the_sheet() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("6x2").click();
+    settle(&mut h);
+    assert_eq!(h.state().settings.view.layout, Layout::SixByTwo);
+    let rows = &h.state().ui_state.sheet.as_ref().unwrap().page.rows;
+    assert_eq!(rows.len(), 6);
+    assert_eq!(rows[0].cells.len(), 2);
+    h.get_by_label("12x1").click();
+    settle(&mut h);
+    // Every lead of the record, one per row (12 standard + 3 Frank leads).
+    assert_eq!(h.state().ui_state.sheet.as_ref().unwrap().page.rows.len(), 15);
+    h.get_by_label("strip").click();
+    settle(&mut h);
+    let geo = h.state().ui_state.sheet.clone().unwrap();
+    assert_eq!(geo.page.rows.len(), 1);
+    assert_eq!(geo.page.rows[0].cells[0].label, "II");
+}
+
+#[test]
+fn switching_speed_changes_time_per_millimetre() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let span = |h: &egui_kittest::Harness<'static, IsolineApp>| {
+        let g = h.state().ui_state.sheet.clone().unwrap();
+        let cell = g.page.rows.last().unwrap().cells[0].clone();
+        (g.x_of_time(&cell, 1.2) - g.x_of_time(&cell, 1.0)) / g.points_per_mm
+    };
+    // Source: Kligfield et al. 2007 (references.md §1): at 25 mm/s 200 ms = 5 mm; at 50 mm/s 200 ms = 10 mm.
+    assert!((span(&h) - 5.0).abs() < 1e-3);
+    h.get_by_label("50 mm/s").click();
+    settle(&mut h);
+    assert_eq!(h.state().settings.view.paper.speed_mm_per_s, 50.0);
+    assert!((span(&h) - 10.0).abs() < 1e-3);
+    h.get_by_label("12.5 mm/s").click();
+    settle(&mut h);
+    assert!((span(&h) - 2.5).abs() < 1e-3);
+}
+
+#[test]
+fn switching_gain_changes_millimetres_per_millivolt() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let mm_per_mv = |h: &egui_kittest::Harness<'static, IsolineApp>| {
+        let g = h.state().ui_state.sheet.clone().unwrap();
+        let row = &g.page.rows[0];
+        row.baseline_mm - row.y_from_uv(&g.page.paper, 1000.0, false)
+    };
+    // Source: Kligfield et al. 2007: 10 mm/mV standard; the calibration pulse is 1 mV tall.
+    assert!((mm_per_mv(&h) - 10.0).abs() < 1e-9);
+    h.get_by_label("20 mm/mV").click();
+    settle(&mut h);
+    assert!((mm_per_mv(&h) - 20.0).abs() < 1e-9);
+    h.get_by_label("5 mm/mV").click();
+    settle(&mut h);
+    assert!((mm_per_mv(&h) - 5.0).abs() < 1e-9);
+    let g = h.state().ui_state.sheet.clone().unwrap();
+    let pulse = g.page.rows[0].calibration_pulse(&g.page.paper);
+    assert!(((pulse[0].1 - pulse[2].1) - 5.0).abs() < 1e-9);
+}
+
+#[test]
+fn scheme_and_lead_order_from_the_view_menu() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("View").click();
+    settle(&mut h);
+    h.get_by_label("Paper: Graphite").click();
+    settle(&mut h);
+    assert_eq!(h.state().settings.view.scheme, Scheme::Graphite);
+    h.get_by_label("View").click();
+    settle(&mut h);
+    h.get_by_label("Lead order: cabrera").click();
+    settle(&mut h);
+    let g = h.state().ui_state.sheet.clone().unwrap();
+    assert_eq!(g.page.rows[0].cells[0].label, "aVL");
+    assert!(g.page.rows.iter().flat_map(|r| &r.cells).any(|c| c.label == "\u{2212}aVR" && c.inverted));
+}
+
+#[test]
+fn help_overlay_lists_shortcuts() {
+    let mut h = harness(None);
+    assert!(h.query_by_label("Keyboard shortcuts").is_none());
+    h.key_press(egui::Key::F1);
+    settle(&mut h);
+    h.get_by_label("Nudge the selected leg by one sample");
+    h.get_by_label_contains("Open a recording (Ctrl+O)");
+}
