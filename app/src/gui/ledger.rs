@@ -50,7 +50,7 @@ const QTC_KEYS: [(&str, &str); 5] = [
 /// Computes the Ledger rows from the automatic measurements, the review's marks and reviewed values.
 #[must_use]
 pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
-    let an = &loaded.analysis;
+    let Some(an) = &loaded.analysis else { return Vec::new() };
     let auto = an.measurements.values();
     let mut rev = match loaded.representative() {
         Some(rep) if !doc.marks.is_empty() => {

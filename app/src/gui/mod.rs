@@ -47,8 +47,10 @@ pub struct IsolineApp {
     pub window_s: f64,
     /// A file dialog was asked for (handled by the eframe shell, never in tests).
     pub wants_dialog: bool,
-    /// Ledger rows as of the last change (derived data, dropped whenever a command runs).
+    /// Ledger rows as of the last change (derived data, dropped whenever the review or the analysis changes).
     ledger_cache: Option<Vec<ledger::LedgerRow>>,
+    /// Analysis running in the background for the open recording.
+    pending: Option<std::sync::mpsc::Receiver<isoline_core::analysis::Analysis>>,
 }
 
 impl IsolineApp {
@@ -73,6 +75,7 @@ impl IsolineApp {
             window_s: 10.0,
             wants_dialog: false,
             ledger_cache: None,
+            pending: None,
         };
         if let Some(f) = file {
             app.run_cmd(Command::Open(f));
@@ -80,9 +83,33 @@ impl IsolineApp {
         app
     }
 
+    /// Whether an analysis is still running in the background.
+    #[must_use]
+    pub fn analysing(&self) -> bool {
+        self.pending.is_some()
+    }
+
+    /// Takes a finished background analysis, waiting for it when `block` is true.
+    pub fn poll_analysis(&mut self, block: bool) {
+        let Some(rx) = &self.pending else { return };
+        let got = if block { rx.recv().ok() } else { rx.try_recv().ok() };
+        let finished = got.is_some() || matches!(rx.try_recv(), Err(std::sync::mpsc::TryRecvError::Disconnected));
+        if let (Some(a), Some(l)) = (got, self.loaded.as_mut()) {
+            l.attach(a);
+            self.ledger_cache = None;
+        }
+        if finished {
+            self.pending = None;
+        }
+    }
+
     /// Draws the whole workstation and applies the commands its views returned.
     pub fn ui(&mut self, ui: &mut egui::Ui) {
         let t0 = std::time::Instant::now();
+        self.poll_analysis(false);
+        if self.pending.is_some() {
+            ui.ctx().request_repaint_after(std::time::Duration::from_millis(200));
+        }
         let commands = shell::shell_ui(self, ui);
         if !ui.ctx().input(|i| i.pointer.any_down()) {
             self.history.end_drag();
@@ -109,7 +136,9 @@ impl IsolineApp {
 
     /// Applies one command.
     pub fn run_cmd(&mut self, cmd: Command) {
-        self.ledger_cache = None;
+        if cmd.edits_document() || matches!(cmd, Command::Open(_) | Command::Undo | Command::Redo) {
+            self.ledger_cache = None;
+        }
         if cmd.edits_document() {
             let before = self.doc.clone();
             if self.apply_edit(&cmd) && self.doc != before {
@@ -230,10 +259,23 @@ impl IsolineApp {
         true
     }
 
-    /// Opens a recording; on failure keeps the current one and shows the error.
+    /// Opens a recording; on failure keeps the current one and shows the error. Long recordings are analysed
+    /// on a background thread.
     fn open(&mut self, path: &Path) {
         match load(path) {
-            Ok(loaded) => {
+            Ok(mut loaded) => {
+                let rec = Arc::clone(&loaded.recording);
+                if rec.len() * rec.leads.len() <= BACKGROUND_ANALYSIS_SAMPLES {
+                    loaded.attach(analyze(&rec));
+                    self.pending = None;
+                } else {
+                    let (tx, rx) = std::sync::mpsc::channel();
+                    std::thread::spawn(move || {
+                        // The receiver may be gone if another file was opened meanwhile: nothing to do then.
+                        let _ = tx.send(analyze(&rec));
+                    });
+                    self.pending = Some(rx);
+                }
                 self.settings.remember(path);
                 self.loaded = Some(loaded);
                 self.doc = Document::default();
@@ -246,8 +288,12 @@ impl IsolineApp {
     }
 }
 
-/// Reads a recording and derives what the views need: filters, beats, representative beat and automatic
-/// measurements (`core::analysis`), and the Tape envelope.
+/// Recordings with more samples than this (all leads together) are analysed in the background, so the Sheet
+/// appears at once; smaller ones are analysed before the first frame.
+pub const BACKGROUND_ANALYSIS_SAMPLES: usize = 4_000_000;
+
+/// Reads a recording and derives what the views need before analysis: the Tape envelope and the file's
+/// annotated beats.
 ///
 /// # Errors
 /// The reader's error, naming the file and the problem.
@@ -257,30 +303,34 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
     if rec.leads.is_empty() || rec.is_empty() {
         anyhow::bail!("the recording has no samples");
     }
-    let analysis = isoline_core::analysis::analyze(&rec, &FilterSettings::default());
     let order = isoline_core::paper::ordered_leads(&rec, isoline_core::paper::LeadOrder::Standard);
     let tape_lead = rec
         .lead_index(&isoline_core::LeadName::Standard(isoline_core::StandardLead::II))
         .or_else(|| order.first().map(|o| o.0))
         .unwrap_or(0);
-    let tape = derived::TapeEnvelope::new(&analysis.filtered.recording, tape_lead);
-    let (beats, beats_source) = if analysis.beats.is_empty() {
-        let b = derived::beats_from_annotations(&rec.annotations, rec.len());
-        let text = if b.is_empty() { "no beats found".to_string() } else { format!("{} annotated beats (none detected)", b.len()) };
-        (b, text)
-    } else {
-        (analysis.beats.clone(), format!("{} beats detected", analysis.beats.len()))
-    };
-    Ok(Loaded {
+    let tape = derived::TapeEnvelope::new(&rec, tape_lead);
+    let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
+    let beats_source = if beats.is_empty() { "analysing…".to_string() } else { format!("{} annotated beats", beats.len()) };
+    let mut loaded = Loaded {
         path: path.to_path_buf(),
         format: opened.format,
         recording: Arc::new(rec),
-        analysis,
+        analysis: None,
         warnings: opened.warnings,
         tape,
         beats,
         beats_source,
-    })
+        trend: Vec::new(),
+        median_rr_ms: None,
+    };
+    loaded.derive_rates();
+    Ok(loaded)
+}
+
+/// Filters, detects, delineates and measures (`core::analysis`) with the default filter settings.
+#[must_use]
+pub fn analyze(recording: &isoline_core::Recording) -> isoline_core::analysis::Analysis {
+    isoline_core::analysis::analyze(recording, &FilterSettings::default())
 }
 
 struct EframeApp {

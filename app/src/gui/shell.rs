@@ -138,14 +138,19 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
 
 /// What the filter setting means for the signal on screen.
 fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
-    if on { loaded.analysis.filtered.description.clone() } else { "off (signal as recorded)".to_string() }
+    match (&loaded.analysis, on) {
+        (Some(a), true) => a.filtered.description.clone(),
+        (None, true) => "analysis running, signal as recorded".to_string(),
+        (_, false) => "off (signal as recorded)".to_string(),
+    }
 }
 
 fn status_text(app: &IsolineApp) -> String {
     let Some(l) = &app.loaded else { return format!("No recording open   frame {:.1} ms", app.ui_state.last_frame_ms) };
     let rec = &l.recording;
     let name = l.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
-    let rate = super::derived::median_rr_ms(&l.beats, rec.sample_rate.hz())
+    let rate = l
+        .median_rr_ms
         .map_or_else(|| "rate —".to_string(), |rr| format!("rate {:.0} bpm", 60_000.0 / rr));
     let cursor = app
         .ui_state

@@ -5,7 +5,7 @@
 use egui_plot::{FilledArea, Line, Plot, PlotPoints, Polygon};
 
 use super::command::Command;
-use super::derived::{rate_trend, TapeEnvelope};
+use super::derived::TapeEnvelope;
 use super::state::Loaded;
 
 /// Draws the Tape; returns a command to move the Sheet when clicked or dragged.
@@ -56,7 +56,7 @@ pub fn tape_ui(
         env.transform.position_from_point_x(duration),
     ));
     out.extend(jump(&env.response, &env.transform, window_s, duration));
-    let trend = rate_trend(&loaded.beats, loaded.recording.sample_rate.hz());
+    let trend = &loaded.trend;
     if trend.is_empty() {
         ui.weak("Heart-rate trend: no beats yet (needs beat annotations or the detector).");
     } else {
@@ -73,7 +73,7 @@ pub fn tape_ui(
             .include_y(40.0)
             .include_y(120.0)
             .show(ui, |p| {
-                let pts = thin(&trend, columns);
+                let pts = thin(trend, columns);
                 p.add(Line::new("heart rate", PlotPoints::new(pts)).color(egui::Color32::from_rgb(200, 60, 60)));
                 p.add(window(0.0, 250.0));
             });
