@@ -17,6 +17,7 @@ pub mod calipers_ui;
 pub mod command;
 pub mod derived;
 pub mod ledger;
+pub mod review_io;
 pub mod settings;
 mod shell;
 pub mod sheet;
@@ -26,6 +27,17 @@ pub mod tape;
 use command::{Command, History};
 use settings::Settings;
 use state::{Document, Loaded, Part, Tool, UiState};
+
+/// A file dialog the shell should show.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Dialog {
+    /// Pick a recording (or review) to open.
+    OpenRecording,
+    /// Pick a review to open.
+    OpenReview,
+    /// Choose where to save the review.
+    SaveReviewAs,
+}
 
 /// The whole workstation.
 pub struct IsolineApp {
@@ -46,7 +58,12 @@ pub struct IsolineApp {
     /// Length of the Sheet's window in the last frame, s.
     pub window_s: f64,
     /// A file dialog was asked for (handled by the eframe shell, never in tests).
-    pub wants_dialog: bool,
+    pub wants_dialog: Option<Dialog>,
+    /// The review being worked on: file, stage, summary, pending questions.
+    pub review: review_io::ReviewSession,
+    /// Write the autosave sidecar while editing (on in the window; off by default so tests never write beside
+    /// their data).
+    pub autosave: bool,
     /// Ledger rows as of the last change (derived data, dropped whenever the review or the analysis changes).
     ledger_cache: Option<Vec<ledger::LedgerRow>>,
     /// Analysis running in the background for the open recording.
@@ -73,7 +90,9 @@ impl IsolineApp {
             tool: Tool::Pointer,
             start_s: 0.0,
             window_s: 10.0,
-            wants_dialog: false,
+            wants_dialog: None,
+            review: review_io::ReviewSession::default(),
+            autosave: false,
             ledger_cache: None,
             pending: None,
         };
@@ -117,6 +136,7 @@ impl IsolineApp {
         for c in commands {
             self.run_cmd(c);
         }
+        self.autosave_if_due();
         self.ui_state.last_frame_ms = t0.elapsed().as_secs_f64() * 1000.0;
     }
 
@@ -136,8 +156,16 @@ impl IsolineApp {
 
     /// Applies one command.
     pub fn run_cmd(&mut self, cmd: Command) {
-        if cmd.edits_document() || matches!(cmd, Command::Open(_) | Command::Undo | Command::Redo) {
+        if cmd.edits_document() || matches!(cmd, Command::Open(_) | Command::OpenReview(_) | Command::Undo | Command::Redo) {
             self.ledger_cache = None;
+        }
+        let changes_work = cmd.edits_document() || matches!(cmd, Command::Undo | Command::Redo);
+        if changes_work && self.review.stage == isoline_core::review::Stage::Final {
+            self.ui_state.error = Some("The review is final: reopen it to change it.".into());
+            return;
+        }
+        if changes_work {
+            self.review.dirty = true;
         }
         if cmd.edits_document() {
             let before = self.doc.clone();
@@ -149,7 +177,71 @@ impl IsolineApp {
         let view = &mut self.settings.view;
         match cmd {
             Command::Open(path) => self.open(&path),
-            Command::OpenDialog => self.wants_dialog = true,
+            Command::OpenDialog => self.wants_dialog = Some(Dialog::OpenRecording),
+            Command::OpenReviewDialog => self.wants_dialog = Some(Dialog::OpenReview),
+            Command::SaveReviewDialog => self.wants_dialog = Some(Dialog::SaveReviewAs),
+            Command::SaveReview => {
+                if let Some(l) = &self.loaded {
+                    let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
+                    self.save_review(path);
+                }
+            }
+            Command::SaveReviewAs(p) => self.save_review(p),
+            Command::OpenReview(p) => self.open_review(&p, true),
+            Command::SetStage(s) => {
+                if self.review.stage == isoline_core::review::Stage::Final {
+                    self.ui_state.error = Some("The review is final: reopen it to change its stage.".into());
+                } else if self.review.stage != s {
+                    self.review.stage = s;
+                    self.review.dirty = true;
+                }
+            }
+            Command::Reopen => {
+                if self.review.stage == isoline_core::review::Stage::Final {
+                    self.review.stage = isoline_core::review::Stage::Draft;
+                    self.review.dirty = true;
+                }
+            }
+            Command::SetSummary(t) => {
+                if self.review.stage == isoline_core::review::Stage::Final {
+                    self.ui_state.error = Some("The review is final: reopen it to change it.".into());
+                } else {
+                    self.review.summary = t;
+                    self.review.dirty = true;
+                }
+            }
+            Command::SetReader(name) => {
+                self.settings.reader = Some(name);
+                if let Some(p) = self.review.asking_reader.take() {
+                    self.save_review(p);
+                }
+            }
+            Command::ApplyMismatched(yes) => {
+                if let Some((path, r)) = self.review.mismatch.take()
+                    && yes
+                {
+                    self.apply_review(r, path);
+                }
+            }
+            Command::Recover(yes) => {
+                if let Some(r) = self.review.recovery.take() {
+                    let path = self.review.path.clone().or_else(|| self.loaded.as_ref().map(|l| review_io::default_review_path(&l.path)));
+                    if yes {
+                        let base = self.review.base.take();
+                        let saved_path = self.review.path.clone();
+                        self.apply_review(r, path.clone().unwrap_or_default());
+                        // The restored work is unsaved: keep the saved review as the base for history.
+                        self.review.base = base;
+                        self.review.path = saved_path.or(path);
+                        self.review.dirty = true;
+                    } else if let Some(p) = path
+                        && let Err(e) = isoline_core::review::discard_autosave(&p)
+                    {
+                        self.ui_state.error = Some(format!("{e}"));
+                    }
+                }
+            }
+            Command::ShowHistory(b) => self.review.history_open = b,
             Command::SetLayout(l) => view.layout = l,
             Command::SetOrder(o) => view.order = o,
             Command::SetSpeed(s) => view.paper.speed_mm_per_s = s,
@@ -259,9 +351,102 @@ impl IsolineApp {
         true
     }
 
-    /// Opens a recording; on failure keeps the current one and shows the error. Long recordings are analysed
-    /// on a background thread.
+    /// Opens a recording, or a review with its recording. A review beside the recording
+    /// (`NAME.review.ron`) is applied, and autosaved work is offered back.
     fn open(&mut self, path: &Path) {
+        if review_io::is_review_path(path) {
+            self.open_review(path, true);
+            return;
+        }
+        if !self.open_recording(path) {
+            return;
+        }
+        let review_path = review_io::default_review_path(path);
+        if review_path.exists() {
+            self.open_review(&review_path, false);
+        }
+        self.review.recovery = isoline_core::review::recover(&review_path);
+    }
+
+    /// Opens a review file. With `with_recording`, first opens the recording it names (when it is not the one
+    /// open). A review of another recording is never applied silently: the reader is asked.
+    fn open_review(&mut self, path: &Path, with_recording: bool) {
+        let review = match isoline_core::review::load(path) {
+            Ok(r) => r,
+            Err(e) => {
+                self.ui_state.error = Some(format!("Could not open the review: {e}"));
+                return;
+            }
+        };
+        if with_recording {
+            let rec_path = review.recording.recording_path(path);
+            let already = self.loaded.as_ref().is_some_and(|l| l.path == rec_path);
+            if !already && !self.open_recording(&rec_path) {
+                return;
+            }
+        }
+        let Some(l) = &self.loaded else { return };
+        match review_io::matches_recording(&review, &l.path) {
+            Ok(true) => self.apply_review(review, path.to_path_buf()),
+            Ok(false) => self.review.mismatch = Some((path.to_path_buf(), review)),
+            Err(e) => self.ui_state.error = Some(format!("{e:#}")),
+        }
+    }
+
+    /// Makes a loaded review the one being worked on.
+    fn apply_review(&mut self, review: isoline_core::review::Review, path: PathBuf) {
+        let Some(l) = &self.loaded else { return };
+        self.doc = review_io::document_from_review(&review, l);
+        self.history.clear();
+        self.ledger_cache = None;
+        self.review.stage = review.stage;
+        self.review.summary.clone_from(&review.summary);
+        self.review.base = Some(review);
+        self.review.path = Some(path);
+        self.review.dirty = false;
+    }
+
+    /// Saves the review to `path`, asking the reader's name first when it is not known yet.
+    fn save_review(&mut self, path: PathBuf) {
+        let Some(reader) = self.settings.reader.clone() else {
+            self.review.asking_reader = Some(path);
+            return;
+        };
+        let rows = self.cached_ledger_rows();
+        let Some(l) = &self.loaded else { return };
+        let input = review_io::ReviewInput { loaded: l, doc: &self.doc, rows: &rows, session: &self.review, reader: &reader, path: &path };
+        match review_io::build_review(&input).and_then(|r| r.save(&path).map(|()| r).map_err(anyhow::Error::from)) {
+            Ok(r) => {
+                self.review.base = Some(r);
+                self.review.path = Some(path);
+                self.review.dirty = false;
+            }
+            Err(e) => self.ui_state.error = Some(format!("Could not save the review: {e:#}")),
+        }
+    }
+
+    /// Writes the autosave sidecar when there is unsaved work and the last autosave is old enough.
+    fn autosave_if_due(&mut self) {
+        if !self.autosave || !self.review.dirty || self.review.stage == isoline_core::review::Stage::Final {
+            return;
+        }
+        if self.review.last_autosave.is_some_and(|t| t.elapsed().as_secs_f64() < review_io::AUTOSAVE_EVERY_S) {
+            return;
+        }
+        self.review.last_autosave = Some(std::time::Instant::now());
+        let reader = self.settings.reader.clone().unwrap_or_else(|| "(reader not named yet)".into());
+        let rows = self.cached_ledger_rows();
+        let Some(l) = &self.loaded else { return };
+        let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
+        let input = review_io::ReviewInput { loaded: l, doc: &self.doc, rows: &rows, session: &self.review, reader: &reader, path: &path };
+        if let Err(e) = review_io::build_review(&input).and_then(|r| r.autosave(&path).map_err(anyhow::Error::from)) {
+            self.ui_state.error = Some(format!("Autosave failed: {e:#}"));
+        }
+    }
+
+    /// Opens a recording; on failure keeps the current one, shows the error and returns false. Long recordings
+    /// are analysed on a background thread.
+    fn open_recording(&mut self, path: &Path) -> bool {
         match load(path) {
             Ok(mut loaded) => {
                 let rec = Arc::clone(&loaded.recording);
@@ -281,9 +466,14 @@ impl IsolineApp {
                 self.doc = Document::default();
                 self.history.clear();
                 self.ui_state = UiState::default();
+                self.review = review_io::ReviewSession::default();
                 self.start_s = 0.0;
+                true
             }
-            Err(e) => self.ui_state.error = Some(format!("Could not open {}: {e:#}", path.display())),
+            Err(e) => {
+                self.ui_state.error = Some(format!("Could not open {}: {e:#}", path.display()));
+                false
+            }
         }
     }
 }
@@ -340,14 +530,32 @@ struct EframeApp {
 impl eframe::App for EframeApp {
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
         self.app.ui(ui);
-        if std::mem::take(&mut self.app.wants_dialog) {
-            let picked = rfd::FileDialog::new()
-                .add_filter("Recordings", &["hea", "edf", "csv"])
-                .add_filter("All files", &["*"])
-                .pick_file();
-            if let Some(p) = picked {
-                self.app.run_cmd(Command::Open(p));
+        match self.app.wants_dialog.take() {
+            Some(Dialog::OpenRecording) => {
+                let picked = rfd::FileDialog::new()
+                    .add_filter("Recordings and reviews", &["hea", "edf", "csv", "ron"])
+                    .add_filter("All files", &["*"])
+                    .pick_file();
+                if let Some(p) = picked {
+                    self.app.run_cmd(Command::Open(p));
+                }
             }
+            Some(Dialog::OpenReview) => {
+                if let Some(p) = rfd::FileDialog::new().add_filter("Reviews", &["ron"]).pick_file() {
+                    self.app.run_cmd(Command::OpenReview(p));
+                }
+            }
+            Some(Dialog::SaveReviewAs) => {
+                let name = self.app.loaded.as_ref().map(|l| review_io::default_review_path(&l.path));
+                let mut dialog = rfd::FileDialog::new().add_filter("Reviews", &["ron"]);
+                if let Some(n) = name.as_ref().and_then(|n| n.file_name()) {
+                    dialog = dialog.set_file_name(n.to_string_lossy());
+                }
+                if let Some(p) = dialog.save_file() {
+                    self.app.run_cmd(Command::SaveReviewAs(p));
+                }
+            }
+            None => {}
         }
     }
 
@@ -370,7 +578,9 @@ pub fn run(file: Option<PathBuf>) -> anyhow::Result<ExitCode> {
         options,
         Box::new(move |cc| {
             let settings = Settings::load(cc.storage);
-            Ok(Box::new(EframeApp { app: IsolineApp::with_settings(file, settings) }))
+            let mut app = IsolineApp::with_settings(file, settings);
+            app.autosave = true;
+            Ok(Box::new(EframeApp { app }))
         }),
     )
     .map_err(|e| anyhow::anyhow!("could not open the window: {e}"))?;

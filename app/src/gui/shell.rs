@@ -9,8 +9,9 @@ use super::command::Command;
 use super::state::Tool;
 use super::{beat_lens, calipers_ui, ledger, settings, sheet, tape, IsolineApp};
 
-const SHORTCUTS: [(&str, &str); 14] = [
+const SHORTCUTS: [(&str, &str); 15] = [
     ("Ctrl+O", "Open a recording"),
+    ("Ctrl+S", "Save the review"),
     ("Ctrl+Z", "Undo"),
     ("Ctrl+Shift+Z / Ctrl+Y", "Redo"),
     ("T", "Time caliper tool"),
@@ -62,6 +63,8 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         });
         egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
             egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
+                review_panel_ui(&app.review, ui, &mut out);
+                ui.separator();
                 out.extend(beat_lens::beat_lens_ui(ui, loaded, &app.doc, &app.settings.view, &mut app.ui_state));
                 ui.separator();
                 ui.strong("Calipers");
@@ -88,6 +91,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
             out.push(Command::ShowHelp(false));
         }
     }
+    out.extend(super::review_io::review_windows_ui(&ctx, &mut app.review));
     if app.ui_state.ruler_open {
         let mut bar = app.ui_state.ruler_bar_points;
         out.extend(settings::ruler_ui(&ctx, &app.settings, &mut bar));
@@ -168,10 +172,61 @@ fn status_text(app: &IsolineApp) -> String {
     )
 }
 
+/// The review's file, stage, summary and save button.
+fn review_panel_ui(session: &super::review_io::ReviewSession, ui: &mut egui::Ui, out: &mut Vec<Command>) {
+    use isoline_core::review::Stage;
+    let file = session.path.as_ref().and_then(|p| p.file_name()).map_or("not saved yet".into(), |n| n.to_string_lossy().into_owned());
+    ui.horizontal_wrapped(|ui| {
+        ui.strong("Review");
+        ui.label(format!("{file}{}", if session.dirty { " (unsaved changes)" } else { "" }));
+        if ui.button("Save review").clicked() {
+            out.push(Command::SaveReview);
+        }
+        if ui.button("History").clicked() {
+            out.push(Command::ShowHistory(!session.history_open));
+        }
+    });
+    ui.horizontal_wrapped(|ui| {
+        ui.label("Stage:");
+        for stage in [Stage::Draft, Stage::Checked, Stage::Final] {
+            if ui.selectable_label(session.stage == stage, stage.as_str()).clicked() && session.stage != stage {
+                out.push(Command::SetStage(stage));
+            }
+        }
+        if session.stage == Stage::Final {
+            ui.weak("read-only");
+            if ui.button("Reopen").clicked() {
+                out.push(Command::Reopen);
+            }
+        }
+    });
+    let mut summary = session.summary.clone();
+    let edit = egui::TextEdit::multiline(&mut summary)
+        .hint_text("Summary (the reader's conclusion; Isoline writes none)")
+        .desired_rows(2)
+        .interactive(session.stage != Stage::Final);
+    if ui.add(edit).changed() {
+        out.push(Command::SetSummary(summary));
+    }
+}
+
 fn menu_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
     ui.menu_button("File", |ui| {
         if ui.button("Open…  (Ctrl+O)").clicked() {
             out.push(Command::OpenDialog);
+            ui.close();
+        }
+        let has = app.loaded.is_some();
+        if ui.add_enabled(has, egui::Button::new("Save review  (Ctrl+S)")).clicked() {
+            out.push(Command::SaveReview);
+            ui.close();
+        }
+        if ui.add_enabled(has, egui::Button::new("Save review as…")).clicked() {
+            out.push(Command::SaveReviewDialog);
+            ui.close();
+        }
+        if ui.button("Open review…").clicked() {
+            out.push(Command::OpenReviewDialog);
             ui.close();
         }
         ui.menu_button("Open recent", |ui| {
@@ -323,6 +378,9 @@ fn keyboard(app: &IsolineApp, ctx: &egui::Context) -> Vec<Command> {
     ctx.input_mut(|i| {
         if i.consume_shortcut(&ctrl(Key::O)) {
             out.push(Command::OpenDialog);
+        }
+        if i.consume_shortcut(&ctrl(Key::S)) && app.loaded.is_some() {
+            out.push(Command::SaveReview);
         }
         if i.consume_shortcut(&ctrl_shift(Key::Z)) || i.consume_shortcut(&ctrl(Key::Y)) {
             out.push(Command::Redo);
