@@ -55,7 +55,10 @@ fn info_json_has_the_documented_keys() -> TestResult {
 }
 
 /// Parses CSV output (`time_s`, then leads in mV) into lead name → values.
-fn parse_csv(text: &str) -> Result<(Vec<f64>, BTreeMap<String, Vec<f64>>), Box<dyn std::error::Error>> {
+/// Time column and lead name (lower case) → values in mV.
+type Table = (Vec<f64>, BTreeMap<String, Vec<f64>>);
+
+fn parse_csv(text: &str) -> Result<Table, Box<dyn std::error::Error>> {
     let mut lines = text.lines();
     let header: Vec<&str> = lines.next().ok_or("empty")?.split(',').collect();
     assert_eq!(header[0], "time_s");

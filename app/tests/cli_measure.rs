@@ -23,7 +23,6 @@ fn copy_record(rel_hea: &str, dir: &Path) -> std::io::Result<()> {
 }
 
 #[test]
-#[ignore = "needs beat detection and delineation (engine) merged into main"]
 fn json_has_the_design_keys() -> Result<(), Box<dyn std::error::Error>> {
     let out = isoline().args(["measure", "--format", "json"]).arg(data("ludb/2.hea")).output()?;
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
@@ -50,7 +49,6 @@ fn json_has_the_design_keys() -> Result<(), Box<dyn std::error::Error>> {
 }
 
 #[test]
-#[ignore = "needs beat detection and delineation (engine) merged into main"]
 fn batch_lists_bad_files_and_measures_the_rest() -> Result<(), Box<dyn std::error::Error>> {
     let dir = tempfile::tempdir()?;
     copy_record("ludb/2.hea", dir.path())?;

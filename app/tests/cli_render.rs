@@ -43,7 +43,7 @@ fn errors_leave_no_file() -> Res {
         &["--layout", "4x3"],
         &["--start", "9999"],
         &["--speed", "0"],
-        &["--review", "missing.review.ron"],
+        &["--review", "/nonexistent/missing.review.ron"],
     ];
     for extra in cases {
         let st = isoline().arg("render").arg(data("ptb-s0010/s0010_re.hea")).args(extra).arg("--out").arg(&out).output()?;
@@ -56,5 +56,56 @@ fn errors_leave_no_file() -> Res {
     assert_eq!(st.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&st.stderr).contains("such.hea"));
     assert!(!out.exists());
+    Ok(())
+}
+
+/// A review made with the core API on the PTB record: a time caliper and a reader's QT value.
+fn make_review(dir: &std::path::Path, tamper: bool) -> Result<std::path::PathBuf, Box<dyn std::error::Error>> {
+    use isoline_core::caliper::{Caliper, CaliperKind};
+    use isoline_core::review::{Measurement, RecordingIdentity, Review};
+    let rec_path = data("ptb-s0010/s0010_re.hea");
+    let rec = isoline_core::io::open(&rec_path, &isoline_core::io::OpenOptions::default())?.recording;
+    let path = dir.join(if tamper { "other.review.ron" } else { "s0010.review.ron" });
+    let mut id = RecordingIdentity::of(&rec_path, &rec, &path)?;
+    if tamper {
+        id.sha256 = "0".repeat(64);
+    }
+    let mut r = Review::new(id, "T. Demo");
+    let kind = CaliperKind::Time { t1_s: 2.0, t2_s: 2.8 };
+    r.put_caliper(Caliper { id: 1, kind, lead: None, locked: false, march: true }, "T. Demo")?;
+    r.put_automatic(Measurement::automatic("qt_ms", "QT", Some(468.0), "ms"))?;
+    r.set_measurement("qt_ms", 452.0, "T. Demo")?;
+    r.save(&path)?;
+    Ok(path)
+}
+
+#[test]
+fn review_is_drawn_and_a_foreign_review_refused() -> Res {
+    let dir = tempfile::tempdir()?;
+    let run = |extra: &[&std::ffi::OsStr], out: &std::path::Path| {
+        isoline()
+            .arg("render")
+            .arg(data("ptb-s0010/s0010_re.hea"))
+            .args(["--dpi", "100", "--layout", "strip:II"])
+            .args(extra)
+            .arg("--out")
+            .arg(out)
+            .output()
+    };
+    let plain = dir.path().join("plain.png");
+    let with = dir.path().join("with.png");
+    let review = make_review(dir.path(), false)?;
+    assert!(run(&[], &plain)?.status.success());
+    let st = run(&["--review".as_ref(), review.as_os_str()], &with)?;
+    assert!(st.status.success(), "{}", String::from_utf8_lossy(&st.stderr));
+    assert_ne!(std::fs::read(&plain)?, std::fs::read(&with)?, "the review's caliper and reader must show");
+
+    let other = make_review(dir.path(), true)?;
+    let refused = dir.path().join("refused.png");
+    let st = run(&["--review".as_ref(), other.as_os_str()], &refused)?;
+    assert_eq!(st.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&st.stderr);
+    assert!(err.contains("other.review.ron") && err.contains("another recording"), "{err}");
+    assert!(!refused.exists());
     Ok(())
 }

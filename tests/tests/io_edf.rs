@@ -273,3 +273,28 @@ fn converts_a_real_record_to_edf_and_back() -> TestResult {
     assert_eq!(a, b);
     Ok(())
 }
+
+#[test]
+fn only_ecg_signals_at_the_highest_rate_are_leads() -> TestResult {
+    let dir = tempfile::tempdir()?;
+    // ECG I at 4 Hz, ECG II at 2 Hz (lower rate), an EEG at 8 Hz (not an ECG), all in volts or microvolts.
+    let signals = [
+        ("ECG I", "V", "-1", "1", "-1000", "1000", "4"),
+        ("ECG II", "uV", "-1000", "1000", "-1000", "1000", "2"),
+        ("EEG Fpz-Cz", "uV", "-1000", "1000", "-1000", "1000", "8"),
+    ];
+    let mut data = i16s(&[1, 2, 3, 4]);
+    data.extend(i16s(&[5, 6]));
+    data.extend(i16s(&[0; 8]));
+    let path = dir.path().join("rates.edf");
+    std::fs::write(&path, hand_edf("", "1", "1", &signals, &data))?;
+    let o = io::open(&path, &io::OpenOptions::default())?;
+    assert_eq!(o.recording.leads.len(), 1);
+    assert_eq!(o.recording.sample_rate.hz(), 4.0);
+    // V → µV: digital 1 of ±1000 over ±1 V is 1 mV = 1000 µV.
+    assert!((o.recording.leads[0].samples[0] - 1000.0).abs() < 1e-3);
+    let w = o.warnings.join("\n");
+    assert!(w.contains("ECG II") && w.contains("2 Hz"), "{w}");
+    assert!(w.contains("EEG Fpz-Cz") && w.contains("not an ECG"), "{w}");
+    Ok(())
+}

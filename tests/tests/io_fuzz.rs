@@ -28,10 +28,14 @@ fn small_recording() -> Result<Recording, Box<dyn std::error::Error>> {
 }
 
 fn edf_bytes() -> Result<Vec<u8>, Box<dyn std::error::Error>> {
+    static BYTES: std::sync::OnceLock<Vec<u8>> = std::sync::OnceLock::new();
+    if let Some(b) = BYTES.get() {
+        return Ok(b.clone());
+    }
     let dir = tempfile::tempdir()?;
     let p = dir.path().join("s.edf");
     edf::write(&p, &small_recording()?, &edf::EdfWriteOptions::default())?;
-    Ok(std::fs::read(p)?)
+    Ok(BYTES.get_or_init(|| std::fs::read(p).unwrap_or_default()).clone())
 }
 
 fn csv_bytes() -> Result<Vec<u8>, Box<dyn std::error::Error>> {
@@ -45,7 +49,7 @@ fn wfdb_files() -> (String, Vec<u8>) {
     let header = "fz 2 250 100\nfz.dat 212 200 12 0 0 0 0 I\nfz.dat 212 200 12 0 0 0 0 II\n".to_string();
     let mut dat = Vec::new();
     for k in 0..100i32 {
-        let (a, b) = ((k * 37 % 4000 - 2000) & 0xFFF, (-(k * 11) % 2000 & 0xFFF)); // 12-bit two's complement
+        let (a, b) = ((k * 37 % 4000 - 2000) & 0xFFF, (-(k * 11) % 2000) & 0xFFF); // 12-bit two's complement
         dat.extend([(a & 0xFF) as u8, (((a >> 8) & 0x0F) | ((b >> 4) & 0xF0)) as u8, (b & 0xFF) as u8]);
     }
     (header, dat)
@@ -63,8 +67,12 @@ fn edf_truncated_at_every_length_is_an_error() -> TestResult {
     let dir = tempfile::tempdir()?;
     let full = edf_bytes()?;
     assert!(open_bytes(dir.path(), "t.edf", &full).is_ok());
-    for len in 0..full.len() {
-        assert!(open_bytes(dir.path(), "t.edf", &full[..len]).is_err(), "EDF cut at {len} of {} bytes read", full.len());
+    // Cut the same file shorter and shorter (one set_len call per length, no rewriting).
+    let path = dir.path().join("t.edf");
+    let file = std::fs::OpenOptions::new().write(true).open(&path)?;
+    for len in (0..full.len()).rev() {
+        file.set_len(len as u64)?;
+        assert!(io::open(&path, &io::OpenOptions::default()).is_err(), "EDF cut at {len} of {} bytes read", full.len());
     }
     Ok(())
 }

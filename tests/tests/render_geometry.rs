@@ -94,7 +94,7 @@ fn strip_at_300_dpi_is_true_scale() -> Res {
     let trace = *ink.iter().max_by_key(|(a, b)| b - a).ok_or("no trace")?;
     let trace_w = (trace.1 - trace.0 + 1) as f64;
     // The trace covers 250 mm, plus at most its stroke width (0.25 mm = 3 px) of round caps.
-    assert!(trace_w >= 250.0 * PX_MM - 1.0 && trace_w <= 250.0 * PX_MM + 6.0, "trace {trace_w} px wide");
+    assert!((250.0 * PX_MM - 1.0..=250.0 * PX_MM + 6.0).contains(&trace_w), "trace {trace_w} px wide");
 
     // Calibration pulse: the first ink run. Its plateau and its baseline are horizontal runs; their centres are
     // 1 mV x 10 mm/mV = 10 mm = 118.11 px apart (Kligfield 2007). Its two vertical edges are 200 ms x 25 mm/s =

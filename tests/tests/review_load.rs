@@ -1,6 +1,8 @@
 //! Loading reviews: the version-1 file kept in tests/data migrates; bad files give messages naming the file,
 //! the line, the column and the field; loading never changes the file.
 
+#![allow(clippy::unwrap_used)] // a test fails by panicking
+
 mod review_support;
 
 use std::path::Path;
@@ -137,4 +139,16 @@ fn truncated_or_garbage_file_gives_position() {
     std::fs::write(&p, [0xff, 0xfe, 0x00, 0x41]).unwrap();
     parse_err(&p);
     assert!(matches!(load(&dir.path().join("missing.review.ron")), Err(ReviewError::Io { .. })));
+}
+
+#[test]
+fn impossible_values_are_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text();
+    let p = write(dir.path(), &text.replacen(&"ab".repeat(32), "not-a-hash", 1));
+    let (line, _, field, msg) = parse_err(&p);
+    assert_eq!(field.as_deref(), Some("sha256"), "{msg}");
+    assert_eq!(line, 1 + text.lines().position(|l| l.contains("sha256:")).unwrap());
+    let p = write(dir.path(), &text.replacen("sample_rate_hz: 500.0", "sample_rate_hz: -1.0", 1));
+    assert_eq!(parse_err(&p).2.as_deref(), Some("sample_rate_hz"));
 }

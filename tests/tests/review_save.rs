@@ -1,6 +1,8 @@
 //! Saving is crash safe: a save interrupted at any byte leaves the previous review intact and loadable; the
 //! previous version is kept as `.bak`; the autosave sidecar is offered for recovery only when newer.
 
+#![allow(clippy::unwrap_used)] // a test fails by panicking
+
 mod review_support;
 
 use std::fs;

@@ -1,6 +1,8 @@
 //! A final review is read-only until reopened, and the reopening is in the history; every change is recorded
 //! with its old and new value and reader.
 
+#![allow(clippy::unwrap_used)] // a test fails by panicking
+
 mod review_support;
 
 use isoline_core::MarkKind;

@@ -51,10 +51,10 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     if !matches!(target, Target::Stdout) {
         // Never overwrite the recording being read.
-        if let Ok(out) = args.out.canonicalize() {
-            if opened.files.iter().any(|f| f.canonicalize().is_ok_and(|f| f == out)) {
-                bail!("{}: the output would overwrite the input recording", args.out.display());
-            }
+        if let Ok(out) = args.out.canonicalize()
+            && opened.files.iter().any(|f| f.canonicalize().is_ok_and(|f| f == out))
+        {
+            bail!("{}: the output would overwrite the input recording", args.out.display());
         }
     }
     let rec = &opened.recording;

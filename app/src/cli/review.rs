@@ -1,19 +1,86 @@
-//! `isoline review …`.
+//! `isoline review new FILE --reader NAME [--out R] [--force]`: runs the measurement engine and writes a
+//! `draft` review holding every automatic value (origin `auto`) and the representative-beat marks.
 
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+
+use anyhow::{Context, bail};
+use isoline_core::analysis::analyze;
+use isoline_core::filter::FilterSettings;
+use isoline_core::io;
+use isoline_core::recording::Recording;
+use isoline_core::review::{REVIEW_SUFFIX, RecordingIdentity, Review};
 
 /// Review subcommands.
 #[derive(Debug, clap::Subcommand)]
 pub enum Command {
     /// Write a draft review holding every automatic value.
-    New {
-        /// Recording.
-        file: std::path::PathBuf,
-    },
+    New(NewArgs),
+}
+
+/// Arguments of `isoline review new`.
+#[derive(Debug, clap::Args)]
+pub struct NewArgs {
+    /// Recording: .hea (or WFDB record path without extension), .edf, .csv.
+    pub file: PathBuf,
+    /// The reader's name or initials, stored in the review.
+    #[arg(long)]
+    pub reader: String,
+    /// Review file to write (default: NAME.review.ron beside the recording).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+    /// Replace an existing review (its previous version is kept as .bak).
+    #[arg(long)]
+    pub force: bool,
+    /// Sampling rate for a CSV file without a time_s column.
+    #[arg(long)]
+    pub rate: Option<f64>,
 }
 
 /// Runs the command.
 pub fn run(command: &Command) -> anyhow::Result<ExitCode> {
-    let _ = command;
-    anyhow::bail!("isoline review is not available yet")
+    match command {
+        Command::New(args) => new(args),
+    }
+}
+
+/// `NAME.review.ron` beside the recording (`sel100.hea` and `sel100` both give `sel100.review.ron`).
+#[must_use]
+pub fn default_review_path(recording: &Path) -> PathBuf {
+    let stem = recording.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "recording".into());
+    recording.with_file_name(format!("{stem}{REVIEW_SUFFIX}"))
+}
+
+fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
+    let reader = args.reader.trim();
+    if reader.is_empty() {
+        bail!("--reader: give the reader's name or initials");
+    }
+    let out = args.out.clone().unwrap_or_else(|| default_review_path(&args.file));
+    if out.exists() && !args.force {
+        bail!("{}: a review already exists (use --force to replace it; the old one is kept as .bak)", out.display());
+    }
+    let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
+    for w in &opened.warnings {
+        eprintln!("isoline: warning: {w}");
+    }
+    let identity = RecordingIdentity::of(&args.file, &opened.recording, &out)?;
+    let mut review = Review::new(identity, reader);
+    fill_automatic(&mut review, &opened.recording)?;
+    review.save(&out)?;
+    eprintln!(
+        "isoline: wrote {} (draft by {reader}: {} measurements, {} marks)",
+        out.display(),
+        review.measurements.len(),
+        review.marks.len()
+    );
+    Ok(ExitCode::SUCCESS)
+}
+
+/// Runs the measurement engine (default filters) and puts its automatic values and representative-beat marks
+/// into the review.
+fn fill_automatic(review: &mut Review, recording: &Recording) -> anyhow::Result<()> {
+    let analysis = analyze(recording, &FilterSettings::default());
+    review.put_analysis(&analysis).context("filling the new review")?;
+    Ok(())
 }

@@ -1,5 +1,5 @@
 //! QRS onset and J point from the multi-lead slope envelope: the QRS is where the summed |slope| of all leads
-//! stands high; its onset (end) is where the envelope, walking out from the steep part, falls to a set
+//! (each lead scaled by its typical QRS slope, so every lead counts equally) stands high; its onset (end) is where the envelope, walking out from the steep part, falls to a set
 //! fraction of the way from the quiet level before (after) the QRS to the envelope's QRS peak. Summing the
 //! leads makes the boundaries global (the first lead to start and the last to finish move the envelope).
 
@@ -7,9 +7,9 @@ use super::signals::Signals;
 
 /// Fraction of the envelope's rise above the quiet level that marks the onset.
 // Common practice, no source: slope-threshold delineators use 5–20 % of the QRS peak slope.
-const ON_FRACTION: f64 = 0.10;
+const ON_FRACTION: f32 = 0.07;
 /// Fraction for the J point (the ST segment slopes, so its quiet level sits higher than the PR segment's).
-const END_FRACTION: f64 = 0.10;
+const END_FRACTION: f32 = 0.07;
 /// The steep part of the QRS: envelope at least this fraction of its peak.
 const STEEP: f32 = 0.4;
 
@@ -40,7 +40,7 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
         let a = first.saturating_sub(sig.samples(0.200)).max(min_start);
         let quiet = min_over(env, a, first.saturating_sub(sig.samples(0.020)).max(a));
         quiet.and_then(|q| {
-            let thr = q + (ON_FRACTION as f32) * (peak - q);
+            let thr = q + ON_FRACTION * (peak - q);
             (a..=first).rev().find(|&k| env[k] <= thr)
         })
     };
@@ -48,7 +48,7 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
         let b = (last + sig.samples(0.200)).min(n - 1).min(max_end.max(last));
         let quiet = min_over(env, (last + sig.samples(0.020)).min(b), b);
         quiet.and_then(|q| {
-            let thr = q + (END_FRACTION as f32) * (peak - q);
+            let thr = q + END_FRACTION * (peak - q);
             (last..=b).find(|&k| env[k] <= thr)
         })
     };

@@ -16,7 +16,8 @@ pub struct Signals {
     pub qrs: Vec<Vec<f32>>,
     /// Each lead low-passed at 12 Hz, µV.
     pub slow: Vec<Vec<f32>>,
-    /// Sum over leads of |slope| of the 40 Hz signals (µV per sample), smoothed over ≈ 10 ms.
+    /// Sum over leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so every lead
+    /// weighs the same), smoothed over ≈ 10 ms. Dimensionless.
     pub env: Vec<f32>,
 }
 
@@ -34,8 +35,12 @@ impl Signals {
         for lead in leads {
             let x = fill_invalid(lead);
             let q: Vec<f32> = filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect();
-            for k in 1..n.saturating_sub(1) {
-                raw_env[k] += ((q[k + 1] - q[k - 1]) * 0.5).abs();
+            let scale = slope_scale(&q);
+            if scale > 0.0 {
+                let inv = 1.0 / scale;
+                for k in 1..n.saturating_sub(1) {
+                    raw_env[k] += ((q[k + 1] - q[k - 1]) * 0.5).abs() * inv;
+                }
             }
             qrs.push(q);
             slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
@@ -74,4 +79,15 @@ pub fn smooth(x: &[f32], w: usize) -> Vec<f32> {
             ((prefix[b] - prefix[a]) / (b - a) as f64) as f32
         })
         .collect()
+}
+
+/// A lead's typical QRS slope: the 99th percentile of |slope| (QRS complexes fill ≈ 10 % of a recording).
+fn slope_scale(q: &[f32]) -> f32 {
+    let step = (q.len() / 100_000).max(1);
+    let mut v: Vec<f32> = (1..q.len().saturating_sub(1)).step_by(step).map(|k| ((q[k + 1] - q[k - 1]) * 0.5).abs()).collect();
+    if v.is_empty() {
+        return 0.0;
+    }
+    let idx = (v.len() * 99 / 100).min(v.len() - 1);
+    *v.select_nth_unstable_by(idx, f32::total_cmp).1
 }

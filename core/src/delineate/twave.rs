@@ -1,19 +1,25 @@
 //! T wave end by the tangent method: the tangent at the steepest point of the T wave's terminal limb meets the
 //! isoelectric level (McLaughlin, Campbell & Murray, Br Heart J 1995;74:84-9; references.md §8). Works for
 //! upright, inverted and biphasic T waves (the terminal lobe is used). Each lead gives a T end when its T wave
-//! is clear; the global T end is the latest over the reliable leads.
+//! is clear; the global T end is the latest over the reliable leads that agree with the others.
 
 use super::signals::Signals;
 
 /// The second lobe of a biphasic T counts as terminal when at least this fraction of the main lobe.
 // Common practice, no source.
-const BIPHASIC: f32 = 0.35;
+const BIPHASIC: f32 = 0.5;
+/// …and when its peak comes within this time of the main lobe's (a later, separate wave is a U wave), s.
+// Common practice, no source.
+const BIPHASIC_GAP_S: f64 = 0.150;
 /// A lead's T wave is used when its amplitude is at least this fraction of the largest T over the leads.
 // Common practice, no source: leads with a near-flat T give unreliable tangents.
 const RELIABLE: f32 = 0.35;
 /// A T wave smaller than this (µV) is not delineated.
 // Common practice, no source.
 const MIN_T_UV: f32 = 25.0;
+/// Leads whose T end lies more than this after the median lead's are left out of the latest end, s.
+// Common practice, no source.
+const AGREE_S: f64 = 0.060;
 
 /// One lead's T wave: amplitude of the lobe used (µV, signed) and its T end (fractional sample).
 #[derive(Debug, Clone, Copy)]
@@ -34,34 +40,37 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
     let found: Vec<LeadT> = sig
         .slow
         .iter()
-        .zip(&sig.qrs)
-        .filter_map(|(slow, q)| {
-            let a = iso_at - sig.samples(0.016);
-            let iso = q[a..=iso_at].iter().sum::<f32>() / (iso_at - a + 1) as f32;
-            lead_t_end(slow, iso, from, to, sig.samples(0.250))
+        .filter_map(|slow| {
+            // Isoelectric level: median of the 200 ms before QRS onset (PR and TP segments; the P wave is brief).
+            let mut pre: Vec<f32> = slow[iso_at.saturating_sub(sig.samples(0.200))..=iso_at].to_vec();
+            let mid = pre.len() / 2;
+            let iso = *pre.select_nth_unstable_by(mid, f32::total_cmp).1;
+            lead_t_end(slow, iso, from, to, sig.samples(0.250), sig.samples(BIPHASIC_GAP_S))
         })
         .collect();
     let biggest = found.iter().map(|t| t.amplitude.abs()).fold(0.0f32, f32::max);
     if biggest < MIN_T_UV {
         return None;
     }
-    let latest = found
-        .iter()
-        .filter(|t| t.amplitude.abs() >= RELIABLE * biggest)
-        .map(|t| t.end)
-        .fold(f64::NEG_INFINITY, f64::max);
+    let mut ends: Vec<f64> =
+        found.iter().filter(|t| t.amplitude.abs() >= RELIABLE * biggest).map(|t| t.end).collect();
+    ends.sort_by(f64::total_cmp);
+    // Latest end among the leads that agree: a lead more than AGREE_S past the median lead is taken as misled
+    // (a U wave or the next P wave), not as the last lead to finish.
+    let med = ends[ends.len() / 2];
+    let latest = ends.iter().copied().filter(|&e| e <= med + AGREE_S * sig.fs).fold(f64::NEG_INFINITY, f64::max);
     (latest.is_finite() && latest >= from as f64).then(|| latest.round() as usize)
 }
 
 /// T end on one lead, or `None` when the tangent is flat or lands outside the search window.
-fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize) -> Option<LeadT> {
+fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap: usize) -> Option<LeadT> {
     let dev = |k: usize| x[k] - iso;
     let main = (from..=to).max_by(|&i, &j| dev(i).abs().total_cmp(&dev(j).abs()))?;
     let a_main = dev(main);
     // Terminal lobe: an opposite-sign extremum after the main one, big enough, makes the T biphasic.
     let mut peak = main;
     if main < to {
-        let opp = (main + 1..=to).max_by(|&i, &j| (-dev(i) * a_main.signum()).total_cmp(&(-dev(j) * a_main.signum())));
+        let opp = (main + 1..=to.min(main + gap)).max_by(|&i, &j| (-dev(i) * a_main.signum()).total_cmp(&(-dev(j) * a_main.signum())));
         if let Some(o) = opp {
             if -dev(o) * a_main.signum() >= BIPHASIC * a_main.abs() && o + 2 < to {
                 peak = o;
@@ -105,9 +114,9 @@ mod tests {
         for k in 100..160 {
             x[k] = 300.0 * (160 - k) as f32 / 60.0;
         }
-        let t = lead_t_end(&x, 0.0, 30, 200, 100).map(|t| t.end.round() as usize);
+        let t = lead_t_end(&x, 0.0, 30, 200, 100, 40).map(|t| t.end.round() as usize);
         assert_eq!(t, Some(160));
         let inv: Vec<f32> = x.iter().map(|v| -v).collect();
-        assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100).map(|t| t.end.round() as usize), Some(160));
+        assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100, 40).map(|t| t.end.round() as usize), Some(160));
     }
 }

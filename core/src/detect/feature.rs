@@ -135,7 +135,7 @@ mod tests {
     fn integration_matches_naive_mean() {
         let x: Vec<f64> = (0..50).map(|k| ((k * 7) % 11) as f64).collect();
         let fast = integrate(&x, 5);
-        for k in 0..50 {
+        for k in 0..50usize {
             let a = k.saturating_sub(2);
             let b = (k + 3).min(50);
             let slow = x[a..b].iter().sum::<f64>() / 5.0;

@@ -100,7 +100,7 @@ mod tests {
         let fs = 250.0;
         let mut x = vec![0.0f32; 5000];
         for b in 0..19 {
-            let r = 125 + b * 250;
+            let r: usize = 125 + b * 250;
             for k in r.saturating_sub(10)..r + 10 {
                 x[k] = 1.0 - (k as f32 - r as f32).abs() / 10.0;
             }
@@ -119,7 +119,7 @@ mod tests {
         let fs = 250.0;
         let mut x = vec![0.0f32; 5000];
         for b in 0..19 {
-            let r = 125 + b * 250;
+            let r: usize = 125 + b * 250;
             let h = if b == 10 { 0.2 } else { 1.0 };
             for k in r - 10..r + 10 {
                 x[k] = h * (1.0 - (k as f32 - r as f32).abs() / 10.0);

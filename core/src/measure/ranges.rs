@@ -40,7 +40,8 @@ pub struct RangeNote {
 
 /// Source of the QRS duration limits.
 pub const SOURCE_QRS: &str = "Surawicz et al. 2009, J Am Coll Cardiol 53:976-81";
-/// Source of the QTc limits. // From memory (references.md §4): Rautaharju et al. 2009, J Am Coll Cardiol 53:982-91.
+/// Source of the QTc limits (≥ 450 ms men, ≥ 460 ms women, ≤ 390 ms short).
+// From memory (references.md §4 marks these limits as recalled, not confirmed in a retrieved text).
 pub const SOURCE_QTC: &str = "Rautaharju et al. 2009, J Am Coll Cardiol 53:982-91";
 /// Source of the 500 ms QTc threshold.
 pub const SOURCE_QTC_500: &str = "Johnson & Ackerman 2009, Br J Sports Med";
@@ -53,7 +54,7 @@ fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
     Some(RangeNote { key: key.to_string(), text, source })
 }
 
-/// Heart rate outside 60–100 bpm. // Source: references.md §4 (textbook resting range).
+/// Heart rate outside 60–100 bpm (references.md §4: textbook resting range).
 #[must_use]
 pub fn heart_rate(bpm: f64) -> Option<RangeNote> {
     let side = if bpm < 60.0 { "below" } else if bpm > 100.0 { "above" } else { return None };
@@ -61,7 +62,7 @@ pub fn heart_rate(bpm: f64) -> Option<RangeNote> {
         ({SOURCE_TEXTBOOK})"), SOURCE_TEXTBOOK)
 }
 
-/// PR outside 120–200 ms. // Source: references.md §4 (textbook range).
+/// PR outside 120–200 ms (references.md §4: textbook range).
 #[must_use]
 pub fn pr(ms: f64) -> Option<RangeNote> {
     let text = if ms > 200.0 {
@@ -74,7 +75,7 @@ pub fn pr(ms: f64) -> Option<RangeNote> {
     note("pr_ms", text, SOURCE_TEXTBOOK)
 }
 
-/// QRS above 110 ms (adults); 120 ms named separately. // Source: Surawicz et al. 2009 (references.md §4).
+/// QRS above 110 ms (adults); 120 ms named separately (Surawicz et al. 2009, references.md §4).
 #[must_use]
 pub fn qrs(ms: f64) -> Option<RangeNote> {
     let text = if ms >= 120.0 {
@@ -113,7 +114,7 @@ pub fn qtc(key: &str, formula: &str, ms: f64, sex: Sex) -> Option<RangeNote> {
     note(key, text, SOURCE_QTC)
 }
 
-/// QRS axis outside −30° to +90°. // Source: references.md §4 (textbook frontal axis ranges).
+/// QRS axis outside −30° to +90° (references.md §4: textbook frontal axis ranges).
 #[must_use]
 pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
     let side = if (-90.0..-30.0).contains(&deg) {
@@ -147,6 +148,8 @@ mod tests {
 
     #[test]
     fn qtc_limits_by_sex() {
+        // Source: Rautaharju et al., J Am Coll Cardiol 2009;53:982-91 (from memory: 450/460/390 ms);
+        // Johnson & Ackerman, Br J Sports Med 2009 (500 ms). references.md §4.
         let n = qtc("qtc_bazett_ms", "Bazett", 478.0, Sex::Female).map(|n| n.text).unwrap_or_default();
         assert_eq!(n, "QTc (Bazett) 478 ms — at or above the usual upper limit of 460 ms for women (Rautaharju et al. 2009)");
         assert!(qtc("k", "Bazett", 455.0, Sex::Female).is_none());
@@ -159,6 +162,8 @@ mod tests {
 
     #[test]
     fn other_limits() {
+        // Source: references.md §4 — PR 120–200 ms and rate 60–100 bpm (textbook), QRS > 110 ms and ≥ 120 ms
+        // (Surawicz et al., J Am Coll Cardiol 2009;53:976-81), normal QRS axis −30° to +90° (textbook).
         assert!(pr(210.0).is_some() && pr(110.0).is_some() && pr(160.0).is_none());
         assert!(qrs(100.0).is_none() && qrs(115.0).is_some() && qrs(130.0).is_some());
         assert!(heart_rate(55.0).is_some() && heart_rate(75.0).is_none() && heart_rate(110.0).is_some());

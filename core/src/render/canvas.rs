@@ -3,7 +3,7 @@
 //! Coordinate spaces: "paper" is mm from the page's top-left corner (as in [`crate::paper`]); "image" is pixels.
 //! `image_from_paper(mm) = mm × dpi / 25.4`.
 
-use tiny_skia::{Color, FillRule, LineCap, LineJoin, Paint, Path, Pixmap, Rect, Stroke, StrokeDash, Transform};
+use tiny_skia::{Color, LineCap, LineJoin, Paint, Path, Pixmap, Rect, Stroke, StrokeDash, Transform};
 
 use crate::paper::Rgba;
 
@@ -68,10 +68,20 @@ impl Canvas {
     /// Strokes a path given in image pixels, anti-aliased, with round joins and caps; `dash_mm` gives an
     /// on/off pattern in paper mm.
     pub fn stroke(&mut self, path: &Path, c: Rgba, width_mm: f64, dash_mm: Option<(f64, f64)>) {
+        self.stroke_with(path, c, width_mm, dash_mm, LineJoin::Round);
+    }
+
+    /// Strokes a long polyline (a trace): bevel joins, which look the same at trace widths and avoid the many
+    /// arc edges that round joins add to paths of thousands of vertices.
+    pub fn stroke_polyline(&mut self, path: &Path, c: Rgba, width_mm: f64) {
+        self.stroke_with(path, c, width_mm, None, LineJoin::Bevel);
+    }
+
+    fn stroke_with(&mut self, path: &Path, c: Rgba, width_mm: f64, dash_mm: Option<(f64, f64)>, join: LineJoin) {
         let stroke = Stroke {
             width: (width_mm * self.ppm).max(1.0) as f32,
-            line_cap: LineCap::Round,
-            line_join: LineJoin::Round,
+            line_cap: if join == LineJoin::Round { LineCap::Round } else { LineCap::Butt },
+            line_join: join,
             dash: dash_mm.and_then(|(on, off)| StrokeDash::new(vec![self.px(on), self.px(off)], 0.0)),
             ..Stroke::default()
         };
@@ -99,11 +109,5 @@ impl Canvas {
             let path = tiny_skia::PathBuilder::from_rect(r);
             self.stroke(&path, c, width_mm, None);
         }
-    }
-
-    /// Fills a closed path in image pixels.
-    #[allow(dead_code)]
-    pub fn fill_path(&mut self, path: &Path, c: Rgba) {
-        self.pixmap.fill_path(path, &paint(c, true), FillRule::Winding, Transform::identity(), None);
     }
 }

@@ -33,12 +33,13 @@ pub(super) fn header(input: &RenderInput) -> Header {
             s.second()
         ));
     }
-    fields.push(format!("Window: {:.2}\u{2013}{:.2} s", spec.start_s, spec.start_s + spec.seconds));
-    fields.push(format!("Layout: {} ({})", spec.layout, spec.order.as_str()));
-    fields.push(format!("{} Hz", rec.sample_rate.hz()));
+    // Most important first: a narrow page cuts the line from the right.
     for (k, v) in &input.header {
         fields.push(format!("{k}: {v}"));
     }
+    fields.push(format!("Window: {:.2}\u{2013}{:.2} s", spec.start_s, spec.start_s + spec.seconds));
+    fields.push(format!("Layout: {} ({})", spec.layout, spec.order.as_str()));
+    fields.push(format!("{} Hz", rec.sample_rate.hz()));
     let meta = if input.identify { rec.meta.clone() } else { rec.meta.deidentified() };
     let mut patient = Vec::new();
     if let Some(v) = &meta.patient_name {

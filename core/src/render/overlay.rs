@@ -40,7 +40,7 @@ fn cells(page: &Page) -> impl Iterator<Item = (&Row, &Cell)> {
 }
 
 /// Text on a small paper-coloured plate so grid lines do not cut through it.
-fn plate_text(canvas: &mut Canvas, fonts: &Fonts, text: &str, x: f64, baseline: f64, st: Style, align: Align, bg: [u8; 4]) {
+fn plate_text(canvas: &mut Canvas, fonts: &Fonts, text: &str, (x, baseline): (f64, f64), st: Style, align: Align, bg: [u8; 4]) {
     let w = fonts.width_mm(text, st, canvas.ppm);
     let cap = Fonts::cap_mm(st);
     let left = match align {
@@ -67,7 +67,7 @@ pub(super) fn draw_marks(canvas: &mut Canvas, fonts: &Fonts, page: &Page, marks:
                 let bottom = row.top_mm + row.height_mm;
                 let label_y = bottom - 0.8 - tier(kind) as f64 * lh;
                 if labels {
-                    plate_text(canvas, fonts, short(kind), x, label_y, st, Align::Center, pal.background);
+                    plate_text(canvas, fonts, short(kind), (x, label_y), st, Align::Center, pal.background);
                 } else {
                     let end = label_y - Fonts::cap_mm(st) - 0.6;
                     canvas.segment((x, row.top_mm + 6.0), (x, end), pal.mark, MARK_MM, Some((0.8, 0.5)));
@@ -109,7 +109,7 @@ pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, rec
                         canvas.segment((legs[0], y), (legs[1], y), pal.caliper, LEG_MM, None);
                         if !readout_done {
                             let mid = (legs[0] + legs[1]) / 2.0;
-                            plate_text(canvas, fonts, &cal.readout(), mid, y - 1.0, st, Align::Center, pal.background);
+                            plate_text(canvas, fonts, &cal.readout(), (mid, y - 1.0), st, Align::Center, pal.background);
                             readout_done = true;
                         }
                     }
@@ -127,7 +127,7 @@ pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, rec
                     canvas.segment((x, y1), (x, y2), pal.caliper, MARCH_MM, None);
                     if !readout_done {
                         let base = (y1 + y2) / 2.0 + Fonts::cap_mm(st) / 2.0;
-                        plate_text(canvas, fonts, &cal.readout(), x + 5.0, base, st, Align::Left, pal.background);
+                        plate_text(canvas, fonts, &cal.readout(), (x + 5.0, base), st, Align::Left, pal.background);
                         readout_done = true;
                     }
                 }
@@ -138,7 +138,7 @@ pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, rec
                     let x = cell.x_from_time(&p, t_s);
                     canvas.segment((x, row.top_mm), (x, row.top_mm + row.height_mm), pal.caliper, MARCH_MM, Some((2.0, 1.0)));
                     if !readout_done {
-                        plate_text(canvas, fonts, &cal.readout(), x + 1.0, top + 6.0, st, Align::Left, pal.background);
+                        plate_text(canvas, fonts, &cal.readout(), (x + 1.0, top + 6.0), st, Align::Left, pal.background);
                         readout_done = true;
                     }
                 }

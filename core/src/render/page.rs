@@ -13,6 +13,8 @@ use super::{MAX_DPI, MAX_PIXELS, RenderError, RenderInput, furniture, ledger, ov
 use crate::paper::{Page, Palette, margins, px_per_mm};
 
 const LABEL_PT: f64 = 9.0;
+/// Narrowest sheet, mm: room for the header and the caution on one or two lines.
+const MIN_WIDTH_MM: f64 = 160.0;
 
 fn check(input: &RenderInput) -> Result<(), RenderError> {
     if !input.dpi.is_finite() || input.dpi <= 0.0 || input.dpi > MAX_DPI {
@@ -57,12 +59,14 @@ pub(super) fn render(input: &RenderInput) -> Result<Pixmap, RenderError> {
     let area = grid_area(&page);
     // Page size first (cheap), so an absurd request fails before any drawing.
     size_px(page.width_mm, page.height_mm, ppm)?;
-    let plan = ledger::plan(&fonts, &input.ledger, page.width_mm, ppm, &pal);
+    // Short windows give narrow paper; the sheet is widened (blank to the right) so the header stays legible.
+    let width_mm = page.width_mm.max(MIN_WIDTH_MM);
+    let plan = ledger::plan(&fonts, &input.ledger, width_mm, ppm, &pal);
     let ledger_h = plan.as_ref().map_or(0.0, ledger::height_mm);
-    let caution = furniture::caution_lines(&fonts, page.width_mm, ppm);
+    let caution = furniture::caution_lines(&fonts, width_mm, ppm);
     let footer_top = area.y1 + ledger_h;
     let height_mm = footer_top + furniture::footer_height_mm(caution.len());
-    let (w, h) = size_px(page.width_mm, height_mm.max(page.height_mm), ppm)?;
+    let (w, h) = size_px(width_mm, height_mm.max(page.height_mm), ppm)?;
     let pixmap = Pixmap::new(w, h).ok_or(RenderError::TooLarge { width: u64::from(w), height: u64::from(h) })?;
     let mut canvas = Canvas { pixmap, ppm };
     canvas.pixmap.fill(color(pal.background));
@@ -71,7 +75,7 @@ pub(super) fn render(input: &RenderInput) -> Result<Pixmap, RenderError> {
     draw_rows(&mut canvas, &fonts, input, &page, area, &pal);
     overlay::draw_marks(&mut canvas, &fonts, &page, &input.marks, &pal);
     overlay::draw_calipers(&mut canvas, &fonts, &page, input.recording, &input.calipers, &pal);
-    furniture::draw_header(&mut canvas, &fonts, input, page.width_mm, &pal);
+    furniture::draw_header(&mut canvas, &fonts, input, width_mm, &pal);
     if let Some(plan) = &plan {
         ledger::draw(&mut canvas, &fonts, &input.ledger, plan, area.y1, &pal);
     }

@@ -22,10 +22,14 @@ pub fn encode_png(pixmap: &Pixmap, dpi: f64) -> Result<Vec<u8>, RenderError> {
     }
     let ppm = (dpi / INCH_M).round() as u32;
     // Un-premultiply into RGB (pages are opaque; alpha is dropped).
-    let mut rgb = Vec::with_capacity(pixmap.width() as usize * pixmap.height() as usize * 3);
-    for p in pixmap.pixels() {
-        let c = p.demultiply();
-        rgb.extend_from_slice(&[c.red(), c.green(), c.blue()]);
+    let mut rgb = vec![0u8; pixmap.width() as usize * pixmap.height() as usize * 3];
+    for (dst, p) in rgb.chunks_exact_mut(3).zip(pixmap.pixels()) {
+        if p.alpha() == 255 {
+            dst.copy_from_slice(&[p.red(), p.green(), p.blue()]);
+        } else {
+            let c = p.demultiply();
+            dst.copy_from_slice(&[c.red(), c.green(), c.blue()]);
+        }
     }
     let mut out = Vec::new();
     {

@@ -113,7 +113,7 @@ pub(super) fn draw_cell(
         }
     }
     if let Some(path) = pb.finish() {
-        canvas.stroke(&path, color, TRACE_MM, None);
+        canvas.stroke_polyline(&path, color, TRACE_MM);
     }
 }
 

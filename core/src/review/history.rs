@@ -96,6 +96,7 @@ impl fmt::Display for Change {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a test fails by panicking
 mod tests {
     use super::*;
 

@@ -175,6 +175,7 @@ pub fn relative_to_review(target: &Path, review_path: &Path) -> String {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a test fails by panicking
 mod tests {
     use super::*;
 

@@ -50,12 +50,37 @@ pub fn load(path: &Path) -> Result<Review, ReviewError> {
 /// As [`load`].
 pub fn from_ron(path: &Path, text: &str) -> Result<Review, ReviewError> {
     let version: VersionOnly = ron::from_str(text).map_err(|e| ron_error(path, &e))?;
-    match version.format_version {
+    let review = match version.format_version {
         None => Err(parse_error(path, 1, 1, Some("format_version"), "missing field `format_version`".to_owned())),
         Some(1) => ron::from_str::<ReviewV1>(text).map(ReviewV1::migrate).map_err(|e| ron_error(path, &e)),
         Some(v) if v == u64::from(FORMAT_VERSION) => ron::from_str::<Review>(text).map_err(|e| ron_error(path, &e)),
         Some(found) => Err(ReviewError::UnsupportedVersion { path: path.to_path_buf(), found }),
+    }?;
+    check_values(path, text, &review)?;
+    Ok(review)
+}
+
+/// Values RON accepts but a review cannot hold.
+fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewError> {
+    let at = |field: &str, message: String| {
+        // Point at the first line that sets the field.
+        let needle = format!("{field}:");
+        let (line, column) = text
+            .lines()
+            .enumerate()
+            .find_map(|(i, l)| l.find(&needle).map(|c| (i + 1, c + 1)))
+            .unwrap_or((1, 1));
+        Err(parse_error(path, line, column, Some(field), message))
+    };
+    let sha = &review.recording.sha256;
+    if sha.len() != 64 || !sha.bytes().all(|b| b.is_ascii_hexdigit()) {
+        return at("sha256", format!("`sha256` must be 64 hexadecimal digits, found {sha:?}"));
     }
+    let fs = review.recording.sample_rate_hz;
+    if !(fs.is_finite() && fs > 0.0) {
+        return at("sample_rate_hz", format!("`sample_rate_hz` must be a positive number, found {fs}"));
+    }
+    Ok(())
 }
 
 /// Loads a review and checks that it belongs to the recording at `recording_path` (as given to
@@ -92,13 +117,25 @@ fn ron_error(path: &Path, e: &ron::error::SpannedError) -> ReviewError {
         E::DuplicateStructField { field, outer } => {
             (Some(*field), format!("field `{field}` given twice{}", within(outer.as_deref())))
         }
+        E::Eof => (None, "the file ends early (cut short?)".to_owned()),
         other => (None, other.to_string()),
     };
     parse_error(path, pos.line, pos.col, field, message)
 }
 
+/// Names the part of the file a Rust struct stands for.
 fn within(outer: Option<&str>) -> String {
-    outer.map(|o| format!(" in {o}")).unwrap_or_default()
+    let part = match outer {
+        None => return String::new(),
+        Some("Review" | "ReviewV1") => "the review",
+        Some("RecordingIdentity") => "`recording`",
+        Some("Mark") => "a `marks` entry",
+        Some("Measurement") => "a `measurements` entry",
+        Some("Change") => "a `history` entry",
+        Some("Caliper") => "a `calipers` entry",
+        Some(other) => other,
+    };
+    format!(" in {part}")
 }
 
 fn line_col(prefix: &[u8]) -> (usize, usize) {

@@ -29,6 +29,8 @@ use std::path::PathBuf;
 use thiserror::Error;
 
 pub mod agreement;
+pub mod automatic;
+mod edit;
 pub mod history;
 pub mod identity;
 pub mod load;

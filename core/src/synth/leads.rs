@@ -67,12 +67,12 @@ impl LeadSet {
 /// From memory: approximate directions of V1–V6 round the chest; gains (nearness of the electrode to the
 /// heart) are chosen to give the usual R-wave progression. Common practice, no source.
 const CHEST: [(StandardLead, f64, f64); 6] = [
-    (StandardLead::V1, 115.0, 1.0),
-    (StandardLead::V2, 94.0, 1.5),
-    (StandardLead::V3, 75.0, 1.7),
-    (StandardLead::V4, 60.0, 1.8),
-    (StandardLead::V5, 30.0, 1.6),
-    (StandardLead::V6, 0.0, 1.3),
+    (StandardLead::V1, 115.0, 2.0),
+    (StandardLead::V2, 94.0, 2.8),
+    (StandardLead::V3, 75.0, 2.8),
+    (StandardLead::V4, 60.0, 2.6),
+    (StandardLead::V5, 30.0, 2.2),
+    (StandardLead::V6, 0.0, 1.7),
 ];
 
 /// Unit vector (times gain for chest leads) that a lead projects the dipole on; `None` for III, aVR, aVL,
@@ -107,15 +107,15 @@ pub fn sinus_dipoles(spec: &SynthSpec) -> Dipoles {
     let r = spec.r_amplitude_uv;
     [
         dipole(0.15 * r, spec.p_axis_deg, 0.03 * r),
-        dipole(-r / 6.0, spec.axis_deg, 0.12 * r),
-        dipole(r, spec.axis_deg, -0.10 * r),
-        dipole(-0.25 * r, spec.axis_deg, -0.12 * r),
+        dipole(-r / 6.0, spec.axis_deg, 0.08 * r),
+        dipole(r, spec.axis_deg, -0.15 * r),
+        dipole(-0.25 * r, spec.axis_deg, -0.08 * r),
         dipole(0.3 * r, spec.t_axis_deg, 0.08 * r),
     ]
 }
 
 /// Frontal direction of ectopic beats relative to the sinus QRS axis, degrees.
-pub const ECTOPIC_AXIS_TURN_DEG: f64 = 150.0;
+pub const ECTOPIC_AXIS_TURN_DEG: f64 = -135.0;
 
 /// Dipoles of an ectopic (ventricular) beat: a QRS turned by [`ECTOPIC_AXIS_TURN_DEG`], larger and pointing
 /// forward, with a T wave opposite to it (discordant). The P entry is unused (ectopic beats have no P).

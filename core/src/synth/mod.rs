@@ -39,9 +39,6 @@ pub use rhythm::{Ectopics, TrueKind};
 pub use scenario::Scenario;
 pub use truth::{TrueBeat, Truth};
 
-/// Longest integration step, s: fine enough for QRS events a few ms wide.
-pub const MAX_STEP_S: f64 = 0.001;
-
 /// Everything a synthetic recording is made from. Times in ms, amplitudes in µV, angles in degrees.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct SynthSpec {
@@ -101,7 +98,7 @@ impl Default for SynthSpec {
             p_ms: 100.0,
             qrs_ms: 90.0,
             qt_ms: 380.0,
-            axis_deg: 60.0,
+            axis_deg: 50.0,
             p_axis_deg: 50.0,
             t_axis_deg: 45.0,
             r_amplitude_uv: 1000.0,
@@ -205,11 +202,10 @@ pub fn generate(spec: &SynthSpec) -> Result<Synthetic, SynthError> {
         }
     }
     let mut data: Vec<Vec<f32>> = projected.iter().map(|_| Vec::with_capacity(n)).collect();
-    let substeps = ((1.0 / fs) / MAX_STEP_S).ceil().max(1.0) as usize;
     let mut ode = model::Integrator::new(&plan.events, spec.pull_per_s, offset);
     for i in 0..n {
         if i > 0 {
-            ode.advance(i as f64 / fs, substeps);
+            ode.advance(i as f64 / fs);
         }
         let z = ode.z();
         for (lead, p) in data.iter_mut().zip(&proj) {
@@ -226,7 +222,7 @@ pub fn generate(spec: &SynthSpec) -> Result<Synthetic, SynthError> {
         start: None,
         meta: Meta {
             recording_info: Some(format!("Isoline synthetic demo, scenario {}, seed {}", spec.scenario, spec.seed)),
-            device: Some("isoline synth (McSharry et al. 2003 model)".into()),
+            device: Some("isoline-synth".into()),
             ..Meta::default()
         },
         annotations: Vec::new(),

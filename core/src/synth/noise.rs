@@ -58,11 +58,13 @@ impl Rng {
         (self.next_u64() >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
     }
 
-    /// Approximately standard normal: the sum of four uniforms, centred and scaled to unit variance
-    /// (Irwin–Hall; light tails, which suits band-limited noise).
+    /// Zero-mean, unit-variance random value with a triangular distribution: the sum of two 32-bit uniforms
+    /// from one draw, centred and scaled (variance of the sum 1/6). Band-limiting makes it near-normal.
     pub fn normalish(&mut self) -> f64 {
-        let s = self.uniform() + self.uniform() + self.uniform() + self.uniform();
-        (s - 2.0) * 3f64.sqrt()
+        let r = self.next_u64();
+        let scale = 1.0 / 4_294_967_296.0;
+        let s = (r >> 32) as f64 * scale + (r & 0xFFFF_FFFF) as f64 * scale;
+        (s - 1.0) * 6f64.sqrt()
     }
 }
 

@@ -8,7 +8,7 @@ use super::rhythm::Ectopics;
 /// A named demo scenario.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Scenario {
-    /// Sinus rhythm 72 bpm, PR 160 ms, QRS 90 ms, QT 380 ms, axis +60°.
+    /// Sinus rhythm 72 bpm, PR 160 ms, QRS 90 ms, QT 380 ms, axis +50°.
     Normal,
     /// Sinus rhythm 60 bpm with QT 520 ms.
     LongQt,
@@ -64,7 +64,7 @@ impl Scenario {
     #[must_use]
     pub fn description(self) -> &'static str {
         match self {
-            Self::Normal => "sinus rhythm 72 bpm, PR 160 ms, QRS 90 ms, QT 380 ms, QRS axis +60 degrees",
+            Self::Normal => "sinus rhythm 72 bpm, PR 160 ms, QRS 90 ms, QT 380 ms, QRS axis +50 degrees",
             Self::LongQt => "sinus rhythm 60 bpm with a long QT (520 ms)",
             Self::WideQrs => "wide QRS (140 ms) with left axis (-30 degrees)",
             Self::FirstDegreeBlock => "long PR (260 ms), first-degree AV block pattern",

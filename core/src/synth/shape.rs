@@ -4,7 +4,9 @@
 //! its first event (trailing edge of its last event) meets the baseline. For a Gaussian of width σ that point
 //! lies exactly 2σ from the centre, where the event has fallen to e⁻² ≈ 13.5 % of its peak. For T end this is
 //! the tangent method (McLaughlin et al., Br Heart J 1995;74:84-9; references.md §8); the same rule is used for
-//! P onset, P end, QRS onset and J point so that every boundary has one definition. Boundaries are computed
+//! P onset, P end, QRS onset and J point so that every boundary has one definition. At usual amplitudes the
+//! outermost event is then 20–40 µV from the baseline (0.2–0.4 mm at 10 mm/mV), about the smallest deflection
+//! a reader sees on paper, so the truth sits where a careful reader would mark. Boundaries are computed
 //! from the events themselves ([`wave_span`]), not from the requested values, and tests check that they agree.
 
 use super::model::{Event, PAPER_EVENTS};

@@ -1,6 +1,6 @@
 //! A made-up review for the review tests (our own demo scenario: ward 7, bed 2; no real patient).
 
-#![allow(dead_code)]
+#![allow(dead_code, clippy::unwrap_used)]
 
 use isoline_core::MarkKind;
 use isoline_core::caliper::{Caliper, CaliperKind};

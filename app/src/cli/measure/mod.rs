@@ -10,6 +10,7 @@ use std::process::ExitCode;
 
 use anyhow::Context as _;
 use indicatif::{ProgressBar, ProgressStyle};
+use isoline_core::filter::FilterSettings;
 use isoline_core::io;
 use isoline_core::measure::Measurements;
 use isoline_core::recording::Recording;
@@ -47,14 +48,16 @@ pub struct Args {
 }
 
 /// Measures one recording: filters, beats, boundaries, representative beat, measurements.
-fn analyze(recording: &Recording) -> anyhow::Result<Measurements> {
-    let _ = recording;
-    anyhow::bail!("automatic measurement needs beat detection and wave boundaries, not in this build yet")
+fn analyze(recording: &Recording) -> Measurements {
+    isoline_core::analysis::analyze(recording, &FilterSettings::default()).measurements
 }
 
-fn measure_file(path: &Path, rate: Option<f64>) -> anyhow::Result<(Row, Vec<String>)> {
+/// A measured row with the reader's warnings, or why the file could not be measured.
+type Outcome = anyhow::Result<(Row, Vec<String>)>;
+
+fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
     let opened = io::open(path, &io::OpenOptions { csv_rate_hz: rate })?;
-    let m = analyze(&opened.recording)?;
+    let m = analyze(&opened.recording);
     let r = &opened.recording;
     let row = Row {
         file: path.display().to_string(),
@@ -93,7 +96,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if let Ok(style) = ProgressStyle::with_template("{bar:30} {pos}/{len} recordings measured, {elapsed} {msg}") {
         bar.set_style(style);
     }
-    let results: Vec<(PathBuf, anyhow::Result<(Row, Vec<String>)>)> = found
+    let results: Vec<(PathBuf, Outcome)> = found
         .files
         .par_iter()
         .map(|p| {

@@ -240,7 +240,7 @@ mod tests {
 
     #[test]
     fn bound_field_fits_and_bounds() {
-        for v in [0.0, -4999.876_5, 12_345.678_9, 1.0e-9, -0.000_4, 9_999_999.4] {
+        for v in [0.0, -4_999.876_5, 12_345.678_9, 1.0e-9, -0.000_4, 9_999_999.4] {
             let lo = bound_field(v, 8, true).unwrap_or_default();
             let hi = bound_field(v, 8, false).unwrap_or_default();
             assert!(lo.len() <= 8 && hi.len() <= 8, "{lo} {hi}");

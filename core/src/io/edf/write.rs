@@ -44,7 +44,7 @@ fn record_duration(fs: f64, n_leads: usize) -> Option<(f64, usize)> {
         .filter_map(|&d| {
             let spr = fs * d;
             let r = spr.round();
-            ((spr - r).abs() < 1e-9 * r.max(1.0) && r >= 1.0 && r <= 1.0e7).then_some((d, r as usize))
+            ((spr - r).abs() < 1e-9 * r.max(1.0) && (1.0..=1.0e7).contains(&r)).then_some((d, r as usize))
         })
         .collect();
     whole.iter().copied().find(|&(_, spr)| 2 * spr * n_leads <= MAX_RECORD_BYTES).or_else(|| whole.first().copied())

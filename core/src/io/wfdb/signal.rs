@@ -91,24 +91,29 @@ fn decode_into(
     sums: &mut [u16],
 ) {
     let total = n_sig * n_frames;
-    let mut push = |k: usize, d: i32, invalid: bool| {
-        let sig = k % n_sig;
+    // The signal of the next sample cycles 0, 1, …, n_sig − 1 (a counter, not a division per sample).
+    let mut sig = 0usize;
+    let mut push = |d: i32, invalid: bool| {
         sums[sig] = sums[sig].wrapping_add(d as u16);
         let (scale, baseline) = scales[sig];
         out[sig].push(if invalid { f32::NAN } else { ((f64::from(d) - baseline) * scale) as f32 });
+        sig += 1;
+        if sig == n_sig {
+            sig = 0;
+        }
     };
     match format {
         16 | 61 => {
-            for (k, b) in bytes.chunks_exact(2).take(total).enumerate() {
+            for b in bytes.chunks_exact(2).take(total) {
                 let b = [b[0], b[1]];
                 let v = if format == 16 { i16::from_le_bytes(b) } else { i16::from_be_bytes(b) };
-                push(k, i32::from(v), v == i16::MIN);
+                push(i32::from(v), v == i16::MIN);
             }
         }
         80 => {
-            for (k, &b) in bytes.iter().take(total).enumerate() {
+            for &b in bytes.iter().take(total) {
                 let v = i32::from(b) - 128;
-                push(k, v, v == -128);
+                push(v, v == -128);
             }
         }
         212 => {
@@ -119,10 +124,10 @@ fn decode_into(
                     break;
                 }
                 let first = twelve(i32::from(b[0]) | ((i32::from(b[1]) & 0x0F) << 8));
-                push(k, first, first == -2048);
+                push(first, first == -2048);
                 if k + 1 < total {
                     let second = twelve(i32::from(b[2]) | ((i32::from(b[1]) & 0xF0) << 4));
-                    push(k + 1, second, second == -2048);
+                    push(second, second == -2048);
                 }
             }
         }
