@@ -8,7 +8,6 @@ use std::process::ExitCode;
 use std::sync::Arc;
 
 use anyhow::Context as _;
-use isoline_core::caliper::CaliperKind;
 use isoline_core::filter::FilterSettings;
 use isoline_core::io::{self, OpenOptions};
 
@@ -17,6 +16,8 @@ pub mod calipers_ui;
 pub mod command;
 pub mod derived;
 pub mod ledger;
+mod edits;
+mod review_actions;
 pub mod review_io;
 pub mod settings;
 mod shell;
@@ -26,7 +27,7 @@ pub mod tape;
 
 use command::{Command, History};
 use settings::Settings;
-use state::{Document, Loaded, Part, Tool, UiState};
+use state::{Document, Loaded, Tool, UiState};
 
 /// A file dialog the shell should show.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -180,68 +181,16 @@ impl IsolineApp {
             Command::OpenDialog => self.wants_dialog = Some(Dialog::OpenRecording),
             Command::OpenReviewDialog => self.wants_dialog = Some(Dialog::OpenReview),
             Command::SaveReviewDialog => self.wants_dialog = Some(Dialog::SaveReviewAs),
-            Command::SaveReview => {
-                if let Some(l) = &self.loaded {
-                    let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
-                    self.save_review(path);
-                }
-            }
-            Command::SaveReviewAs(p) => self.save_review(p),
-            Command::OpenReview(p) => self.open_review(&p, true),
-            Command::SetStage(s) => {
-                if self.review.stage == isoline_core::review::Stage::Final {
-                    self.ui_state.error = Some("The review is final: reopen it to change its stage.".into());
-                } else if self.review.stage != s {
-                    self.review.stage = s;
-                    self.review.dirty = true;
-                }
-            }
-            Command::Reopen => {
-                if self.review.stage == isoline_core::review::Stage::Final {
-                    self.review.stage = isoline_core::review::Stage::Draft;
-                    self.review.dirty = true;
-                }
-            }
-            Command::SetSummary(t) => {
-                if self.review.stage == isoline_core::review::Stage::Final {
-                    self.ui_state.error = Some("The review is final: reopen it to change it.".into());
-                } else {
-                    self.review.summary = t;
-                    self.review.dirty = true;
-                }
-            }
-            Command::SetReader(name) => {
-                self.settings.reader = Some(name);
-                if let Some(p) = self.review.asking_reader.take() {
-                    self.save_review(p);
-                }
-            }
-            Command::ApplyMismatched(yes) => {
-                if let Some((path, r)) = self.review.mismatch.take()
-                    && yes
-                {
-                    self.apply_review(r, path);
-                }
-            }
-            Command::Recover(yes) => {
-                if let Some(r) = self.review.recovery.take() {
-                    let path = self.review.path.clone().or_else(|| self.loaded.as_ref().map(|l| review_io::default_review_path(&l.path)));
-                    if yes {
-                        let base = self.review.base.take();
-                        let saved_path = self.review.path.clone();
-                        self.apply_review(r, path.clone().unwrap_or_default());
-                        // The restored work is unsaved: keep the saved review as the base for history.
-                        self.review.base = base;
-                        self.review.path = saved_path.or(path);
-                        self.review.dirty = true;
-                    } else if let Some(p) = path
-                        && let Err(e) = isoline_core::review::discard_autosave(&p)
-                    {
-                        self.ui_state.error = Some(format!("{e}"));
-                    }
-                }
-            }
-            Command::ShowHistory(b) => self.review.history_open = b,
+            Command::SaveReview
+            | Command::SaveReviewAs(_)
+            | Command::OpenReview(_)
+            | Command::SetStage(_)
+            | Command::Reopen
+            | Command::SetSummary(_)
+            | Command::SetReader(_)
+            | Command::ApplyMismatched(_)
+            | Command::Recover(_)
+            | Command::ShowHistory(_) => self.run_review_cmd(cmd),
             Command::SetLayout(l) => view.layout = l,
             Command::SetOrder(o) => view.order = o,
             Command::SetSpeed(s) => view.paper.speed_mm_per_s = s,
@@ -281,76 +230,6 @@ impl IsolineApp {
         self.start_s = t.clamp(0.0, (duration - self.window_s).max(0.0));
     }
 
-    /// Applies a document edit; false when it does not apply (unknown caliper, locked, …).
-    fn apply_edit(&mut self, cmd: &Command) -> bool {
-        let rate = self.loaded.as_ref().map_or(500.0, |l| l.recording.sample_rate.hz());
-        let doc = &mut self.doc;
-        match cmd {
-            Command::AddCaliper { kind, lead } => {
-                doc.next_caliper_id += 1;
-                let id = doc.next_caliper_id;
-                doc.calipers.push(state::new_caliper(id, *kind, lead.clone()));
-                self.ui_state.selected = Some((id, Part::Second));
-                self.tool = Tool::Pointer;
-            }
-            Command::MoveCaliper { id, kind } => match doc.caliper_mut(*id) {
-                Some(c) if !c.locked => c.kind = *kind,
-                _ => return false,
-            },
-            Command::Nudge(n) => {
-                let Some((id, part)) = self.ui_state.selected else { return false };
-                let Some(c) = doc.caliper_mut(id).filter(|c| !c.locked) else { return false };
-                let dt = *n as f64 / rate;
-                c.kind = match (c.kind, part) {
-                    (CaliperKind::Time { t1_s, t2_s }, Part::First) => CaliperKind::Time { t1_s: t1_s + dt, t2_s },
-                    (CaliperKind::Time { t1_s, t2_s }, Part::Second) => CaliperKind::Time { t1_s, t2_s: t2_s + dt },
-                    (CaliperKind::Plumb { t_s }, _) => CaliperKind::Plumb { t_s: t_s + dt },
-                    // Voltage levels step by 10 µV (0.1 mm at 10 mm/mV) per press.
-                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::First) => CaliperKind::Voltage { t_s, uv1: uv1 + 10.0 * *n as f64, uv2 },
-                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::Second) => CaliperKind::Voltage { t_s, uv1, uv2: uv2 + 10.0 * *n as f64 },
-                };
-            }
-            Command::DeleteCaliper(id) => {
-                let n = doc.calipers.len();
-                doc.calipers.retain(|c| c.id != *id);
-                if doc.calipers.len() == n {
-                    return false;
-                }
-                if self.ui_state.selected.is_some_and(|s| s.0 == *id) {
-                    self.ui_state.selected = None;
-                }
-            }
-            Command::SetLocked(id, b) => match doc.caliper_mut(*id) {
-                Some(c) => c.locked = *b,
-                None => return false,
-            },
-            Command::SetMarch(id, b) => match doc.caliper_mut(*id) {
-                Some(c) => c.march = *b,
-                None => return false,
-            },
-            Command::MoveMark(kind, s) => {
-                doc.marks.insert(*kind, *s);
-            }
-            Command::ResetMark(kind) => {
-                doc.marks.remove(kind);
-            }
-            Command::SetReviewed(key, v) => match v {
-                Some(v) => {
-                    doc.reviewed.insert(key.clone(), *v);
-                }
-                None => {
-                    doc.reviewed.remove(key);
-                }
-            },
-            Command::TakeCaliper { id, key } => {
-                let Some(ms) = doc.caliper(*id).and_then(isoline_core::caliper::Caliper::interval_ms) else { return false };
-                doc.reviewed.insert(key.clone(), ms);
-            }
-            _ => return false,
-        }
-        true
-    }
-
     /// Opens a recording, or a review with its recording. A review beside the recording
     /// (`NAME.review.ron`) is applied, and autosaved work is offered back.
     fn open(&mut self, path: &Path) {
@@ -366,82 +245,6 @@ impl IsolineApp {
             self.open_review(&review_path, false);
         }
         self.review.recovery = isoline_core::review::recover(&review_path);
-    }
-
-    /// Opens a review file. With `with_recording`, first opens the recording it names (when it is not the one
-    /// open). A review of another recording is never applied silently: the reader is asked.
-    fn open_review(&mut self, path: &Path, with_recording: bool) {
-        let review = match isoline_core::review::load(path) {
-            Ok(r) => r,
-            Err(e) => {
-                self.ui_state.error = Some(format!("Could not open the review: {e}"));
-                return;
-            }
-        };
-        if with_recording {
-            let rec_path = review.recording.recording_path(path);
-            let already = self.loaded.as_ref().is_some_and(|l| l.path == rec_path);
-            if !already && !self.open_recording(&rec_path) {
-                return;
-            }
-        }
-        let Some(l) = &self.loaded else { return };
-        match review_io::matches_recording(&review, &l.path) {
-            Ok(true) => self.apply_review(review, path.to_path_buf()),
-            Ok(false) => self.review.mismatch = Some((path.to_path_buf(), review)),
-            Err(e) => self.ui_state.error = Some(format!("{e:#}")),
-        }
-    }
-
-    /// Makes a loaded review the one being worked on.
-    fn apply_review(&mut self, review: isoline_core::review::Review, path: PathBuf) {
-        let Some(l) = &self.loaded else { return };
-        self.doc = review_io::document_from_review(&review, l);
-        self.history.clear();
-        self.ledger_cache = None;
-        self.review.stage = review.stage;
-        self.review.summary.clone_from(&review.summary);
-        self.review.base = Some(review);
-        self.review.path = Some(path);
-        self.review.dirty = false;
-    }
-
-    /// Saves the review to `path`, asking the reader's name first when it is not known yet.
-    fn save_review(&mut self, path: PathBuf) {
-        let Some(reader) = self.settings.reader.clone() else {
-            self.review.asking_reader = Some(path);
-            return;
-        };
-        let rows = self.cached_ledger_rows();
-        let Some(l) = &self.loaded else { return };
-        let input = review_io::ReviewInput { loaded: l, doc: &self.doc, rows: &rows, session: &self.review, reader: &reader, path: &path };
-        match review_io::build_review(&input).and_then(|r| r.save(&path).map(|()| r).map_err(anyhow::Error::from)) {
-            Ok(r) => {
-                self.review.base = Some(r);
-                self.review.path = Some(path);
-                self.review.dirty = false;
-            }
-            Err(e) => self.ui_state.error = Some(format!("Could not save the review: {e:#}")),
-        }
-    }
-
-    /// Writes the autosave sidecar when there is unsaved work and the last autosave is old enough.
-    fn autosave_if_due(&mut self) {
-        if !self.autosave || !self.review.dirty || self.review.stage == isoline_core::review::Stage::Final {
-            return;
-        }
-        if self.review.last_autosave.is_some_and(|t| t.elapsed().as_secs_f64() < review_io::AUTOSAVE_EVERY_S) {
-            return;
-        }
-        self.review.last_autosave = Some(std::time::Instant::now());
-        let reader = self.settings.reader.clone().unwrap_or_else(|| "(reader not named yet)".into());
-        let rows = self.cached_ledger_rows();
-        let Some(l) = &self.loaded else { return };
-        let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
-        let input = review_io::ReviewInput { loaded: l, doc: &self.doc, rows: &rows, session: &self.review, reader: &reader, path: &path };
-        if let Err(e) = review_io::build_review(&input).and_then(|r| r.autosave(&path).map_err(anyhow::Error::from)) {
-            self.ui_state.error = Some(format!("Autosave failed: {e:#}"));
-        }
     }
 
     /// Opens a recording; on failure keeps the current one, shows the error and returns false. Long recordings

@@ -174,6 +174,44 @@ pub fn matches_recording(review: &Review, recording_path: &Path) -> anyhow::Resu
     Ok(sha == review.recording.sha256)
 }
 
+/// The review's file, stage, summary and save button.
+pub fn review_panel_ui(session: &ReviewSession, ui: &mut egui::Ui, out: &mut Vec<Command>) {
+    use isoline_core::review::Stage;
+    let file = session.path.as_ref().and_then(|p| p.file_name()).map_or("not saved yet".into(), |n| n.to_string_lossy().into_owned());
+    ui.horizontal_wrapped(|ui| {
+        ui.strong("Review");
+        ui.label(format!("{file}{}", if session.dirty { " (unsaved changes)" } else { "" }));
+        if ui.button("Save review").clicked() {
+            out.push(Command::SaveReview);
+        }
+        if ui.button("History").clicked() {
+            out.push(Command::ShowHistory(!session.history_open));
+        }
+    });
+    ui.horizontal_wrapped(|ui| {
+        ui.label("Stage:");
+        for stage in [Stage::Draft, Stage::Checked, Stage::Final] {
+            if ui.selectable_label(session.stage == stage, stage.as_str()).clicked() && session.stage != stage {
+                out.push(Command::SetStage(stage));
+            }
+        }
+        if session.stage == Stage::Final {
+            ui.weak("read-only");
+            if ui.button("Reopen").clicked() {
+                out.push(Command::Reopen);
+            }
+        }
+    });
+    let mut summary = session.summary.clone();
+    let edit = egui::TextEdit::multiline(&mut summary)
+        .hint_text("Summary (the reader's conclusion; Isoline writes none)")
+        .desired_rows(2)
+        .interactive(session.stage != Stage::Final);
+    if ui.add(edit).changed() {
+        out.push(Command::SetSummary(summary));
+    }
+}
+
 /// The review windows: reader name, recording mismatch, recovery, history. Returns the reader's answers.
 pub fn review_windows_ui(ctx: &egui::Context, session: &mut ReviewSession) -> Vec<Command> {
     let mut out = Vec::new();

@@ -63,7 +63,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         });
         egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
             egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
-                review_panel_ui(&app.review, ui, &mut out);
+                super::review_io::review_panel_ui(&app.review, ui, &mut out);
                 ui.separator();
                 out.extend(beat_lens::beat_lens_ui(ui, loaded, &app.doc, &app.settings.view, &mut app.ui_state));
                 ui.separator();
@@ -170,44 +170,6 @@ fn status_text(app: &IsolineApp) -> String {
         filter_text(l, app.settings.view.filters),
         app.ui_state.last_frame_ms
     )
-}
-
-/// The review's file, stage, summary and save button.
-fn review_panel_ui(session: &super::review_io::ReviewSession, ui: &mut egui::Ui, out: &mut Vec<Command>) {
-    use isoline_core::review::Stage;
-    let file = session.path.as_ref().and_then(|p| p.file_name()).map_or("not saved yet".into(), |n| n.to_string_lossy().into_owned());
-    ui.horizontal_wrapped(|ui| {
-        ui.strong("Review");
-        ui.label(format!("{file}{}", if session.dirty { " (unsaved changes)" } else { "" }));
-        if ui.button("Save review").clicked() {
-            out.push(Command::SaveReview);
-        }
-        if ui.button("History").clicked() {
-            out.push(Command::ShowHistory(!session.history_open));
-        }
-    });
-    ui.horizontal_wrapped(|ui| {
-        ui.label("Stage:");
-        for stage in [Stage::Draft, Stage::Checked, Stage::Final] {
-            if ui.selectable_label(session.stage == stage, stage.as_str()).clicked() && session.stage != stage {
-                out.push(Command::SetStage(stage));
-            }
-        }
-        if session.stage == Stage::Final {
-            ui.weak("read-only");
-            if ui.button("Reopen").clicked() {
-                out.push(Command::Reopen);
-            }
-        }
-    });
-    let mut summary = session.summary.clone();
-    let edit = egui::TextEdit::multiline(&mut summary)
-        .hint_text("Summary (the reader's conclusion; Isoline writes none)")
-        .desired_rows(2)
-        .interactive(session.stage != Stage::Final);
-    if ui.add(edit).changed() {
-        out.push(Command::SetSummary(summary));
-    }
 }
 
 fn menu_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
