@@ -139,3 +139,49 @@ fn help_overlay_lists_shortcuts() {
     h.get_by_label("Nudge the selected leg by one sample");
     h.get_by_label_contains("Open a recording (Ctrl+O)");
 }
+
+#[test]
+fn ruler_calibration_sets_true_scale_and_is_remembered() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("View").click();
+    settle(&mut h);
+    h.get_by_label("Ruler calibration…").click();
+    settle(&mut h);
+    // The reader matched a 400-point bar to an ID-1 card (85.60 mm, ISO/IEC 7810; from memory).
+    h.state_mut().ui_state.ruler_bar_points = 400.0;
+    settle(&mut h);
+    h.get_by_label("Use this calibration").click();
+    settle(&mut h);
+    let ppmm = h.state().ui_state.sheet.as_ref().unwrap().points_per_mm;
+    assert!((ppmm - 400.0 / 85.6).abs() < 1e-3, "{ppmm}");
+    // Remembered between runs through eframe's storage.
+    struct Mem(std::collections::HashMap<String, String>);
+    impl eframe::Storage for Mem {
+        fn get_string(&self, key: &str) -> Option<String> {
+            self.0.get(key).cloned()
+        }
+        fn set_string(&mut self, key: &str, value: String) {
+            self.0.insert(key.to_string(), value);
+        }
+        fn remove_string(&mut self, key: &str) {
+            self.0.remove(key);
+        }
+        fn flush(&mut self) {}
+    }
+    let mut mem = Mem(Default::default());
+    h.state().settings.save(&mut mem);
+    let back = isoline::gui::settings::Settings::load(Some(&mem));
+    assert_eq!(back, h.state().settings);
+    assert!(back.recent[0].ends_with("s0010_re.hea"));
+}
+
+#[test]
+fn dark_window_and_graphite_paper() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("View").click();
+    settle(&mut h);
+    h.get_by_label("Dark window").click();
+    settle(&mut h);
+    assert!(h.state().settings.view.dark);
+    assert!(h.ctx.global_style().visuals.dark_mode);
+}

@@ -170,6 +170,8 @@ fn draw_caliper(
     let col = color(pal.caliper);
     let width = |part: Part| if selected == Some(part) { 2.5 } else { 1.3 };
     let font = FontId::proportional((3.0 * geo.points_per_mm).clamp(12.0, 16.0));
+    // The readout is drawn once, on the first row that shows the caliper whole.
+    let mut readout_drawn = false;
     for (ri, row) in geo.page.rows.iter().enumerate() {
         let Some(band) = geo.row_rect(ri) else { continue };
         for cell in &row.cells {
@@ -190,11 +192,15 @@ fn draw_caliper(
                     if let (Some(a), Some(b)) = (a, b) {
                         let y = band.top() + 0.2 * band.height();
                         painter.line_segment([Pos2::new(a, y), Pos2::new(b, y)], Stroke::new(1.0, col));
-                        readout(painter, Pos2::new((a + b) / 2.0, y - 2.0), &label(c), &font, col, &pal);
+                        if !readout_drawn {
+                            readout(painter, Pos2::new((a + b) / 2.0, y - 2.0), &label(c), &font, col, &pal);
+                            readout_drawn = true;
+                        }
                     }
                 }
                 CaliperKind::Plumb { t_s } => {
-                    if leg(t_s, Part::First).is_some() && ri == 0 {
+                    if leg(t_s, Part::First).is_some() && !readout_drawn {
+                        readout_drawn = true;
                         let x = geo.x_of_time(cell, t_s);
                         readout(painter, Pos2::new(x, band.top() + 2.0), &label(c), &font, col, &pal);
                     }

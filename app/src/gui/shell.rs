@@ -61,7 +61,8 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         egui::Panel::bottom("tape").resizable(false).show(ui, |ui| {
             out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s, &mut app.ui_state.tape));
         });
-        egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
+        let side = (ui.available_width() * 0.36).clamp(280.0, 560.0);
+        egui::Panel::right("review").default_size(side).show(ui, |ui| {
             egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
                 super::review_io::review_panel_ui(&app.review, ui, &mut out);
                 ui.separator();
