@@ -72,7 +72,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
                 out.extend(calipers_ui::caliper_list_ui(ui, &app.doc, app.ui_state.selected));
                 ui.separator();
                 ui.strong("Ledger");
-                out.extend(ledger::ledger_ui(ui, &ledger_rows, &app.doc));
+                out.extend(ledger::ledger_ui(ui, &ledger_rows, &app.doc, &mut app.ui_state.ledger_edit));
             });
         });
     }

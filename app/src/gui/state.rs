@@ -251,6 +251,8 @@ pub struct UiState {
     pub lens_active: Option<MarkKind>,
     /// Beat lens: the mark being dragged.
     pub lens_drag: Option<MarkKind>,
+    /// Ledger row whose reviewed value is being typed, with the text so far.
+    pub ledger_edit: Option<(String, String)>,
     /// Help overlay open.
     pub help_open: bool,
     /// Ruler calibration window open.
