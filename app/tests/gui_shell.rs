@@ -185,3 +185,52 @@ fn dark_window_and_graphite_paper() {
     assert!(h.state().settings.view.dark);
     assert!(h.ctx.global_style().visuals.dark_mode);
 }
+
+#[test]
+fn dropping_a_file_opens_it() {
+    #[derive(Debug)]
+    struct Dropped(std::path::PathBuf);
+    impl egui::DroppedFile for Dropped {
+        fn path(&self) -> &std::path::Path {
+            &self.0
+        }
+        fn bytes(&self) -> Result<Vec<u8>, String> {
+            std::fs::read(&self.0).map_err(|e| e.to_string())
+        }
+    }
+    let mut h = harness(None);
+    assert!(h.state().loaded.is_none());
+    h.input_mut().dropped_files.push(std::sync::Arc::new(Dropped(data("qtdb/sel100.hea"))));
+    settle(&mut h);
+    let loaded = h.state().loaded.as_ref().expect("dropped file opened");
+    assert!(loaded.path.ends_with("sel100.hea"));
+    assert_eq!(h.state().settings.recent.len(), 1);
+}
+
+#[test]
+fn filters_switch_between_filtered_and_recorded_signal() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    assert!(h.state().settings.view.filters, "filters on by default");
+    let loaded = h.state().loaded.as_ref().unwrap();
+    let filtered = loaded.shown(true).leads[0].samples[5000];
+    let raw = loaded.shown(false).leads[0].samples[5000];
+    assert_ne!(filtered, raw, "the baseline filter changes the signal");
+    h.get_by_label_contains("0.5–").hover();
+    h.get_by_label("Filters").click();
+    settle(&mut h);
+    assert!(!h.state().settings.view.filters);
+    h.get_by_label_contains("filters: off (signal as recorded)");
+}
+
+#[test]
+fn page_keys_move_the_window() {
+    let mut h = harness(Some("qtdb/sel100.hea"));
+    assert_eq!(h.state().start_s, 0.0);
+    h.key_press(egui::Key::PageDown);
+    settle(&mut h);
+    let w = h.state().window_s;
+    assert!((h.state().start_s - w).abs() < 1e-9);
+    h.get_by_label("Previous window").click();
+    settle(&mut h);
+    assert_eq!(h.state().start_s, 0.0);
+}
