@@ -109,3 +109,26 @@ fn clicking_the_tape_moves_the_sheet() {
     let g = app.ui_state.sheet.as_ref().unwrap();
     assert!((g.page.rows.last().unwrap().cells[0].t0_s - app.start_s).abs() < 1e-9);
 }
+
+#[test]
+fn typing_a_reviewed_qt_recomputes_qtc_and_undoes() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let qt = row(&h, "qt_ms");
+    let shown = format!("{:.0}", qt.reviewed.unwrap());
+    h.get_by_role_and_label(egui::accesskit::Role::Button, &shown).click();
+    settle(&mut h);
+    assert_eq!(h.state().ui_state.ledger_edit.as_ref().map(|e| e.0.as_str()), Some("qt_ms"));
+    h.state_mut().ui_state.ledger_edit = Some(("qt_ms".into(), "500".into()));
+    settle(&mut h);
+    h.key_press(egui::Key::Enter);
+    settle(&mut h);
+    let qt = row(&h, "qt_ms");
+    assert_eq!(qt.reviewed, Some(500.0));
+    assert_eq!(qt.origin, Some(Origin::Moved));
+    let rr = row(&h, "rr_ms").reviewed.unwrap();
+    // Source: Fridericia, Acta Med Scand 1920;53:469-86 (QT/RR^(1/3)).
+    assert!((row(&h, "qtc_fridericia_ms").reviewed.unwrap() - 500.0 / (rr / 1000.0).cbrt()).abs() < 1e-6);
+    h.get_by_label("Undo").click();
+    settle(&mut h);
+    assert_eq!(row(&h, "qt_ms").origin, Some(Origin::Auto));
+}

@@ -139,3 +139,98 @@ fn help_overlay_lists_shortcuts() {
     h.get_by_label("Nudge the selected leg by one sample");
     h.get_by_label_contains("Open a recording (Ctrl+O)");
 }
+
+#[test]
+fn ruler_calibration_sets_true_scale_and_is_remembered() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("View").click();
+    settle(&mut h);
+    h.get_by_label("Ruler calibration…").click();
+    settle(&mut h);
+    // The reader matched a 400-point bar to an ID-1 card (85.60 mm, ISO/IEC 7810; from memory).
+    h.state_mut().ui_state.ruler_bar_points = 400.0;
+    settle(&mut h);
+    h.get_by_label("Use this calibration").click();
+    settle(&mut h);
+    let ppmm = h.state().ui_state.sheet.as_ref().unwrap().points_per_mm;
+    assert!((ppmm - 400.0 / 85.6).abs() < 1e-3, "{ppmm}");
+    // Remembered between runs through eframe's storage.
+    struct Mem(std::collections::HashMap<String, String>);
+    impl eframe::Storage for Mem {
+        fn get_string(&self, key: &str) -> Option<String> {
+            self.0.get(key).cloned()
+        }
+        fn set_string(&mut self, key: &str, value: String) {
+            self.0.insert(key.to_string(), value);
+        }
+        fn remove_string(&mut self, key: &str) {
+            self.0.remove(key);
+        }
+        fn flush(&mut self) {}
+    }
+    let mut mem = Mem(Default::default());
+    h.state().settings.save(&mut mem);
+    let back = isoline::gui::settings::Settings::load(Some(&mem));
+    assert_eq!(back, h.state().settings);
+    assert!(back.recent[0].ends_with("s0010_re.hea"));
+}
+
+#[test]
+fn dark_window_and_graphite_paper() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.get_by_label("View").click();
+    settle(&mut h);
+    h.get_by_label("Dark window").click();
+    settle(&mut h);
+    assert!(h.state().settings.view.dark);
+    assert!(h.ctx.global_style().visuals.dark_mode);
+}
+
+#[test]
+fn dropping_a_file_opens_it() {
+    #[derive(Debug)]
+    struct Dropped(std::path::PathBuf);
+    impl egui::DroppedFile for Dropped {
+        fn path(&self) -> &std::path::Path {
+            &self.0
+        }
+        fn bytes(&self) -> Result<Vec<u8>, String> {
+            std::fs::read(&self.0).map_err(|e| e.to_string())
+        }
+    }
+    let mut h = harness(None);
+    assert!(h.state().loaded.is_none());
+    h.input_mut().dropped_files.push(std::sync::Arc::new(Dropped(data("qtdb/sel100.hea"))));
+    settle(&mut h);
+    let loaded = h.state().loaded.as_ref().expect("dropped file opened");
+    assert!(loaded.path.ends_with("sel100.hea"));
+    assert_eq!(h.state().settings.recent.len(), 1);
+}
+
+#[test]
+fn filters_switch_between_filtered_and_recorded_signal() {
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    assert!(h.state().settings.view.filters, "filters on by default");
+    let loaded = h.state().loaded.as_ref().unwrap();
+    let filtered = loaded.shown(true).leads[0].samples[5000];
+    let raw = loaded.shown(false).leads[0].samples[5000];
+    assert_ne!(filtered, raw, "the baseline filter changes the signal");
+    h.get_by_label_contains("0.5–").hover();
+    h.get_by_label("Filters").click();
+    settle(&mut h);
+    assert!(!h.state().settings.view.filters);
+    h.get_by_label_contains("filters: off (signal as recorded)");
+}
+
+#[test]
+fn page_keys_move_the_window() {
+    let mut h = harness(Some("qtdb/sel100.hea"));
+    assert_eq!(h.state().start_s, 0.0);
+    h.key_press(egui::Key::PageDown);
+    settle(&mut h);
+    let w = h.state().window_s;
+    assert!((h.state().start_s - w).abs() < 1e-9);
+    h.get_by_label("Previous window").click();
+    settle(&mut h);
+    assert_eq!(h.state().start_s, 0.0);
+}

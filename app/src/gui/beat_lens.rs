@@ -93,12 +93,12 @@ pub fn beat_lens_ui(
             }
         }
     });
-    let size = Vec2::new(ui.available_width().min(520.0), 200.0);
+    let size = Vec2::new(ui.available_width().min(520.0), 220.0);
     let (rect, response) = ui.allocate_exact_size(size, Sense::click_and_drag());
     let pal = view.scheme.palette();
     let painter = ui.painter_at(rect);
     painter.rect_filled(rect, 2.0, color(pal.background));
-    let plot = rect.shrink2(Vec2::new(6.0, 18.0));
+    let plot = rect.shrink2(Vec2::new(6.0, 26.0));
     let len = rep.leads.first().map_or(0, Vec::len);
     let geo = LensGeometry { rect: plot, len, r_index: rep.r_index, rate_hz: rep.sample_rate.hz() };
     state.lens = Some(geo);
@@ -125,8 +125,8 @@ pub fn beat_lens_ui(
         let origin = doc.mark_origin(kind, &auto);
         let col = if origin == Some(super::state::Origin::Auto) { color(pal.mark) } else { color(pal.caliper) };
         let w = if state.lens_drag == Some(kind) { 2.5 } else { 1.5 };
-        painter.line_segment([Pos2::new(x, rect.top() + 14.0), Pos2::new(x, rect.bottom())], Stroke::new(w, col));
-        let y = rect.top() + 2.0 + (n % 2) as f32 * 0.0;
+        painter.line_segment([Pos2::new(x, rect.top() + 25.0), Pos2::new(x, rect.bottom())], Stroke::new(w, col));
+        let y = rect.top() + 1.0 + (n % 2) as f32 * 11.0;
         painter.text(Pos2::new(x, y), Align2::CENTER_TOP, short(kind), font.clone(), col);
     }
     if response.drag_started()

@@ -29,7 +29,6 @@ pub struct SheetContext<'a> {
 pub fn calipers_ui(ui: &egui::Ui, response: &Response, cx: &SheetContext<'_>, state: &mut UiState) -> Vec<Command> {
     let SheetContext { geo, loaded, doc, view, tool } = *cx;
     let mut out = Vec::new();
-    let rate = loaded.recording.sample_rate.hz();
     // Cursor readout for the status bar.
     state.cursor = response.hover_pos().and_then(|p| time_uv_at(geo, loaded, p).map(|(t, uv, _, _)| (t, uv)));
 
@@ -70,7 +69,7 @@ pub fn calipers_ui(ui: &egui::Ui, response: &Response, cx: &SheetContext<'_>, st
     if response.clicked()
         && let Some(p) = response.interact_pointer_pos()
     {
-        out.extend(click(geo, loaded, doc, tool, p, rate));
+        out.extend(click(geo, loaded, doc, tool, p));
     }
     for c in &doc.calipers {
         let selected = state.selected.filter(|s| s.0 == c.id).map(|s| s.1);
@@ -79,14 +78,14 @@ pub fn calipers_ui(ui: &egui::Ui, response: &Response, cx: &SheetContext<'_>, st
     out
 }
 
-fn click(geo: &SheetGeometry, loaded: &Loaded, doc: &Document, tool: Tool, p: Pos2, rate: f64) -> Vec<Command> {
+fn click(geo: &SheetGeometry, loaded: &Loaded, doc: &Document, tool: Tool, p: Pos2) -> Vec<Command> {
     let Some((t, uv, ri, ci)) = time_uv_at(geo, loaded, p) else { return vec![Command::Select(None)] };
     let lead_name = geo.page.rows[ri].cells[ci].lead;
     let lead = loaded.recording.leads.get(lead_name).map(|l| l.name.to_string());
     match tool {
         Tool::Pointer => vec![Command::Select(hit(geo, loaded, doc, p).map(|h| (h.0, h.1)))],
         Tool::TimeCaliper => {
-            let span_s = super::derived::median_rr_ms(&loaded.beats, rate).map_or(1.0, |ms| ms / 1000.0);
+            let span_s = loaded.median_rr_ms.map_or(1.0, |ms| ms / 1000.0);
             vec![Command::AddCaliper { kind: CaliperKind::Time { t1_s: t, t2_s: t + span_s }, lead: None }]
         }
         Tool::VoltageCaliper => vec![Command::AddCaliper { kind: CaliperKind::Voltage { t_s: t, uv1: 0.0, uv2: uv }, lead }],
@@ -171,6 +170,8 @@ fn draw_caliper(
     let col = color(pal.caliper);
     let width = |part: Part| if selected == Some(part) { 2.5 } else { 1.3 };
     let font = FontId::proportional((3.0 * geo.points_per_mm).clamp(12.0, 16.0));
+    // The readout is drawn once, on the first row that shows the caliper whole.
+    let mut readout_drawn = false;
     for (ri, row) in geo.page.rows.iter().enumerate() {
         let Some(band) = geo.row_rect(ri) else { continue };
         for cell in &row.cells {
@@ -191,11 +192,15 @@ fn draw_caliper(
                     if let (Some(a), Some(b)) = (a, b) {
                         let y = band.top() + 0.2 * band.height();
                         painter.line_segment([Pos2::new(a, y), Pos2::new(b, y)], Stroke::new(1.0, col));
-                        readout(painter, Pos2::new((a + b) / 2.0, y - 2.0), &label(c), &font, col, &pal);
+                        if !readout_drawn {
+                            readout(painter, Pos2::new((a + b) / 2.0, y - 2.0), &label(c), &font, col, &pal);
+                            readout_drawn = true;
+                        }
                     }
                 }
                 CaliperKind::Plumb { t_s } => {
-                    if leg(t_s, Part::First).is_some() && ri == 0 {
+                    if leg(t_s, Part::First).is_some() && !readout_drawn {
+                        readout_drawn = true;
                         let x = geo.x_of_time(cell, t_s);
                         readout(painter, Pos2::new(x, band.top() + 2.0), &label(c), &font, col, &pal);
                     }

@@ -7,6 +7,8 @@ use isoline_core::beat::MarkKind;
 use isoline_core::caliper::CaliperKind;
 use isoline_core::paper::{LeadOrder, Layout, Scheme};
 
+use isoline_core::review::Stage;
+
 use super::state::{Document, Part, Tool};
 
 /// Something the user asked for.
@@ -88,6 +90,30 @@ pub enum Command {
     SetRuler(Option<f32>),
     /// Dismiss the error banner.
     DismissError,
+    /// Save the review (to its file, or `NAME.review.ron` beside the recording).
+    SaveReview,
+    /// Show the save dialog for the review.
+    SaveReviewDialog,
+    /// Save the review to a chosen file.
+    SaveReviewAs(PathBuf),
+    /// Show the open dialog for a review.
+    OpenReviewDialog,
+    /// Open a review file (and its recording when another is open).
+    OpenReview(PathBuf),
+    /// Change the review's stage.
+    SetStage(Stage),
+    /// Reopen a final review for changes (recorded in its history on the next save).
+    Reopen,
+    /// Replace the summary text.
+    SetSummary(String),
+    /// The reader's name, asked once and remembered.
+    SetReader(String),
+    /// Answer to "this review was made for another recording": apply it or not.
+    ApplyMismatched(bool),
+    /// Answer to "unsaved work was found": restore it or discard it.
+    Recover(bool),
+    /// Open or close the review history.
+    ShowHistory(bool),
 }
 
 impl Command {

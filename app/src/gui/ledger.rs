@@ -50,7 +50,7 @@ const QTC_KEYS: [(&str, &str); 5] = [
 /// Computes the Ledger rows from the automatic measurements, the review's marks and reviewed values.
 #[must_use]
 pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
-    let an = &loaded.analysis;
+    let Some(an) = &loaded.analysis else { return Vec::new() };
     let auto = an.measurements.values();
     let mut rev = match loaded.representative() {
         Some(rep) if !doc.marks.is_empty() => {
@@ -128,7 +128,15 @@ fn origin(auto: Option<f64>, reviewed: Option<f64>) -> Option<Origin> {
 }
 
 /// Draws the Ledger table.
-pub fn ledger_ui(ui: &mut egui::Ui, rows: &[LedgerRow], doc: &Document) -> Vec<Command> {
+///
+/// `editing` holds the row whose reviewed value is being typed and the text so far; Enter stores it (an
+/// undoable change), Escape or an empty text cancels.
+pub fn ledger_ui(
+    ui: &mut egui::Ui,
+    rows: &[LedgerRow],
+    doc: &Document,
+    editing: &mut Option<(String, String)>,
+) -> Vec<Command> {
     let mut out = Vec::new();
     let fmt = |v: Option<f64>| v.map_or_else(|| "—".to_string(), |v| format!("{v:.0}"));
     egui::Grid::new("ledger").striped(true).num_columns(7).show(ui, |ui| {
@@ -140,7 +148,28 @@ pub fn ledger_ui(ui: &mut egui::Ui, rows: &[LedgerRow], doc: &Document) -> Vec<C
             ui.label(&r.label);
             ui.label(fmt(r.auto));
             ui.horizontal(|ui| {
-                ui.label(fmt(r.reviewed));
+                match editing {
+                    Some((key, text)) if key == r.key => {
+                        let resp = ui.add(egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key)));
+                        let (enter, escape) = ui.input(|i| (i.key_pressed(egui::Key::Enter), i.key_pressed(egui::Key::Escape)));
+                        if enter {
+                            if let Ok(v) = text.trim().parse::<f64>() {
+                                out.push(Command::SetReviewed(r.key.to_string(), Some(v).filter(|v| v.is_finite())));
+                            }
+                            *editing = None;
+                        } else if escape || resp.lost_focus() {
+                            *editing = None;
+                        } else if !resp.has_focus() {
+                            resp.request_focus();
+                        }
+                    }
+                    _ => {
+                        let label = ui.add(egui::Button::new(fmt(r.reviewed)).frame(false)).on_hover_text("Click to type a reviewed value");
+                        if label.clicked() && !r.key.starts_with("st_") {
+                            *editing = Some((r.key.to_string(), r.reviewed.map_or_else(String::new, |v| format!("{v:.0}"))));
+                        }
+                    }
+                }
                 if doc.reviewed.contains_key(r.key) && ui.small_button("×").on_hover_text("Clear the typed value").clicked() {
                     out.push(Command::SetReviewed(r.key.to_string(), None));
                 }

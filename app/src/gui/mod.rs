@@ -8,7 +8,6 @@ use std::process::ExitCode;
 use std::sync::Arc;
 
 use anyhow::Context as _;
-use isoline_core::caliper::CaliperKind;
 use isoline_core::filter::FilterSettings;
 use isoline_core::io::{self, OpenOptions};
 
@@ -17,6 +16,9 @@ pub mod calipers_ui;
 pub mod command;
 pub mod derived;
 pub mod ledger;
+mod edits;
+mod review_actions;
+pub mod review_io;
 pub mod settings;
 mod shell;
 pub mod sheet;
@@ -25,7 +27,18 @@ pub mod tape;
 
 use command::{Command, History};
 use settings::Settings;
-use state::{Document, Loaded, Part, Tool, UiState};
+use state::{Document, Loaded, Tool, UiState};
+
+/// A file dialog the shell should show.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Dialog {
+    /// Pick a recording (or review) to open.
+    OpenRecording,
+    /// Pick a review to open.
+    OpenReview,
+    /// Choose where to save the review.
+    SaveReviewAs,
+}
 
 /// The whole workstation.
 pub struct IsolineApp {
@@ -46,9 +59,16 @@ pub struct IsolineApp {
     /// Length of the Sheet's window in the last frame, s.
     pub window_s: f64,
     /// A file dialog was asked for (handled by the eframe shell, never in tests).
-    pub wants_dialog: bool,
-    /// Ledger rows as of the last change (derived data, dropped whenever a command runs).
+    pub wants_dialog: Option<Dialog>,
+    /// The review being worked on: file, stage, summary, pending questions.
+    pub review: review_io::ReviewSession,
+    /// Write the autosave sidecar while editing (on in the window; off by default so tests never write beside
+    /// their data).
+    pub autosave: bool,
+    /// Ledger rows as of the last change (derived data, dropped whenever the review or the analysis changes).
     ledger_cache: Option<Vec<ledger::LedgerRow>>,
+    /// Analysis running in the background for the open recording.
+    pending: Option<std::sync::mpsc::Receiver<isoline_core::analysis::Analysis>>,
 }
 
 impl IsolineApp {
@@ -71,8 +91,11 @@ impl IsolineApp {
             tool: Tool::Pointer,
             start_s: 0.0,
             window_s: 10.0,
-            wants_dialog: false,
+            wants_dialog: None,
+            review: review_io::ReviewSession::default(),
+            autosave: false,
             ledger_cache: None,
+            pending: None,
         };
         if let Some(f) = file {
             app.run_cmd(Command::Open(f));
@@ -80,9 +103,33 @@ impl IsolineApp {
         app
     }
 
+    /// Whether an analysis is still running in the background.
+    #[must_use]
+    pub fn analysing(&self) -> bool {
+        self.pending.is_some()
+    }
+
+    /// Takes a finished background analysis, waiting for it when `block` is true.
+    pub fn poll_analysis(&mut self, block: bool) {
+        let Some(rx) = &self.pending else { return };
+        let got = if block { rx.recv().ok() } else { rx.try_recv().ok() };
+        let finished = got.is_some() || matches!(rx.try_recv(), Err(std::sync::mpsc::TryRecvError::Disconnected));
+        if let (Some(a), Some(l)) = (got, self.loaded.as_mut()) {
+            l.attach(a);
+            self.ledger_cache = None;
+        }
+        if finished {
+            self.pending = None;
+        }
+    }
+
     /// Draws the whole workstation and applies the commands its views returned.
     pub fn ui(&mut self, ui: &mut egui::Ui) {
         let t0 = std::time::Instant::now();
+        self.poll_analysis(false);
+        if self.pending.is_some() {
+            ui.ctx().request_repaint_after(std::time::Duration::from_millis(200));
+        }
         let commands = shell::shell_ui(self, ui);
         if !ui.ctx().input(|i| i.pointer.any_down()) {
             self.history.end_drag();
@@ -90,6 +137,7 @@ impl IsolineApp {
         for c in commands {
             self.run_cmd(c);
         }
+        self.autosave_if_due();
         self.ui_state.last_frame_ms = t0.elapsed().as_secs_f64() * 1000.0;
     }
 
@@ -109,7 +157,17 @@ impl IsolineApp {
 
     /// Applies one command.
     pub fn run_cmd(&mut self, cmd: Command) {
-        self.ledger_cache = None;
+        if cmd.edits_document() || matches!(cmd, Command::Open(_) | Command::OpenReview(_) | Command::Undo | Command::Redo) {
+            self.ledger_cache = None;
+        }
+        let changes_work = cmd.edits_document() || matches!(cmd, Command::Undo | Command::Redo);
+        if changes_work && self.review.stage == isoline_core::review::Stage::Final {
+            self.ui_state.error = Some("The review is final: reopen it to change it.".into());
+            return;
+        }
+        if changes_work {
+            self.review.dirty = true;
+        }
         if cmd.edits_document() {
             let before = self.doc.clone();
             if self.apply_edit(&cmd) && self.doc != before {
@@ -120,7 +178,19 @@ impl IsolineApp {
         let view = &mut self.settings.view;
         match cmd {
             Command::Open(path) => self.open(&path),
-            Command::OpenDialog => self.wants_dialog = true,
+            Command::OpenDialog => self.wants_dialog = Some(Dialog::OpenRecording),
+            Command::OpenReviewDialog => self.wants_dialog = Some(Dialog::OpenReview),
+            Command::SaveReviewDialog => self.wants_dialog = Some(Dialog::SaveReviewAs),
+            Command::SaveReview
+            | Command::SaveReviewAs(_)
+            | Command::OpenReview(_)
+            | Command::SetStage(_)
+            | Command::Reopen
+            | Command::SetSummary(_)
+            | Command::SetReader(_)
+            | Command::ApplyMismatched(_)
+            | Command::Recover(_)
+            | Command::ShowHistory(_) => self.run_review_cmd(cmd),
             Command::SetLayout(l) => view.layout = l,
             Command::SetOrder(o) => view.order = o,
             Command::SetSpeed(s) => view.paper.speed_mm_per_s = s,
@@ -160,94 +230,63 @@ impl IsolineApp {
         self.start_s = t.clamp(0.0, (duration - self.window_s).max(0.0));
     }
 
-    /// Applies a document edit; false when it does not apply (unknown caliper, locked, …).
-    fn apply_edit(&mut self, cmd: &Command) -> bool {
-        let rate = self.loaded.as_ref().map_or(500.0, |l| l.recording.sample_rate.hz());
-        let doc = &mut self.doc;
-        match cmd {
-            Command::AddCaliper { kind, lead } => {
-                doc.next_caliper_id += 1;
-                let id = doc.next_caliper_id;
-                doc.calipers.push(state::new_caliper(id, *kind, lead.clone()));
-                self.ui_state.selected = Some((id, Part::Second));
-                self.tool = Tool::Pointer;
-            }
-            Command::MoveCaliper { id, kind } => match doc.caliper_mut(*id) {
-                Some(c) if !c.locked => c.kind = *kind,
-                _ => return false,
-            },
-            Command::Nudge(n) => {
-                let Some((id, part)) = self.ui_state.selected else { return false };
-                let Some(c) = doc.caliper_mut(id).filter(|c| !c.locked) else { return false };
-                let dt = *n as f64 / rate;
-                c.kind = match (c.kind, part) {
-                    (CaliperKind::Time { t1_s, t2_s }, Part::First) => CaliperKind::Time { t1_s: t1_s + dt, t2_s },
-                    (CaliperKind::Time { t1_s, t2_s }, Part::Second) => CaliperKind::Time { t1_s, t2_s: t2_s + dt },
-                    (CaliperKind::Plumb { t_s }, _) => CaliperKind::Plumb { t_s: t_s + dt },
-                    // Voltage levels step by 10 µV (0.1 mm at 10 mm/mV) per press.
-                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::First) => CaliperKind::Voltage { t_s, uv1: uv1 + 10.0 * *n as f64, uv2 },
-                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::Second) => CaliperKind::Voltage { t_s, uv1, uv2: uv2 + 10.0 * *n as f64 },
-                };
-            }
-            Command::DeleteCaliper(id) => {
-                let n = doc.calipers.len();
-                doc.calipers.retain(|c| c.id != *id);
-                if doc.calipers.len() == n {
-                    return false;
-                }
-                if self.ui_state.selected.is_some_and(|s| s.0 == *id) {
-                    self.ui_state.selected = None;
-                }
-            }
-            Command::SetLocked(id, b) => match doc.caliper_mut(*id) {
-                Some(c) => c.locked = *b,
-                None => return false,
-            },
-            Command::SetMarch(id, b) => match doc.caliper_mut(*id) {
-                Some(c) => c.march = *b,
-                None => return false,
-            },
-            Command::MoveMark(kind, s) => {
-                doc.marks.insert(*kind, *s);
-            }
-            Command::ResetMark(kind) => {
-                doc.marks.remove(kind);
-            }
-            Command::SetReviewed(key, v) => match v {
-                Some(v) => {
-                    doc.reviewed.insert(key.clone(), *v);
-                }
-                None => {
-                    doc.reviewed.remove(key);
-                }
-            },
-            Command::TakeCaliper { id, key } => {
-                let Some(ms) = doc.caliper(*id).and_then(isoline_core::caliper::Caliper::interval_ms) else { return false };
-                doc.reviewed.insert(key.clone(), ms);
-            }
-            _ => return false,
+    /// Opens a recording, or a review with its recording. A review beside the recording
+    /// (`NAME.review.ron`) is applied, and autosaved work is offered back.
+    fn open(&mut self, path: &Path) {
+        if review_io::is_review_path(path) {
+            self.open_review(path, true);
+            return;
         }
-        true
+        if !self.open_recording(path) {
+            return;
+        }
+        let review_path = review_io::default_review_path(path);
+        if review_path.exists() {
+            self.open_review(&review_path, false);
+        }
+        self.review.recovery = isoline_core::review::recover(&review_path);
     }
 
-    /// Opens a recording; on failure keeps the current one and shows the error.
-    fn open(&mut self, path: &Path) {
+    /// Opens a recording; on failure keeps the current one, shows the error and returns false. Long recordings
+    /// are analysed on a background thread.
+    fn open_recording(&mut self, path: &Path) -> bool {
         match load(path) {
-            Ok(loaded) => {
+            Ok(mut loaded) => {
+                let rec = Arc::clone(&loaded.recording);
+                if rec.len() * rec.leads.len() <= BACKGROUND_ANALYSIS_SAMPLES {
+                    loaded.attach(analyze(&rec));
+                    self.pending = None;
+                } else {
+                    let (tx, rx) = std::sync::mpsc::channel();
+                    std::thread::spawn(move || {
+                        // The receiver may be gone if another file was opened meanwhile: nothing to do then.
+                        let _ = tx.send(analyze(&rec));
+                    });
+                    self.pending = Some(rx);
+                }
                 self.settings.remember(path);
                 self.loaded = Some(loaded);
                 self.doc = Document::default();
                 self.history.clear();
                 self.ui_state = UiState::default();
+                self.review = review_io::ReviewSession::default();
                 self.start_s = 0.0;
+                true
             }
-            Err(e) => self.ui_state.error = Some(format!("Could not open {}: {e:#}", path.display())),
+            Err(e) => {
+                self.ui_state.error = Some(format!("Could not open {}: {e:#}", path.display()));
+                false
+            }
         }
     }
 }
 
-/// Reads a recording and derives what the views need: filters, beats, representative beat and automatic
-/// measurements (`core::analysis`), and the Tape envelope.
+/// Recordings with more samples than this (all leads together) are analysed in the background, so the Sheet
+/// appears at once; smaller ones are analysed before the first frame.
+pub const BACKGROUND_ANALYSIS_SAMPLES: usize = 4_000_000;
+
+/// Reads a recording and derives what the views need before analysis: the Tape envelope and the file's
+/// annotated beats.
 ///
 /// # Errors
 /// The reader's error, naming the file and the problem.
@@ -257,30 +296,34 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
     if rec.leads.is_empty() || rec.is_empty() {
         anyhow::bail!("the recording has no samples");
     }
-    let analysis = isoline_core::analysis::analyze(&rec, &FilterSettings::default());
     let order = isoline_core::paper::ordered_leads(&rec, isoline_core::paper::LeadOrder::Standard);
     let tape_lead = rec
         .lead_index(&isoline_core::LeadName::Standard(isoline_core::StandardLead::II))
         .or_else(|| order.first().map(|o| o.0))
         .unwrap_or(0);
-    let tape = derived::TapeEnvelope::new(&analysis.filtered.recording, tape_lead);
-    let (beats, beats_source) = if analysis.beats.is_empty() {
-        let b = derived::beats_from_annotations(&rec.annotations, rec.len());
-        let text = if b.is_empty() { "no beats found".to_string() } else { format!("{} annotated beats (none detected)", b.len()) };
-        (b, text)
-    } else {
-        (analysis.beats.clone(), format!("{} beats detected", analysis.beats.len()))
-    };
-    Ok(Loaded {
+    let tape = derived::TapeEnvelope::new(&rec, tape_lead);
+    let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
+    let beats_source = if beats.is_empty() { "analysing…".to_string() } else { format!("{} annotated beats", beats.len()) };
+    let mut loaded = Loaded {
         path: path.to_path_buf(),
         format: opened.format,
         recording: Arc::new(rec),
-        analysis,
+        analysis: None,
         warnings: opened.warnings,
         tape,
         beats,
         beats_source,
-    })
+        trend: Vec::new(),
+        median_rr_ms: None,
+    };
+    loaded.derive_rates();
+    Ok(loaded)
+}
+
+/// Filters, detects, delineates and measures (`core::analysis`) with the default filter settings.
+#[must_use]
+pub fn analyze(recording: &isoline_core::Recording) -> isoline_core::analysis::Analysis {
+    isoline_core::analysis::analyze(recording, &FilterSettings::default())
 }
 
 struct EframeApp {
@@ -290,14 +333,32 @@ struct EframeApp {
 impl eframe::App for EframeApp {
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
         self.app.ui(ui);
-        if std::mem::take(&mut self.app.wants_dialog) {
-            let picked = rfd::FileDialog::new()
-                .add_filter("Recordings", &["hea", "edf", "csv"])
-                .add_filter("All files", &["*"])
-                .pick_file();
-            if let Some(p) = picked {
-                self.app.run_cmd(Command::Open(p));
+        match self.app.wants_dialog.take() {
+            Some(Dialog::OpenRecording) => {
+                let picked = rfd::FileDialog::new()
+                    .add_filter("Recordings and reviews", &["hea", "edf", "csv", "ron"])
+                    .add_filter("All files", &["*"])
+                    .pick_file();
+                if let Some(p) = picked {
+                    self.app.run_cmd(Command::Open(p));
+                }
             }
+            Some(Dialog::OpenReview) => {
+                if let Some(p) = rfd::FileDialog::new().add_filter("Reviews", &["ron"]).pick_file() {
+                    self.app.run_cmd(Command::OpenReview(p));
+                }
+            }
+            Some(Dialog::SaveReviewAs) => {
+                let name = self.app.loaded.as_ref().map(|l| review_io::default_review_path(&l.path));
+                let mut dialog = rfd::FileDialog::new().add_filter("Reviews", &["ron"]);
+                if let Some(n) = name.as_ref().and_then(|n| n.file_name()) {
+                    dialog = dialog.set_file_name(n.to_string_lossy());
+                }
+                if let Some(p) = dialog.save_file() {
+                    self.app.run_cmd(Command::SaveReviewAs(p));
+                }
+            }
+            None => {}
         }
     }
 
@@ -320,7 +381,9 @@ pub fn run(file: Option<PathBuf>) -> anyhow::Result<ExitCode> {
         options,
         Box::new(move |cc| {
             let settings = Settings::load(cc.storage);
-            Ok(Box::new(EframeApp { app: IsolineApp::with_settings(file, settings) }))
+            let mut app = IsolineApp::with_settings(file, settings);
+            app.autosave = true;
+            Ok(Box::new(EframeApp { app }))
         }),
     )
     .map_err(|e| anyhow::anyhow!("could not open the window: {e}"))?;

@@ -34,6 +34,8 @@ pub struct Settings {
     pub ruler_px_per_mm: Option<f32>,
     /// Recently opened files, newest first.
     pub recent: Vec<PathBuf>,
+    /// The reader's name or initials, asked once.
+    pub reader: Option<String>,
 }
 
 impl Settings {

@@ -9,8 +9,9 @@ use super::command::Command;
 use super::state::Tool;
 use super::{beat_lens, calipers_ui, ledger, settings, sheet, tape, IsolineApp};
 
-const SHORTCUTS: [(&str, &str); 14] = [
+const SHORTCUTS: [(&str, &str); 15] = [
     ("Ctrl+O", "Open a recording"),
+    ("Ctrl+S", "Save the review"),
     ("Ctrl+Z", "Undo"),
     ("Ctrl+Shift+Z / Ctrl+Y", "Redo"),
     ("T", "Time caliper tool"),
@@ -60,15 +61,18 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         egui::Panel::bottom("tape").resizable(false).show(ui, |ui| {
             out.extend(tape::tape_ui(ui, loaded, app.start_s, app.window_s, &mut app.ui_state.tape));
         });
-        egui::Panel::right("review").default_size(560.0).show(ui, |ui| {
+        let side = (ui.available_width() * 0.36).clamp(280.0, 560.0);
+        egui::Panel::right("review").default_size(side).show(ui, |ui| {
             egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
+                super::review_io::review_panel_ui(&app.review, ui, &mut out);
+                ui.separator();
                 out.extend(beat_lens::beat_lens_ui(ui, loaded, &app.doc, &app.settings.view, &mut app.ui_state));
                 ui.separator();
                 ui.strong("Calipers");
                 out.extend(calipers_ui::caliper_list_ui(ui, &app.doc, app.ui_state.selected));
                 ui.separator();
                 ui.strong("Ledger");
-                out.extend(ledger::ledger_ui(ui, &ledger_rows, &app.doc));
+                out.extend(ledger::ledger_ui(ui, &ledger_rows, &app.doc, &mut app.ui_state.ledger_edit));
             });
         });
     }
@@ -88,6 +92,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
             out.push(Command::ShowHelp(false));
         }
     }
+    out.extend(super::review_io::review_windows_ui(&ctx, &mut app.review));
     if app.ui_state.ruler_open {
         let mut bar = app.ui_state.ruler_bar_points;
         out.extend(settings::ruler_ui(&ctx, &app.settings, &mut bar));
@@ -138,14 +143,19 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
 
 /// What the filter setting means for the signal on screen.
 fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
-    if on { loaded.analysis.filtered.description.clone() } else { "off (signal as recorded)".to_string() }
+    match (&loaded.analysis, on) {
+        (Some(a), true) => a.filtered.description.clone(),
+        (None, true) => "analysis running, signal as recorded".to_string(),
+        (_, false) => "off (signal as recorded)".to_string(),
+    }
 }
 
 fn status_text(app: &IsolineApp) -> String {
     let Some(l) = &app.loaded else { return format!("No recording open   frame {:.1} ms", app.ui_state.last_frame_ms) };
     let rec = &l.recording;
     let name = l.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
-    let rate = super::derived::median_rr_ms(&l.beats, rec.sample_rate.hz())
+    let rate = l
+        .median_rr_ms
         .map_or_else(|| "rate —".to_string(), |rr| format!("rate {:.0} bpm", 60_000.0 / rr));
     let cursor = app
         .ui_state
@@ -167,6 +177,19 @@ fn menu_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
     ui.menu_button("File", |ui| {
         if ui.button("Open…  (Ctrl+O)").clicked() {
             out.push(Command::OpenDialog);
+            ui.close();
+        }
+        let has = app.loaded.is_some();
+        if ui.add_enabled(has, egui::Button::new("Save review  (Ctrl+S)")).clicked() {
+            out.push(Command::SaveReview);
+            ui.close();
+        }
+        if ui.add_enabled(has, egui::Button::new("Save review as…")).clicked() {
+            out.push(Command::SaveReviewDialog);
+            ui.close();
+        }
+        if ui.button("Open review…").clicked() {
+            out.push(Command::OpenReviewDialog);
             ui.close();
         }
         ui.menu_button("Open recent", |ui| {
@@ -318,6 +341,9 @@ fn keyboard(app: &IsolineApp, ctx: &egui::Context) -> Vec<Command> {
     ctx.input_mut(|i| {
         if i.consume_shortcut(&ctrl(Key::O)) {
             out.push(Command::OpenDialog);
+        }
+        if i.consume_shortcut(&ctrl(Key::S)) && app.loaded.is_some() {
+            out.push(Command::SaveReview);
         }
         if i.consume_shortcut(&ctrl_shift(Key::Z)) || i.consume_shortcut(&ctrl(Key::Y)) {
             out.push(Command::Redo);

@@ -163,8 +163,9 @@ pub struct Loaded {
     pub format: Format,
     /// The recording as read (shared: views read it every frame).
     pub recording: Arc<Recording>,
-    /// Filters, beats, representative beat and automatic measurements (computed on the filtered copy).
-    pub analysis: Analysis,
+    /// Filters, beats, representative beat and automatic measurements (computed on the filtered copy);
+    /// `None` while a long recording is still being analysed in the background.
+    pub analysis: Option<Analysis>,
     /// What the reader noticed while reading.
     pub warnings: Vec<String>,
     /// Whole-recording min/max envelope of the Tape lead.
@@ -174,13 +175,40 @@ pub struct Loaded {
     pub beats: Vec<Beat>,
     /// Where the beats came from, for the status bar.
     pub beats_source: String,
+    /// Heart-rate trend points `(s, bpm)` from `beats`.
+    pub trend: Vec<[f64; 2]>,
+    /// Median RR of consecutive dominant beats, ms.
+    pub median_rr_ms: Option<f64>,
 }
 
 impl Loaded {
+    /// Uses a finished analysis: detected beats (the file's annotated beats stay when none were detected), the
+    /// Tape envelope of the filtered signal, the rate trend.
+    pub fn attach(&mut self, analysis: Analysis) {
+        if !analysis.beats.is_empty() {
+            self.beats.clone_from(&analysis.beats);
+            self.beats_source = format!("{} beats detected", analysis.beats.len());
+        } else if self.beats.is_empty() {
+            self.beats_source = "no beats found".to_string();
+        } else {
+            self.beats_source = format!("{} annotated beats (none detected)", self.beats.len());
+        }
+        self.tape = TapeEnvelope::new(&analysis.filtered.recording, self.tape.lead);
+        self.analysis = Some(analysis);
+        self.derive_rates();
+    }
+
+    /// Recomputes the rate trend and median RR from `beats`.
+    pub fn derive_rates(&mut self) {
+        let fs = self.recording.sample_rate.hz();
+        self.trend = super::derived::rate_trend(&self.beats, fs);
+        self.median_rr_ms = super::derived::median_rr_ms(&self.beats, fs);
+    }
+
     /// The representative beat, if there were enough beats.
     #[must_use]
     pub fn representative(&self) -> Option<&RepresentativeBeat> {
-        self.analysis.representative.as_ref()
+        self.analysis.as_ref().and_then(|a| a.representative.as_ref())
     }
 
     /// Automatic marks on the representative beat.
@@ -192,7 +220,10 @@ impl Loaded {
     /// The signal the Sheet shows: filtered or as read.
     #[must_use]
     pub fn shown(&self, filters: bool) -> &Recording {
-        if filters { &self.analysis.filtered.recording } else { &self.recording }
+        match (&self.analysis, filters) {
+            (Some(a), true) => &a.filtered.recording,
+            _ => &self.recording,
+        }
     }
 }
 
@@ -220,6 +251,8 @@ pub struct UiState {
     pub lens_active: Option<MarkKind>,
     /// Beat lens: the mark being dragged.
     pub lens_drag: Option<MarkKind>,
+    /// Ledger row whose reviewed value is being typed, with the text so far.
+    pub ledger_edit: Option<(String, String)>,
     /// Help overlay open.
     pub help_open: bool,
     /// Ruler calibration window open.

@@ -5,7 +5,7 @@
 use egui_plot::{FilledArea, Line, Plot, PlotPoints, Polygon};
 
 use super::command::Command;
-use super::derived::{rate_trend, TapeEnvelope};
+use super::derived::TapeEnvelope;
 use super::state::Loaded;
 
 /// Draws the Tape; returns a command to move the Sheet when clicked or dragged.
@@ -44,6 +44,7 @@ pub fn tape_ui(
         .allow_double_click_reset(false)
         .show_y(false)
         .y_axis_label("mV")
+        .x_axis_formatter(|m, _| clock(m.value))
         .include_x(0.0)
         .include_x(duration)
         .show(ui, |p| {
@@ -56,10 +57,12 @@ pub fn tape_ui(
         env.transform.position_from_point_x(duration),
     ));
     out.extend(jump(&env.response, &env.transform, window_s, duration));
-    let trend = rate_trend(&loaded.beats, loaded.recording.sample_rate.hz());
+    let trend = &loaded.trend;
     if trend.is_empty() {
-        ui.weak("Heart-rate trend: no beats yet (needs beat annotations or the detector).");
+        ui.weak("Heart-rate trend: appears when beats are found (analysis may still be running).");
     } else {
+        let (r_lo, r_hi) = trend.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p[1]), b.max(p[1])));
+        let (r_lo, r_hi) = ((r_lo - 10.0).max(0.0), r_hi + 10.0);
         let hr = Plot::new("tape_rate")
             .height(60.0)
             .allow_drag(false)
@@ -68,14 +71,15 @@ pub fn tape_ui(
             .allow_boxed_zoom(false)
             .allow_double_click_reset(false)
             .y_axis_label("bpm")
+            .x_axis_formatter(|m, _| clock(m.value))
             .include_x(0.0)
             .include_x(duration)
-            .include_y(40.0)
-            .include_y(120.0)
+            .include_y(r_lo)
+            .include_y(r_hi)
             .show(ui, |p| {
-                let pts = thin(&trend, columns);
+                let pts = thin(trend, columns);
                 p.add(Line::new("heart rate", PlotPoints::new(pts)).color(egui::Color32::from_rgb(200, 60, 60)));
-                p.add(window(0.0, 250.0));
+                p.add(window(r_lo, r_hi));
             });
         out.extend(jump(&hr.response, &hr.transform, window_s, duration));
     }
