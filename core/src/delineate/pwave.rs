@@ -10,11 +10,12 @@ use crate::detect::correlation;
 /// Length of the PR window before QRS onset, s.
 const WINDOW_S: f64 = 0.300;
 /// The median P wave must be at least this big on its clearest lead, µV.
-// Common practice, no source: normal P waves are 50–250 µV; the median of fibrillatory waves is far smaller.
-const MIN_P_UV: f32 = 20.0;
+// Common practice, no source: normal P waves are 50–250 µV in their clearest lead; the median of
+// fibrillatory or flutter waves over beats is far smaller.
+const MIN_P_UV: f32 = 40.0;
 /// Mean correlation of the beats' P waves with the median needed to call the P wave consistent.
 // Common practice, no source.
-const MIN_CONSISTENCY: f64 = 0.45;
+const MIN_CONSISTENCY: f64 = 0.75;
 /// A beat gets a P wave when its PR window correlates at least this well with the median one.
 // Common practice, no source.
 const MIN_BEAT_CORR: f64 = 0.30;
