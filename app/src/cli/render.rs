@@ -165,7 +165,7 @@ fn unit_text(unit: &str) -> String {
 /// and the reader's values from the review.
 fn ledger(m: &Measurements, review: Option<&Review>) -> Vec<LedgerLine> {
     let values = m.values();
-    LEDGER_KEYS
+    let mut lines: Vec<LedgerLine> = LEDGER_KEYS
         .iter()
         .filter_map(|key| {
             let auto = values.iter().find(|v| v.key == *key);
@@ -180,5 +180,18 @@ fn ledger(m: &Measurements, review: Option<&Review>) -> Vec<LedgerLine> {
                 unit: unit_text(&unit),
             })
         })
-        .collect()
+        .collect();
+    // Any other value the reader set (ST levels, …) follows, so no reviewed value is left off the page.
+    if let Some(r) = review {
+        for s in r.measurements.iter().filter(|s| s.reviewed_value.is_some() && !LEDGER_KEYS.contains(&s.key.as_str()))
+        {
+            lines.push(LedgerLine {
+                label: s.label.clone(),
+                auto: s.auto_value.map(|v| format_value(v, &s.unit)),
+                reviewed: s.reviewed_value.map(|v| format_value(v, &s.unit)),
+                unit: unit_text(&s.unit),
+            });
+        }
+    }
+    lines
 }
