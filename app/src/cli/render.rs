@@ -5,12 +5,11 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, bail};
-use isoline_core::measure::{self, Measurements};
+use isoline_core::measure::Measurements;
 use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
-use isoline_core::recording::Recording;
 use isoline_core::render::{self, LedgerLine, RenderInput};
 use isoline_core::review::{self, MarkOn, Review};
-use isoline_core::{MarkKind, delineate, detect, filter, io};
+use isoline_core::{MarkKind, analysis, filter, io};
 
 /// Arguments of `isoline render`.
 #[derive(Debug, clap::Args)]
@@ -100,8 +99,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         bail!("{file}: --start {} s is outside the recording (0 to {:.3} s)", args.start, raw.duration_s());
     }
     // The page shows what was measured: the filtered recording, with the filters named in the header.
-    let filtered = filter::apply(raw, &filter::FilterSettings::default());
-    let measured = analyze(&filtered.recording);
+    let analysis = analysis::analyze(raw, &filter::FilterSettings::default());
+    let filtered = &analysis.filtered;
     let spec = PageSpec {
         layout,
         order,
@@ -115,7 +114,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         title,
         identify: args.identify,
         filter_text: Some(filtered.description.clone()),
-        ledger: ledger(&measured, review.as_ref()),
+        ledger: ledger(&analysis.measurements, review.as_ref()),
         ..RenderInput::new(&filtered.recording, spec, args.dpi)
     };
     if let Some(r) = &review {
@@ -134,17 +133,6 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         args.dpi
     );
     Ok(ExitCode::SUCCESS)
-}
-
-/// Beats, wave boundaries, representative beat and measurements of a filtered recording (the same steps as
-/// `core/src/analysis.rs`, which is not in the build yet).
-fn analyze(rec: &Recording) -> Measurements {
-    let mut beats = detect::detect_beats(rec);
-    delineate::delineate_beats(rec, &mut beats);
-    let rep = delineate::representative_beat(rec, &beats);
-    let template =
-        rep.as_ref().map(|r| measure::Template { leads: &r.leads, sample_rate: r.sample_rate, bounds: r.bounds });
-    measure::measure(rec, &beats, template.as_ref())
 }
 
 /// Marks on beats of the recording; marks on the representative beat live on its own time axis and are not
@@ -177,7 +165,7 @@ fn unit_text(unit: &str) -> String {
 /// and the reader's values from the review.
 fn ledger(m: &Measurements, review: Option<&Review>) -> Vec<LedgerLine> {
     let values = m.values();
-    LEDGER_KEYS
+    let mut lines: Vec<LedgerLine> = LEDGER_KEYS
         .iter()
         .filter_map(|key| {
             let auto = values.iter().find(|v| v.key == *key);
@@ -192,5 +180,18 @@ fn ledger(m: &Measurements, review: Option<&Review>) -> Vec<LedgerLine> {
                 unit: unit_text(&unit),
             })
         })
-        .collect()
+        .collect();
+    // Any other value the reader set (ST levels, …) follows, so no reviewed value is left off the page.
+    if let Some(r) = review {
+        for s in r.measurements.iter().filter(|s| s.reviewed_value.is_some() && !LEDGER_KEYS.contains(&s.key.as_str()))
+        {
+            lines.push(LedgerLine {
+                label: s.label.clone(),
+                auto: s.auto_value.map(|v| format_value(v, &s.unit)),
+                reviewed: s.reviewed_value.map(|v| format_value(v, &s.unit)),
+                unit: unit_text(&s.unit),
+            });
+        }
+    }
+    lines
 }
