@@ -77,8 +77,9 @@ fn batch_lists_bad_files_and_measures_the_rest() -> Result<(), Box<dyn std::erro
 
 #[test]
 fn missing_file_is_exit_code_2_with_its_name() -> Result<(), Box<dyn std::error::Error>> {
-    let out = isoline().args(["measure", "no-such-record.hea"]).output()?;
+    let out = isoline().args(["measure", "--format", "json", "no-such-record.hea"]).output()?;
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("no-such-record.hea"));
+    assert!(out.stdout.is_empty(), "{}", String::from_utf8_lossy(&out.stdout));
     Ok(())
 }

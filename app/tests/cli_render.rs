@@ -20,7 +20,20 @@ fn renders_a_png() -> Res {
     let st = isoline()
         .args(["render"])
         .arg(data("ptb-s0010/s0010_re.hea"))
-        .args(["--dpi", "100", "--layout", "6x2", "--scheme", "mono", "--order", "cabrera", "--start", "1", "--seconds", "8"])
+        .args([
+            "--dpi",
+            "100",
+            "--layout",
+            "6x2",
+            "--scheme",
+            "mono",
+            "--order",
+            "cabrera",
+            "--start",
+            "1",
+            "--seconds",
+            "8",
+        ])
         .arg("--out")
         .arg(&out)
         .output()?;
@@ -46,7 +59,8 @@ fn errors_leave_no_file() -> Res {
         &["--review", "/nonexistent/missing.review.ron"],
     ];
     for extra in cases {
-        let st = isoline().arg("render").arg(data("ptb-s0010/s0010_re.hea")).args(extra).arg("--out").arg(&out).output()?;
+        let st =
+            isoline().arg("render").arg(data("ptb-s0010/s0010_re.hea")).args(extra).arg("--out").arg(&out).output()?;
         assert_eq!(st.status.code(), Some(2), "{extra:?}");
         let err = String::from_utf8_lossy(&st.stderr);
         assert_eq!(err.trim().lines().count(), 1, "{extra:?}: {err}");

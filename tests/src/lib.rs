@@ -7,3 +7,5 @@ use std::path::PathBuf;
 pub fn data(rel: &str) -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("data").join(rel)
 }
+
+pub mod score;

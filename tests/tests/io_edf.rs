@@ -211,6 +211,26 @@ fn hand_made_edf_plus_with_annotations() -> TestResult {
         r.annotations.iter().map(|a| (a.sample, a.label.as_str(), a.duration_s)).collect();
     // Onsets × 8 Hz: 0.25 s → 2, 0.875 s → 7.
     assert_eq!(anns, vec![(2, "Pace", Some(0.1)), (7, "Tilt up", None), (7, "Cough", None)]);
+    assert!(o.warnings.iter().all(|w| !w.contains("start at a time")), "{:?}", o.warnings);
+
+    // The same file starting 0.125 s after the header's start time (Kemp & Olivan 2003: the first record's
+    // time-keeping TAL gives its start): onsets count from the header time, samples from the first record.
+    let mut shifted = bytes.clone();
+    let base = bytes.len() - data.len();
+    for (rec_start, tal_at) in [(b"+0.125\x14\x14\x00".to_vec(), 0usize), (b"+0.625\x14\x14\x00".to_vec(), 1)] {
+        let at = base + tal_at * (data.len() / 2) + 2 * (4 + 4 + 1);
+        let mut t = rec_start.clone();
+        let rest: &[u8] = if tal_at == 0 { b"+0.375\x150.1\x14Pace\x14\x00" } else { b"+1\x14Tilt up\x14Cough\x14\x00" };
+        t.extend(rest);
+        t.resize(40, 0);
+        shifted[at..at + 40].copy_from_slice(&t);
+    }
+    let path = dir.path().join("shifted.edf");
+    std::fs::write(&path, &shifted)?;
+    let o = io::open(&path, &io::OpenOptions::default())?;
+    let anns: Vec<(u64, &str)> = o.recording.annotations.iter().map(|a| (a.sample, a.label.as_str())).collect();
+    assert_eq!(anns, vec![(2, "Pace"), (7, "Tilt up"), (7, "Cough")]);
+    assert!(o.warnings.iter().all(|w| !w.contains("start at a time")), "{:?}", o.warnings);
     assert_eq!(r.meta.patient_id.as_deref(), Some("ABC-123"));
     assert_eq!(r.meta.sex.as_deref(), Some("M"));
     assert_eq!(r.meta.patient_name.as_deref(), Some("Made Up"));
@@ -296,5 +316,39 @@ fn only_ecg_signals_at_the_highest_rate_are_leads() -> TestResult {
     let w = o.warnings.join("\n");
     assert!(w.contains("ECG II") && w.contains("2 Hz"), "{w}");
     assert!(w.contains("EEG Fpz-Cz") && w.contains("not an ECG"), "{w}");
+    Ok(())
+}
+
+#[test]
+fn reads_an_edf_plus_file_from_an_independent_writer() -> TestResult {
+    // Source: tests/data/edf/pyedflib-sample.* written and read back by pyedflib 0.1.42 (EDFlib); see the
+    // README beside them.
+    let o = io::open(&data("edf/pyedflib-sample.edf"), &io::OpenOptions::default())?;
+    let r = &o.recording;
+    assert_eq!(o.format, Format::EdfPlus);
+    assert_eq!(r.sample_rate.hz(), 256.0);
+    assert_eq!(r.len(), 2560);
+    let names: Vec<String> = r.leads.iter().map(|l| l.name.to_string()).collect();
+    assert_eq!(names, ["I", "II"]);
+    assert!(o.warnings.iter().any(|w| w.contains("Resp")), "{:?}", o.warnings);
+    let values = std::fs::read_to_string(data("edf/pyedflib-sample.values.csv"))?;
+    let mut checked = 0;
+    for line in values.lines().skip(1) {
+        let f: Vec<&str> = line.split(',').collect();
+        let lead = r.leads.iter().find(|l| format!("ECG {}", l.name) == f[0]).ok_or("lead")?;
+        let (k, uv): (usize, f64) = (f[1].parse()?, f[2].parse()?);
+        assert!((f64::from(lead.samples[k]) - uv).abs() < 0.01, "{} sample {k}: {} vs {uv}", f[0], lead.samples[k]);
+        checked += 1;
+    }
+    assert_eq!(checked, 16);
+    let anns: Vec<(u64, &str, Option<f64>)> =
+        r.annotations.iter().map(|a| (a.sample, a.label.as_str(), a.duration_s)).collect();
+    // Onsets 0.5, 2.25, 7.75 s × 256 Hz (pyedflib-sample.annotations.csv).
+    assert_eq!(anns, vec![(128, "Made-up start", None), (576, "Pace", Some(0.5)), (1984, "Made-up end", None)]);
+    assert_eq!(r.meta.patient_id.as_deref(), Some("BENCH-07"));
+    assert_eq!(r.meta.sex.as_deref(), Some("M"));
+    assert_eq!(r.meta.patient_name.as_deref(), Some("Bench Test"));
+    assert_eq!(r.meta.device.as_deref(), Some("Rig 3"));
+    assert_eq!(r.start.map(|s| (s.year(), u8::from(s.month()), s.day())), Some((2026, 12, 2)));
     Ok(())
 }

@@ -37,7 +37,8 @@ fn vertical_lines(img: &Image, c: [u8; 3], (y0, y1): (usize, usize)) -> Vec<f64>
 /// Centres of horizontal lines of colour `c` covering at least 60 % of columns x0..=x1.
 fn horizontal_lines(img: &Image, c: [u8; 3], (x0, x1): (usize, usize)) -> Vec<f64> {
     let need = (x1 - x0 + 1) * 6 / 10;
-    let ys: Vec<usize> = (0..img.height).filter(|&y| (x0..=x1).filter(|&x| img.px(x, y) == c).count() >= need).collect();
+    let ys: Vec<usize> =
+        (0..img.height).filter(|&y| (x0..=x1).filter(|&x| img.px(x, y) == c).count() >= need).collect();
     runs(&ys, 1).into_iter().map(centre).collect()
 }
 
@@ -101,9 +102,8 @@ fn strip_at_300_dpi_is_true_scale() -> Res {
     // 5 mm = 59.06 px apart.
     let pulse = ink[0];
     assert!(pulse.1 < trace.0, "pulse {pulse:?} before trace {trace:?}");
-    let rows: Vec<usize> = (band.0..=band.1)
-        .filter(|&y| (pulse.0..=pulse.1).filter(|&x| dark(img.px(x, y))).count() >= 15)
-        .collect();
+    let rows: Vec<usize> =
+        (band.0..=band.1).filter(|&y| (pulse.0..=pulse.1).filter(|&x| dark(img.px(x, y))).count() >= 15).collect();
     let flats = runs(&rows, 1);
     assert_eq!(flats.len(), 2, "pulse horizontal runs {flats:?}");
     let height = centre(flats[1]) - centre(flats[0]);
@@ -150,7 +150,8 @@ fn time_caliper_legs_fall_on_expected_columns() -> Res {
     let rec = ptb()?;
     let spec = strip(Paper::STANDARD, 10.0);
     let (t1, t2) = (2.0, 2.8);
-    let cal = Caliper { id: 1, kind: CaliperKind::Time { t1_s: t1, t2_s: t2 }, lead: None, locked: false, march: false };
+    let cal =
+        Caliper { id: 1, kind: CaliperKind::Time { t1_s: t1, t2_s: t2 }, lead: None, locked: false, march: false };
     let input = RenderInput { calipers: vec![cal], ..RenderInput::new(&rec, spec.clone(), DPI) };
     let (_, img) = render_png(&input)?;
     // Caliper ink is the Rose scheme's blue; legs run through the row band (over 20 mm tall).
@@ -167,6 +168,30 @@ fn time_caliper_legs_fall_on_expected_columns() -> Res {
     for (leg, t) in legs.iter().zip([t1, t2]) {
         let expect = (cell.x_mm + 25.0 * (t - cell.t0_s)) * PX_MM;
         assert!((leg - expect).abs() <= 1.5, "leg at {leg} px, expected {expect:.2}");
+    }
+    Ok(())
+}
+
+#[test]
+fn mark_is_drawn_on_every_row_showing_its_time() -> Res {
+    // On a 3x4+1 page the time 3.0 s lies in the second column of the three lead rows and in the rhythm row,
+    // 3.0 s x 25 mm/s = 75 mm right of where the traces start.
+    let rec = ptb()?;
+    let spec = PageSpec::default();
+    let input =
+        RenderInput { marks: vec![(isoline_core::MarkKind::JPoint, 3.0)], ..RenderInput::new(&rec, spec.clone(), DPI) };
+    let (_, img) = render_png(&input)?;
+    let page = spec.page(&rec);
+    let green = |p: [u8; 3]| p[1] > 100 && p[0] < 90 && p[2] < 140;
+    let trace_x = page.rows[0].cells[0].x_mm;
+    let expect = (trace_x + 75.0) * PX_MM;
+    for row in &page.rows {
+        let (y0, y1) = ((row.top_mm * PX_MM) as usize, ((row.top_mm + row.height_mm) * PX_MM) as usize);
+        let xs: Vec<usize> =
+            (0..img.width).filter(|&x| (y0..y1).filter(|&y| green(img.px(x, y))).count() > 60).collect();
+        let lines: Vec<f64> = runs(&xs, 1).into_iter().map(centre).collect();
+        assert_eq!(lines.len(), 1, "row at {} mm: mark lines {lines:?}", row.top_mm);
+        assert!((lines[0] - expect).abs() <= 1.5, "mark at {} px, expected {expect:.2}", lines[0]);
     }
     Ok(())
 }

@@ -12,7 +12,8 @@ use render_common::{Res, render_png};
 /// A made-up demo patient (invented for this test; no real person).
 fn demo_recording() -> Res<Recording> {
     let fs = 500.0;
-    let samples: Vec<f32> = (0..5000).map(|i| (800.0 * (i as f64 / fs * 2.0 * std::f64::consts::PI).sin()) as f32).collect();
+    let samples: Vec<f32> =
+        (0..5000).map(|i| (800.0 * (i as f64 / fs * 2.0 * std::f64::consts::PI).sin()) as f32).collect();
     Ok(Recording {
         leads: vec![Lead { name: StandardLead::II.into(), samples }],
         sample_rate: Hertz::from_hz(fs)?,
@@ -67,9 +68,8 @@ fn caution_is_drawn_on_every_page() -> Res {
         let p = isoline_core::paper::Scheme::Rose.palette().background;
         [p[0], p[1], p[2]]
     };
-    let ink_rows = ((grid_bottom.ceil() as usize + 2)..img.height)
-        .filter(|&y| (0..img.width).any(|x| img.px(x, y) != bg))
-        .count();
+    let ink_rows =
+        ((grid_bottom.ceil() as usize + 2)..img.height).filter(|&y| (0..img.width).any(|x| img.px(x, y) != bg)).count();
     // 8 pt bold text has capitals about 2 mm (12 px at 150 dpi) tall.
     assert!(ink_rows >= 10, "footer has {ink_rows} rows with ink");
     assert!(isoline_core::CAUTION.contains("qualified personnel"));

@@ -8,7 +8,7 @@ use std::path::PathBuf;
 
 use isoline_core::MarkKind;
 use isoline_core::caliper::{Caliper, CaliperKind};
-use isoline_core::paper::{LeadOrder, Layout, PageSpec, Paper, Scheme};
+use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
 use isoline_core::recording::StandardLead;
 use isoline_core::render::{LedgerLine, RenderInput};
 use render_common::{Res, decode, ptb, render_png};
@@ -19,13 +19,22 @@ const CHANNEL_TOLERANCE: u8 = 24;
 const CHANGED_SHARE: f64 = 0.002;
 
 fn snapshot(name: &str, input: &RenderInput) -> Res {
-    let (bytes, img) = render_png(input)?;
+    let (_, img) = render_png(input)?;
     let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("snapshots").join(name);
     if std::env::var_os("ISOLINE_BLESS").is_some() {
-        std::fs::write(&path, &bytes)?;
+        // Golden files are stored with stronger compression than exports use; the pixels are the same.
+        let mut out = Vec::new();
+        let mut enc = png::Encoder::new(&mut out, img.width as u32, img.height as u32);
+        enc.set_color(png::ColorType::Rgb);
+        enc.set_compression(png::Compression::High);
+        let mut w = enc.write_header()?;
+        w.write_image_data(&img.rgb)?;
+        w.finish()?;
+        std::fs::write(&path, &out)?;
         return Ok(());
     }
-    let golden = decode(&std::fs::read(&path).map_err(|e| format!("{}: {e} (bless with ISOLINE_BLESS=1)", path.display()))?)?;
+    let golden =
+        decode(&std::fs::read(&path).map_err(|e| format!("{}: {e} (bless with ISOLINE_BLESS=1)", path.display()))?)?;
     assert_eq!((img.width, img.height), (golden.width, golden.height), "{name}: size changed");
     let changed = img
         .rgb
@@ -49,7 +58,13 @@ fn twelve_lead_page_rose() -> Res {
 fn annotated_page_graphite_cabrera() -> Res {
     let rec = ptb()?;
     let spec = PageSpec { layout: Layout::SixByTwo, order: LeadOrder::Cabrera, ..PageSpec::default() };
-    let time = |id, t1_s, t2_s, march| Caliper { id, kind: CaliperKind::Time { t1_s, t2_s }, lead: None, locked: false, march };
+    let time = |id, t1_s, t2_s, march| Caliper {
+        id,
+        kind: CaliperKind::Time { t1_s, t2_s },
+        lead: None,
+        locked: false,
+        march,
+    };
     let calipers = vec![
         time(1, 0.62, 1.56, true),
         Caliper {
@@ -105,6 +120,7 @@ fn fast_strip_mono() -> Res {
         seconds: 4.0,
         ..PageSpec::default()
     };
-    let input = RenderInput { scheme: Scheme::Mono, title: "s0010_re.hea".into(), ..RenderInput::new(&rec, spec, 100.0) };
+    let input =
+        RenderInput { scheme: Scheme::Mono, title: "s0010_re.hea".into(), ..RenderInput::new(&rec, spec, 100.0) };
     snapshot("ptb-s0010-strip-v5-50mm-mono.png", &input)
 }

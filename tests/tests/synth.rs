@@ -49,7 +49,7 @@ fn truth_intervals_match_the_parameters_within_one_sample() {
     for scenario in Scenario::ALL {
         let mut spec = scenario.spec();
         spec.seconds = spec.seconds.min(30.0);
-        for rate in [250.0, 500.0, 1000.0] {
+        for rate in [250.0, 360.0, 500.0, 1000.0] {
             spec.rate_hz = rate;
             let s = make(&spec);
             let t = &s.truth;
@@ -298,6 +298,8 @@ fn bad_parameters_are_refused_with_their_name() {
     // 150 bpm leaves no room for PR 160 + QT 380.
     assert!(bad(|s| s.heart_rate_bpm = 150.0).is_err_and(|e| e.contains("bpm")));
     assert!(bad(|s| s.ectopics = Ectopics::Chance(2.0)).is_err());
+    // A week at 20 kHz on 12 leads would not fit in memory: refused before any allocation.
+    assert!(bad(|s| (s.seconds, s.rate_hz) = (7.0 * 86_400.0, 20_000.0)).is_err_and(|e| e.contains("leads")));
 }
 
 #[test]
@@ -330,4 +332,70 @@ fn holter_day_is_fast_and_frugal() {
     assert!(bytes <= n * 3 * 4 * 3 / 2, "{bytes} bytes");
     eprintln!("24-h holter: {} beats in {:.2} s", s.truth.beats.len(), took.as_secs_f64());
     assert!(s.truth.ectopic_beats > 100);
+}
+
+/// Waves of neighbouring beats never overlap: each beat's first onset comes after the previous T end.
+fn assert_beats_apart(t: &synth::Truth) {
+    for w in t.beats.windows(2) {
+        let first = w[1].p_on.or(w[1].qrs_on).unwrap_or(0);
+        assert!(first > w[0].t_end.unwrap_or(usize::MAX), "{:?} then {:?}", w[0], w[1]);
+    }
+}
+
+#[test]
+fn beats_never_overlap_in_any_scenario() {
+    for scenario in Scenario::ALL {
+        let mut spec = scenario.spec();
+        spec.seconds = spec.seconds.min(120.0);
+        assert_beats_apart(&make(&spec).truth);
+    }
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(40))]
+    /// Any parameters in range either give a clear timing error or a recording whose truth matches them.
+    #[test]
+    fn random_parameters_give_truth_that_matches_them(
+        hr in 40.0f64..110.0,
+        pr in 120.0f64..300.0,
+        qrs in 60.0f64..160.0,
+        qt_extra in 220.0f64..420.0,
+        axis in -90.0f64..180.0,
+        rate in proptest::sample::select(vec![250.0, 360.0, 500.0]),
+        variation in 0.0f64..0.2,
+        every in 0u32..7,
+        seed in 0u64..1000,
+    ) {
+        let spec = SynthSpec {
+            seconds: 12.0,
+            rate_hz: rate,
+            heart_rate_bpm: hr,
+            pr_ms: pr,
+            qrs_ms: qrs,
+            qt_ms: qrs + qt_extra,
+            axis_deg: axis,
+            rr_variation: variation,
+            ectopics: if every >= 2 { Ectopics::Every(every) } else { Ectopics::None },
+            seed,
+            ..SynthSpec::default()
+        };
+        match synth::generate(&spec) {
+            Err(synth::SynthError::Timing(_)) => {}
+            Err(e) => proptest::prop_assert!(false, "unexpected error {e}"),
+            Ok(s) => {
+                let t = &s.truth;
+                assert_beats_apart(t);
+                let one = 1000.0 / rate;
+                for b in t.beats.iter().filter(|b| b.kind == TrueKind::Sinus) {
+                    let (Some(p), Some(q), Some(j), Some(e)) = (b.p_on, b.qrs_on, b.qrs_end, b.t_end) else {
+                        return Err(proptest::test_runner::TestCaseError::fail("sinus beat without boundaries"));
+                    };
+                    proptest::prop_assert!(((q - p) as f64 * one - pr).abs() <= one);
+                    proptest::prop_assert!(((j - q) as f64 * one - qrs).abs() <= one);
+                    proptest::prop_assert!(((e - q) as f64 * one - spec.qt_ms).abs() <= one);
+                }
+                proptest::prop_assert!(s.recording.leads.iter().all(|l| l.samples.iter().all(|v| v.is_finite())));
+            }
+        }
+    }
 }

@@ -6,7 +6,7 @@ use std::process::ExitCode;
 
 use anyhow::{Context, bail};
 use isoline_core::measure::{self, Measurements};
-use isoline_core::paper::{LeadOrder, Layout, PageSpec, Paper, Scheme};
+use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
 use isoline_core::recording::Recording;
 use isoline_core::render::{self, LedgerLine, RenderInput};
 use isoline_core::review::{self, MarkOn, Review};
@@ -58,8 +58,17 @@ pub struct Args {
 
 /// Measurement keys shown in the box, in order.
 const LEDGER_KEYS: [&str; 11] = [
-    "heart_rate_bpm", "rr_ms", "p_duration_ms", "pr_ms", "qrs_ms", "qt_ms", "qtc_bazett_ms", "qtc_fridericia_ms",
-    "axis_p_deg", "axis_qrs_deg", "axis_t_deg",
+    "heart_rate_bpm",
+    "rr_ms",
+    "p_duration_ms",
+    "pr_ms",
+    "qrs_ms",
+    "qt_ms",
+    "qtc_bazett_ms",
+    "qtc_fridericia_ms",
+    "axis_p_deg",
+    "axis_qrs_deg",
+    "axis_t_deg",
 ];
 
 /// Runs the command.
@@ -74,7 +83,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         }
     }
     let review = match &args.review {
-        Some(r) => Some(review::load_for(r, &args.file).with_context(|| format!("{}: cannot use this review", r.display()))?),
+        Some(r) => {
+            Some(review::load_for(r, &args.file).with_context(|| format!("{}: cannot use this review", r.display()))?)
+        }
         None => None,
     };
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
@@ -115,7 +126,13 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let pixmap = render::render_page(&input).with_context(|| format!("{file}: cannot draw the page"))?;
     let bytes = render::encode_png(&pixmap, args.dpi).with_context(|| format!("{file}: cannot encode PNG"))?;
     render::write_png_atomic(&args.out, &bytes)?;
-    eprintln!("isoline: wrote {} ({} x {} px at {} dpi)", args.out.display(), pixmap.width(), pixmap.height(), args.dpi);
+    eprintln!(
+        "isoline: wrote {} ({} x {} px at {} dpi)",
+        args.out.display(),
+        pixmap.width(),
+        pixmap.height(),
+        args.dpi
+    );
     Ok(ExitCode::SUCCESS)
 }
 
@@ -125,7 +142,8 @@ fn analyze(rec: &Recording) -> Measurements {
     let mut beats = detect::detect_beats(rec);
     delineate::delineate_beats(rec, &mut beats);
     let rep = delineate::representative_beat(rec, &beats);
-    let template = rep.as_ref().map(|r| measure::Template { leads: &r.leads, sample_rate: r.sample_rate, bounds: r.bounds });
+    let template =
+        rep.as_ref().map(|r| measure::Template { leads: &r.leads, sample_rate: r.sample_rate, bounds: r.bounds });
     measure::measure(rec, &beats, template.as_ref())
 }
 

@@ -35,9 +35,6 @@ pub struct Args {
     /// Patient code written into the file (a made-up code for demos; the file is de-identified without it).
     #[arg(long)]
     pub patient: Option<String>,
-    /// Recording description written into the file (default: scenario and seed).
-    #[arg(long)]
-    pub label: Option<String>,
     /// Write the truth (every beat's boundaries, mean intervals, parameters) as JSON to this file.
     #[arg(long)]
     pub truth: Option<PathBuf>,
@@ -76,9 +73,6 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let mut rec = demo.recording;
     if let Some(p) = &args.patient {
         rec.meta.patient_id = Some(p.clone());
-    }
-    if let Some(l) = &args.label {
-        rec.meta.recording_info = Some(l.clone());
     }
     match ext.as_deref() {
         Some("csv") => io::csv::write(&args.out, &rec)?,

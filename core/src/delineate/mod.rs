@@ -86,3 +86,6 @@ fn median_rr(rs: &[usize]) -> Option<usize> {
     let mid = rr.len() / 2;
     Some(*rr.select_nth_unstable(mid).1)
 }
+
+#[cfg(test)]
+mod tests;

@@ -4,23 +4,24 @@
 //! Boundaries are found on the median with a multi-lead slope envelope, and carried to each beat at the lag
 //! where the beat best matches the median.
 
-use super::signals::Signals;
+use super::signals::{Signals, smooth};
 use crate::detect::correlation;
 
 /// Length of the PR window before QRS onset, s.
 const WINDOW_S: f64 = 0.300;
 /// The median P wave must be at least this big on its clearest lead, µV.
-// Common practice, no source: normal P waves are 50–250 µV; the median of fibrillatory waves is far smaller.
-const MIN_P_UV: f32 = 20.0;
+// Common practice, no source: normal P waves are 50–250 µV in their clearest lead; the median of
+// fibrillatory or flutter waves over beats is far smaller.
+const MIN_P_UV: f32 = 40.0;
 /// Mean correlation of the beats' P waves with the median needed to call the P wave consistent.
 // Common practice, no source.
-const MIN_CONSISTENCY: f64 = 0.45;
+const MIN_CONSISTENCY: f64 = 0.75;
 /// A beat gets a P wave when its PR window correlates at least this well with the median one.
 // Common practice, no source.
 const MIN_BEAT_CORR: f64 = 0.30;
 /// Fraction of the P envelope's rise marking onset and end.
 // Common practice, no source.
-const EDGE_FRACTION: f32 = 0.20;
+const EDGE_FRACTION: f32 = 0.12;
 /// Largest lag tried when matching a beat to the median P, s.
 const MAX_LAG_S: f64 = 0.024;
 
@@ -44,6 +45,11 @@ fn window(sig: &Signals) -> usize {
 
 /// The PR window of one beat (per lead, relative to the PR-segment level), if it lies inside the recording.
 fn segment(sig: &Signals, qrs_on: usize, lag: isize) -> Option<Vec<Vec<f32>>> {
+    segment_of(sig, &sig.slow, qrs_on, lag)
+}
+
+/// [`segment`] on chosen leads (`sig.slow` or `sig.qrs`).
+fn segment_of(sig: &Signals, leads: &[Vec<f32>], qrs_on: usize, lag: isize) -> Option<Vec<Vec<f32>>> {
     let w = window(sig);
     let end = qrs_on as isize + lag;
     if end < w as isize + 1 || end as usize >= sig.len() {
@@ -52,7 +58,7 @@ fn segment(sig: &Signals, qrs_on: usize, lag: isize) -> Option<Vec<Vec<f32>>> {
     let end = end as usize;
     let ref_a = end - sig.samples(0.012).max(1);
     Some(
-        sig.slow
+        leads
             .iter()
             .map(|x| {
                 let base = x[ref_a..end].iter().sum::<f32>() / (end - ref_a) as f32;
@@ -72,20 +78,7 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     if segs.len() < 3 {
         return None;
     }
-    let leads = sig.slow.len();
-    let mut col = Vec::with_capacity(segs.len());
-    let template: Vec<Vec<f32>> = (0..leads)
-        .map(|l| {
-            (0..w)
-                .map(|k| {
-                    col.clear();
-                    col.extend(segs.iter().map(|(s, _)| s[l][k]));
-                    let mid = col.len() / 2;
-                    *col.select_nth_unstable_by(mid, f32::total_cmp).1
-                })
-                .collect()
-        })
-        .collect();
+    let template = median_of(&segs.iter().map(|(s, _)| s).collect::<Vec<_>>(), w);
     // Search region in the template: after the typical previous T end, and 20 ms clear of the QRS.
     let mut room: Vec<usize> = segs.iter().map(|(_, r)| *r).collect();
     room.sort_unstable();
@@ -111,15 +104,19 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     if best_amp < MIN_P_UV || peak <= start || peak >= stop {
         return None;
     }
-    // Slope envelope of the template over the leads.
-    let env: Vec<f32> = (0..w)
+    // Slope envelope over the leads of the same median built from the 40 Hz leads (sharper edges than the
+    // 12 Hz leads used to find and compare P waves).
+    let fine_segs: Vec<Vec<Vec<f32>>> = onsets.iter().filter_map(|&(on, _)| segment_of(sig, &sig.qrs, on, 0)).collect();
+    let fine = median_of(&fine_segs.iter().collect::<Vec<_>>(), w);
+    let raw_env: Vec<f32> = (0..w)
         .map(|k| {
             if k == 0 || k + 1 >= w {
                 return 0.0;
             }
-            template.iter().map(|t| ((t[k + 1] - t[k - 1]) * 0.5).abs()).sum()
+            fine.iter().map(|t| ((t[k + 1] - t[k - 1]) * 0.5).abs()).sum()
         })
         .collect();
+    let env = smooth(&raw_env, (sig.samples(0.016).max(1)) | 1);
     let up = (start..peak).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
     let down = (peak + 1..=stop).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
     let quiet_before = env[start..=up].iter().copied().fold(f32::INFINITY, f32::min);
@@ -135,6 +132,24 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
     m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
     (m.consistency >= MIN_CONSISTENCY).then_some(m)
+}
+
+/// Sample-by-sample median over segments (per lead).
+fn median_of(segs: &[&Vec<Vec<f32>>], w: usize) -> Vec<Vec<f32>> {
+    let leads = segs.first().map_or(0, |s| s.len());
+    let mut col = Vec::with_capacity(segs.len());
+    (0..leads)
+        .map(|l| {
+            (0..w)
+                .map(|k| {
+                    col.clear();
+                    col.extend(segs.iter().map(|s| s[l][k]));
+                    let mid = col.len() / 2;
+                    *col.select_nth_unstable_by(mid, f32::total_cmp).1
+                })
+                .collect()
+        })
+        .collect()
 }
 
 impl PModel {

@@ -11,8 +11,8 @@ use crate::beat::{Beat, BeatKind};
 use crate::recording::Recording;
 use crate::units::Hertz;
 
-/// Half-width of the R peak search around the feature peak, s.
-const R_SEARCH_S: f64 = 0.080;
+/// Half-width of the R peak search around the QRS middle found by the feature, s.
+const R_SEARCH_S: f64 = 0.100;
 
 /// Detects beats on every lead together. Returns R peaks in time order with their kind; boundaries are
 /// empty (see [`crate::delineate::delineate_beats`]). Works on raw or filtered recordings (it band-passes
@@ -29,29 +29,39 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
         return Vec::new();
     }
     let peaks = peaks::pick(&f.combined, fs);
-    let r = place_r(&f.wide, &f.weights, &peaks, fs);
-    let dominant = typing::dominant(&f.wide, &f.weights, &r, fs);
+    let r = place_r(&leads, &f.weights, &peaks, fs);
+    let dominant = typing::dominant(&leads, &f.weights, &r, fs);
     r.iter()
         .zip(dominant)
         .map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other }))
         .collect()
 }
 
-/// Places each R peak on the lead with the clearest QRS: the sample of largest absolute deflection of the
-/// band-passed lead within ± [`R_SEARCH_S`] of the feature peak. Keeps peaks strictly increasing.
-fn place_r(wide: &[Vec<f32>], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
+/// Places each R peak on the lead with the clearest QRS: the sample of largest absolute deflection from the
+/// local mean within ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks
+/// strictly increasing.
+fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
     let best = weights
         .iter()
         .enumerate()
         .max_by(|a, b| a.1.total_cmp(b.1).then_with(|| b.0.cmp(&a.0)))
         .map_or(0, |(i, _)| i);
-    let lead = &wide[best];
+    let lead = leads[best];
     let n = lead.len();
     let h = (R_SEARCH_S * fs) as usize;
+    let lag = (feature::lag_s() * fs).round() as usize;
     let mut out: Vec<usize> = Vec::with_capacity(peaks.len());
     for &p in peaks {
-        let (a, b) = (p.saturating_sub(h), (p + h + 1).min(n));
-        let r = (a..b).max_by(|&i, &j| lead[i].abs().total_cmp(&lead[j].abs())).unwrap_or(p);
+        let c = p.saturating_sub(lag);
+        let (a, b) = (c.saturating_sub(h), (c + h + 1).min(n));
+        if a >= b {
+            continue;
+        }
+        let valid = lead[a..b].iter().filter(|v| v.is_finite());
+        let count = valid.clone().count();
+        let mean = if count > 0 { valid.sum::<f32>() / count as f32 } else { 0.0 };
+        let dev = |i: usize| if lead[i].is_finite() { (lead[i] - mean).abs() } else { -1.0 };
+        let r = (a..b).max_by(|&i, &j| dev(i).total_cmp(&dev(j))).unwrap_or(c);
         if out.last().is_none_or(|&l| r > l) {
             out.push(r);
         }

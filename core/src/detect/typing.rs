@@ -12,18 +12,30 @@ const PREMATURE: f64 = 0.85;
 /// Most beats used to build the template.
 const TEMPLATE_BEATS: usize = 301;
 
-/// Types each beat: `true` = dominant. `wide` holds the band-passed leads, `weights` their weights.
-pub fn dominant(wide: &[Vec<f32>], weights: &[f64], r: &[usize], fs: f64) -> Vec<bool> {
-    let n = wide.first().map_or(0, Vec::len);
+/// Types each beat: `true` = dominant. `leads` are the samples (µV, NaN = invalid), `weights` the leads'
+/// detection weights (leads of weight 0 are not compared).
+pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> Vec<bool> {
+    let n = leads_in.first().map_or(0, |l| l.len());
     let (a, b) = ((WIN_S.0 * fs) as usize, (WIN_S.1 * fs) as usize);
-    let leads: Vec<usize> = (0..wide.len()).filter(|&l| weights[l] > 0.0).collect();
+    let leads: Vec<usize> = (0..leads_in.len()).filter(|&l| weights[l] > 0.0).collect();
     if r.is_empty() || leads.is_empty() {
         return vec![true; r.len()];
     }
+    // Each lead's window with its own mean removed (baseline offsets must not count as shape), leads joined.
     let snippet = |p: usize| -> Option<Vec<f32>> {
-        (p >= a && p + b < n).then(|| {
-            leads.iter().flat_map(|&l| wide[l][p - a..=p + b].iter().copied()).collect::<Vec<f32>>()
-        })
+        if p < a || p + b >= n {
+            return None;
+        }
+        let mut s = Vec::with_capacity(leads.len() * (a + b + 1));
+        for &l in &leads {
+            let w = &leads_in[l][p - a..=p + b];
+            if !w.iter().all(|v| v.is_finite()) {
+                return None;
+            }
+            let mean = w.iter().sum::<f32>() / w.len() as f32;
+            s.extend(w.iter().map(|v| v - mean));
+        }
+        Some(s)
     };
     let snippets: Vec<Option<Vec<f32>>> = r.iter().map(|&p| snippet(p)).collect();
     let len = leads.len() * (a + b + 1);
@@ -133,7 +145,7 @@ mod tests {
                 lead[k] += 1000.0 * (-d * d).exp();
             }
         }
-        let dom = dominant(&[lead], &[1.0], &r, fs);
+        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs);
         assert!(!dom[10]);
         assert_eq!(dom.iter().filter(|&&d| d).count(), r.len() - 1);
     }

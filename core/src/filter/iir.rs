@@ -55,22 +55,40 @@ impl Biquad {
         if den.abs() < 1e-300 { 0.0 } else { (self.b0 + self.b1 + self.b2) / den }
     }
 
-    /// Filters in place (transposed direct form II), starting in the steady state of a constant input equal
-    /// to the first sample, so a step at the start causes no transient.
+    /// The state of a filter that has seen the constant input `u` forever (its steady state).
+    #[must_use]
+    pub fn state_for(&self, u: f64) -> BiquadState {
+        let g = self.dc_gain();
+        let z2 = self.b2 * u - self.a2 * g * u;
+        let z1 = self.b1 * u - self.a1 * g * u + z2;
+        BiquadState { z1, z2 }
+    }
+
+    /// Filters one sample (transposed direct form II).
+    #[inline]
+    pub fn step(&self, s: &mut BiquadState, x: f64) -> f64 {
+        let y = self.b0 * x + s.z1;
+        s.z1 = self.b1 * x - self.a1 * y + s.z2;
+        s.z2 = self.b2 * x - self.a2 * y;
+        y
+    }
+
+    /// Filters in place, starting in the steady state of a constant input equal to the first sample, so a
+    /// step at the start causes no transient.
     pub fn run(&self, x: &mut [f64]) {
         let Some(&u) = x.first() else { return };
-        let g = self.dc_gain();
-        let mut z2 = self.b2 * u - self.a2 * g * u;
-        let mut z1 = self.b1 * u - self.a1 * g * u + z2;
-        let Self { b0, b1, b2, a1, a2 } = *self;
+        let mut s = self.state_for(u);
         for v in x.iter_mut() {
-            let xi = *v;
-            let y = b0 * xi + z1;
-            z1 = b1 * xi - a1 * y + z2;
-            z2 = b2 * xi - a2 * y;
-            *v = y;
+            *v = self.step(&mut s, *v);
         }
     }
+}
+
+/// The memory of a [`Biquad`] between samples.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct BiquadState {
+    z1: f64,
+    z2: f64,
 }
 
 /// Zero-phase filtering: every section forward, then every section backward (squared magnitude response,

@@ -7,7 +7,7 @@
 mod iir;
 mod mains;
 
-pub use iir::{Biquad, filtfilt, fill_invalid};
+pub use iir::{Biquad, BiquadState, filtfilt, fill_invalid};
 pub use mains::detect_mains;
 
 use crate::recording::Recording;

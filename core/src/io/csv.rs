@@ -71,6 +71,8 @@ fn read_inner(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>, size_h
             return Err(ReadError::invalid(path, "no header row of lead names"));
         }
         let text = std::str::from_utf8(&raw).map_err(|_| err(line_no, "not UTF-8 text".into()))?;
+        // Spreadsheet programs often start UTF-8 files with a byte-order mark.
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         if !text.trim().is_empty() && !text.trim_start().starts_with('#') {
             break text.to_string();
         }
@@ -251,6 +253,7 @@ mod tests {
 
     #[test]
     fn errors_name_line_and_column() {
+        assert!(parse("\u{feff}time_s,I\n0,1\n0.004,2\n", None).is_ok(), "byte-order mark skipped");
         let e = parse("time_s,I\n0,1\n0.004,x\n", None).err().map(|e| e.to_string()).unwrap_or_default();
         assert!(e.contains("line 3") && e.contains("column 2"), "{e}");
         let e = parse("time_s,I\n0,1\n0.004,1\n0.010,1\n", None).err().map(|e| e.to_string()).unwrap_or_default();

@@ -75,7 +75,15 @@ pub(super) fn draw(canvas: &mut Canvas, fonts: &Fonts, lines: &[LedgerLine], pla
     }
 }
 
-fn draw_row(canvas: &mut Canvas, fonts: &Fonts, cells: &[String; 4], x: f64, baseline: f64, cols: &[f64; 4], st: Style) {
+fn draw_row(
+    canvas: &mut Canvas,
+    fonts: &Fonts,
+    cells: &[String; 4],
+    x: f64,
+    baseline: f64,
+    cols: &[f64; 4],
+    st: Style,
+) {
     let mut cx = x;
     for (j, text) in cells.iter().enumerate() {
         // Label and unit left-aligned; values right-aligned so digits line up.

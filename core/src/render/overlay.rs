@@ -40,7 +40,15 @@ fn cells(page: &Page) -> impl Iterator<Item = (&Row, &Cell)> {
 }
 
 /// Text on a small paper-coloured plate so grid lines do not cut through it.
-fn plate_text(canvas: &mut Canvas, fonts: &Fonts, text: &str, (x, baseline): (f64, f64), st: Style, align: Align, bg: [u8; 4]) {
+fn plate_text(
+    canvas: &mut Canvas,
+    fonts: &Fonts,
+    text: &str,
+    (x, baseline): (f64, f64),
+    st: Style,
+    align: Align,
+    bg: [u8; 4],
+) {
     let w = fonts.width_mm(text, st, canvas.ppm);
     let cap = Fonts::cap_mm(st);
     let left = match align {
@@ -86,7 +94,14 @@ fn on_lead(recording: &Recording, cal: &Caliper, cell: &Cell) -> bool {
 }
 
 /// Draws the calipers. The readout goes on the first cell (top to bottom, left to right) that shows it.
-pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, recording: &Recording, calipers: &[Caliper], pal: &Palette) {
+pub(super) fn draw_calipers(
+    canvas: &mut Canvas,
+    fonts: &Fonts,
+    page: &Page,
+    recording: &Recording,
+    calipers: &[Caliper],
+    pal: &Palette,
+) {
     let st = Style { pt: READOUT_PT, bold: true, color: pal.caliper };
     let p = page.paper;
     for cal in calipers {
@@ -99,8 +114,11 @@ pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, rec
                         let x = cell.x_from_time(&p, t);
                         canvas.segment((x, top), (x, bottom), pal.caliper, MARCH_MM, Some((1.0, 0.8)));
                     }
-                    let legs: Vec<f64> =
-                        [t1_s, t2_s].into_iter().filter(|&t| cell.contains_time(t)).map(|t| cell.x_from_time(&p, t)).collect();
+                    let legs: Vec<f64> = [t1_s, t2_s]
+                        .into_iter()
+                        .filter(|&t| cell.contains_time(t))
+                        .map(|t| cell.x_from_time(&p, t))
+                        .collect();
                     for &x in &legs {
                         canvas.segment((x, top), (x, bottom), pal.caliper, LEG_MM, None);
                     }
@@ -109,7 +127,15 @@ pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, rec
                         canvas.segment((legs[0], y), (legs[1], y), pal.caliper, LEG_MM, None);
                         if !readout_done {
                             let mid = (legs[0] + legs[1]) / 2.0;
-                            plate_text(canvas, fonts, &cal.readout(), (mid, y - 1.0), st, Align::Center, pal.background);
+                            plate_text(
+                                canvas,
+                                fonts,
+                                &cal.readout(),
+                                (mid, y - 1.0),
+                                st,
+                                Align::Center,
+                                pal.background,
+                            );
                             readout_done = true;
                         }
                     }
@@ -136,9 +162,23 @@ pub(super) fn draw_calipers(canvas: &mut Canvas, fonts: &Fonts, page: &Page, rec
                         continue;
                     }
                     let x = cell.x_from_time(&p, t_s);
-                    canvas.segment((x, row.top_mm), (x, row.top_mm + row.height_mm), pal.caliper, MARCH_MM, Some((2.0, 1.0)));
+                    canvas.segment(
+                        (x, row.top_mm),
+                        (x, row.top_mm + row.height_mm),
+                        pal.caliper,
+                        MARCH_MM,
+                        Some((2.0, 1.0)),
+                    );
                     if !readout_done {
-                        plate_text(canvas, fonts, &cal.readout(), (x + 1.0, top + 6.0), st, Align::Left, pal.background);
+                        plate_text(
+                            canvas,
+                            fonts,
+                            &cal.readout(),
+                            (x + 1.0, top + 6.0),
+                            st,
+                            Align::Left,
+                            pal.background,
+                        );
                         readout_done = true;
                     }
                 }

@@ -23,7 +23,10 @@ fn check(input: &RenderInput) -> Result<(), RenderError> {
     let s = &input.spec;
     let ok = |v: f64| v.is_finite() && v > 0.0;
     if !ok(s.paper.speed_mm_per_s) || !ok(s.paper.gain_mm_per_mv) {
-        return Err(RenderError::Spec(format!("speed {} mm/s and gain {} mm/mV must be positive", s.paper.speed_mm_per_s, s.paper.gain_mm_per_mv)));
+        return Err(RenderError::Spec(format!(
+            "speed {} mm/s and gain {} mm/mV must be positive",
+            s.paper.speed_mm_per_s, s.paper.gain_mm_per_mv
+        )));
     }
     if !ok(s.seconds) || !s.start_s.is_finite() || s.start_s < 0.0 {
         return Err(RenderError::Spec(format!("window start {} s, length {} s", s.start_s, s.seconds)));
@@ -37,8 +40,17 @@ fn check(input: &RenderInput) -> Result<(), RenderError> {
 fn size_px(width_mm: f64, height_mm: f64, ppm: f64) -> Result<(u32, u32), RenderError> {
     let w = (width_mm * ppm).ceil();
     let h = (height_mm * ppm).ceil();
-    if !(w.is_finite() && h.is_finite()) || w < 1.0 || h < 1.0 || w * h > MAX_PIXELS as f64 || w > f64::from(u32::MAX) || h > f64::from(u32::MAX) {
-        return Err(RenderError::TooLarge { width: w.max(0.0).min(u64::MAX as f64) as u64, height: h.max(0.0).min(u64::MAX as f64) as u64 });
+    if !(w.is_finite() && h.is_finite())
+        || w < 1.0
+        || h < 1.0
+        || w * h > MAX_PIXELS as f64
+        || w > f64::from(u32::MAX)
+        || h > f64::from(u32::MAX)
+    {
+        return Err(RenderError::TooLarge {
+            width: w.max(0.0).min(u64::MAX as f64) as u64,
+            height: h.max(0.0).min(u64::MAX as f64) as u64,
+        });
     }
     Ok((w as u32, h as u32))
 }
@@ -93,7 +105,13 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
             trace::draw_cell(canvas, input.recording, &paper, row, cell, (area.y0, area.y1), pal.trace);
             if j > 0 {
                 // A short bar where one column's window ends and the next begins.
-                canvas.segment((cell.x_mm, row.baseline_mm - 3.0), (cell.x_mm, row.baseline_mm + 3.0), pal.trace, trace::TRACE_MM, None);
+                canvas.segment(
+                    (cell.x_mm, row.baseline_mm - 3.0),
+                    (cell.x_mm, row.baseline_mm + 3.0),
+                    pal.trace,
+                    trace::TRACE_MM,
+                    None,
+                );
             }
         }
     }
@@ -102,7 +120,13 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
         for cell in &row.cells {
             let (x, y) = (cell.x_mm + 1.0, row.top_mm + 1.0 + Fonts::cap_mm(label));
             let w = fonts.width_mm(&cell.label, label, canvas.ppm);
-            canvas.fill_rect_mm(x - 0.4, row.top_mm + 0.5, w + 0.8, Fonts::cap_mm(label) + 1.2, [pal.background[0], pal.background[1], pal.background[2], 220]);
+            canvas.fill_rect_mm(
+                x - 0.4,
+                row.top_mm + 0.5,
+                w + 0.8,
+                Fonts::cap_mm(label) + 1.2,
+                [pal.background[0], pal.background[1], pal.background[2], 220],
+            );
             fonts.draw(canvas, &cell.label, x, y, label, Align::Left);
         }
     }

@@ -121,7 +121,15 @@ impl Fonts {
     }
 
     /// Draws `text` with its baseline at paper y and its anchor at paper x. Returns the width in mm.
-    pub fn draw(&self, canvas: &mut Canvas, text: &str, x_mm: f64, baseline_mm: f64, style: Style, align: Align) -> f64 {
+    pub fn draw(
+        &self,
+        canvas: &mut Canvas,
+        text: &str,
+        x_mm: f64,
+        baseline_mm: f64,
+        style: Style,
+        align: Align,
+    ) -> f64 {
         let w_mm = self.width_mm(text, style, canvas.ppm);
         let x0 = match align {
             Align::Left => x_mm,

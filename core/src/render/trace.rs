@@ -5,7 +5,7 @@
 use tiny_skia::PathBuilder;
 
 use super::canvas::Canvas;
-use crate::paper::{Cell, Paper, Row, Rgba};
+use crate::paper::{Cell, Paper, Rgba, Row};
 use crate::recording::Recording;
 
 /// Stroke width of traces and calibration pulses, mm. // Common practice, no source.
@@ -83,7 +83,8 @@ pub(super) fn draw_cell(
             match prev {
                 Some((px, last)) if px + 1 == c.x => {
                     // Visit the nearer extreme first so the path zig-zags without doubling back.
-                    let (a, b) = if (last - c.min).abs() < (last - c.max).abs() { (c.min, c.max) } else { (c.max, c.min) };
+                    let (a, b) =
+                        if (last - c.min).abs() < (last - c.max).abs() { (c.min, c.max) } else { (c.max, c.min) };
                     pb.line_to(x, y_px(a));
                     pb.line_to(x, y_px(b));
                 }

@@ -162,6 +162,14 @@ impl SynthSpec {
         check("noise.mains_uv", n.mains_uv, 0.0, 10_000.0, "0 to 10000 µV")?;
         check("noise.mains_hz", n.mains_hz, 1.0, self.rate_hz / 2.0, "1 Hz to half the sampling rate")?;
         check("noise.muscle_uv", n.muscle_uv, 0.0, 10_000.0, "0 to 10000 µV")?;
+        let total = self.seconds * self.rate_hz * self.leads.count() as f64;
+        if total > crate::io::MAX_TOTAL_SAMPLES as f64 {
+            return Err(SynthError::OutOfRange {
+                name: "seconds × rate_hz × leads",
+                value: total,
+                range: "at most io::MAX_TOTAL_SAMPLES samples in all",
+            });
+        }
         Ok(())
     }
 }

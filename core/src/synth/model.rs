@@ -187,8 +187,8 @@ impl<'a> Integrator<'a> {
             let d = t - e.centre_s;
             let inv_var = 1.0 / (e.sigma_s * e.sigma_s);
             let w = -d * inv_var * (-0.5 * d * d * inv_var).exp();
-            for c in 0..3 {
-                f[c] += e.dipole_uv[c] * w;
+            for (fc, h) in f.iter_mut().zip(e.dipole_uv) {
+                *fc += h * w;
             }
         }
         f

@@ -146,7 +146,7 @@ impl Tone {
     }
 
     fn value_and_advance(&mut self, n: usize) -> f64 {
-        if n % 4096 == 0 {
+        if n.is_multiple_of(4096) {
             let ph = self.phase0 + self.step * n as f64;
             (self.re, self.im) = (ph.cos(), ph.sin());
         }

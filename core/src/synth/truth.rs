@@ -144,6 +144,12 @@ impl Truth {
         }
     }
 
+    /// Every beat as a [`Beat`] (sinus → dominant, ectopic → other), for comparing with detection.
+    #[must_use]
+    pub fn to_beats(&self) -> Vec<Beat> {
+        self.beats.iter().map(TrueBeat::to_beat).collect()
+    }
+
     /// The truth as pretty JSON.
     ///
     /// # Errors

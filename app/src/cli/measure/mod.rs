@@ -127,7 +127,10 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         MeasureFormat::Csv => output::to_csv(&rows),
         MeasureFormat::Table => format!("{}\n{}\n", output::to_table(&rows), isoline_core::CAUTION),
     };
+    // A single recording that could not be measured gives its error and no table.
+    let single_failed = !as_array && rows.is_empty();
     match &args.out {
+        _ if single_failed => {}
         Some(path) => write_atomically(path, text.as_bytes())?,
         None => print!("{text}"),
     }

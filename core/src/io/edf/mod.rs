@@ -197,6 +197,9 @@ struct Data<'a> {
 
 impl Data<'_> {
     /// Decodes every data record: the leads in µV, and the annotations of every annotation signal.
+    ///
+    /// Annotation onsets are returned relative to the first sample: EDF+ onsets count from the header's start
+    /// time, and the first record may start a fraction of a second after it (its time-keeping TAL says when).
     fn read_records(&self, file: &mut std::fs::File, warnings: &mut Vec<String>) -> Result<(Vec<Vec<f32>>, Vec<tal::TalAnnotation>), ReadError> {
         let offsets: Vec<u64> = self
             .signals
@@ -225,6 +228,7 @@ impl Data<'_> {
         let ann_idx: Vec<usize> = (0..self.signals.len()).filter(|&i| self.signals[i].is_annotations()).collect();
         let mut tals = Vec::new();
         let (mut tal_errors, mut first_tal_error, mut time_gaps) = (0usize, None, 0usize);
+        let mut first_start: Option<f64> = None;
         let per_chunk = (CHUNK_BYTES / self.record_bytes).max(1);
         let mut buf = Vec::new();
         let mut record = 0u64;
@@ -253,8 +257,14 @@ impl Data<'_> {
                     let base = self.header_bytes + rec_no * self.record_bytes + o as u64;
                     match tal::parse_record(raw, base) {
                         Ok(t) => {
-                            let expected = rec_no as f64 * self.record_duration_s;
-                            if self.plus && i == ann_idx[0] && t.record_start_s.is_some_and(|s| (s - expected).abs() > 1e-6 + expected * 1e-9) {
+                            if i == ann_idx[0] && rec_no == 0 {
+                                first_start = t.record_start_s;
+                            }
+                            let expected = first_start.unwrap_or(0.0) + rec_no as f64 * self.record_duration_s;
+                            if self.plus
+                                && i == ann_idx[0]
+                                && t.record_start_s.is_some_and(|s| (s - expected).abs() > 1e-6 + expected * 1e-9)
+                            {
                                 time_gaps += 1;
                             }
                             tals.extend(t.annotations);
@@ -276,6 +286,10 @@ impl Data<'_> {
                 "{}: {time_gaps} data records start at a time other than their place in an EDF+C file says",
                 self.path.display()
             ));
+        }
+        let offset = first_start.unwrap_or(0.0);
+        for t in &mut tals {
+            t.onset_s -= offset;
         }
         Ok((leads, tals))
     }

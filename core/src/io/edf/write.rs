@@ -36,9 +36,10 @@ struct LeadPlan {
     phys_max: f64,
 }
 
-/// Picks a data record duration (seconds) giving a whole number of samples per record.
-fn record_duration(fs: f64, n_leads: usize) -> Option<(f64, usize)> {
-    let candidates = [1.0, 0.5, 0.25, 0.2, 0.1, 0.05, 0.04, 0.02, 0.01, 2.0, 4.0, 5.0, 10.0, 20.0, 50.0, 100.0];
+/// Picks a data record duration (seconds) giving a whole number of samples per record, preferring one that
+/// divides the `n` samples into whole records (no padding), of at most 61 440 bytes, as close to 1 s as listed.
+fn record_duration(fs: f64, n_leads: usize, n: usize) -> Option<(f64, usize)> {
+    let candidates = [1.0, 0.5, 0.25, 0.2, 0.1, 2.0, 4.0, 5.0, 10.0, 0.05, 0.04, 0.02, 0.01, 20.0, 50.0, 100.0];
     let whole: Vec<(f64, usize)> = candidates
         .iter()
         .filter_map(|&d| {
@@ -47,7 +48,14 @@ fn record_duration(fs: f64, n_leads: usize) -> Option<(f64, usize)> {
             ((spr - r).abs() < 1e-9 * r.max(1.0) && (1.0..=1.0e7).contains(&r)).then_some((d, r as usize))
         })
         .collect();
-    whole.iter().copied().find(|&(_, spr)| 2 * spr * n_leads <= MAX_RECORD_BYTES).or_else(|| whole.first().copied())
+    let fits = |&&(_, spr): &&(f64, usize)| 2 * spr * n_leads <= MAX_RECORD_BYTES;
+    let divides = |&&(_, spr): &&(f64, usize)| n.is_multiple_of(spr) && spr >= 10;
+    whole
+        .iter()
+        .find(|c| fits(c) && divides(c))
+        .or_else(|| whole.iter().find(fits))
+        .or_else(|| whole.first())
+        .copied()
 }
 
 /// The EDF+ label of a lead: `ECG <name>`, at most 16 ASCII characters.
@@ -93,7 +101,7 @@ pub fn write(path: &Path, rec: &Recording, opts: &EdfWriteOptions) -> Result<(),
         return Err(ReadError::invalid(path, "nothing to write: no samples, or leads of different lengths"));
     }
     let fs = rec.sample_rate.hz();
-    let (duration, spr) = record_duration(fs, rec.leads.len()).ok_or_else(|| {
+    let (duration, spr) = record_duration(fs, rec.leads.len(), n).ok_or_else(|| {
         ReadError::unsupported(path, format!("sampling rate {fs} Hz gives no whole number of samples per data record"))
     })?;
     let n_records = n.div_ceil(spr);
@@ -206,11 +214,13 @@ mod tests {
 
     #[test]
     fn record_durations_give_whole_samples() {
-        assert_eq!(record_duration(250.0, 3), Some((1.0, 250)));
-        assert_eq!(record_duration(360.0, 2), Some((1.0, 360)));
+        assert_eq!(record_duration(250.0, 3, 225_000), Some((1.0, 250)));
+        assert_eq!(record_duration(360.0, 2, 650_000), Some((1.0, 360)), "no divisor: 1 s and a padded last record");
+        // 38 400 samples at 1000 Hz: 0.2-s records divide them exactly (no padding); 1 s would not.
+        assert_eq!(record_duration(1000.0, 15, 38_400), Some((0.2, 200)));
         // 12 leads at 5000 Hz: 1 s records would be 120 000 bytes; 0.5 s records (60 000 bytes) stay under 61 440.
-        assert_eq!(record_duration(5000.0, 12), Some((0.5, 2500)));
-        assert_eq!(record_duration(128.5, 1), Some((2.0, 257)));
-        assert_eq!(record_duration(std::f64::consts::PI, 1), None);
+        assert_eq!(record_duration(5000.0, 12, 7), Some((0.5, 2500)));
+        assert_eq!(record_duration(128.5, 1, 7), Some((2.0, 257)));
+        assert_eq!(record_duration(std::f64::consts::PI, 1, 7), None);
     }
 }

@@ -1,0 +1,130 @@
+//! Delineation on synthetic beats whose boundaries are known by construction.
+
+use super::*;
+use crate::detect::detect_beats;
+use crate::recording::{Lead, LeadName, Meta};
+use crate::units::Hertz;
+use std::f64::consts::PI;
+
+const FS: f64 = 500.0;
+
+/// Half-cosine bump: 0 at `a`, `amp` at `peak`, 0 at `b` (rises and falls as raised-cosine halves).
+fn bump(t: f64, a: f64, peak: f64, b: f64, amp: f64) -> f64 {
+    if t <= a || t >= b {
+        0.0
+    } else if t <= peak {
+        amp * 0.5 * (1.0 - (PI * (t - a) / (peak - a)).cos())
+    } else {
+        amp * 0.5 * (1.0 + (PI * (t - peak) / (b - peak)).cos())
+    }
+}
+
+struct Truth {
+    p_on: f64,
+    qrs_on: f64,
+    qrs_end: f64,
+    /// Where the tangent at the steepest T downslope meets zero: peak + (1/2 + 1/π)·fall.
+    t_tangent: f64,
+}
+
+/// A 3-lead recording with beats at `rs` (s). P waves only when `with_p`; `fib` adds irregular atrial
+/// activity (sum of incommensurate sines) as in atrial fibrillation.
+fn synth(rs: &[f64], seconds: f64, with_p: bool, fib: bool) -> (Recording, Vec<Truth>) {
+    let n = (seconds * FS) as usize;
+    let scales = [1.0, 0.6, -0.8];
+    let mut truth = Vec::new();
+    let mut leads = vec![vec![0.0f32; n]; 3];
+    for &r in rs {
+        let (q_on, q_end) = (r - 0.040, r + 0.050);
+        let (p_on, p_end) = (q_on - 0.160, q_on - 0.060);
+        let (t_a, t_peak, t_fall) = (q_end + 0.100, q_end + 0.200, 0.150);
+        truth.push(Truth { p_on, qrs_on: q_on, qrs_end: q_end, t_tangent: t_peak + (0.5 + 1.0 / PI) * t_fall });
+        for (l, lead) in leads.iter_mut().enumerate() {
+            let s = scales[l];
+            let k0 = ((p_on - 0.05) * FS) as usize;
+            let k1 = (((t_peak + t_fall + 0.05) * FS) as usize).min(n);
+            for k in k0..k1 {
+                let t = k as f64 / FS;
+                let mut v = bump(t, q_on, r, q_end, 1200.0 * s) - bump(t, r, r + 0.025, q_end, 300.0 * s);
+                v += bump(t, t_a, t_peak, t_peak + t_fall, 300.0 * s.abs());
+                if with_p {
+                    v += bump(t, p_on, (p_on + p_end) / 2.0, p_end, 120.0);
+                }
+                lead[k] += v as f32;
+            }
+        }
+    }
+    if fib {
+        for (l, lead) in leads.iter_mut().enumerate() {
+            for (k, v) in lead.iter_mut().enumerate() {
+                let t = k as f64 / FS;
+                let f = (2.0 * PI * 5.3 * t + l as f64).sin() + (2.0 * PI * 7.1 * t + 0.3).sin() + (2.0 * PI * 6.2 * t).sin();
+                *v += (f * 25.0) as f32;
+            }
+        }
+    }
+    let rec = Recording {
+        leads: leads.into_iter().enumerate().map(|(i, s)| Lead { name: LeadName::parse(&format!("L{i}")), samples: s }).collect(),
+        sample_rate: Hertz::from_hz(FS).unwrap_or_else(|_| unreachable!()),
+        start: None,
+        meta: Meta::default(),
+        annotations: Vec::new(),
+    };
+    (rec, truth)
+}
+
+fn ms(a: usize, b: f64) -> f64 {
+    (a as f64 / FS - b) * 1000.0
+}
+
+#[test]
+fn boundaries_of_clean_synthetic_beats() {
+    let rs: Vec<f64> = (0..12).map(|i| 0.6 + 0.85 * i as f64).collect();
+    let (rec, truth) = synth(&rs, 11.0, true, false);
+    let mut beats = detect_beats(&rec);
+    assert_eq!(beats.len(), rs.len());
+    delineate_beats(&rec, &mut beats);
+    for (b, t) in beats.iter().zip(&truth).skip(1).take(rs.len() - 2) {
+        let bd = b.bounds;
+        let on = bd.qrs_on.map(|v| ms(v, t.qrs_on));
+        let end = bd.qrs_end.map(|v| ms(v, t.qrs_end));
+        let te = bd.t_end.map(|v| ms(v, t.t_tangent));
+        let po = bd.p_on.map(|v| ms(v, t.p_on));
+        assert!(on.is_some_and(|e| e.abs() <= 10.0), "QRS onset error {on:?} ms");
+        assert!(end.is_some_and(|e| e.abs() <= 10.0), "QRS end error {end:?} ms");
+        // Source: McLaughlin et al., Br Heart J 1995;74:84-9 — the tangent meets the baseline at the
+        // geometric point computed in `Truth`.
+        assert!(te.is_some_and(|e| e.abs() <= 10.0), "T end error {te:?} ms");
+        assert!(po.is_some_and(|e| e.abs() <= 20.0), "P onset error {po:?} ms");
+        assert!(bd.p_end.is_some());
+    }
+    let rep = representative_beat(&rec, &beats);
+    let rep = rep.unwrap_or_else(|| panic!("no representative beat"));
+    assert!(rep.n_beats >= 9);
+    let r_time = rs[1];
+    let to_abs = |i: usize| (i as f64 - rep.r_index as f64) / FS + r_time;
+    let q = rep.bounds.qrs_on.map(|v| (to_abs(v) - truth[1].qrs_on) * 1000.0);
+    let t = rep.bounds.t_end.map(|v| (to_abs(v) - truth[1].t_tangent) * 1000.0);
+    assert!(q.is_some_and(|e| e.abs() <= 10.0), "representative QRS onset {q:?}");
+    assert!(t.is_some_and(|e| e.abs() <= 10.0), "representative T end {t:?}");
+    assert!(rep.bounds.p_on.is_some());
+}
+
+#[test]
+fn no_p_wave_in_irregular_rhythm_with_fibrillatory_waves() {
+    // Irregular RR (0.55–1.1 s) and continuous atrial activity, no P waves.
+    let gaps = [0.62, 0.95, 0.71, 1.08, 0.58, 0.83, 0.99, 0.66, 0.77, 1.04, 0.6, 0.9];
+    let mut rs = vec![0.7];
+    for g in gaps {
+        let next = rs[rs.len() - 1] + g;
+        rs.push(next);
+    }
+    let (rec, _) = synth(&rs, rs[rs.len() - 1] + 1.0, false, true);
+    let mut beats = detect_beats(&rec);
+    assert_eq!(beats.len(), rs.len());
+    delineate_beats(&rec, &mut beats);
+    assert!(beats.iter().all(|b| b.bounds.p_on.is_none() && b.bounds.p_end.is_none()));
+    assert!(beats.iter().filter(|b| b.bounds.qrs_on.is_some()).count() >= rs.len() - 1);
+    let rep = representative_beat(&rec, &beats).unwrap_or_else(|| panic!("no representative beat"));
+    assert_eq!(rep.bounds.p_on, None);
+}
