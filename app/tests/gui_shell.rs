@@ -234,3 +234,27 @@ fn page_keys_move_the_window() {
     settle(&mut h);
     assert_eq!(h.state().start_s, 0.0);
 }
+
+#[test]
+fn exporting_the_page_writes_a_png() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("page.png");
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    h.state_mut().run_cmd(isoline::gui::command::Command::AddCaliper {
+        kind: isoline_core::caliper::CaliperKind::Time { t1_s: 1.0, t2_s: 1.8 },
+        lead: None,
+    });
+    h.state_mut().run_cmd(isoline::gui::command::Command::ExportPng(out.clone()));
+    settle(&mut h);
+    assert!(h.state().ui_state.error.is_none(), "{:?}", h.state().ui_state.error);
+    let bytes = std::fs::read(&out).unwrap();
+    assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
+    // Width of the 3x4+1 page at 300 dpi: 10 s at 25 mm/s plus margins, from core::paper.
+    let page = h.state().ui_state.sheet.as_ref().unwrap().page.width_mm;
+    let width = u32::from_be_bytes([bytes[16], bytes[17], bytes[18], bytes[19]]);
+    assert!((f64::from(width) - page * 300.0 / 25.4).abs() < 2.0, "{width} px for {page} mm");
+    // Exporting with no recording shows an error instead of crashing.
+    let mut empty = harness(None);
+    empty.state_mut().run_cmd(isoline::gui::command::Command::ExportPng(dir.path().join("none.png")));
+    assert!(empty.state().ui_state.error.is_some());
+}

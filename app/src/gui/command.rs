@@ -114,6 +114,10 @@ pub enum Command {
     Recover(bool),
     /// Open or close the review history.
     ShowHistory(bool),
+    /// Show the dialog to export the page as PNG.
+    ExportPngDialog,
+    /// Export the page as it stands (window, layout, calipers, Ledger) to a PNG file.
+    ExportPng(PathBuf),
 }
 
 impl Command {

@@ -17,6 +17,7 @@ pub mod command;
 pub mod derived;
 pub mod ledger;
 mod edits;
+mod export;
 mod review_actions;
 pub mod review_io;
 pub mod settings;
@@ -38,6 +39,8 @@ pub enum Dialog {
     OpenReview,
     /// Choose where to save the review.
     SaveReviewAs,
+    /// Choose where to export the page as PNG.
+    ExportPng,
 }
 
 /// The whole workstation.
@@ -180,6 +183,12 @@ impl IsolineApp {
             Command::Open(path) => self.open(&path),
             Command::OpenDialog => self.wants_dialog = Some(Dialog::OpenRecording),
             Command::OpenReviewDialog => self.wants_dialog = Some(Dialog::OpenReview),
+            Command::ExportPngDialog => self.wants_dialog = Some(Dialog::ExportPng),
+            Command::ExportPng(p) => {
+                if let Err(e) = self.export_png(&p) {
+                    self.ui_state.error = Some(format!("Could not export {}: {e:#}", p.display()));
+                }
+            }
             Command::SaveReviewDialog => self.wants_dialog = Some(Dialog::SaveReviewAs),
             Command::SaveReview
             | Command::SaveReviewAs(_)
@@ -356,6 +365,16 @@ impl eframe::App for EframeApp {
                 }
                 if let Some(p) = dialog.save_file() {
                     self.app.run_cmd(Command::SaveReviewAs(p));
+                }
+            }
+            Some(Dialog::ExportPng) => {
+                let name = self.app.loaded.as_ref().and_then(|l| l.path.file_stem()).map(|s| format!("{}.png", s.to_string_lossy()));
+                let mut dialog = rfd::FileDialog::new().add_filter("PNG image", &["png"]);
+                if let Some(n) = name {
+                    dialog = dialog.set_file_name(n);
+                }
+                if let Some(p) = dialog.save_file() {
+                    self.app.run_cmd(Command::ExportPng(p));
                 }
             }
             None => {}

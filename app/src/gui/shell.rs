@@ -192,6 +192,10 @@ fn menu_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
             out.push(Command::OpenReviewDialog);
             ui.close();
         }
+        if ui.add_enabled(has, egui::Button::new("Export PNG…")).clicked() {
+            out.push(Command::ExportPngDialog);
+            ui.close();
+        }
         ui.menu_button("Open recent", |ui| {
             if app.settings.recent.is_empty() {
                 ui.weak("none yet");
