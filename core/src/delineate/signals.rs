@@ -5,6 +5,9 @@ use crate::filter::{Biquad, filtfilt, fill_invalid};
 
 /// Low-pass cutoff for QRS boundaries, Hz.
 const QRS_LP_HZ: f64 = 40.0;
+/// Most a lead's slope is raised relative to the lead with the steepest QRS when the leads are equalised.
+// Common practice, no source.
+const MAX_GAIN: f32 = 4.0;
 /// Low-pass cutoff for P and T waves, Hz.
 const WAVE_LP_HZ: f64 = 12.0;
 
@@ -16,8 +19,8 @@ pub struct Signals {
     pub qrs: Vec<Vec<f32>>,
     /// Each lead low-passed at 12 Hz, µV.
     pub slow: Vec<Vec<f32>>,
-    /// Sum over leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so every lead
-    /// weighs the same), smoothed over ≈ 10 ms. Dimensionless.
+    /// Largest over the leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so
+    /// the first lead to start and the last to finish set the edges), smoothed over ≈ 10 ms. Dimensionless.
     pub env: Vec<f32>,
 }
 
@@ -31,19 +34,24 @@ impl Signals {
         let lp_w = [Biquad::lowpass(WAVE_LP_HZ, fs)];
         let mut qrs = Vec::with_capacity(leads.len());
         let mut slow = Vec::with_capacity(leads.len());
-        let mut raw_env = vec![0.0f32; n];
         for lead in leads {
             let x = fill_invalid(lead);
-            let q: Vec<f32> = filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect();
-            let scale = slope_scale(&q);
+            qrs.push(filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect::<Vec<f32>>());
+            slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
+        }
+        // Each lead's slope in units of its typical QRS slope; a lead with a small QRS is raised at most
+        // MAX_GAIN times relative to the largest, so its noise cannot start the QRS early.
+        let scales: Vec<f32> = qrs.iter().map(|q| slope_scale(q)).collect();
+        let top = scales.iter().copied().fold(0.0f32, f32::max);
+        let mut raw_env = vec![0.0f32; n];
+        for (q, &scale) in qrs.iter().zip(&scales) {
+            let scale = scale.max(top / MAX_GAIN);
             if scale > 0.0 {
                 let inv = 1.0 / scale;
                 for k in 1..n.saturating_sub(1) {
-                    raw_env[k] += ((q[k + 1] - q[k - 1]) * 0.5).abs() * inv;
+                    raw_env[k] = raw_env[k].max(((q[k + 1] - q[k - 1]) * 0.5).abs() * inv);
                 }
             }
-            qrs.push(q);
-            slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
         }
         let w = ((0.010 * fs).round() as usize).max(1) | 1;
         Self { fs, qrs, slow, env: smooth(&raw_env, w) }
