@@ -67,11 +67,9 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         .collect();
     let model = pwave::model(sig, &onsets)?;
     for (b, &e) in beats.iter_mut().zip(&earliest) {
-        if let Some(q) = b.bounds.qrs_on {
-            if let Some((on, end)) = model.for_beat(sig, q, e) {
-                b.bounds.p_on = Some(on);
-                b.bounds.p_end = Some(end);
-            }
+        if let Some((on, end)) = b.bounds.qrs_on.and_then(|q| model.for_beat(sig, q, e)) {
+            b.bounds.p_on = Some(on);
+            b.bounds.p_end = Some(end);
         }
     }
     Some(model)

@@ -190,6 +190,6 @@ impl PModel {
         }
         let on = qrs_on as isize + lag + self.on_rel;
         let end = qrs_on as isize + lag + self.end_rel;
-        (on >= earliest as isize && end > on && end < qrs_on as isize).then(|| (on as usize, end as usize))
+        (on >= earliest as isize && end > on && end < qrs_on as isize).then_some((on as usize, end as usize))
     }
 }

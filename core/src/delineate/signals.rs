@@ -63,6 +63,12 @@ impl Signals {
         self.env.len()
     }
 
+    /// True when there are no samples.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.env.is_empty()
+    }
+
     /// Samples in `s` seconds (rounded).
     #[must_use]
     pub fn samples(&self, s: f64) -> usize {

@@ -71,10 +71,11 @@ fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap:
     let mut peak = main;
     if main < to {
         let opp = (main + 1..=to.min(main + gap)).max_by(|&i, &j| (-dev(i) * a_main.signum()).total_cmp(&(-dev(j) * a_main.signum())));
-        if let Some(o) = opp {
-            if -dev(o) * a_main.signum() >= BIPHASIC * a_main.abs() && o + 2 < to {
-                peak = o;
-            }
+        if let Some(o) = opp
+            && -dev(o) * a_main.signum() >= BIPHASIC * a_main.abs()
+            && o + 2 < to
+        {
+            peak = o;
         }
     }
     let amp = dev(peak);

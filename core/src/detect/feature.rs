@@ -108,7 +108,7 @@ fn normalise(mwi: &[f32], fs: f64) -> (Vec<f32>, f64) {
     let step = (n / 200_000).max(1);
     let mut sub: Vec<f32> = mwi.iter().step_by(step).copied().collect();
     let level = median(&mut sub);
-    if !(typical > 1e-6) {
+    if typical.is_nan() || typical <= 1e-6 {
         return (vec![0.0; n], 0.0);
     }
     // Common practice, no source: QRS energy peaks of a clean lead are tens of times the median feature level;

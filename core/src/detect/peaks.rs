@@ -58,19 +58,19 @@ pub fn pick(x: &[f32], fs: f64) -> Vec<usize> {
     };
     for &c in &cand {
         // Search-back: a long gap since the last QRS → take the largest pending peak above half threshold.
-        if let (Some(&last), Some(m)) = (beats.last(), rr_mean(&rr)) {
-            if (c - last) as f64 > SEARCH_BACK_RR * m {
-                let th2 = 0.5 * thr(spk, npk);
-                let best = pending
-                    .iter()
-                    .copied()
-                    .filter(|&p| p > last + t_wave.min((0.6 * m) as usize) / 2 && f64::from(x[p]) > th2)
-                    .max_by(|&a, &b| x[a].total_cmp(&x[b]));
-                if let Some(p) = best {
-                    spk = 0.25 * f64::from(x[p]) + 0.75 * spk;
-                    accept(p, &mut beats, &mut rr);
-                    pending.retain(|&q| q > p);
-                }
+        if let (Some(&last), Some(m)) = (beats.last(), rr_mean(&rr))
+            && (c - last) as f64 > SEARCH_BACK_RR * m
+        {
+            let th2 = 0.5 * thr(spk, npk);
+            let best = pending
+                .iter()
+                .copied()
+                .filter(|&p| p > last + t_wave.min((0.6 * m) as usize) / 2 && f64::from(x[p]) > th2)
+                .max_by(|&a, &b| x[a].total_cmp(&x[b]));
+            if let Some(p) = best {
+                spk = 0.25 * f64::from(x[p]) + 0.75 * spk;
+                accept(p, &mut beats, &mut rr);
+                pending.retain(|&q| q > p);
             }
         }
         let v = f64::from(x[c]);
