@@ -22,7 +22,8 @@ pub(super) fn header(input: &RenderInput) -> Header {
     let filter = input.filter_text.clone().unwrap_or_else(|| "unfiltered".to_string());
     let paper = format!("{}   {}", spec.paper.describe(), filter);
     let mut fields = Vec::new();
-    if let Some(s) = rec.start {
+    // The recording date can identify a patient: printed only when asked.
+    if let Some(s) = rec.start.filter(|_| input.identify) {
         fields.push(format!(
             "Start: {:04}-{:02}-{:02} {:02}:{:02}:{:02}",
             s.year(),
