@@ -14,8 +14,8 @@ const MIN_RATIO: f64 = 10.0;
 /// The mains frequency (50 or 60 Hz) whose line stands out of the spectrum of `leads`, or `None` when neither
 /// does (or the sampling rate is too low to see it).
 #[must_use]
-pub fn detect_mains(leads: &[Vec<f64>], fs_hz: f64) -> Option<f64> {
-    let n = leads.first().map_or(0, Vec::len);
+pub fn detect_mains<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], fs_hz: f64) -> Option<f64> {
+    let n = leads.first().map_or(0, |l| l.as_ref().len());
     if fs_hz < 140.0 || n < SEG {
         return None;
     }
@@ -38,7 +38,8 @@ pub fn detect_mains(leads: &[Vec<f64>], fs_hz: f64) -> Option<f64> {
 }
 
 /// Welch average of Hann-windowed periodograms over every lead and up to [`MAX_SEGMENTS`] segments.
-fn averaged_spectrum(leads: &[Vec<f64>], n: usize) -> Vec<f64> {
+/// Invalid (non-finite) samples count as the segment's mean, so they add nothing to the spectrum.
+fn averaged_spectrum<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], n: usize) -> Vec<f64> {
     let mut planner = FftPlanner::<f64>::new();
     let fft = planner.plan_fft_forward(SEG);
     let window: Vec<f64> = (0..SEG)
@@ -49,11 +50,17 @@ fn averaged_spectrum(leads: &[Vec<f64>], n: usize) -> Vec<f64> {
     let mut psd = vec![0.0; SEG / 2 + 1];
     let mut buf = vec![Complex::new(0.0, 0.0); SEG];
     for lead in leads {
+        let lead = lead.as_ref();
+        if lead.len() < n {
+            continue;
+        }
         for s in 0..count {
             let seg = &lead[s * step..s * step + SEG];
-            let mean = seg.iter().sum::<f64>() / SEG as f64;
+            let (sum, valid) = seg.iter().map(|&v| v.into()).filter(|v: &f64| v.is_finite()).fold((0.0, 0usize), |(a, k), v| (a + v, k + 1));
+            let mean = if valid > 0 { sum / valid as f64 } else { 0.0 };
             for (b, (&v, &w)) in buf.iter_mut().zip(seg.iter().zip(&window)) {
-                *b = Complex::new((v - mean) * w, 0.0);
+                let v: f64 = v.into();
+                *b = Complex::new(if v.is_finite() { (v - mean) * w } else { 0.0 }, 0.0);
             }
             fft.process(&mut buf);
             for (p, c) in psd.iter_mut().zip(&buf) {

@@ -10,7 +10,7 @@ mod mains;
 pub use iir::{Biquad, BiquadState, filtfilt, fill_invalid};
 pub use mains::detect_mains;
 
-use crate::recording::Recording;
+use crate::recording::{Lead, Recording};
 
 /// Mains notch choice.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -68,13 +68,12 @@ pub struct Filtered {
 pub fn apply(recording: &Recording, settings: &FilterSettings) -> Filtered {
     let fs = recording.sample_rate.hz();
     let nyquist = fs / 2.0;
-    let filled: Vec<Vec<f64>> = recording.leads.iter().map(|l| fill_invalid(&l.samples)).collect();
     let baseline = settings.baseline_hz.filter(|&f| f.is_finite() && f > 0.0).map(|f| f.min(MAX_BASELINE_HZ));
     let mains_hz = match settings.mains {
         Mains::Off => None,
         Mains::Hz50 => Some(50.0),
         Mains::Hz60 => Some(60.0),
-        Mains::Auto => detect_mains(&filled, fs),
+        Mains::Auto => detect_mains(&recording.leads.iter().map(|l| l.samples.as_slice()).collect::<Vec<_>>(), fs),
     }
     .filter(|&f| f < nyquist * 0.95);
     let lowpass = settings.lowpass_hz.filter(|&f| f.is_finite() && f > 0.0 && f < nyquist * 0.95);
@@ -91,15 +90,23 @@ pub fn apply(recording: &Recording, settings: &FilterSettings) -> Filtered {
     }
     // Pad long enough for the slowest section to settle (≈ 2 periods of the baseline cutoff).
     let pad = baseline.map_or((fs * 0.5) as usize, |f| (2.0 * fs / f) as usize);
-    let mut out = recording.clone();
-    for (lead, x) in out.leads.iter_mut().zip(&filled) {
-        let y = filtfilt(&sections, x, pad);
-        for (s, v) in lead.samples.iter_mut().zip(y) {
-            if s.is_finite() {
-                *s = v as f32;
-            }
-        }
-    }
+    // One lead at a time, so a long recording never holds more than one lead's f64 working copy.
+    let leads = recording
+        .leads
+        .iter()
+        .map(|lead| {
+            let y = filtfilt(&sections, &fill_invalid(&lead.samples), pad);
+            let samples = lead.samples.iter().zip(y).map(|(&s, v)| if s.is_finite() { v as f32 } else { s }).collect();
+            Lead { name: lead.name.clone(), samples }
+        })
+        .collect();
+    let out = Recording {
+        leads,
+        sample_rate: recording.sample_rate,
+        start: recording.start,
+        meta: recording.meta.clone(),
+        annotations: recording.annotations.clone(),
+    };
     Filtered { recording: out, description: describe(baseline, mains_hz, lowpass, nyquist), mains_hz }
 }
 
