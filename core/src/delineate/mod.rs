@@ -44,9 +44,7 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
         let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
         let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
-        let from = end.map_or(r + sig.samples(0.100), |e| (e + sig.samples(0.050)).max(r + sig.samples(0.100)));
-        let to = r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr_next as f64) as usize);
-        let t = on.and_then(|q| twave::t_end(sig, q.saturating_sub(sig.samples(0.008)), from, to));
+        let t = beat_t_end(sig, r, on, end, rr_next, n);
         beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: t };
     }
     // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R).
@@ -73,6 +71,16 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         }
     }
     Some(model)
+}
+
+/// T end of the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples): the T wave is sought from
+/// 50 ms after the J point (at least 100 ms after R) to the lesser of [`T_MAX_S`] and [`T_RR_FRACTION`] of the
+/// RR after R, and never at or past `limit`.
+fn beat_t_end(sig: &Signals, r: usize, on: Option<usize>, end: Option<usize>, rr: usize, limit: usize) -> Option<usize> {
+    let earliest = r + sig.samples(0.100);
+    let from = end.map_or(earliest, |e| (e + sig.samples(0.050)).max(earliest));
+    let to = (r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(limit.saturating_sub(1));
+    on.and_then(|q| twave::t_end(sig, q.saturating_sub(sig.samples(0.008)), from, to))
 }
 
 /// Median RR of R peaks, samples.
