@@ -97,6 +97,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
             out.push('\n');
         }
     }
-    std::io::stdout().lock().write_all(out.as_bytes()).context("writing to stdout")?;
-    Ok(ExitCode::SUCCESS)
+    match std::io::stdout().lock().write_all(out.as_bytes()) {
+        // A reader that stops early (`| head`) is not an error.
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(ExitCode::SUCCESS),
+        r => r.context("writing to stdout").map(|()| ExitCode::SUCCESS),
+    }
 }

@@ -1,7 +1,7 @@
 //! The representative beat: the sample-by-sample median of the dominant beats aligned on their R peaks, per
 //! lead, delineated with the same method as single beats (its P wave only when the record's P is consistent).
 
-use super::{Signals, T_MAX_S, T_RR_FRACTION, delineate_with, median_rr, qrs, twave};
+use super::{Signals, beat_t_end, delineate_with, median_rr, qrs};
 use crate::beat::{Beat, BeatKind, Boundaries};
 use crate::recording::Recording;
 use crate::units::Hertz;
@@ -70,9 +70,7 @@ pub fn representative_beat(recording: &Recording, beats: &[Beat]) -> Option<Repr
     let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
     let sig = Signals::new(&refs, fs);
     let (on, end) = qrs::qrs_bounds(&sig, before, 0, before + after);
-    let from = end.map_or(before + sig.samples(0.100), |e| (e + sig.samples(0.050)).max(before + sig.samples(0.100)));
-    let to = (before + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(before + after - 1);
-    let t_end = on.and_then(|q| twave::t_end(&sig, q.saturating_sub(sig.samples(0.008)), from, to));
+    let t_end = beat_t_end(&sig, before, on, end, rr, before + after);
     let (p_on, p_end) = match (p_model, on) {
         (Some(m), Some(q)) => m.for_beat(&sig, q, 0).map_or((None, None), |(a, b)| (Some(a), Some(b))),
         _ => (None, None),

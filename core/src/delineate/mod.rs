@@ -25,6 +25,11 @@ const T_MAX_S: f64 = 0.70;
 // Common practice, no source.
 const T_RR_FRACTION: f64 = 0.65;
 
+/// Largest departure of a beat's R-to-T-end time from the record's median, s.
+// Common practice, no source: the QT interval adapts to rate over many beats and changes by a few tens of ms
+// from one beat to the next; a 100 ms jump marks a misplaced T end.
+const T_OUTLIER_S: f64 = 0.100;
+
 /// Fills every beat's boundaries from `recording`, which should be baseline-corrected (see
 /// [`crate::filter::apply`]). Beats must be in time order.
 pub fn delineate_beats(recording: &Recording, beats: &mut [Beat]) {
@@ -44,11 +49,10 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
         let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
         let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
-        let from = end.map_or(r + sig.samples(0.100), |e| (e + sig.samples(0.050)).max(r + sig.samples(0.100)));
-        let to = r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr_next as f64) as usize);
-        let t = on.and_then(|q| twave::t_end(sig, q.saturating_sub(sig.samples(0.008)), from, to));
+        let t = beat_t_end(sig, r, on, end, rr_next, n);
         beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: t };
     }
+    drop_outlying_t_ends(sig, beats);
     // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R).
     let earliest: Vec<usize> = (0..beats.len())
         .map(|i| {
@@ -73,6 +77,34 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         }
     }
     Some(model)
+}
+
+/// T end of the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples): the T wave is sought from
+/// 50 ms after the J point (at least 100 ms after R) to the lesser of [`T_MAX_S`] and [`T_RR_FRACTION`] of the
+/// RR after R, and never at or past `limit`.
+fn beat_t_end(sig: &Signals, r: usize, on: Option<usize>, end: Option<usize>, rr: usize, limit: usize) -> Option<usize> {
+    let earliest = r + sig.samples(0.100);
+    let from = end.map_or(earliest, |e| (e + sig.samples(0.050)).max(earliest));
+    let to = (r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(limit.saturating_sub(1));
+    on.and_then(|q| twave::t_end(sig, q.saturating_sub(sig.samples(0.008)), from, to))
+}
+
+/// A beat whose R-to-T-end time differs from the record's median by more than [`T_OUTLIER_S`] has followed
+/// another wave (a U wave, the next P wave, noise): its T end is unreliable and is removed. Needs at least five
+/// T ends to judge.
+fn drop_outlying_t_ends(sig: &Signals, beats: &mut [Beat]) {
+    let mut rt: Vec<usize> = beats.iter().filter_map(|b| b.bounds.t_end.map(|t| t.saturating_sub(b.r))).collect();
+    if rt.len() < 5 {
+        return;
+    }
+    let mid = rt.len() / 2;
+    let median = *rt.select_nth_unstable(mid).1;
+    let limit = sig.samples(T_OUTLIER_S);
+    for b in beats.iter_mut() {
+        if b.bounds.t_end.is_some_and(|t| t.saturating_sub(b.r).abs_diff(median) > limit) {
+            b.bounds.t_end = None;
+        }
+    }
 }
 
 /// Median RR of R peaks, samples.

@@ -22,6 +22,9 @@ const MIN_BEAT_CORR: f64 = 0.30;
 /// Fraction of the P envelope's rise marking onset and end.
 // Common practice, no source.
 const EDGE_FRACTION: f32 = 0.12;
+/// Farthest a P edge lies from the P wave's steepest slope, s.
+// Common practice, no source: a P wave's limbs last ≈ 40–60 ms each; 120 ms P waves are already wide.
+const EDGE_REACH_S: f64 = 0.080;
 /// Largest lag tried when matching a beat to the median P, s.
 const MAX_LAG_S: f64 = 0.024;
 
@@ -121,8 +124,19 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let down = (peak + 1..=stop).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
     let quiet_before = env[start..=up].iter().copied().fold(f32::INFINITY, f32::min);
     let quiet_after = env[down..=stop].iter().copied().fold(f32::INFINITY, f32::min);
-    let on = (start..=up).rev().find(|&k| env[k] <= quiet_before + EDGE_FRACTION * (env[up] - quiet_before))?;
-    let end = (down..=stop).find(|&k| env[k] <= quiet_after + EDGE_FRACTION * (env[down] - quiet_after))?;
+    // Walk out from the steepest up- and downslope at most EDGE_REACH_S; where the envelope never falls to the
+    // threshold (noise between P and T), the quietest sample within reach is the edge.
+    let reach = sig.samples(EDGE_REACH_S);
+    let quietest = |r: std::ops::RangeInclusive<usize>| r.min_by(|&a, &b| env[a].total_cmp(&env[b]));
+    let on_from = up.saturating_sub(reach).max(start);
+    let on = (on_from..=up)
+        .rev()
+        .find(|&k| env[k] <= quiet_before + EDGE_FRACTION * (env[up] - quiet_before))
+        .or_else(|| quietest(on_from..=up))?;
+    let end_to = (down + reach).min(stop);
+    let end = (down..=end_to)
+        .find(|&k| env[k] <= quiet_after + EDGE_FRACTION * (env[down] - quiet_after))
+        .or_else(|| quietest(down..=end_to))?;
     let mut m = PModel {
         on_rel: on as isize - w as isize,
         end_rel: end as isize - w as isize,

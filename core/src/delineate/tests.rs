@@ -128,3 +128,58 @@ fn no_p_wave_in_irregular_rhythm_with_fibrillatory_waves() {
     let rep = representative_beat(&rec, &beats).unwrap_or_else(|| panic!("no representative beat"));
     assert_eq!(rep.bounds.p_on, None);
 }
+
+mod no_panic {
+    use super::*;
+    use crate::filter::{FilterSettings, apply};
+    use proptest::prelude::*;
+
+    fn any_sample() -> impl Strategy<Value = f32> {
+        prop_oneof![8 => -5000.0f32..5000.0, 1 => Just(f32::NAN), 1 => Just(0.0f32)]
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(48))]
+        /// Any samples, any length, any of the usual rates: filtering, detection, delineation and the
+        /// representative beat return without panicking, and boundaries stay inside the recording.
+        #[test]
+        fn pipeline_never_panics(
+            leads in 1usize..4,
+            len in 0usize..4000,
+            rate in prop_oneof![Just(100.0f64), Just(250.0), Just(360.0), Just(500.0), Just(1000.0)],
+            seed in proptest::collection::vec(any_sample(), 64),
+            spikes in proptest::collection::vec(0usize..4000, 0..20),
+        ) {
+            let samples: Vec<Vec<f32>> = (0..leads)
+                .map(|l| {
+                    let mut v: Vec<f32> = (0..len).map(|k| seed[(k * 7 + l * 13) % seed.len()]).collect();
+                    for &s in &spikes {
+                        if s < len {
+                            v[s] = 3000.0;
+                        }
+                    }
+                    v
+                })
+                .collect();
+            let rec = Recording {
+                leads: samples.into_iter().map(|s| Lead { name: LeadName::parse("X"), samples: s }).collect(),
+                sample_rate: Hertz::from_hz(rate).unwrap_or_else(|_| unreachable!()),
+                start: None,
+                meta: Meta::default(),
+                annotations: Vec::new(),
+            };
+            let f = apply(&rec, &FilterSettings { lowpass_hz: Some(40.0), ..FilterSettings::default() });
+            let mut beats = detect_beats(&f.recording);
+            delineate_beats(&f.recording, &mut beats);
+            for b in &beats {
+                prop_assert!(b.r < len);
+                for v in [b.bounds.p_on, b.bounds.p_end, b.bounds.qrs_on, b.bounds.qrs_end, b.bounds.t_end].into_iter().flatten() {
+                    prop_assert!(v < len);
+                }
+            }
+            if let Some(rep) = representative_beat(&f.recording, &beats) {
+                prop_assert_eq!(rep.leads.len(), leads);
+            }
+        }
+    }
+}

@@ -37,8 +37,8 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
         .collect()
 }
 
-/// Places each R peak on the lead with the clearest QRS: the sample of largest absolute deflection from the
-/// local mean within ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks
+/// Places each R peak on the lead with the clearest QRS: the sample of largest absolute deflection (of a
+/// short running median, which ignores pacing spikes) from the local mean within ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks
 /// strictly increasing.
 fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
     let best = weights
@@ -50,6 +50,7 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
     let n = lead.len();
     let h = (R_SEARCH_S * fs) as usize;
     let lag = (feature::lag_s() * fs).round() as usize;
+    let hm = ((0.004 * fs).round() as usize).max(2);
     let mut out: Vec<usize> = Vec::with_capacity(peaks.len());
     for &p in peaks {
         let c = p.saturating_sub(lag);
@@ -60,8 +61,19 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
         let valid = lead[a..b].iter().filter(|v| v.is_finite());
         let count = valid.clone().count();
         let mean = if count > 0 { valid.sum::<f32>() / count as f32 } else { 0.0 };
-        let dev = |i: usize| if lead[i].is_finite() { (lead[i] - mean).abs() } else { -1.0 };
-        let r = (a..b).max_by(|&i, &j| dev(i).total_cmp(&dev(j))).unwrap_or(c);
+        // Deflection of a running median (≈ 10 ms), so a pacing spike of a few ms is not taken for R.
+        let mut buf = Vec::with_capacity(2 * hm + 1);
+        let mut dev = |i: usize| -> f32 {
+            buf.clear();
+            buf.extend(lead[i.saturating_sub(hm)..(i + hm + 1).min(n)].iter().copied().filter(|v| v.is_finite()));
+            if buf.is_empty() {
+                return -1.0;
+            }
+            let mid = buf.len() / 2;
+            (*buf.select_nth_unstable_by(mid, f32::total_cmp).1 - mean).abs()
+        };
+        let devs: Vec<f32> = (a..b).map(&mut dev).collect();
+        let r = devs.iter().enumerate().max_by(|x, y| x.1.total_cmp(y.1)).map_or(c, |(i, _)| a + i);
         if out.last().is_none_or(|&l| r > l) {
             out.push(r);
         }
@@ -146,6 +158,56 @@ mod tests {
             .collect();
         let beats = detect_beats(&rec(vec![noise, x], fs));
         assert_eq!(beats.len(), truth.len());
+    }
+
+    #[test]
+    fn a_noise_burst_does_not_flood_beats() {
+        let fs = 250.0;
+        let (mut x, truth) = synthetic(fs, 60.0);
+        let mut y = x.clone();
+        // 3 s of large muscle-like noise on both leads from 20 s.
+        let mut state = 99u64;
+        for k in (20.0 * fs) as usize..(23.0 * fs) as usize {
+            state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            let v = ((state >> 33) as f32 / (1u64 << 31) as f32 - 0.5) * 1500.0;
+            x[k] += v;
+            y[k] -= 0.7 * v;
+        }
+        let beats = detect_beats(&rec(vec![x, y], fs));
+        let outside = |r: usize| !(19.5 * fs..23.5 * fs).contains(&(r as f64));
+        let found = beats.iter().filter(|b| outside(b.r)).count();
+        let expected = truth.iter().filter(|&&t| outside(t)).count();
+        assert!(found.abs_diff(expected) <= 1, "{found} beats outside the burst, {expected} expected");
+        // Inside the burst at most a few extra detections, not a flood (4 true beats there).
+        let inside = beats.len() - found;
+        assert!(inside <= 8, "{inside} detections in a 4-s burst");
+    }
+
+    #[test]
+    fn paced_beats_are_detected_once() {
+        // Pacing spike (2 ms, 4 mV) 30 ms before a wide QRS, every 0.9 s, at 500 Hz.
+        let fs = 500.0;
+        let n = (fs * 30.0) as usize;
+        let mut x = vec![0.0f32; n];
+        let mut truth = Vec::new();
+        let mut t = 0.5;
+        while t < 29.5 {
+            let spike = (t * fs) as usize;
+            x[spike] += 4000.0;
+            x[spike + 1] += 4000.0;
+            let r = spike + (0.030 * fs) as usize + 25;
+            for k in r - 60..r + 60 {
+                let d = (k as f64 - r as f64) / 20.0;
+                x[k] += (1500.0 * (-d * d).exp()) as f32;
+            }
+            truth.push(r);
+            t += 0.9;
+        }
+        let beats = detect_beats(&rec(vec![x], fs));
+        assert_eq!(beats.len(), truth.len());
+        for (b, r) in beats.iter().zip(&truth) {
+            assert!(b.r.abs_diff(*r) <= (0.05 * fs) as usize, "{} vs {r}", b.r);
+        }
     }
 
     #[test]
