@@ -56,6 +56,19 @@ impl MarkKind {
             Self::RPeak => "R peak",
         }
     }
+
+    /// Short label printed next to a mark on the Sheet, the PNG and in the Beat lens.
+    #[must_use]
+    pub fn short_label(self) -> &'static str {
+        match self {
+            Self::POnset => "Pon",
+            Self::PEnd => "Pend",
+            Self::QrsOnset => "QRSon",
+            Self::JPoint => "J",
+            Self::TEnd => "Tend",
+            Self::RPeak => "R",
+        }
+    }
 }
 
 impl fmt::Display for MarkKind {

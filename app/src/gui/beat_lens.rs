@@ -127,7 +127,7 @@ pub fn beat_lens_ui(
         let w = if state.lens_drag == Some(kind) { 2.5 } else { 1.5 };
         painter.line_segment([Pos2::new(x, rect.top() + 25.0), Pos2::new(x, rect.bottom())], Stroke::new(w, col));
         let y = rect.top() + 1.0 + (n % 2) as f32 * 11.0;
-        painter.text(Pos2::new(x, y), Align2::CENTER_TOP, short(kind), font.clone(), col);
+        painter.text(Pos2::new(x, y), Align2::CENTER_TOP, kind.short_label(), font.clone(), col);
     }
     if response.drag_started()
         && let Some(p) = ui.input(|i| i.pointer.press_origin()).or(response.interact_pointer_pos())
@@ -169,17 +169,6 @@ pub fn beat_lens_ui(
 /// After placing `kind`, the next boundary without a mark (so a reader can place all five in turn).
 fn next_missing(marks: &isoline_core::beat::Boundaries, placed: MarkKind) -> Option<MarkKind> {
     MarkKind::BOUNDARIES.into_iter().find(|&k| k != placed && marks.get(k).is_none())
-}
-
-fn short(kind: MarkKind) -> &'static str {
-    match kind {
-        MarkKind::POnset => "Pon",
-        MarkKind::PEnd => "Pend",
-        MarkKind::QrsOnset => "QRSon",
-        MarkKind::JPoint => "J",
-        MarkKind::TEnd => "Tend",
-        MarkKind::RPeak => "R",
-    }
 }
 
 fn draw_grid(painter: &egui::Painter, geo: &LensGeometry, pal: &isoline_core::paper::Palette) {

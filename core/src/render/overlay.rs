@@ -13,18 +13,6 @@ const MARK_MM: f64 = 0.15;
 const SMALL_PT: f64 = 6.5;
 const READOUT_PT: f64 = 7.5;
 
-/// Short label of a mark kind, printed under the row.
-fn short(kind: MarkKind) -> &'static str {
-    match kind {
-        MarkKind::POnset => "Pon",
-        MarkKind::PEnd => "Pend",
-        MarkKind::QrsOnset => "QRSon",
-        MarkKind::JPoint => "J",
-        MarkKind::TEnd => "Tend",
-        MarkKind::RPeak => "R",
-    }
-}
-
 /// Label tier (0 = lowest line) so neighbouring marks' labels do not collide.
 fn tier(kind: MarkKind) -> usize {
     match kind {
@@ -75,7 +63,7 @@ pub(super) fn draw_marks(canvas: &mut Canvas, fonts: &Fonts, page: &Page, marks:
                 let bottom = row.top_mm + row.height_mm;
                 let label_y = bottom - 0.8 - tier(kind) as f64 * lh;
                 if labels {
-                    plate_text(canvas, fonts, short(kind), (x, label_y), st, Align::Center, pal.background);
+                    plate_text(canvas, fonts, kind.short_label(), (x, label_y), st, Align::Center, pal.background);
                 } else {
                     let end = label_y - Fonts::cap_mm(st) - 0.6;
                     canvas.segment((x, row.top_mm + 6.0), (x, end), pal.mark, MARK_MM, Some((0.8, 0.5)));
