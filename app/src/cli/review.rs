@@ -1,7 +1,7 @@
 //! `isoline review new FILE --reader NAME [--out R] [--force]`: runs the measurement engine and writes a
 //! `draft` review holding every automatic value (origin `auto`) and the representative-beat marks.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, bail};
@@ -9,7 +9,7 @@ use isoline_core::analysis::analyze;
 use isoline_core::filter::FilterSettings;
 use isoline_core::io;
 use isoline_core::recording::Recording;
-use isoline_core::review::{REVIEW_SUFFIX, RecordingIdentity, Review};
+use isoline_core::review::{RecordingIdentity, Review};
 
 /// Review subcommands.
 #[derive(Debug, clap::Subcommand)]
@@ -44,12 +44,7 @@ pub fn run(command: &Command) -> anyhow::Result<ExitCode> {
     }
 }
 
-/// `NAME.review.ron` beside the recording (`sel100.hea` and `sel100` both give `sel100.review.ron`).
-#[must_use]
-pub fn default_review_path(recording: &Path) -> PathBuf {
-    let stem = recording.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "recording".into());
-    recording.with_file_name(format!("{stem}{REVIEW_SUFFIX}"))
-}
+pub use isoline_core::review::default_review_path;
 
 fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
     let reader = args.reader.trim();

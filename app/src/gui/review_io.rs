@@ -44,12 +44,7 @@ pub struct ReviewSession {
 // Common practice, no source.
 pub const AUTOSAVE_EVERY_S: f64 = 5.0;
 
-/// `NAME.review.ron` beside the recording (`NAME` = file name without its extension).
-#[must_use]
-pub fn default_review_path(recording: &Path) -> PathBuf {
-    let stem = recording.file_stem().map_or_else(|| "recording".into(), |s| s.to_string_lossy().into_owned());
-    recording.with_file_name(format!("{stem}{REVIEW_SUFFIX}"))
-}
+pub use isoline_core::review::default_review_path;
 
 /// Whether a path names a review file.
 #[must_use]

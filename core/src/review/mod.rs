@@ -47,6 +47,14 @@ pub use save::{autosave_path, backup_path, discard_autosave, recover};
 /// Suffix of review files.
 pub const REVIEW_SUFFIX: &str = ".review.ron";
 
+/// `NAME.review.ron` beside the recording, `NAME` being its file name without the extension (`sel100.hea` and
+/// `sel100` both give `sel100.review.ron`; a path with no file name gives `recording.review.ron`).
+#[must_use]
+pub fn default_review_path(recording: &std::path::Path) -> PathBuf {
+    let stem = recording.file_stem().map_or_else(|| "recording".into(), |s| s.to_string_lossy().into_owned());
+    recording.with_file_name(format!("{stem}{REVIEW_SUFFIX}"))
+}
+
 /// What can go wrong with a review. Variants about a file name it.
 #[derive(Debug, Error)]
 #[non_exhaustive]
