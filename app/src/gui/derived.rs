@@ -2,6 +2,7 @@
 //! the recording's own annotations (used only when the detector finds none).
 
 use isoline_core::beat::{Beat, BeatKind};
+use isoline_core::io::wfdb_annotations::is_beat;
 use isoline_core::recording::{Annotation, Recording};
 
 /// Whole-recording min/max envelope of one lead, in equal time buckets.
@@ -56,13 +57,10 @@ pub fn min_max(xs: &[f32]) -> (f32, f32) {
 /// Source: PhysioNet WFDB annotation codes (ecgcodes.h), MIT-BIH Arrhythmia Database directory of records.
 #[must_use]
 pub fn beat_kind_from_label(label: &str) -> Option<BeatKind> {
-    match label {
-        "N" | "L" | "R" | "B" => Some(BeatKind::Dominant),
-        "A" | "a" | "J" | "S" | "V" | "r" | "F" | "e" | "j" | "n" | "E" | "/" | "f" | "Q" | "?" => {
-            Some(BeatKind::Other)
-        }
-        _ => None,
+    if !is_beat(label) {
+        return None;
     }
+    Some(if matches!(label, "N" | "L" | "R" | "B") { BeatKind::Dominant } else { BeatKind::Other })
 }
 
 /// Beats from the recording's beat annotations, in time order.
