@@ -7,7 +7,7 @@ use std::time::Instant;
 
 use anyhow::Context as _;
 use isoline_core::beat::MarkKind;
-use isoline_core::review::{MarkOn, Measurement, Origin as ReviewOrigin, RecordingIdentity, Review, Stage, REVIEW_SUFFIX};
+use isoline_core::review::{MarkOn, Measurement, RecordingIdentity, Review, Stage, REVIEW_SUFFIX};
 
 use super::command::Command;
 use super::ledger::LedgerRow;
@@ -100,14 +100,14 @@ pub fn build_review(input: &ReviewInput<'_>) -> anyhow::Result<Review> {
         let on = MarkOn::Representative;
         let existing = r.mark(kind, on).copied();
         match (doc.marks.get(&kind), existing) {
-            (Some(&s), Some(m)) if m.sample == s && m.origin != ReviewOrigin::Auto => {}
+            (Some(&s), Some(m)) if m.sample == s && m.origin != Origin::Auto => {}
             (Some(&s), _) => {
                 if let Some(a) = auto.get(kind) {
                     r.put_automatic_mark(kind, on, a, a as f64 / fs)?;
                 }
                 r.move_mark(kind, on, s, s as f64 / fs, reader)?;
             }
-            (None, Some(m)) if m.origin != ReviewOrigin::Auto => {
+            (None, Some(m)) if m.origin != Origin::Auto => {
                 r.remove_mark(kind, on, reader)?;
                 if let Some(a) = auto.get(kind) {
                     r.put_automatic_mark(kind, on, a, a as f64 / fs)?;
@@ -145,7 +145,7 @@ pub fn document_from_review(review: &Review, loaded: &Loaded) -> Document {
         next_caliper_id: review.calipers.iter().map(|c| c.id).max().unwrap_or(0),
         ..Document::default()
     };
-    for m in review.marks.iter().filter(|m| m.on == MarkOn::Representative && m.origin != ReviewOrigin::Auto) {
+    for m in review.marks.iter().filter(|m| m.on == MarkOn::Representative && m.origin != Origin::Auto) {
         doc.marks.insert(m.kind, m.sample);
     }
     let rows = super::ledger::rows(loaded, &doc);

@@ -21,28 +21,8 @@ use isoline_core::delineate::RepresentativeBeat;
 
 use super::derived::TapeEnvelope;
 
-/// Where a value or mark came from (see the vocabulary: `auto`, `moved`, `placed`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
-pub enum Origin {
-    /// Computed by Isoline.
-    Auto,
-    /// Computed, then adjusted by the reader.
-    Moved,
-    /// Added by the reader.
-    Placed,
-}
-
-impl Origin {
-    /// `auto`, `moved` or `placed`.
-    #[must_use]
-    pub fn as_str(self) -> &'static str {
-        match self {
-            Self::Auto => "auto",
-            Self::Moved => "moved",
-            Self::Placed => "placed",
-        }
-    }
-}
+/// Where a value or mark came from (see the vocabulary: `auto`, `moved`, `placed`): the review's own enum.
+pub use isoline_core::review::Origin;
 
 /// The reader's work on one recording: what a review saves and what undo/redo restores.
 #[derive(Debug, Clone, Default, PartialEq)]
