@@ -10,6 +10,7 @@ use thiserror::Error;
 
 use crate::recording::Recording;
 
+pub mod atomic;
 pub mod csv;
 pub mod edf;
 pub mod wfdb;
@@ -139,8 +140,8 @@ pub(crate) fn read_bytes(path: &Path) -> Result<Vec<u8>, ReadError> {
     std::fs::read(path).map_err(|e| ReadError::io(path, e))
 }
 
-/// Writes a file atomically: `fill` writes into a temporary file in the same folder, which is synced and then
-/// renamed over `path`. On any error the temporary file is removed and `path` is left as it was.
+/// Writes a file atomically through [`atomic::write_with`] (temporary file, sync, rename, sync the folder). On
+/// any error the temporary file is removed and `path` is left as it was.
 ///
 /// # Errors
 /// [`ReadError::Io`] naming `path`.
@@ -148,25 +149,7 @@ pub fn write_atomic(
     path: &Path,
     fill: impl FnOnce(&mut std::io::BufWriter<std::fs::File>) -> std::io::Result<()>,
 ) -> Result<(), ReadError> {
-    let dir = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p,
-        _ => Path::new("."),
-    };
-    let name = path.file_name().ok_or_else(|| ReadError::invalid(path, "not a file name"))?;
-    let tmp = dir.join(format!(".{}.{}.partial", name.to_string_lossy(), std::process::id()));
-    let result = (|| {
-        let file = std::fs::File::create(&tmp)?;
-        let mut w = std::io::BufWriter::with_capacity(1 << 20, file);
-        fill(&mut w)?;
-        let file = w.into_inner().map_err(std::io::IntoInnerError::into_error)?;
-        file.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if let Err(e) = result {
-        let _ = std::fs::remove_file(&tmp);
-        return Err(ReadError::io(path, e));
-    }
-    Ok(())
+    atomic::write_with(path, fill).map_err(|e| ReadError::io(path, e))
 }
 
 /// Length of a file in bytes.

@@ -1,8 +1,6 @@
 //! PNG output: encoding with the resolution recorded (pHYs chunk) and an atomic write.
 
-use std::fs::{self, File};
-use std::io::Write;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use tiny_skia::Pixmap;
 
@@ -48,41 +46,19 @@ pub fn encode_png(pixmap: &Pixmap, dpi: f64) -> Result<Vec<u8>, RenderError> {
     Ok(out)
 }
 
-/// Writes `bytes` to `path` atomically: a temporary file in the same folder, flushed and synced, then renamed
-/// over `path`. On error the temporary file is removed and `path` is untouched.
+/// Writes `bytes` to `path` atomically ([`crate::io::atomic::write_bytes`]: temporary file, sync, rename,
+/// sync the folder). On error the temporary file is removed and `path` is untouched.
 ///
 /// # Errors
 /// [`RenderError::Write`] naming `path`.
 pub fn write_png_atomic(path: &Path, bytes: &[u8]) -> Result<(), RenderError> {
-    let err = |source| RenderError::Write { path: path.to_path_buf(), source };
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path.file_name().ok_or_else(|| err(std::io::Error::other("no file name")))?;
-    let nanos = std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.subsec_nanos());
-    let tmp = dir.join(format!(".{}.{}-{nanos}.tmp", name.to_string_lossy(), std::process::id()));
-    let result = (|| {
-        let mut f = File::options().write(true).create_new(true).open(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        drop(f);
-        fs::rename(&tmp, path)
-    })();
-    if let Err(e) = result {
-        let _ = fs::remove_file(&tmp);
-        return Err(err(e));
-    }
-    // Make the rename durable where the platform allows syncing a folder; failure here loses nothing.
-    if let Ok(d) = File::open(&dir) {
-        let _ = d.sync_all();
-    }
-    Ok(())
+    crate::io::atomic::write_bytes(path, bytes).map_err(|source| RenderError::Write { path: path.to_path_buf(), source })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use std::fs;
 
     #[test]
     fn atomic_write_replaces_and_leaves_no_temp() -> Result<(), Box<dyn std::error::Error>> {

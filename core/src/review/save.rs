@@ -4,16 +4,16 @@
 //! `NAME.review.ron.autosave`, which [`recover`] offers after a crash.
 
 use std::ffi::OsString;
-use std::fs::{self, File, OpenOptions};
+use std::fs::{self, OpenOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicU64, Ordering};
 
 use ron::ser::PrettyConfig;
 
 use super::load::load;
 use super::model::{FORMAT_VERSION, Review};
 use super::ReviewError;
+use crate::io::atomic;
 
 /// `NAME.review.ron.bak`: the version before the last save.
 #[must_use]
@@ -127,47 +127,23 @@ pub fn discard_autosave(path: &Path) -> Result<(), ReviewError> {
     }
 }
 
-static TEMP_COUNTER: AtomicU64 = AtomicU64::new(0);
-
-/// Writes `bytes` to `path` through a temporary file in the same folder: create, write, sync, rename, sync
-/// the folder. With `interrupt_at = Some(n)` it stops after writing `n` bytes and returns the temporary file
-/// (a simulated crash); otherwise `None`.
+/// Writes `bytes` to `path` atomically ([`crate::io::atomic::write_bytes`]), then removes temporary files an
+/// earlier crashed save of the same file left behind. With `interrupt_at = Some(n)` it only writes the first
+/// `n` bytes to a temporary file and returns it (a simulated crash); otherwise `None`.
 fn write_atomic(path: &Path, bytes: &[u8], interrupt_at: Option<usize>) -> Result<Option<PathBuf>, ReviewError> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "review".to_owned());
-    let prefix = format!(".{name}.tmp.");
-    let n = TEMP_COUNTER.fetch_add(1, Ordering::Relaxed);
-    let tmp = dir.join(format!("{prefix}{}.{n}", std::process::id()));
-    let mut file = OpenOptions::new().write(true).create_new(true).open(&tmp).map_err(io_err(&tmp))?;
     if let Some(at) = interrupt_at.filter(|&at| at < bytes.len()) {
+        let tmp = atomic::temp_path(path);
+        let mut file = OpenOptions::new().write(true).create_new(true).open(&tmp).map_err(io_err(&tmp))?;
         file.write_all(&bytes[..at]).map_err(io_err(&tmp))?;
         return Ok(Some(tmp));
     }
-    let result = file
-        .write_all(bytes)
-        .and_then(|()| file.sync_all())
-        .map_err(io_err(&tmp))
-        .and_then(|()| {
-            drop(file);
-            fs::rename(&tmp, path).map_err(io_err(path))
-        });
-    if let Err(e) = result {
-        let _ = fs::remove_file(&tmp);
-        return Err(e);
-    }
-    sync_dir(&dir);
-    remove_stale_temps(&dir, &prefix);
+    atomic::write_bytes(path, bytes).map_err(io_err(path))?;
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d,
+        _ => Path::new("."),
+    };
+    remove_stale_temps(dir, &atomic::temp_prefix(path));
     Ok(None)
-}
-
-/// Makes the rename durable (POSIX: sync the folder). Not possible on every platform; best effort.
-fn sync_dir(dir: &Path) {
-    if let Ok(d) = File::open(dir) {
-        let _ = d.sync_all();
-    }
 }
 
 /// Removes temporary files an earlier crashed save of the same file left behind.

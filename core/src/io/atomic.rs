@@ -1,0 +1,112 @@
+//! Atomic file writes, the one way Isoline replaces a file (recordings, reviews, PNG pages): write a temporary
+//! file in the same folder, sync it, rename it over the target (an atomic replace on one file system), then
+//! sync the folder so the rename survives a power cut.
+
+use std::fs::{File, OpenOptions};
+use std::io::{self, BufWriter, Write};
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
+
+static TEMP_COUNTER: AtomicU64 = AtomicU64::new(0);
+
+/// `.NAME.tmp.` — the start of every temporary file name [`write_with`] uses for `path`, so a caller can find
+/// and remove what a crashed write left behind.
+#[must_use]
+pub fn temp_prefix(path: &Path) -> String {
+    let name = path.file_name().map_or_else(|| "file".into(), |n| n.to_string_lossy());
+    format!(".{name}.tmp.")
+}
+
+/// A fresh temporary file name beside `path` (`.NAME.tmp.PID.N`, unique within this process).
+#[must_use]
+pub fn temp_path(path: &Path) -> PathBuf {
+    let n = TEMP_COUNTER.fetch_add(1, Ordering::Relaxed);
+    folder(path).join(format!("{}{}.{n}", temp_prefix(path), std::process::id()))
+}
+
+/// The folder holding `path` (`.` for a bare file name).
+fn folder(path: &Path) -> PathBuf {
+    match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    }
+}
+
+/// Writes `path` atomically: `fill` writes into a new temporary file beside it, which is synced and renamed
+/// over `path`; then the folder is synced (best effort: not every platform can). On any error the temporary
+/// file is removed and `path` is left as it was.
+///
+/// # Errors
+/// The first I/O error (creating, writing, syncing or renaming); the caller names the file.
+pub fn write_with(path: &Path, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
+    if path.file_name().is_none() {
+        return Err(io::Error::new(io::ErrorKind::InvalidInput, "not a file name"));
+    }
+    let tmp = temp_path(path);
+    let result = (|| {
+        let file = OpenOptions::new().write(true).create_new(true).open(&tmp)?;
+        let mut w = BufWriter::with_capacity(1 << 20, file);
+        fill(&mut w)?;
+        let file = w.into_inner().map_err(io::IntoInnerError::into_error)?;
+        file.sync_all()?;
+        drop(file);
+        std::fs::rename(&tmp, path)
+    })();
+    if let Err(e) = result {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(e);
+    }
+    if let Ok(d) = File::open(folder(path)) {
+        let _ = d.sync_all();
+    }
+    Ok(())
+}
+
+/// [`write_with`] for bytes already in memory.
+///
+/// # Errors
+/// As [`write_with`].
+pub fn write_bytes(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    write_with(path, |w| w.write_all(bytes))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn replaces_and_leaves_no_temp() -> Result<(), Box<dyn std::error::Error>> {
+        let dir = tempfile::tempdir()?;
+        let p = dir.path().join("page.png");
+        write_bytes(&p, b"first")?;
+        write_with(&p, |w| w.write_all(b"second"))?;
+        assert_eq!(std::fs::read(&p)?, b"second");
+        assert_eq!(std::fs::read_dir(dir.path())?.count(), 1);
+        Ok(())
+    }
+
+    #[test]
+    fn failed_fill_leaves_target_and_no_temp() -> Result<(), Box<dyn std::error::Error>> {
+        let dir = tempfile::tempdir()?;
+        let p = dir.path().join("r.csv");
+        write_bytes(&p, b"kept")?;
+        let failed = write_with(&p, |w| {
+            w.write_all(b"half")?;
+            Err(io::Error::other("disk full"))
+        });
+        assert!(failed.is_err());
+        assert_eq!(std::fs::read(&p)?, b"kept");
+        assert_eq!(std::fs::read_dir(dir.path())?.count(), 1);
+        Ok(())
+    }
+
+    #[test]
+    fn temp_names_are_unique_and_share_the_prefix() {
+        let p = Path::new("some/dir/a.review.ron");
+        let (a, b) = (temp_path(p), temp_path(p));
+        assert_ne!(a, b);
+        assert_eq!(a.parent(), Some(Path::new("some/dir")));
+        assert!(a.file_name().is_some_and(|n| n.to_string_lossy().starts_with(".a.review.ron.tmp.")));
+        assert_eq!(temp_path(Path::new("x.png")).parent(), Some(Path::new(".")));
+    }
+}
