@@ -7,8 +7,8 @@
 use egui::{Color32, FontId, Pos2, Rect, Shape, Stroke, Vec2};
 use isoline_core::paper::{margins, Cell, Page, PageSpec, Palette, Rgba, MAJOR_MM, MINOR_MM};
 use isoline_core::recording::Recording;
+use isoline_core::render::decimate_min_max;
 
-use super::derived::min_max;
 use super::state::{Loaded, ViewSettings};
 
 /// Where the Sheet was drawn in the last frame: enough to map between screen, paper and recording time.
@@ -195,7 +195,8 @@ fn draw_grid(painter: &egui::Painter, geo: &SheetGeometry, pal: &Palette, page_r
 }
 
 /// Screen points of one cell's trace: every sample when there are at most two per pixel column, otherwise the
-/// minimum and maximum of each column in the order they occur.
+/// minimum and maximum of each pixel column ([`decimate_min_max`], as on the exported page), the one nearer the
+/// column's first sample first.
 #[must_use]
 pub fn trace_points(
     geo: &SheetGeometry,
@@ -219,19 +220,15 @@ pub fn trace_points(
     if samples_per_px <= 2.0 {
         return (first..=last).filter(|&k| samples[k].is_finite()).map(|k| Pos2::new(x_of(k), y(samples[k]))).collect();
     }
-    let columns = ((last - first) as f32 / samples_per_px).ceil() as usize;
-    let mut pts = Vec::with_capacity(columns * 2);
-    for c in 0..columns {
-        let a = first + (c as f32 * samples_per_px) as usize;
-        let b = (first + ((c + 1) as f32 * samples_per_px) as usize).min(last + 1);
-        if a >= b {
-            continue;
-        }
-        let chunk = &samples[a..b];
-        let (lo, hi) = min_max(chunk);
-        let x = x_of(a);
-        let lo_first = chunk.iter().position(|&v| v == lo) < chunk.iter().position(|&v| v == hi);
-        let (p, q) = if lo_first { (lo, hi) } else { (hi, lo) };
+    // Same min/max column decimation as the exported page, in physical pixels.
+    let x0_px = f64::from(x_of(first) * pixels_per_point);
+    let px_per_sample = f64::from(px_per_s) / rate_hz;
+    let columns = decimate_min_max(&samples[first..=last], x0_px, px_per_sample);
+    let mut pts = Vec::with_capacity(columns.len() * 2);
+    for c in columns {
+        let x = c.x as f32 / pixels_per_point;
+        // Start with the extreme nearer the column's first sample, so the line follows the order of the samples.
+        let (p, q) = if (c.first - c.min).abs() <= (c.first - c.max).abs() { (c.min, c.max) } else { (c.max, c.min) };
         pts.push(Pos2::new(x, y(p)));
         pts.push(Pos2::new(x, y(q)));
     }
