@@ -5,9 +5,8 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, bail};
-use isoline_core::measure::Measurements;
 use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
-use isoline_core::render::{self, LedgerLine, RenderInput};
+use isoline_core::render::{self, RenderInput};
 use isoline_core::review::{self, MarkOn, Review};
 use isoline_core::{MarkKind, analysis, filter, io};
 
@@ -55,21 +54,6 @@ pub struct Args {
     pub rate: Option<f64>,
 }
 
-/// Measurement keys shown in the box, in order.
-const LEDGER_KEYS: [&str; 11] = [
-    "heart_rate_bpm",
-    "rr_ms",
-    "p_duration_ms",
-    "pr_ms",
-    "qrs_ms",
-    "qt_ms",
-    "qtc_bazett_ms",
-    "qtc_fridericia_ms",
-    "axis_p_deg",
-    "axis_qrs_deg",
-    "axis_t_deg",
-];
-
 /// Runs the command.
 pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let file = args.file.display();
@@ -114,11 +98,11 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         title,
         identify: args.identify,
         filter_text: Some(filtered.description.clone()),
-        ledger: ledger(&analysis.measurements, review.as_ref()),
+        ledger: render::ledger_lines(&analysis.measurements, review.as_ref()),
         ..RenderInput::new(&filtered.recording, spec, args.dpi)
     };
     if let Some(r) = &review {
-        input.header = vec![("Reader".into(), r.reader.clone()), ("Stage".into(), r.stage.as_str().into())];
+        input.header = render::header_fields(Some(&r.reader), r.stage);
         input.calipers.clone_from(&r.calipers);
         input.marks = marks(r);
     }
@@ -139,59 +123,4 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
 /// drawn on the strip (their values are in the box).
 fn marks(r: &Review) -> Vec<(MarkKind, f64)> {
     r.marks.iter().filter(|m| matches!(m.on, MarkOn::Beat(_))).map(|m| (m.kind, m.time_s)).collect()
-}
-
-/// A value as printed in the box, with a true minus sign.
-fn format_value(v: f64, unit: &str) -> String {
-    let s = match unit {
-        "%" => format!("{v:.1}"),
-        _ => format!("{v:.0}"),
-    };
-    if s.starts_with("-0") && s.trim_start_matches(['-', '0', '.']).is_empty() {
-        return s[1..].to_string();
-    }
-    s.replacen('-', "\u{2212}", 1)
-}
-
-fn unit_text(unit: &str) -> String {
-    match unit {
-        "deg" => "\u{b0}".to_string(),
-        "uV" => "\u{b5}V".to_string(),
-        u => u.to_string(),
-    }
-}
-
-/// The box: automatic values from this run (or the review's stored automatic value when this run has none),
-/// and the reader's values from the review.
-fn ledger(m: &Measurements, review: Option<&Review>) -> Vec<LedgerLine> {
-    let values = m.values();
-    let mut lines: Vec<LedgerLine> = LEDGER_KEYS
-        .iter()
-        .filter_map(|key| {
-            let auto = values.iter().find(|v| v.key == *key);
-            let stored = review.and_then(|r| r.measurement(key));
-            let label = auto.map(|v| v.label.clone()).or_else(|| stored.map(|s| s.label.clone()))?;
-            let unit = auto.map(|v| v.unit.to_string()).or_else(|| stored.map(|s| s.unit.clone())).unwrap_or_default();
-            let auto_value = auto.and_then(|v| v.value).or_else(|| stored.and_then(|s| s.auto_value));
-            Some(LedgerLine {
-                label,
-                auto: auto_value.map(|v| format_value(v, &unit)),
-                reviewed: stored.and_then(|s| s.reviewed_value).map(|v| format_value(v, &unit)),
-                unit: unit_text(&unit),
-            })
-        })
-        .collect();
-    // Any other value the reader set (ST levels, …) follows, so no reviewed value is left off the page.
-    if let Some(r) = review {
-        for s in r.measurements.iter().filter(|s| s.reviewed_value.is_some() && !LEDGER_KEYS.contains(&s.key.as_str()))
-        {
-            lines.push(LedgerLine {
-                label: s.label.clone(),
-                auto: s.auto_value.map(|v| format_value(v, &s.unit)),
-                reviewed: s.reviewed_value.map(|v| format_value(v, &s.unit)),
-                unit: unit_text(&s.unit),
-            });
-        }
-    }
-    lines
 }

@@ -5,7 +5,8 @@ use std::path::Path;
 
 use anyhow::Context as _;
 use isoline_core::paper::PageSpec;
-use isoline_core::render::{self, LedgerLine, RenderInput};
+use isoline_core::render::{self, LedgerValue, RenderInput};
+use isoline_core::review::Origin;
 
 use super::IsolineApp;
 
@@ -36,17 +37,21 @@ impl IsolineApp {
             (Some(a), true) => Some(a.filtered.description.clone()),
             _ => None,
         };
-        if let Some(reader) = &self.settings.reader {
-            input.header.push(("reader".into(), reader.clone()));
-        }
-        input.header.push(("stage".into(), self.review.stage.as_str().into()));
+        input.header = render::header_fields(self.settings.reader.as_deref(), self.review.stage);
         input.calipers = self.doc.calipers.clone();
-        let fmt = |v: Option<f64>| v.map(|v| format!("{v:.0}"));
-        input.ledger = rows
+        // A reviewed value is the reader's only where it differs from the automatic one (as the saved review
+        // keeps it).
+        let values: Vec<LedgerValue<'_>> = rows
             .iter()
-            .filter(|r| !r.key.starts_with("st_") && !r.key.starts_with("rr_"))
-            .map(|r| LedgerLine { label: r.label.clone(), auto: fmt(r.auto), reviewed: fmt(r.reviewed), unit: r.unit.to_string() })
+            .map(|r| LedgerValue {
+                key: r.key,
+                label: &r.label,
+                unit: r.unit,
+                auto: r.auto,
+                reviewed: r.reviewed.filter(|_| matches!(r.origin, Some(Origin::Moved | Origin::Placed))),
+            })
             .collect();
+        input.ledger = render::ledger_lines_from(&values);
         let pixmap = render::render_page(&input)?;
         let bytes = render::encode_png(&pixmap, EXPORT_DPI)?;
         render::write_png_atomic(path, &bytes)?;

@@ -27,6 +27,7 @@ mod canvas;
 mod furniture;
 mod grid;
 mod ledger;
+mod ledger_lines;
 mod overlay;
 mod page;
 mod png;
@@ -41,6 +42,7 @@ use crate::paper::{PageSpec, Scheme};
 use crate::recording::Recording;
 
 pub use self::furniture::header_lines;
+pub use self::ledger_lines::{LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from};
 pub use self::png::{encode_png, write_png_atomic};
 pub use self::trace::{Column, decimate_min_max};
 

@@ -1,0 +1,154 @@
+//! What the measurement box on an exported page says: which measurements, in which order, and how their
+//! values and units are written. The command line and the workstation both build their box here.
+
+use super::LedgerLine;
+use crate::measure::Measurements;
+use crate::review::{Review, Stage};
+
+/// Measurement keys the box always lists (when measured or reviewed), in order. Any other measurement follows
+/// only when the reader gave it a value.
+pub const LEDGER_KEYS: [&str; 11] = [
+    "heart_rate_bpm",
+    "rr_ms",
+    "p_duration_ms",
+    "pr_ms",
+    "qrs_ms",
+    "qt_ms",
+    "qtc_bazett_ms",
+    "qtc_fridericia_ms",
+    "axis_p_deg",
+    "axis_qrs_deg",
+    "axis_t_deg",
+];
+
+/// One measurement as the box needs it, before formatting.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LedgerValue<'a> {
+    /// Stable key (`qt_ms`, …), as in `isoline measure --format json`.
+    pub key: &'a str,
+    /// Label for readers.
+    pub label: &'a str,
+    /// Unit as stored (`ms`, `bpm`, `deg`, `uV`, `%`).
+    pub unit: &'a str,
+    /// Value computed by Isoline.
+    pub auto: Option<f64>,
+    /// Value the reader set; `None` when the automatic value stands.
+    pub reviewed: Option<f64>,
+}
+
+/// The box's lines from any source of values: the [`LEDGER_KEYS`] in order (the first value of each key; a key
+/// with no value is left out), then every other value the reader set, in the order given, so no reviewed value
+/// is left off the page. Values are rounded to whole units (`%` to one decimal) with a true minus sign; `deg`
+/// prints as `°` and `uV` as `µV`.
+#[must_use]
+pub fn ledger_lines_from(values: &[LedgerValue<'_>]) -> Vec<LedgerLine> {
+    let listed = LEDGER_KEYS.iter().filter_map(|key| values.iter().find(|v| v.key == *key));
+    let others = values.iter().filter(|v| v.reviewed.is_some() && !LEDGER_KEYS.contains(&v.key));
+    listed.chain(others).map(line).collect()
+}
+
+/// The box for a recording's automatic measurements and, optionally, a review of it: automatic values from
+/// `measurements` (or the review's stored automatic value where this run has none), reviewed values from the
+/// review. See [`ledger_lines_from`].
+#[must_use]
+pub fn ledger_lines(measurements: &Measurements, review: Option<&Review>) -> Vec<LedgerLine> {
+    let auto = measurements.values();
+    let mut values: Vec<LedgerValue<'_>> = LEDGER_KEYS
+        .iter()
+        .filter_map(|key| {
+            let a = auto.iter().find(|v| v.key == *key);
+            let stored = review.and_then(|r| r.measurement(key));
+            Some(LedgerValue {
+                key,
+                label: a.map(|v| v.label.as_str()).or_else(|| stored.map(|s| s.label.as_str()))?,
+                unit: a.map(|v| v.unit).or_else(|| stored.map(|s| s.unit.as_str())).unwrap_or_default(),
+                auto: a.and_then(|v| v.value).or_else(|| stored.and_then(|s| s.auto_value)),
+                reviewed: stored.and_then(|s| s.reviewed_value),
+            })
+        })
+        .collect();
+    if let Some(r) = review {
+        values.extend(r.measurements.iter().filter(|s| !LEDGER_KEYS.contains(&s.key.as_str())).map(|s| LedgerValue {
+            key: &s.key,
+            label: &s.label,
+            unit: &s.unit,
+            auto: s.auto_value,
+            reviewed: s.reviewed_value,
+        }));
+    }
+    ledger_lines_from(&values)
+}
+
+/// Header fields naming the reader (when known) and the stage: `Reader: AB`, `Stage: checked`.
+#[must_use]
+pub fn header_fields(reader: Option<&str>, stage: Stage) -> Vec<(String, String)> {
+    let reader = reader.map(|r| ("Reader".to_owned(), r.to_owned()));
+    reader.into_iter().chain([("Stage".to_owned(), stage.as_str().to_owned())]).collect()
+}
+
+fn line(v: &LedgerValue<'_>) -> LedgerLine {
+    LedgerLine {
+        label: v.label.to_owned(),
+        auto: v.auto.map(|x| format_value(x, v.unit)),
+        reviewed: v.reviewed.map(|x| format_value(x, v.unit)),
+        unit: unit_text(v.unit),
+    }
+}
+
+/// A value as printed in the box, with a true minus sign and no negative zero.
+fn format_value(v: f64, unit: &str) -> String {
+    let s = match unit {
+        "%" => format!("{v:.1}"),
+        _ => format!("{v:.0}"),
+    };
+    if s.starts_with("-0") && s.trim_start_matches(['-', '0', '.']).is_empty() {
+        return s[1..].to_string();
+    }
+    s.replacen('-', "\u{2212}", 1)
+}
+
+fn unit_text(unit: &str) -> String {
+    match unit {
+        "deg" => "\u{b0}".to_owned(),
+        "uV" => "\u{b5}V".to_owned(),
+        u => u.to_owned(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn value<'a>(key: &'a str, unit: &'a str, auto: Option<f64>, reviewed: Option<f64>) -> LedgerValue<'a> {
+        LedgerValue { key, label: key, unit, auto, reviewed }
+    }
+
+    #[test]
+    fn listed_keys_in_order_then_reviewed_others() {
+        let values = [
+            value("st_j60_uv", "uV", Some(-40.0), None),
+            value("qt_ms", "ms", Some(401.6), Some(420.0)),
+            value("axis_qrs_deg", "deg", Some(-0.2), None),
+            value("heart_rate_bpm", "bpm", Some(71.0), None),
+            value("st_j_uv", "uV", Some(-52.0), Some(-60.0)),
+        ];
+        let lines = ledger_lines_from(&values);
+        let labels: Vec<&str> = lines.iter().map(|l| l.label.as_str()).collect();
+        assert_eq!(labels, ["heart_rate_bpm", "qt_ms", "axis_qrs_deg", "st_j_uv"]);
+        assert_eq!((lines[1].auto.as_deref(), lines[1].reviewed.as_deref()), (Some("402"), Some("420")));
+        assert_eq!((lines[2].auto.as_deref(), lines[2].unit.as_str()), (Some("0"), "\u{b0}"));
+        assert_eq!((lines[3].reviewed.as_deref(), lines[3].unit.as_str()), (Some("\u{2212}60"), "\u{b5}V"));
+    }
+
+    #[test]
+    fn percent_keeps_one_decimal() {
+        assert_eq!(format_value(12.34, "%"), "12.3");
+        assert_eq!(format_value(-0.04, "%"), "0.0");
+    }
+
+    #[test]
+    fn header_names_reader_when_known() {
+        assert_eq!(header_fields(None, Stage::Draft), [("Stage".to_owned(), "draft".to_owned())]);
+        assert_eq!(header_fields(Some("AB"), Stage::Final)[0], ("Reader".to_owned(), "AB".to_owned()));
+    }
+}
