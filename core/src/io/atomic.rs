@@ -101,6 +101,22 @@ mod tests {
     }
 
     #[test]
+    fn failed_rename_leaves_nothing() -> Result<(), Box<dyn std::error::Error>> {
+        let dir = tempfile::tempdir()?;
+        // The target is an existing non-empty folder: the rename fails, and the temporary file must go.
+        let target = dir.path().join("taken");
+        std::fs::create_dir(&target)?;
+        std::fs::write(target.join("keep"), b"x")?;
+        assert!(write_bytes(&target, b"data").is_err());
+        let names: Vec<_> = std::fs::read_dir(dir.path())?.filter_map(|e| e.ok()).map(|e| e.file_name()).collect();
+        assert_eq!(names, vec![std::ffi::OsString::from("taken")]);
+        // A missing folder: nothing is created.
+        assert!(write_bytes(&dir.path().join("no/such/page.png"), b"data").is_err());
+        assert!(!dir.path().join("no").exists());
+        Ok(())
+    }
+
+    #[test]
     fn temp_names_are_unique_and_share_the_prefix() {
         let p = Path::new("some/dir/a.review.ron");
         let (a, b) = (temp_path(p), temp_path(p));
