@@ -5,10 +5,11 @@ use std::path::Path;
 
 use anyhow::Context as _;
 use isoline_core::paper::PageSpec;
-use isoline_core::render::{self, LedgerValue, RenderInput};
+use isoline_core::render::{self, LedgerLine, LedgerValue, RenderInput};
 use isoline_core::review::Origin;
 
 use super::IsolineApp;
+use super::ledger::LedgerRow;
 
 /// Resolution of exported pages, dots per inch.
 // Common practice, no source: 300 dpi is the usual print resolution.
@@ -39,22 +40,59 @@ impl IsolineApp {
         };
         input.header = render::header_fields(self.settings.reader.as_deref(), self.review.stage);
         input.calipers = self.doc.calipers.clone();
-        // A reviewed value is the reader's only where it differs from the automatic one (as the saved review
-        // keeps it).
-        let values: Vec<LedgerValue<'_>> = rows
-            .iter()
-            .map(|r| LedgerValue {
-                key: r.key,
-                label: &r.label,
-                unit: r.unit,
-                auto: r.auto,
-                reviewed: r.reviewed.filter(|_| matches!(r.origin, Some(Origin::Moved | Origin::Placed))),
-            })
-            .collect();
-        input.ledger = render::ledger_lines_from(&values);
+        input.ledger = export_ledger(&rows);
         let pixmap = render::render_page(&input)?;
         let bytes = render::encode_png(&pixmap, EXPORT_DPI)?;
         render::write_png_atomic(path, &bytes)?;
         Ok(())
+    }
+}
+
+/// The exported box from the Ledger rows, through the same builder as `isoline render`. A reviewed value is
+/// the reader's only where it differs from the automatic one (as the saved review keeps it).
+fn export_ledger(rows: &[LedgerRow]) -> Vec<LedgerLine> {
+    let values: Vec<LedgerValue<'_>> = rows
+        .iter()
+        .map(|r| LedgerValue {
+            key: r.key,
+            label: &r.label,
+            unit: r.unit,
+            auto: r.auto,
+            reviewed: r.reviewed.filter(|_| matches!(r.origin, Some(Origin::Moved | Origin::Placed))),
+        })
+        .collect();
+    render::ledger_lines_from(&values)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn row(key: &'static str, unit: &'static str, auto: f64, reviewed: f64, origin: Origin) -> LedgerRow {
+        let (auto, reviewed, origin) = (Some(auto), Some(reviewed), Some(origin));
+        LedgerRow { key, label: key.to_owned(), unit, auto, reviewed, origin, note: None }
+    }
+
+    #[test]
+    fn box_shows_only_the_readers_values_with_print_units() {
+        let rows = [
+            row("qt_ms", "ms", 400.0, 420.0, Origin::Moved),
+            row("qrs_ms", "ms", 96.0, 96.0, Origin::Auto),
+            row("axis_qrs_deg", "deg", -30.0, -30.0, Origin::Auto),
+            row("rr_sdnn_ms", "ms", 40.0, 40.0, Origin::Auto),
+        ];
+        let lines = export_ledger(&rows);
+        let got: Vec<(&str, Option<&str>, Option<&str>, &str)> = lines
+            .iter()
+            .map(|l| (l.label.as_str(), l.auto.as_deref(), l.reviewed.as_deref(), l.unit.as_str()))
+            .collect();
+        assert_eq!(
+            got,
+            [
+                ("qrs_ms", Some("96"), None, "ms"),
+                ("qt_ms", Some("400"), Some("420"), "ms"),
+                ("axis_qrs_deg", Some("\u{2212}30"), None, "\u{b0}"),
+            ]
+        );
     }
 }

@@ -52,7 +52,8 @@ pub fn encode_png(pixmap: &Pixmap, dpi: f64) -> Result<Vec<u8>, RenderError> {
 /// # Errors
 /// [`RenderError::Write`] naming `path`.
 pub fn write_png_atomic(path: &Path, bytes: &[u8]) -> Result<(), RenderError> {
-    crate::io::atomic::write_bytes(path, bytes).map_err(|source| RenderError::Write { path: path.to_path_buf(), source })
+    let write_error = |source| RenderError::Write { path: path.to_path_buf(), source };
+    crate::io::atomic::write_bytes(path, bytes).map_err(write_error)
 }
 
 #[cfg(test)]
