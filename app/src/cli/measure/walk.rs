@@ -9,6 +9,9 @@ pub const RECORDING_EXTENSIONS: [&str; 2] = ["hea", "edf"];
 /// Bytes read from the start of a `.csv` to find its header row.
 const CSV_SNIFF_BYTES: u64 = 64 * 1024;
 
+/// Why a folder given on the command line yielded nothing.
+pub const NO_RECORDINGS: &str = "no recordings found (.hea, .edf, .csv with a time_s column)";
+
 /// Deepest folder nesting walked.
 const MAX_DEPTH: usize = 32;
 
@@ -86,7 +89,11 @@ pub fn find_recordings(inputs: &[PathBuf]) -> Found {
     let mut found = Found::default();
     for input in inputs {
         if input.is_dir() {
+            let (files_before, errors_before) = (found.files.len(), found.errors.len());
             walk_dir(input, 0, &mut found);
+            if found.files.len() == files_before && found.errors.len() == errors_before {
+                found.errors.push((input.clone(), NO_RECORDINGS.to_string()));
+            }
         } else {
             // Files, and names of WFDB records without extension: the reader decides.
             found.files.push(input.clone());
@@ -119,6 +126,16 @@ mod tests {
         // A file named on the command line is always attempted, whatever it holds.
         let labels = dir.path().join("labels.csv");
         assert_eq!(find_recordings(std::slice::from_ref(&labels)).files, [labels]);
+        Ok(())
+    }
+
+    #[test]
+    fn empty_folder_is_an_error() -> std::io::Result<()> {
+        let dir = tempfile::tempdir()?;
+        std::fs::write(dir.path().join("labels.csv"), "record,rhythm\n")?;
+        let found = find_recordings(&[dir.path().to_path_buf()]);
+        assert!(found.files.is_empty());
+        assert_eq!(found.errors, [(dir.path().to_path_buf(), NO_RECORDINGS.to_string())]);
         Ok(())
     }
 
