@@ -129,6 +129,11 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
         Some("edf") | Some("bdf") => edf::read(path),
         Some("csv") | Some("txt") => csv::read(path, options.csv_rate_hz),
         _ if wfdb::header_path(path).is_some() => wfdb::read_record(path),
+        // Neither the file nor a WFDB header of that name: say so rather than guess at its type.
+        _ if !path.exists() => Err(ReadError::io(
+            path,
+            std::io::Error::new(std::io::ErrorKind::NotFound, "file does not exist (nor a .hea record of that name)"),
+        )),
         Some("dat") => Err(ReadError::unsupported(path, "open the record's .hea header, not its .dat signal file")),
         _ => Err(ReadError::unsupported(path, "unknown file type (expected .hea, .edf or .csv)")),
     }
@@ -172,4 +177,28 @@ pub fn write_atomic(
 /// Length of a file in bytes.
 pub(crate) fn file_len(path: &Path) -> Result<u64, ReadError> {
     std::fs::metadata(path).map(|m| m.len()).map_err(|e| ReadError::io(path, e))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn missing_path_without_extension_is_not_found() -> std::io::Result<()> {
+        let dir = tempfile::tempdir()?;
+        let path = dir.path().join("nosuchrecord");
+        let err = open(&path, &OpenOptions::default()).err();
+        assert!(
+            matches!(&err, Some(ReadError::Io { path: p, cause }) if p == &path && cause.kind() == std::io::ErrorKind::NotFound),
+            "{err:?}"
+        );
+        let msg = err.map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.starts_with(&path.display().to_string()) && msg.contains("does not exist"), "{msg}");
+        // An existing file of an unknown type is still named as such.
+        let other = dir.path().join("notes.xyz");
+        std::fs::write(&other, "x")?;
+        let msg = open(&other, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.contains("unknown file type"), "{msg}");
+        Ok(())
+    }
 }
