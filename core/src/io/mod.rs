@@ -139,6 +139,13 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
     }
 }
 
+/// Text quoted from a file, made safe to print in a message: printable ASCII stays as it is, anything else
+/// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`).
+#[must_use]
+pub fn printable(s: &str) -> String {
+    s.chars().map(|c| if matches!(c, ' '..='~') { c.to_string() } else { c.escape_default().to_string() }).collect()
+}
+
 /// Reads a whole file, mapping the error to [`ReadError::Io`].
 pub(crate) fn read_bytes(path: &Path) -> Result<Vec<u8>, ReadError> {
     std::fs::read(path).map_err(|e| ReadError::io(path, e))
@@ -199,6 +206,29 @@ mod tests {
         std::fs::write(&other, "x")?;
         let msg = open(&other, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
         assert!(msg.contains("unknown file type"), "{msg}");
+        Ok(())
+    }
+
+    #[test]
+    fn quoted_header_bytes_are_printable_ascii() -> std::io::Result<()> {
+        assert_eq!(printable("ECG II"), "ECG II");
+        assert_eq!(printable("\"\u{d8}\n\u{7}"), "\"\\u{d8}\\n\\u{7}");
+        // A file of random bytes named .edf: the version field quoted in the message starts with `"ØÍÃA`.
+        let dir = tempfile::tempdir()?;
+        let path = dir.path().join("random.edf");
+        let mut bytes = vec![0x22, 0xD8, 0xCD, 0xC3, 0x41, 0x07, 0x00, 0x1B];
+        let mut x: u32 = 0x2545_F491;
+        for _ in 0..1024 {
+            x ^= x << 13;
+            x ^= x >> 17;
+            x ^= x << 5;
+            bytes.push(x.to_le_bytes()[0]);
+        }
+        std::fs::write(&path, &bytes)?;
+        let msg = open(&path, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.contains("version"), "{msg}");
+        assert!(msg.chars().all(|c| matches!(c, ' '..='~')), "{msg}");
+        assert!(msg.contains("\\u{d8}"), "{msg}");
         Ok(())
     }
 }
