@@ -79,9 +79,13 @@ fn usage_error(e: &clap::Error) -> ExitCode {
         let _ = e.print();
         return ExitCode::from(2);
     }
+    // clap's first paragraph, on one line (a missing argument's name follows on the next line).
     let rendered = e.render().to_string();
-    let first = rendered.lines().map(str::trim).find(|l| !l.is_empty()).unwrap_or("invalid arguments");
-    let first = first.strip_prefix("error:").map_or(first, str::trim_start);
+    let first: Vec<&str> =
+        rendered.lines().map(str::trim).skip_while(|l| l.is_empty()).take_while(|l| !l.is_empty()).collect();
+    let first = first.join(" ");
+    let first = first.strip_prefix("error:").map_or(first.as_str(), str::trim_start);
+    let first = if first.is_empty() { "invalid arguments" } else { first };
     eprintln!("isoline: {first} (see isoline --help)");
     ExitCode::from(2)
 }

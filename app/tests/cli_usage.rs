@@ -23,6 +23,9 @@ fn usage_errors_are_one_line_and_exit_2() -> Result<(), Box<dyn std::error::Erro
         assert!(!err.contains("error: error"), "{err}");
         assert!(out.stdout.is_empty(), "{args:?}");
     }
+    // A missing argument is named on the same line.
+    let err = String::from_utf8_lossy(&isoline(&["measure"])?.stderr).into_owned();
+    assert!(err.contains("<PATHS>"), "{err}");
     Ok(())
 }
 
