@@ -98,6 +98,7 @@ impl Review {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a test fails by panicking
 mod tests {
     use super::*;
     use crate::measure::qtc::qtc;
