@@ -398,7 +398,7 @@ pub fn ordered_leads(recording: &Recording, order: LeadOrder) -> Vec<(usize, Str
 
 impl PageSpec {
     /// Lays out the page for a recording. Leads missing from the recording leave their cells out; a rhythm or
-    /// strip lead that is missing falls back to the first lead in page order.
+    /// strip lead that is missing falls back to the first lead in file order (`recording.leads[0]`), shown upright.
     #[must_use]
     pub fn page(&self, recording: &Recording) -> Page {
         let paper = self.paper;
@@ -407,7 +407,10 @@ impl PageSpec {
         let trace_x = margins::LEFT_MM + calibration_space_mm(&paper);
         let total_w = paper.mm_from_seconds(self.seconds);
         let find = |name: &LeadName| -> Option<(usize, String, bool)> {
-            recording.lead_index(name).map(|i| (i, name.to_string(), false)).or_else(|| leads.first().cloned())
+            recording
+                .lead_index(name)
+                .map(|i| (i, name.to_string(), false))
+                .or_else(|| recording.leads.first().map(|l| (0, l.name.to_string(), false)))
         };
         // grid[r][c] = entry index into `leads`, for column-major layouts.
         let (n_rows, n_cols, rhythm): (usize, usize, Option<(usize, String, bool)>) = match &self.layout {
@@ -587,6 +590,23 @@ mod tests {
         assert_eq!(page.rows[3].cells.len(), 1);
         assert_eq!(page.rows[3].cells[0].label, "II");
         assert!((page.rows[3].cells[0].width_mm - 250.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn missing_rhythm_lead_falls_back_to_first_lead_in_file_order() {
+        // A two-lead Holter-style record (MLII, V5): page order puts V5 first, file order MLII.
+        let rec = Recording {
+            leads: ["MLII", "V5"].iter().map(|n| Lead { name: LeadName::parse(n), samples: vec![0.0; 5000] }).collect(),
+            ..twelve_lead()
+        };
+        assert_eq!(ordered_leads(&rec, LeadOrder::default())[0].1, "V5");
+        let page = PageSpec::default().page(&rec);
+        let rhythm = &page.rows.last().map(|r| r.cells.clone()).unwrap_or_default();
+        assert_eq!(rhythm.len(), 1);
+        assert_eq!((rhythm[0].lead, rhythm[0].label.as_str()), (0, "MLII"));
+        let strip = PageSpec { layout: Layout::Strip(StandardLead::II.into()), ..PageSpec::default() }.page(&rec);
+        assert_eq!(strip.rows.len(), 1);
+        assert_eq!((strip.rows[0].cells[0].lead, strip.rows[0].cells[0].label.as_str()), (0, "MLII"));
     }
 
     #[test]
