@@ -419,6 +419,9 @@ impl PageSpec {
             Layout::TwelveByOne => (leads.len().max(1), 1, None),
             Layout::Strip(lead) => (0, 1, find(lead)),
         };
+        // A recording with fewer leads than the grid has cells (e.g. 3 ambulatory leads in 3x4+1) uses only the
+        // columns it fills, each widened, so no column is left empty.
+        let n_cols = if n_rows > 0 { n_cols.min(leads.len().div_ceil(n_rows)).max(1) } else { n_cols };
         let col_w = total_w / n_cols as f64;
         let col_s = self.seconds / n_cols as f64;
         let mut rows = Vec::new();
@@ -610,11 +613,30 @@ mod tests {
     }
 
     #[test]
+    fn few_leads_fill_whole_columns() {
+        let mut rec = twelve_lead();
+        rec.leads.truncate(3); // I, II, III
+        let page = PageSpec::default().page(&rec);
+        assert_eq!(page.rows.len(), 4);
+        for row in &page.rows {
+            assert_eq!(row.cells.len(), 1);
+            assert!((row.cells[0].width_mm - 250.0).abs() < 1e-9);
+            assert!((row.cells[0].t1_s - 10.0).abs() < 1e-12);
+        }
+        let five = { let mut r = twelve_lead(); r.leads.truncate(5); r };
+        let page = PageSpec::default().page(&five);
+        assert_eq!(page.rows[0].cells.len(), 2);
+        assert!((page.rows[0].cells[1].t0_s - 5.0).abs() < 1e-12);
+    }
+
+    #[test]
     fn cabrera_inverts_avr() {
         let rec = twelve_lead();
         let spec = PageSpec { order: LeadOrder::Cabrera, layout: Layout::SixByTwo, ..PageSpec::default() };
         let page = spec.page(&rec);
         let first_col: Vec<_> = page.rows.iter().map(|r| r.cells[0].label.clone()).collect();
+        // Source: the Cabrera sequence orders the limb leads by frontal angle, aVL −30°, I 0°, −aVR +30°,
+        // II +60°, aVF +90°, III +120° (hexaxial angles in references.md §5). From memory: the sequence itself.
         assert_eq!(first_col, ["aVL", "I", "\u{2212}aVR", "II", "aVF", "III"]);
         assert!(page.rows[2].cells[0].inverted);
         let row = &page.rows[2];
