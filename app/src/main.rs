@@ -43,7 +43,10 @@ enum Command {
 }
 
 fn main() -> ExitCode {
-    let cli = Cli::parse();
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => return usage_error(&e),
+    };
     let result = match cli.command {
         None => gui::run(cli.file),
         Some(Command::Info(a)) => cli::info::run(&a),
@@ -62,4 +65,27 @@ fn main() -> ExitCode {
             ExitCode::from(2)
         }
     }
+}
+
+/// Help and version go to stdout as clap writes them (exit 0); a usage error is one line on stderr (exit 2).
+fn usage_error(e: &clap::Error) -> ExitCode {
+    if !e.use_stderr() {
+        // --help, --version: print as usual.
+        let _ = e.print();
+        return ExitCode::SUCCESS;
+    }
+    if e.kind() == clap::error::ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand {
+        // `isoline review` alone: the subcommand's help is the useful answer.
+        let _ = e.print();
+        return ExitCode::from(2);
+    }
+    // clap's first paragraph, on one line (a missing argument's name follows on the next line).
+    let rendered = e.render().to_string();
+    let first: Vec<&str> =
+        rendered.lines().map(str::trim).skip_while(|l| l.is_empty()).take_while(|l| !l.is_empty()).collect();
+    let first = first.join(" ");
+    let first = first.strip_prefix("error:").map_or(first.as_str(), str::trim_start);
+    let first = if first.is_empty() { "invalid arguments" } else { first };
+    eprintln!("isoline: {first} (see isoline --help)");
+    ExitCode::from(2)
 }

@@ -76,6 +76,38 @@ fn batch_lists_bad_files_and_measures_the_rest() -> Result<(), Box<dyn std::erro
 }
 
 #[test]
+fn folder_walk_skips_csv_tables_that_are_not_recordings() -> Result<(), Box<dyn std::error::Error>> {
+    let dir = tempfile::tempdir()?;
+    copy_record("ludb/2.hea", dir.path())?;
+    // LUDB ships per-record and folder-wide tables next to the records; they are not recordings.
+    std::fs::copy(data("ludb/2.global.csv"), dir.path().join("2.global.csv"))?;
+    std::fs::write(dir.path().join("labels.csv"), "record,rhythm\n2,sinus\n")?;
+    let out_csv = dir.path().join("table.out");
+    let out = isoline().args(["measure", "--format", "csv", "--out"]).arg(&out_csv).arg(dir.path()).output()?;
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    let csv = std::fs::read_to_string(&out_csv)?;
+    assert_eq!(csv.lines().count(), 2, "{csv}");
+    Ok(())
+}
+
+#[test]
+fn empty_folder_is_exit_code_2_with_one_line_and_no_output() -> Result<(), Box<dyn std::error::Error>> {
+    let dir = tempfile::tempdir()?;
+    let empty = dir.path().join("empty");
+    std::fs::create_dir(&empty)?;
+    let out_csv = dir.path().join("table.csv");
+    let out = isoline().args(["measure", "--format", "csv", "--out"]).arg(&out_csv).arg(&empty).output()?;
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    let expected = format!("{}: no recordings found (.hea, .edf, .csv with a time_s column)", empty.display());
+    assert!(stderr.contains(&expected), "{stderr}");
+    assert!(!out_csv.exists());
+    assert!(out.stdout.is_empty());
+    Ok(())
+}
+
+#[test]
 fn missing_file_is_exit_code_2_with_its_name() -> Result<(), Box<dyn std::error::Error>> {
     let out = isoline().args(["measure", "--format", "json", "no-such-record.hea"]).output()?;
     assert_eq!(out.status.code(), Some(2));

@@ -67,3 +67,17 @@ fn synth_bad_input_exits_2_with_one_line() -> TestResult {
     assert!(!dir.path().join("x.edf").exists());
     Ok(())
 }
+
+#[test]
+fn synth_too_many_samples_names_the_limit_as_a_number() -> TestResult {
+    let dir = tempfile::tempdir()?;
+    let out_edf = s(&dir.path().join("x.edf"));
+    let args = ["synth", "--scenario", "normal", "--out", &out_edf, "--seconds", "600000", "--rate", "20000"];
+    let out = isoline(&args)?;
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(err.trim().lines().count(), 1, "{err}");
+    assert!(err.contains("at most 1500000000 samples"), "{err}");
+    assert!(!err.contains("MAX_TOTAL_SAMPLES"), "{err}");
+    Ok(())
+}

@@ -150,3 +150,33 @@ fn an_unreadable_review_shows_an_error() {
     assert!(h.state().ui_state.error.as_deref().is_some_and(|e| e.contains("review")), "{:?}", h.state().ui_state.error);
     assert_eq!(std::fs::read(&review_path).unwrap(), before, "the file is never modified");
 }
+
+#[test]
+fn a_saved_review_carries_qtc_from_the_reviewed_qt_and_rr() {
+    let dir = tempfile::tempdir().unwrap();
+    let rec = copy_record(dir.path());
+    let mut h = open(&rec);
+    // A Beat lens drag (T end later) changes QT; a typed RR changes the rate.
+    work_and_save(&mut h);
+    h.state_mut().run_cmd(Command::SetReviewed("rr_ms".into(), Some(800.0)));
+    settle(&mut h);
+    h.state_mut().run_cmd(Command::SaveReview);
+    settle(&mut h);
+    let review = isoline_core::review::load(&dir.path().join("s0010_re.review.ron")).unwrap();
+    let qt = review.measurement("qt_ms").unwrap();
+    assert!(qt.reviewed_value.is_some(), "{qt:?}");
+    // Source: references.md §3 — Bazett, Heart 1920;7:353-70; Fridericia, Acta Med Scand 1920;53:469-86.
+    let q = isoline_core::measure::qtc::qtc(qt.reviewed_value.unwrap(), 800.0);
+    for (key, want) in [("qtc_bazett_ms", q.bazett), ("qtc_fridericia_ms", q.fridericia)] {
+        let m = review.measurement(key).unwrap();
+        assert!(m.reviewed_value.is_some_and(|v| (v - want).abs() < 1e-9), "{m:?} vs {want}");
+        assert_eq!(m.origin, isoline_core::review::Origin::Moved);
+    }
+    // The Ledger shows the same QTc as the saved review, before and after reopening.
+    let ledger = |h: &Harness<'static, IsolineApp>| {
+        h.state().ledger_rows().into_iter().find(|r| r.key == "qtc_bazett_ms").unwrap().reviewed
+    };
+    assert!(ledger(&h).is_some_and(|v| (v - q.bazett).abs() < 1e-9));
+    let h2 = open(&rec);
+    assert!(ledger(&h2).is_some_and(|v| (v - q.bazett).abs() < 1e-9));
+}

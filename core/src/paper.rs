@@ -398,7 +398,7 @@ pub fn ordered_leads(recording: &Recording, order: LeadOrder) -> Vec<(usize, Str
 
 impl PageSpec {
     /// Lays out the page for a recording. Leads missing from the recording leave their cells out; a rhythm or
-    /// strip lead that is missing falls back to the first lead in page order.
+    /// strip lead that is missing falls back to the first lead in file order (`recording.leads[0]`), shown upright.
     #[must_use]
     pub fn page(&self, recording: &Recording) -> Page {
         let paper = self.paper;
@@ -407,7 +407,10 @@ impl PageSpec {
         let trace_x = margins::LEFT_MM + calibration_space_mm(&paper);
         let total_w = paper.mm_from_seconds(self.seconds);
         let find = |name: &LeadName| -> Option<(usize, String, bool)> {
-            recording.lead_index(name).map(|i| (i, name.to_string(), false)).or_else(|| leads.first().cloned())
+            recording
+                .lead_index(name)
+                .map(|i| (i, name.to_string(), false))
+                .or_else(|| recording.leads.first().map(|l| (0, l.name.to_string(), false)))
         };
         // grid[r][c] = entry index into `leads`, for column-major layouts.
         let (n_rows, n_cols, rhythm): (usize, usize, Option<(usize, String, bool)>) = match &self.layout {
@@ -416,6 +419,9 @@ impl PageSpec {
             Layout::TwelveByOne => (leads.len().max(1), 1, None),
             Layout::Strip(lead) => (0, 1, find(lead)),
         };
+        // A recording with fewer leads than the grid has cells (e.g. 3 ambulatory leads in 3x4+1) uses only the
+        // columns it fills, each widened, so no column is left empty.
+        let n_cols = if n_rows > 0 { n_cols.min(leads.len().div_ceil(n_rows)).max(1) } else { n_cols };
         let col_w = total_w / n_cols as f64;
         let col_s = self.seconds / n_cols as f64;
         let mut rows = Vec::new();
@@ -590,11 +596,47 @@ mod tests {
     }
 
     #[test]
+    fn missing_rhythm_lead_falls_back_to_first_lead_in_file_order() {
+        // A two-lead Holter-style record (MLII, V5): page order puts V5 first, file order MLII.
+        let rec = Recording {
+            leads: ["MLII", "V5"].iter().map(|n| Lead { name: LeadName::parse(n), samples: vec![0.0; 5000] }).collect(),
+            ..twelve_lead()
+        };
+        assert_eq!(ordered_leads(&rec, LeadOrder::default())[0].1, "V5");
+        let page = PageSpec::default().page(&rec);
+        let rhythm = &page.rows.last().map(|r| r.cells.clone()).unwrap_or_default();
+        assert_eq!(rhythm.len(), 1);
+        assert_eq!((rhythm[0].lead, rhythm[0].label.as_str()), (0, "MLII"));
+        let strip = PageSpec { layout: Layout::Strip(StandardLead::II.into()), ..PageSpec::default() }.page(&rec);
+        assert_eq!(strip.rows.len(), 1);
+        assert_eq!((strip.rows[0].cells[0].lead, strip.rows[0].cells[0].label.as_str()), (0, "MLII"));
+    }
+
+    #[test]
+    fn few_leads_fill_whole_columns() {
+        let mut rec = twelve_lead();
+        rec.leads.truncate(3); // I, II, III
+        let page = PageSpec::default().page(&rec);
+        assert_eq!(page.rows.len(), 4);
+        for row in &page.rows {
+            assert_eq!(row.cells.len(), 1);
+            assert!((row.cells[0].width_mm - 250.0).abs() < 1e-9);
+            assert!((row.cells[0].t1_s - 10.0).abs() < 1e-12);
+        }
+        let five = { let mut r = twelve_lead(); r.leads.truncate(5); r };
+        let page = PageSpec::default().page(&five);
+        assert_eq!(page.rows[0].cells.len(), 2);
+        assert!((page.rows[0].cells[1].t0_s - 5.0).abs() < 1e-12);
+    }
+
+    #[test]
     fn cabrera_inverts_avr() {
         let rec = twelve_lead();
         let spec = PageSpec { order: LeadOrder::Cabrera, layout: Layout::SixByTwo, ..PageSpec::default() };
         let page = spec.page(&rec);
         let first_col: Vec<_> = page.rows.iter().map(|r| r.cells[0].label.clone()).collect();
+        // Source: the Cabrera sequence orders the limb leads by frontal angle, aVL −30°, I 0°, −aVR +30°,
+        // II +60°, aVF +90°, III +120° (hexaxial angles in references.md §5). From memory: the sequence itself.
         assert_eq!(first_col, ["aVL", "I", "\u{2212}aVR", "II", "aVF", "III"]);
         assert!(page.rows[2].cells[0].inverted);
         let row = &page.rows[2];

@@ -200,4 +200,8 @@ fn ludb_full_analysis_axis_and_pr() {
     // Floors of what the pipeline measures today (see the report); the issue's goals are 85 % axis agreement,
     // no PR in ≥ 80 % of AF records and a PR in ≥ 95 % of sinus records.
     assert!(axis_ok * 100 >= axis_n * 60, "axis category agrees on {axis_ok}/{axis_n}");
+    // Source: LUDB rhythm diagnoses (Kalyakulina et al., IEEE Access 2020): sinus records have a P wave to
+    // measure; atrial fibrillation records have none. Goals from the measurement-engine issue.
+    assert!(sinus_n >= 40 && sinus_pr * 100 >= sinus_n * 95, "sinus records with a PR: {sinus_pr}/{sinus_n}");
+    assert!(af_n >= 1 && af_no_pr * 100 >= af_n * 50, "AF records without a PR: {af_no_pr}/{af_n}");
 }

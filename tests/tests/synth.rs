@@ -320,7 +320,7 @@ fn truth_json_has_the_documented_keys() {
 /// A full day at 250 Hz, 3 leads. Run with `cargo test --release -p isoline-tests --test synth -- --ignored`.
 #[test]
 #[ignore = "heavy: generates 24 h of signal"]
-fn holter_day_is_fast_and_frugal() {
+fn holter_day_fits_in_memory_and_reports_its_time() {
     let spec = Scenario::Holter.spec();
     let start = std::time::Instant::now();
     let s = make(&spec);

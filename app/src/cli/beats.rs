@@ -50,6 +50,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let mut out = String::new();
     match args.format {
         BeatsFormat::Csv => {
+            // The table stays plain CSV for other programs; the caution goes beside it, on stderr.
+            eprintln!("isoline: {}", isoline_core::CAUTION);
             out.push_str("sample,time_s,kind,rr_ms,p_on,p_end,qrs_on,qrs_end,t_end\n");
             let opt = |v: Option<usize>| v.map_or(String::new(), |x| x.to_string());
             for (b, rr) in beats.iter().zip(&rr) {

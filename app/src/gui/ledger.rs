@@ -93,7 +93,15 @@ fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
         }
     }
     let get = |rev: &[MeasuredValue], key: &str| rev.iter().find(|v| v.key == key).and_then(|v| v.value);
-    let (qt, rr) = (get(rev, "qt_ms"), get(rev, "rr_ms"));
+    let (qt, mut rr) = (get(rev, "qt_ms"), get(rev, "rr_ms"));
+    // A typed heart rate (and no typed RR) gives the RR for QTc, as the saved review does.
+    // Source: references.md §3 (RR = 60 / HR).
+    if !doc.reviewed.contains_key("rr_ms")
+        && let Some(&hr) = doc.reviewed.get("heart_rate_bpm")
+        && hr > 0.0
+    {
+        rr = Some(60_000.0 / hr);
+    }
     if doc.reviewed.contains_key("rr_ms")
         && let Some(v) = rev.iter_mut().find(|v| v.key == "heart_rate_bpm")
     {
@@ -101,7 +109,7 @@ fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
         v.value = rr.filter(|&r| r > 0.0).map(|r| 60_000.0 / r);
         v.note = v.value.and_then(ranges::heart_rate);
     }
-    if doc.reviewed.contains_key("qt_ms") || doc.reviewed.contains_key("rr_ms") {
+    if ["qt_ms", "rr_ms", "heart_rate_bpm"].iter().any(|k| doc.reviewed.contains_key(*k)) {
         let q = measure::qtc_checked(qt, rr);
         for (key, name) in QTC_KEYS {
             if let Some(v) = rev.iter_mut().find(|v| v.key == key) {

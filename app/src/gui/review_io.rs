@@ -149,8 +149,15 @@ pub fn document_from_review(review: &Review, loaded: &Loaded) -> Document {
         doc.marks.insert(m.kind, m.sample);
     }
     let rows = super::ledger::rows(loaded, &doc);
+    // QTc values recomputed from a reviewed QT, RR or rate are derived, not typed: the Ledger recomputes them.
+    let qtc_derived = ["qt_ms", "rr_ms", "heart_rate_bpm"]
+        .iter()
+        .any(|k| review.measurement(k).is_some_and(|m| m.reviewed_value.is_some()));
     for m in &review.measurements {
         let Some(v) = m.reviewed_value else { continue };
+        if qtc_derived && m.key.starts_with("qtc_") {
+            continue;
+        }
         let from_marks = rows.iter().find(|r| r.key == m.key).and_then(|r| r.reviewed);
         if from_marks.is_none_or(|x| (x - v).abs() > 1e-6) {
             doc.reviewed.insert(m.key.clone(), v);

@@ -124,7 +124,7 @@ fn read_inner(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>, size_h
         if (rows as u64 + 1) * lead_names.len() as u64 > MAX_TOTAL_SAMPLES {
             return Err(err(line_no, format!("more than {MAX_TOTAL_SAMPLES} samples")));
         }
-        let bad = |c: usize| err(line_no, format!("column {} ('{}'): '{}' is not a number", c + 1, names[c], row[c]));
+        let bad = |c: usize| err(line_no, format!("column {} ('{}'): '{}' is not a number", c + 1, crate::io::printable(&names[c]), crate::io::printable(row[c])));
         if let Some(tc) = time_col {
             let t = value(row[tc]).ok().flatten().ok_or_else(|| bad(tc))?;
             match (t_first, dt0) {

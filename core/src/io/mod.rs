@@ -130,9 +130,21 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
         Some("edf") | Some("bdf") => edf::read(path),
         Some("csv") | Some("txt") => csv::read(path, options.csv_rate_hz),
         _ if wfdb::header_path(path).is_some() => wfdb::read_record(path),
+        // Neither the file nor a WFDB header of that name: say so rather than guess at its type.
+        _ if !path.exists() => Err(ReadError::io(
+            path,
+            std::io::Error::new(std::io::ErrorKind::NotFound, "file does not exist (nor a .hea record of that name)"),
+        )),
         Some("dat") => Err(ReadError::unsupported(path, "open the record's .hea header, not its .dat signal file")),
         _ => Err(ReadError::unsupported(path, "unknown file type (expected .hea, .edf or .csv)")),
     }
+}
+
+/// Text quoted from a file, made safe to print in a message: printable ASCII stays as it is, anything else
+/// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`).
+#[must_use]
+pub fn printable(s: &str) -> String {
+    s.chars().map(|c| if matches!(c, ' '..='~') { c.to_string() } else { c.escape_default().to_string() }).collect()
 }
 
 /// Reads a whole file, mapping the error to [`ReadError::Io`].
@@ -155,4 +167,51 @@ pub fn write_atomic(
 /// Length of a file in bytes.
 pub(crate) fn file_len(path: &Path) -> Result<u64, ReadError> {
     std::fs::metadata(path).map(|m| m.len()).map_err(|e| ReadError::io(path, e))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn missing_path_without_extension_is_not_found() -> std::io::Result<()> {
+        let dir = tempfile::tempdir()?;
+        let path = dir.path().join("nosuchrecord");
+        let err = open(&path, &OpenOptions::default()).err();
+        assert!(
+            matches!(&err, Some(ReadError::Io { path: p, cause }) if p == &path && cause.kind() == std::io::ErrorKind::NotFound),
+            "{err:?}"
+        );
+        let msg = err.map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.starts_with(&path.display().to_string()) && msg.contains("does not exist"), "{msg}");
+        // An existing file of an unknown type is still named as such.
+        let other = dir.path().join("notes.xyz");
+        std::fs::write(&other, "x")?;
+        let msg = open(&other, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.contains("unknown file type"), "{msg}");
+        Ok(())
+    }
+
+    #[test]
+    fn quoted_header_bytes_are_printable_ascii() -> std::io::Result<()> {
+        assert_eq!(printable("ECG II"), "ECG II");
+        assert_eq!(printable("\"\u{d8}\n\u{7}"), "\"\\u{d8}\\n\\u{7}");
+        // A file of random bytes named .edf: the version field quoted in the message starts with `"ØÍÃA`.
+        let dir = tempfile::tempdir()?;
+        let path = dir.path().join("random.edf");
+        let mut bytes = vec![0x22, 0xD8, 0xCD, 0xC3, 0x41, 0x07, 0x00, 0x1B];
+        let mut x: u32 = 0x2545_F491;
+        for _ in 0..1024 {
+            x ^= x << 13;
+            x ^= x >> 17;
+            x ^= x << 5;
+            bytes.push(x.to_le_bytes()[0]);
+        }
+        std::fs::write(&path, &bytes)?;
+        let msg = open(&path, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.contains("version"), "{msg}");
+        assert!(msg.chars().all(|c| matches!(c, ' '..='~')), "{msg}");
+        assert!(msg.contains("\\u{d8}"), "{msg}");
+        Ok(())
+    }
 }

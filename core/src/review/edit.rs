@@ -12,7 +12,7 @@ impl Review {
         if self.is_final() { Err(ReviewError::Final) } else { Ok(()) }
     }
 
-    fn record(&mut self, reader: &str, what: String, old: Option<String>, new: Option<String>) {
+    pub(super) fn record(&mut self, reader: &str, what: String, old: Option<String>, new: Option<String>) {
         let at = Timestamp::now();
         self.modified = at;
         self.history.push(Change { at, by: reader.to_owned(), what, old, new });
@@ -95,6 +95,9 @@ impl Review {
             old.map(|v| fmt_value(v, &unit)),
             Some(fmt_value(value, &unit)),
         );
+        if super::derived::QTC_INPUT_KEYS.contains(&key) {
+            self.recompute_qtc(reader);
+        }
         Ok(())
     }
 
@@ -125,6 +128,9 @@ impl Review {
             old.map(|v| fmt_value(v, &unit)),
             new.map(|v| fmt_value(v, &unit)),
         );
+        if super::derived::QTC_INPUT_KEYS.contains(&key) {
+            self.recompute_qtc(reader);
+        }
         Ok(())
     }
 

@@ -167,12 +167,17 @@ impl SynthSpec {
             return Err(SynthError::OutOfRange {
                 name: "seconds × rate_hz × leads",
                 value: total,
-                range: "at most io::MAX_TOTAL_SAMPLES samples in all",
+                range: MAX_TOTAL_TEXT,
             });
         }
         Ok(())
     }
 }
+
+/// The limit on samples in all, as shown to users (the number, not the constant's name).
+const MAX_TOTAL_TEXT: &str = "at most 1500000000 samples in all";
+// The text above must state `io::MAX_TOTAL_SAMPLES`.
+const _: () = assert!(crate::io::MAX_TOTAL_SAMPLES == 1_500_000_000);
 
 /// A synthetic recording and its truth.
 #[derive(Debug, Clone)]

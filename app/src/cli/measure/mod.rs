@@ -91,6 +91,13 @@ fn write_atomically(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
 /// Runs the command. Exit code 2 when any file failed (after measuring and writing all the others).
 pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let found = walk::find_recordings(&args.paths);
+    if found.files.is_empty() {
+        // Nothing to measure (e.g. an empty folder): say why, one line per path, and write no table.
+        for (path, e) in &found.errors {
+            eprintln!("isoline: {}: {e}", path.display());
+        }
+        return Ok(ExitCode::from(2));
+    }
     let many = found.files.len() > 1;
     let bar = if many { ProgressBar::new(found.files.len() as u64) } else { ProgressBar::hidden() };
     if let Ok(style) = ProgressStyle::with_template("{bar:30} {pos}/{len} recordings measured, {elapsed} {msg}") {

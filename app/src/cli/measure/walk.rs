@@ -2,8 +2,15 @@
 
 use std::path::{Path, PathBuf};
 
-/// File extensions treated as recordings when walking a folder (compared case-insensitively).
-pub const RECORDING_EXTENSIONS: [&str; 3] = ["hea", "edf", "csv"];
+/// File extensions always treated as recordings when walking a folder (compared case-insensitively). A `.csv`
+/// is taken only when it looks like a recording (see [`csv_looks_like_recording`]).
+pub const RECORDING_EXTENSIONS: [&str; 2] = ["hea", "edf"];
+
+/// Bytes read from the start of a `.csv` to find its header row.
+const CSV_SNIFF_BYTES: u64 = 64 * 1024;
+
+/// Why a folder given on the command line yielded nothing.
+pub const NO_RECORDINGS: &str = "no recordings found (.hea, .edf, .csv with a time_s column)";
 
 /// Deepest folder nesting walked.
 const MAX_DEPTH: usize = 32;
@@ -17,10 +24,31 @@ pub struct Found {
     pub errors: Vec<(PathBuf, String)>,
 }
 
+fn has_extension(path: &Path, exts: &[&str]) -> bool {
+    path.extension().and_then(|e| e.to_str()).is_some_and(|e| exts.iter().any(|r| r.eq_ignore_ascii_case(e)))
+}
+
+/// True when the CSV text's header row (the first line that is neither blank nor a `#` comment) has `time_s` as
+/// its first column, as Isoline writes recordings; other tables (labels, summaries) are not recordings.
+fn csv_text_looks_like_recording(text: &str) -> bool {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    text.lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .and_then(|header| header.split(',').next())
+        .is_some_and(|first| first.trim().trim_matches('"').trim().eq_ignore_ascii_case("time_s"))
+}
+
+/// Reads the start of a `.csv` file and tells whether it looks like a recording; unreadable files do not.
+fn csv_looks_like_recording(path: &Path) -> bool {
+    use std::io::Read as _;
+    let mut head = Vec::new();
+    let read = std::fs::File::open(path).and_then(|f| f.take(CSV_SNIFF_BYTES).read_to_end(&mut head));
+    read.is_ok() && csv_text_looks_like_recording(&String::from_utf8_lossy(&head))
+}
+
 fn is_recording(path: &Path) -> bool {
-    path.extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| RECORDING_EXTENSIONS.iter().any(|r| r.eq_ignore_ascii_case(e)))
+    has_extension(path, &RECORDING_EXTENSIONS) || (has_extension(path, &["csv"]) && csv_looks_like_recording(path))
 }
 
 fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
@@ -53,14 +81,19 @@ fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
     }
 }
 
-/// Expands the command-line paths: a file is taken as given; a folder is walked for `.hea`, `.edf` and `.csv`
-/// files (sorted by path); a path that does not exist is an error.
+/// Expands the command-line paths: a file is taken as given (whatever its extension); a folder is walked for
+/// `.hea` and `.edf` files and `.csv` files whose header row starts with `time_s` (sorted by path); a path that
+/// does not exist is an error.
 #[must_use]
 pub fn find_recordings(inputs: &[PathBuf]) -> Found {
     let mut found = Found::default();
     for input in inputs {
         if input.is_dir() {
+            let (files_before, errors_before) = (found.files.len(), found.errors.len());
             walk_dir(input, 0, &mut found);
+            if found.files.len() == files_before && found.errors.len() == errors_before {
+                found.errors.push((input.clone(), NO_RECORDINGS.to_string()));
+            }
         } else {
             // Files, and names of WFDB records without extension: the reader decides.
             found.files.push(input.clone());
@@ -81,12 +114,37 @@ mod tests {
         for name in ["a.hea", "a.dat", "notes.txt", "b.EDF"] {
             std::fs::write(dir.path().join(name), b"x")?;
         }
-        std::fs::write(sub.join("c.csv"), b"x")?;
+        std::fs::write(sub.join("c.csv"), "# ward B demo\ntime_s,I,II\n0.000000,0.1,0.2\n")?;
+        // Tables that are not recordings (as in the LUDB folder) are skipped when walking.
+        std::fs::write(dir.path().join("labels.csv"), "record,rhythm\n1,sinus\n")?;
+        std::fs::write(sub.join("1.global.csv"), "lead,onset\nI,12\n")?;
         let found = find_recordings(&[dir.path().to_path_buf()]);
         let names: Vec<String> =
             found.files.iter().filter_map(|p| p.file_name()).map(|n| n.to_string_lossy().into_owned()).collect();
         assert_eq!(names, ["a.hea", "b.EDF", "c.csv"]);
         assert!(found.errors.is_empty());
+        // A file named on the command line is always attempted, whatever it holds.
+        let labels = dir.path().join("labels.csv");
+        assert_eq!(find_recordings(std::slice::from_ref(&labels)).files, [labels]);
         Ok(())
+    }
+
+    #[test]
+    fn empty_folder_is_an_error() -> std::io::Result<()> {
+        let dir = tempfile::tempdir()?;
+        std::fs::write(dir.path().join("labels.csv"), "record,rhythm\n")?;
+        let found = find_recordings(&[dir.path().to_path_buf()]);
+        assert!(found.files.is_empty());
+        assert_eq!(found.errors, [(dir.path().to_path_buf(), NO_RECORDINGS.to_string())]);
+        Ok(())
+    }
+
+    #[test]
+    fn csv_header_sniffing() {
+        assert!(csv_text_looks_like_recording("time_s,I\n0,1\n"));
+        assert!(csv_text_looks_like_recording("\u{feff}\n# comment\n \"TIME_S\" , II\n"));
+        assert!(!csv_text_looks_like_recording("I,II,time_s\n1,2,0\n"));
+        assert!(!csv_text_looks_like_recording("record,rhythm\n"));
+        assert!(!csv_text_looks_like_recording(""));
     }
 }

@@ -77,7 +77,7 @@ fn text(bytes: &[u8]) -> String {
 }
 
 fn bad(path: &Path, at: usize, field: &str, raw: &[u8], why: &str) -> ReadError {
-    ReadError::invalid(path, format!("byte {at} ({field}): '{}' {why}", text(raw)))
+    ReadError::invalid(path, format!("byte {at} ({field}): '{}' {why}", crate::io::printable(&text(raw))))
 }
 
 fn int_field(path: &Path, bytes: &[u8], at: usize, len: usize, field: &str) -> Result<i64, ReadError> {

@@ -65,13 +65,13 @@ fn choose_leads(path: &Path, signals: &[Signal], duration_s: f64, warnings: &mut
             continue;
         }
         let why = if uv_per_unit(&s.physical_dimension).is_none() {
-            format!("physical dimension '{}' is not a voltage", s.physical_dimension)
+            format!("physical dimension '{}' is not a voltage", crate::io::printable(&s.physical_dimension))
         } else if !pool.contains(&i) {
             "not an ECG signal".to_string()
         } else {
             format!("sampled at {} Hz, not the leads' {} Hz", s.samples_per_record as f64 / duration_s, max_spr as f64 / duration_s)
         };
-        warnings.push(format!("{}: signal {} ('{}') skipped: {why}", path.display(), i + 1, s.label));
+        warnings.push(format!("{}: signal {} ('{}') skipped: {why}", path.display(), i + 1, crate::io::printable(&s.label)));
     }
     Ok(leads)
 }

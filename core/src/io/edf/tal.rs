@@ -64,10 +64,10 @@ pub fn parse_record(bytes: &[u8], base: u64) -> Result<RecordTals, String> {
             None => (time, None),
         };
         let onset_s = parse_time(onset_raw, true)
-            .ok_or_else(|| format!("byte {here}: TAL onset '{}' is not +seconds", String::from_utf8_lossy(onset_raw)))?;
+            .ok_or_else(|| format!("byte {here}: TAL onset '{}' is not +seconds", onset_raw.escape_ascii()))?;
         let duration_s = match dur_raw {
             Some(d) => Some(parse_time(d, false).ok_or_else(|| {
-                format!("byte {here}: TAL duration '{}' is not seconds", String::from_utf8_lossy(d))
+                format!("byte {here}: TAL duration '{}' is not seconds", d.escape_ascii())
             })?),
             None => None,
         };

@@ -102,14 +102,14 @@ pub fn parse_header(path: &Path, text: &str) -> Result<Header, ReadError> {
 }
 
 fn field_err(path: &Path, line: usize, field: &str, value: &str) -> ReadError {
-    ReadError::invalid(path, format!("line {line}: bad {field} '{value}'"))
+    ReadError::invalid(path, format!("line {line}: bad {field} '{}'", crate::io::printable(value)))
 }
 
 fn parse_record_line(path: &Path, no: usize, line: &str) -> Result<RecordLine, ReadError> {
     let f: Vec<&str> = line.split_whitespace().collect();
     let name_field = f.first().copied().unwrap_or_default();
     if name_field.contains('/') {
-        return Err(ReadError::unsupported(path, format!("line {no}: multi-segment record '{name_field}'")));
+        return Err(ReadError::unsupported(path, format!("line {no}: multi-segment record '{}'", crate::io::printable(name_field))));
     }
     let n_signals = f
         .get(1)
@@ -150,7 +150,7 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
     }
     let file = f[0].to_string();
     if file == "-" || file.contains('/') || file.contains('\\') || file.contains("..") {
-        return Err(ReadError::unsupported(path, format!("line {no}: signal file name '{file}'")));
+        return Err(ReadError::unsupported(path, format!("line {no}: signal file name '{}'", crate::io::printable(&file))));
     }
     // format[xsamp][:skew][+offset]
     let fmt_field = f[1];

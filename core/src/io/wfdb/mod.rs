@@ -64,8 +64,8 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
                 "{}: signal {} ('{}') skipped: unit '{}' is not a voltage",
                 hea.display(),
                 i + 1,
-                s.description,
-                s.units
+                crate::io::printable(&s.description),
+                crate::io::printable(&s.units)
             ));
         }
         scales.push(uv.map(|u| (u / s.gain, s.baseline)));
@@ -125,7 +125,7 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
                     "{}: signal {} ('{}'): checksum {} in the header, {sum} in the signal file",
                     plan.path.display(),
                     sig + 1,
-                    s.description,
+                    crate::io::printable(&s.description),
                     s.checksum.unwrap_or_default()
                 ));
             }
