@@ -31,9 +31,25 @@ fn json_has_the_design_keys() -> Result<(), Box<dyn std::error::Error>> {
     keys.sort_unstable();
     // Source: design.md, `measure --format json` keys.
     let mut want = vec![
-        "file", "format", "sample_rate_hz", "duration_s", "leads", "beats", "dominant_beats", "heart_rate_bpm",
-        "rr_ms", "rr_sdnn_ms", "rr_rmssd_ms", "p_duration_ms", "pr_ms", "qrs_ms", "qt_ms", "qtc_ms", "axis_deg",
-        "st_uv", "notes",
+        "file",
+        "format",
+        "sample_rate_hz",
+        "duration_s",
+        "leads",
+        "beats",
+        "dominant_beats",
+        "heart_rate_bpm",
+        "rr_ms",
+        "rr_sdnn_ms",
+        "rr_rmssd_ms",
+        "p_duration_ms",
+        "pr_ms",
+        "qrs_ms",
+        "qt_ms",
+        "qtc_ms",
+        "axis_deg",
+        "st_uv",
+        "notes",
     ];
     want.sort_unstable();
     assert_eq!(keys, want);
@@ -56,11 +72,7 @@ fn batch_lists_bad_files_and_measures_the_rest() -> Result<(), Box<dyn std::erro
     std::fs::write(dir.path().join("broken.edf"), b"this is not an EDF file")?;
     let out_csv = dir.path().join("out").join("table.csv");
     std::fs::create_dir(dir.path().join("out"))?;
-    let out = isoline()
-        .args(["measure", "--format", "csv", "--out"])
-        .arg(&out_csv)
-        .arg(dir.path())
-        .output()?;
+    let out = isoline().args(["measure", "--format", "csv", "--out"]).arg(&out_csv).arg(dir.path()).output()?;
     assert_eq!(out.status.code(), Some(2), "{}", String::from_utf8_lossy(&out.stderr));
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(stderr.contains("broken.edf"), "{stderr}");

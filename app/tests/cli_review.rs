@@ -182,7 +182,14 @@ fn review_new_writes_a_draft_with_every_automatic_value() {
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("1.review.ron") && stderr(&o).contains("--force"), "{}", stderr(&o));
     assert_eq!(std::fs::read(&path).unwrap(), before);
-    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("CD"), Path::new("--force")]);
+    let o = run(&[
+        Path::new("review"),
+        Path::new("new"),
+        &hea,
+        Path::new("--reader"),
+        Path::new("CD"),
+        Path::new("--force"),
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert_eq!(load(&path).unwrap().reader, "CD");
     assert_eq!(std::fs::read(dir.path().join("1.review.ron.bak")).unwrap(), before, "old review kept as .bak");
@@ -198,7 +205,15 @@ fn review_new_out_elsewhere_records_the_relative_path() {
     let hea = copy_ludb_1(&rec_dir);
     let out = out_dir.join("ludb-1-ab.review.ron");
     // Named by the record path without extension.
-    let o = run(&[Path::new("review"), Path::new("new"), &rec_dir.join("1"), Path::new("--reader"), Path::new("AB"), Path::new("--out"), &out]);
+    let o = run(&[
+        Path::new("review"),
+        Path::new("new"),
+        &rec_dir.join("1"),
+        Path::new("--reader"),
+        Path::new("AB"),
+        Path::new("--out"),
+        &out,
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let r = load(&out).unwrap();
     assert_eq!(r.recording.relative_path, "../recordings/1");

@@ -17,7 +17,8 @@ fn s(p: &Path) -> String {
 fn synth_writes_edf_with_truth_that_info_reads_back() -> TestResult {
     let dir = tempfile::tempdir()?;
     let (edf, truth) = (dir.path().join("demo.edf"), dir.path().join("demo.truth.json"));
-    let out = isoline(&["synth", "--scenario", "long-qt", "--out", &s(&edf), "--seconds", "12", "--truth", &s(&truth)])?;
+    let out =
+        isoline(&["synth", "--scenario", "long-qt", "--out", &s(&edf), "--seconds", "12", "--truth", &s(&truth)])?;
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let info = isoline(&["info", &s(&edf), "--format", "json"])?;
     assert!(info.status.success(), "{}", String::from_utf8_lossy(&info.stderr));
@@ -37,8 +38,19 @@ fn synth_csv_has_the_asked_leads_rate_and_length() -> TestResult {
     let dir = tempfile::tempdir()?;
     let csv = dir.path().join("amb.csv");
     let out = isoline(&[
-        "synth", "--scenario", "irregular", "--out", &s(&csv), "--seconds", "5", "--leads", "3", "--rate", "250",
-        "--seed", "7",
+        "synth",
+        "--scenario",
+        "irregular",
+        "--out",
+        &s(&csv),
+        "--seconds",
+        "5",
+        "--leads",
+        "3",
+        "--rate",
+        "250",
+        "--seed",
+        "7",
     ])?;
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let text = std::fs::read_to_string(&csv)?;

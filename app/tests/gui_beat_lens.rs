@@ -6,11 +6,11 @@
 mod gui_support;
 
 use egui::Pos2;
-use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
 use gui_support::{click_at, drag, harness, settle};
-use isoline::gui::state::Origin;
 use isoline::gui::IsolineApp;
+use isoline::gui::state::Origin;
 use isoline_core::beat::MarkKind;
 
 fn lens_point(h: &Harness<'static, IsolineApp>, sample: usize) -> Pos2 {

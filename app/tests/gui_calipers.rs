@@ -6,8 +6,8 @@
 mod gui_support;
 
 use egui::Pos2;
-use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
 use gui_support::{click_at, drag, harness, settle, sheet_point};
 use isoline::gui::IsolineApp;
 use isoline_core::caliper::CaliperKind;

@@ -5,10 +5,10 @@
 
 use std::time::Instant;
 
-use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
 use isoline::gui::IsolineApp;
-use isoline_core::synth::{generate, Scenario};
+use isoline_core::synth::{Scenario, generate};
 
 #[test]
 #[ignore = "heavy: 24-hour recording"]
@@ -30,7 +30,12 @@ fn frame_time_on_a_24_hour_recording() {
     h.state_mut().poll_analysis(true);
     println!("analysis finished after {:.1} s", t.elapsed().as_secs_f64());
     let loaded = h.state().loaded.as_ref().expect("opened");
-    println!("duration {:.0} s, {} leads, {} beats", loaded.recording.duration_s(), loaded.recording.leads.len(), loaded.beats.len());
+    println!(
+        "duration {:.0} s, {} leads, {} beats",
+        loaded.recording.duration_s(),
+        loaded.recording.leads.len(),
+        loaded.beats.len()
+    );
     h.run_steps(3);
     let mut worst = 0.0_f64;
     for (layout, speed) in [("strip", "12.5 mm/s"), ("strip", "25 mm/s"), ("12x1", "100 mm/s"), ("3x4+1", "25 mm/s")] {
@@ -48,7 +53,9 @@ fn frame_time_on_a_24_hour_recording() {
         ui_ms.sort_by(f64::total_cmp);
         let (median, max) = (ui_ms[ui_ms.len() / 2], ui_ms[ui_ms.len() - 1]);
         worst = worst.max(max);
-        println!("{layout:>6} {speed:>10}: app ui() median {median:.2} ms, max {max:.2} ms; whole egui step {step_ms:.2} ms");
+        println!(
+            "{layout:>6} {speed:>10}: app ui() median {median:.2} ms, max {max:.2} ms; whole egui step {step_ms:.2} ms"
+        );
     }
     println!("worst app ui() frame: {worst:.2} ms");
     // Design target: a GUI frame ≤ 8 ms CPU at any zoom on a 24-h recording (drawing cost follows pixels).

@@ -8,11 +8,11 @@ mod gui_support;
 
 use std::path::{Path, PathBuf};
 
-use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
 use gui_support::{data, settle};
-use isoline::gui::command::Command;
 use isoline::gui::IsolineApp;
+use isoline::gui::command::Command;
 use isoline_core::beat::MarkKind;
 use isoline_core::caliper::CaliperKind;
 use isoline_core::review::Stage;
@@ -147,7 +147,11 @@ fn an_unreadable_review_shows_an_error() {
     let before = std::fs::read(&review_path).unwrap();
     let h = open(&rec);
     assert!(h.state().loaded.is_some(), "the recording still opens");
-    assert!(h.state().ui_state.error.as_deref().is_some_and(|e| e.contains("review")), "{:?}", h.state().ui_state.error);
+    assert!(
+        h.state().ui_state.error.as_deref().is_some_and(|e| e.contains("review")),
+        "{:?}",
+        h.state().ui_state.error
+    );
     assert_eq!(std::fs::read(&review_path).unwrap(), before, "the file is never modified");
 }
 

@@ -99,8 +99,18 @@ impl LeadOrder {
         match self {
             Self::Standard => StandardLead::ALL.map(|l| (l, false)),
             Self::Cabrera => [
-                (AVL, false), (I, false), (AVR, true), (II, false), (AVF, false), (III, false),
-                (V1, false), (V2, false), (V3, false), (V4, false), (V5, false), (V6, false),
+                (AVL, false),
+                (I, false),
+                (AVR, true),
+                (II, false),
+                (AVF, false),
+                (III, false),
+                (V1, false),
+                (V2, false),
+                (V3, false),
+                (V4, false),
+                (V5, false),
+                (V6, false),
             ],
         }
     }
@@ -373,7 +383,13 @@ pub struct PageSpec {
 
 impl Default for PageSpec {
     fn default() -> Self {
-        Self { layout: Layout::default(), order: LeadOrder::Standard, paper: Paper::STANDARD, start_s: 0.0, seconds: 10.0 }
+        Self {
+            layout: Layout::default(),
+            order: LeadOrder::Standard,
+            paper: Paper::STANDARD,
+            start_s: 0.0,
+            seconds: 10.0,
+        }
     }
 }
 
@@ -459,12 +475,7 @@ impl PageSpec {
             rows.push(row(top, row_h, vec![cell]));
             top += row_h;
         }
-        Page {
-            width_mm: trace_x + total_w + margins::RIGHT_MM,
-            height_mm: top + margins::FOOTER_MM,
-            paper,
-            rows,
-        }
+        Page { width_mm: trace_x + total_w + margins::RIGHT_MM, height_mm: top + margins::FOOTER_MM, paper, rows }
     }
 }
 
@@ -531,7 +542,14 @@ impl Row {
         let w = paper.mm_from_seconds(CALIBRATION_PULSE_S);
         let top = self.baseline_mm - paper.gain_mm_per_mv;
         let y = self.baseline_mm;
-        [(x0, y), (x0 + lead_in, y), (x0 + lead_in, top), (x0 + lead_in + w, top), (x0 + lead_in + w, y), (x0 + 2.0 * lead_in + w, y)]
+        [
+            (x0, y),
+            (x0 + lead_in, y),
+            (x0 + lead_in, top),
+            (x0 + lead_in + w, top),
+            (x0 + lead_in + w, y),
+            (x0 + 2.0 * lead_in + w, y),
+        ]
     }
 }
 
@@ -623,7 +641,11 @@ mod tests {
             assert!((row.cells[0].width_mm - 250.0).abs() < 1e-9);
             assert!((row.cells[0].t1_s - 10.0).abs() < 1e-12);
         }
-        let five = { let mut r = twelve_lead(); r.leads.truncate(5); r };
+        let five = {
+            let mut r = twelve_lead();
+            r.leads.truncate(5);
+            r
+        };
         let page = PageSpec::default().page(&five);
         assert_eq!(page.rows[0].cells.len(), 2);
         assert!((page.rows[0].cells[1].t0_s - 5.0).abs() < 1e-12);

@@ -24,8 +24,18 @@ pub enum StandardLead {
 impl StandardLead {
     /// All twelve in the standard order (I, II, III, aVR, aVL, aVF, V1–V6).
     pub const ALL: [StandardLead; 12] = [
-        Self::I, Self::II, Self::III, Self::AVR, Self::AVL, Self::AVF,
-        Self::V1, Self::V2, Self::V3, Self::V4, Self::V5, Self::V6,
+        Self::I,
+        Self::II,
+        Self::III,
+        Self::AVR,
+        Self::AVL,
+        Self::AVF,
+        Self::V1,
+        Self::V2,
+        Self::V3,
+        Self::V4,
+        Self::V5,
+        Self::V6,
     ];
 
     /// The conventional spelling (`aVR`, `V1`, …).
@@ -69,10 +79,7 @@ impl StandardLead {
     pub fn parse(name: &str) -> Option<Self> {
         let t = name.trim();
         let lower = t.to_ascii_lowercase();
-        let lower = lower
-            .strip_prefix("lead")
-            .map(|s| s.trim_start_matches([' ', '_', '-']))
-            .unwrap_or(&lower);
+        let lower = lower.strip_prefix("lead").map(|s| s.trim_start_matches([' ', '_', '-'])).unwrap_or(&lower);
         Self::ALL.into_iter().find(|l| l.as_str().eq_ignore_ascii_case(lower))
     }
 }
@@ -249,8 +256,7 @@ impl Recording {
     /// III = II − I (Einthoven); aVR = −(I + II)/2, aVL = I − II/2, aVF = II − I/2 (Goldberger).
     /// Source: references.md §5 (Goldberger, Am Heart J 1942;23:483).
     pub fn derive_limb_leads(&mut self) -> Vec<StandardLead> {
-        let (Some(i), Some(ii)) = (self.standard_lead(StandardLead::I), self.standard_lead(StandardLead::II))
-        else {
+        let (Some(i), Some(ii)) = (self.standard_lead(StandardLead::I), self.standard_lead(StandardLead::II)) else {
             return Vec::new();
         };
         let (i, ii) = (i.samples.clone(), ii.samples.clone());

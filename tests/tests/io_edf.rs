@@ -7,9 +7,9 @@
 
 use std::path::Path;
 
-use isoline_core::io::{self, edf, Format};
-use isoline_core::recording::{Annotation, Lead, LeadName, Meta, Recording, StandardLead};
 use isoline_core::Hertz;
+use isoline_core::io::{self, Format, edf};
+use isoline_core::recording::{Annotation, Lead, LeadName, Meta, Recording, StandardLead};
 use isoline_tests::data;
 
 type TestResult = Result<(), Box<dyn std::error::Error>>;
@@ -24,7 +24,10 @@ fn demo(n: usize, fs: f64, annotations: Vec<Annotation>) -> Result<Recording, Bo
         leads: vec![
             Lead { name: StandardLead::I.into(), samples: (0..n).map(|k| wave(k, 812.3, 1.1)).collect() },
             Lead { name: StandardLead::AVR.into(), samples: (0..n).map(|k| wave(k, 2400.0, 0.7) - 300.0).collect() },
-            Lead { name: LeadName::Other("MLII".into()), samples: (0..n).map(|k| if k == 7 { f32::NAN } else { wave(k, 5.0, 3.0) }).collect() },
+            Lead {
+                name: LeadName::Other("MLII".into()),
+                samples: (0..n).map(|k| if k == 7 { f32::NAN } else { wave(k, 5.0, 3.0) }).collect(),
+            },
         ],
         sample_rate: Hertz::from_hz(fs)?,
         start: Some(time::macros::datetime!(2026-03-14 08:30:15)),
@@ -54,7 +57,8 @@ fn round_trip_is_exact_to_the_digital_resolution() -> TestResult {
     assert_eq!(r.sample_rate.hz(), 250.0);
     for (a, b) in rec.leads.iter().zip(&r.leads) {
         assert_eq!(a.name, b.name);
-        let (lo, hi) = a.samples.iter().filter(|v| v.is_finite()).fold((f32::MAX, f32::MIN), |(l, h), &v| (l.min(v), h.max(v)));
+        let (lo, hi) =
+            a.samples.iter().filter(|v| v.is_finite()).fold((f32::MAX, f32::MIN), |(l, h), &v| (l.min(v), h.max(v)));
         // One digital step of a 16-bit range spanning the lead's data (the written range is at most 1 % wider).
         let step = f64::from(hi - lo).max(2.0) * 1.01 / 65534.0;
         for (x, y) in a.samples.iter().zip(&b.samples) {
@@ -134,7 +138,13 @@ fn identify_keeps_patient_fields() -> TestResult {
 
 /// Builds an EDF+C file by hand: `signals` = (label, dimension, phys min, phys max, dig min, dig max, spr),
 /// then the data records as raw bytes.
-fn hand_edf(reserved: &str, n_records: &str, duration: &str, signals: &[(&str, &str, &str, &str, &str, &str, &str)], records: &[u8]) -> Vec<u8> {
+fn hand_edf(
+    reserved: &str,
+    n_records: &str,
+    duration: &str,
+    signals: &[(&str, &str, &str, &str, &str, &str, &str)],
+    records: &[u8],
+) -> Vec<u8> {
     let pad = |s: &str, w: usize| format!("{s:<w$}").into_bytes();
     let ns = signals.len();
     let mut h = Vec::new();
@@ -148,16 +158,36 @@ fn hand_edf(reserved: &str, n_records: &str, duration: &str, signals: &[(&str, &
     h.extend(pad(n_records, 8));
     h.extend(pad(duration, 8));
     h.extend(pad(&ns.to_string(), 4));
-    for s in signals { h.extend(pad(s.0, 16)); }
-    for _ in signals { h.extend(pad("", 80)); }
-    for s in signals { h.extend(pad(s.1, 8)); }
-    for s in signals { h.extend(pad(s.2, 8)); }
-    for s in signals { h.extend(pad(s.3, 8)); }
-    for s in signals { h.extend(pad(s.4, 8)); }
-    for s in signals { h.extend(pad(s.5, 8)); }
-    for _ in signals { h.extend(pad("", 80)); }
-    for s in signals { h.extend(pad(s.6, 8)); }
-    for _ in signals { h.extend(pad("", 32)); }
+    for s in signals {
+        h.extend(pad(s.0, 16));
+    }
+    for _ in signals {
+        h.extend(pad("", 80));
+    }
+    for s in signals {
+        h.extend(pad(s.1, 8));
+    }
+    for s in signals {
+        h.extend(pad(s.2, 8));
+    }
+    for s in signals {
+        h.extend(pad(s.3, 8));
+    }
+    for s in signals {
+        h.extend(pad(s.4, 8));
+    }
+    for s in signals {
+        h.extend(pad(s.5, 8));
+    }
+    for _ in signals {
+        h.extend(pad("", 80));
+    }
+    for s in signals {
+        h.extend(pad(s.6, 8));
+    }
+    for _ in signals {
+        h.extend(pad("", 32));
+    }
     h.extend(records);
     h
 }
@@ -220,7 +250,8 @@ fn hand_made_edf_plus_with_annotations() -> TestResult {
     for (rec_start, tal_at) in [(b"+0.125\x14\x14\x00".to_vec(), 0usize), (b"+0.625\x14\x14\x00".to_vec(), 1)] {
         let at = base + tal_at * (data.len() / 2) + 2 * (4 + 4 + 1);
         let mut t = rec_start.clone();
-        let rest: &[u8] = if tal_at == 0 { b"+0.375\x150.1\x14Pace\x14\x00" } else { b"+1\x14Tilt up\x14Cough\x14\x00" };
+        let rest: &[u8] =
+            if tal_at == 0 { b"+0.375\x150.1\x14Pace\x14\x00" } else { b"+1\x14Tilt up\x14Cough\x14\x00" };
         t.extend(rest);
         t.resize(40, 0);
         shifted[at..at + 40].copy_from_slice(&t);
@@ -251,7 +282,17 @@ fn bad_headers_name_field_and_offset() -> TestResult {
     let dir = tempfile::tempdir()?;
     let ecg = [("ECG I", "uV", "-100", "100", "-100", "100", "2")];
     let good = hand_edf("", "1", "1", &ecg, &i16s(&[1, 2]));
-    assert!(io::open(&{ let p = dir.path().join("good.edf"); std::fs::write(&p, &good)?; p }, &io::OpenOptions::default()).is_ok());
+    assert!(
+        io::open(
+            &{
+                let p = dir.path().join("good.edf");
+                std::fs::write(&p, &good)?;
+                p
+            },
+            &io::OpenOptions::default()
+        )
+        .is_ok()
+    );
     // EDF+D is refused as unsupported.
     let e = open_err(dir.path(), "d.edf", &hand_edf("EDF+D", "1", "1", &ecg, &i16s(&[1, 2])));
     assert!(e.contains("EDF+D") && e.contains("not supported"), "{e}");
@@ -260,9 +301,17 @@ fn bad_headers_name_field_and_offset() -> TestResult {
     let big = [("ECG I", "uV", "-100", "100", "-100", "100", "10000")];
     let e = open_err(dir.path(), "big.edf", &hand_edf("", "99999999", "1", &big, &vec![0u8; 20_000]));
     assert!(e.contains("byte 236") && e.contains("number of data records"), "{e}");
-    let e = open_err(dir.path(), "nsig.edf", &{ let mut b = good.clone(); b[252..256].copy_from_slice(b"x   "); b });
+    let e = open_err(dir.path(), "nsig.edf", &{
+        let mut b = good.clone();
+        b[252..256].copy_from_slice(b"x   ");
+        b
+    });
     assert!(e.contains("byte 252"), "{e}");
-    let e = open_err(dir.path(), "dig.edf", &hand_edf("", "1", "1", &[("ECG I", "uV", "-100", "100", "100", "-100", "2")], &i16s(&[1, 2])));
+    let e = open_err(
+        dir.path(),
+        "dig.edf",
+        &hand_edf("", "1", "1", &[("ECG I", "uV", "-100", "100", "100", "-100", "2")], &i16s(&[1, 2])),
+    );
     // Digital maximum block: 256 + 16 + 80 + 4 × 8 = byte 384 for one signal.
     assert!(e.contains("digital maximum of signal 1") && e.contains("byte 384"), "{e}");
     let e = open_err(dir.path(), "short.edf", &good[..good.len() - 1]);

@@ -4,9 +4,9 @@
 
 use std::path::{Path, PathBuf};
 
+use isoline_core::Hertz;
 use isoline_core::io::{self, csv, edf, wfdb, wfdb_annotations};
 use isoline_core::recording::{Annotation, Lead, Meta, Recording, StandardLead};
-use isoline_core::Hertz;
 use isoline_tests::data;
 use proptest::prelude::*;
 
@@ -18,7 +18,10 @@ fn small_recording() -> Result<Recording, Box<dyn std::error::Error>> {
         leads: [StandardLead::I, StandardLead::II, StandardLead::V2]
             .iter()
             .enumerate()
-            .map(|(j, &l)| Lead { name: l.into(), samples: (0..n).map(|k| ((k * (j + 3)) % 97) as f32 * 10.0 - 400.0).collect() })
+            .map(|(j, &l)| Lead {
+                name: l.into(),
+                samples: (0..n).map(|k| ((k * (j + 3)) % 97) as f32 * 10.0 - 400.0).collect(),
+            })
             .collect(),
         sample_rate: Hertz::from_hz(250.0)?,
         start: None,

@@ -8,9 +8,9 @@ use std::io::Write;
 use std::path::PathBuf;
 use std::time::Instant;
 
+use isoline_core::Hertz;
 use isoline_core::io::{self, edf};
 use isoline_core::recording::{Lead, Meta, Recording, StandardLead};
-use isoline_core::Hertz;
 
 type TestResult = Result<(), Box<dyn std::error::Error>>;
 
@@ -55,7 +55,9 @@ fn write_wfdb_212(dir: &std::path::Path) -> Result<PathBuf, Box<dyn std::error::
             let v = digital(lead, k) & 0xFFF;
             match pending.take() {
                 None => pending = Some(v),
-                Some(a) => w.write_all(&[(a & 0xFF) as u8, (((a >> 8) & 0x0F) | ((v >> 4) & 0xF0)) as u8, (v & 0xFF) as u8])?,
+                Some(a) => {
+                    w.write_all(&[(a & 0xFF) as u8, (((a >> 8) & 0x0F) | ((v >> 4) & 0xF0)) as u8, (v & 0xFF) as u8])?
+                }
             }
         }
     }

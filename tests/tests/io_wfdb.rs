@@ -120,11 +120,8 @@ fn beat_annotations_equal_the_reference() -> TestResult {
     ];
     for rec in records {
         let ann = wfdb_annotations::read(&data(&format!("{rec}.atr")))?;
-        let beats: Vec<(u64, String)> = ann
-            .iter()
-            .filter(|a| wfdb_annotations::is_beat(&a.label))
-            .map(|a| (a.sample, a.label.clone()))
-            .collect();
+        let beats: Vec<(u64, String)> =
+            ann.iter().filter(|a| wfdb_annotations::is_beat(&a.label)).map(|a| (a.sample, a.label.clone())).collect();
         let reference = beats_csv(&format!("{rec}.beats.csv"))?;
         assert_eq!(beats.len(), reference.len(), "{rec} beat count");
         assert_eq!(beats, reference, "{rec} beats");
@@ -166,7 +163,16 @@ fn q1c_boundaries_equal_the_reference() -> TestResult {
     let first: Vec<(u64, &str)> = ann.iter().take(8).map(|a| (a.sample, a.label.as_str())).collect();
     assert_eq!(
         first,
-        [(150272, "("), (150290, "p"), (150297, ")"), (150316, "("), (150330, "N"), (150334, ")"), (150394, "t"), (150419, ")")]
+        [
+            (150272, "("),
+            (150290, "p"),
+            (150297, ")"),
+            (150316, "("),
+            (150330, "N"),
+            (150334, ")"),
+            (150394, "t"),
+            (150419, ")")
+        ]
     );
     let boundary_nums: Vec<i32> = [0, 2, 3, 5, 7].iter().map(|&k| ann[k].num).collect();
     assert_eq!(boundary_nums, [0, 0, 1, 1, 2]);

@@ -50,8 +50,12 @@ fn read_global(path: &Path) -> Vec<(usize, Boundaries)> {
 }
 
 /// Median beat of every lead over the annotated beats, with the median boundary offsets (slow, obvious code).
-fn median_template(leads: &[Vec<f32>], beats: &[(usize, Boundaries)], pre: usize, post: usize)
-    -> Option<(Vec<Vec<f32>>, Boundaries)> {
+fn median_template(
+    leads: &[Vec<f32>],
+    beats: &[(usize, Boundaries)],
+    pre: usize,
+    post: usize,
+) -> Option<(Vec<Vec<f32>>, Boundaries)> {
     let n = leads.first()?.len();
     let used: Vec<&(usize, Boundaries)> =
         beats.iter().filter(|(r, b)| *r >= pre && r + post < n && b.qrs_on.is_some() && b.qrs_end.is_some()).collect();
@@ -128,8 +132,12 @@ fn agreement(basis: AxisBasis) -> (usize, usize, Vec<String>) {
         let got = axis.and_then(category);
         let ok = got == Some(want.as_str());
         agree += usize::from(ok);
-        lines.push(format!("{record:>3}: {:>7} → {:<22} diagnosed {want}{}",
-            axis.map_or("—".into(), |a| format!("{a:.0}°")), got.unwrap_or("—"), if ok { "" } else { "  ✗" }));
+        lines.push(format!(
+            "{record:>3}: {:>7} → {:<22} diagnosed {want}{}",
+            axis.map_or("—".into(), |a| format!("{a:.0}°")),
+            got.unwrap_or("—"),
+            if ok { "" } else { "  ✗" }
+        ));
     }
     (agree, total, lines)
 }
@@ -161,7 +169,12 @@ fn all_labels() -> Vec<(String, String, String, bool)> {
             let f: Vec<&str> = line.rsplitn(3, ',').collect();
             let (paced, axis, head) = (f.first()?, f.get(1)?, f.get(2)?);
             let (record, rhythm) = head.split_once(',')?;
-            Some((record.to_string(), rhythm.trim_matches('"').to_string(), axis.trim().to_string(), paced.trim() == "yes"))
+            Some((
+                record.to_string(),
+                rhythm.trim_matches('"').to_string(),
+                axis.trim().to_string(),
+                paced.trim() == "yes",
+            ))
         })
         .collect()
 }
@@ -191,9 +204,13 @@ fn ludb_full_analysis_axis_and_pr() {
             sinus_n += 1;
             sinus_pr += usize::from(m.intervals.pr_ms.is_some());
         }
-        println!("{record:>3}: axis {:>6} ({:<20}) diagnosed {axis_label:<20} PR {:>5}  {rhythm}{}",
-            axis.map_or("—".into(), |a| format!("{a:.0}°")), got.unwrap_or("—"),
-            m.intervals.pr_ms.map_or("—".into(), |p| format!("{p:.0}")), if paced { " (paced)" } else { "" });
+        println!(
+            "{record:>3}: axis {:>6} ({:<20}) diagnosed {axis_label:<20} PR {:>5}  {rhythm}{}",
+            axis.map_or("—".into(), |a| format!("{a:.0}°")),
+            got.unwrap_or("—"),
+            m.intervals.pr_ms.map_or("—".into(), |p| format!("{p:.0}")),
+            if paced { " (paced)" } else { "" }
+        );
     }
     println!("axis category {axis_ok}/{axis_n}; AF without PR {af_no_pr}/{af_n}; sinus with PR {sinus_pr}/{sinus_n}");
     assert!(axis_n >= 40);

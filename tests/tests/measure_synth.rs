@@ -56,11 +56,13 @@ fn check(outcomes: &[Outcome]) {
 /// Every scenario but the 24-hour one, without and with the `noisy` scenario's noise.
 fn specs() -> Vec<SynthSpec> {
     let noise = Scenario::Noisy.spec().noise;
-    let base: Vec<SynthSpec> = Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter).map(Scenario::spec).collect();
-    let noisy = base
-        .iter()
-        .filter(|s| s.noise.is_none())
-        .map(|s| SynthSpec { noise, scenario: format!("{}+noise", s.scenario), ..s.clone() });
+    let base: Vec<SynthSpec> =
+        Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter).map(Scenario::spec).collect();
+    let noisy = base.iter().filter(|s| s.noise.is_none()).map(|s| SynthSpec {
+        noise,
+        scenario: format!("{}+noise", s.scenario),
+        ..s.clone()
+    });
     base.clone().into_iter().chain(noisy).collect()
 }
 

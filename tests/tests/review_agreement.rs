@@ -94,9 +94,6 @@ fn three_readers_give_three_pairs() {
     let qt = &a.keys[0];
     let pairs: Vec<(String, String, f64)> =
         qt.pairs.iter().map(|p| (p.reader_a.clone(), p.reader_b.clone(), p.differences[0].difference)).collect();
-    assert_eq!(
-        pairs,
-        [("A".into(), "B".into(), 5.0), ("A".into(), "C".into(), 10.0), ("B".into(), "C".into(), 5.0)]
-    );
+    assert_eq!(pairs, [("A".into(), "B".into(), 5.0), ("A".into(), "C".into(), 10.0), ("B".into(), "C".into(), 5.0)]);
     assert!(qt.pairs.iter().all(|p| p.bland_altman.is_none()), "one recording: no limits");
 }

@@ -12,7 +12,8 @@ use isoline_tests::data;
 
 fn copy_record(dir: &Path, record: &str) -> std::path::PathBuf {
     for ext in ["hea", "dat"] {
-        fs::copy(data(&format!("{record}.{ext}")), dir.join(format!("{}.{ext}", record.rsplit('/').next().unwrap()))).unwrap();
+        fs::copy(data(&format!("{record}.{ext}")), dir.join(format!("{}.{ext}", record.rsplit('/').next().unwrap())))
+            .unwrap();
     }
     dir.join(format!("{}.hea", record.rsplit('/').next().unwrap()))
 }

@@ -89,7 +89,8 @@ fn unknown_field_is_named_with_its_line() {
 #[test]
 fn missing_field_is_named() {
     let dir = tempfile::tempdir().unwrap();
-    let text: String = current_text().lines().filter(|l| !l.starts_with("  stage:")).map(|l| format!("{l}\n")).collect();
+    let text: String =
+        current_text().lines().filter(|l| !l.starts_with("  stage:")).map(|l| format!("{l}\n")).collect();
     let p = write(dir.path(), &text);
     let (_, _, field, msg) = parse_err(&p);
     assert_eq!(field.as_deref(), Some("stage"), "{msg}");

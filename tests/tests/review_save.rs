@@ -14,8 +14,7 @@ use review_support::sample_review;
 fn later_version(r: &Review) -> Review {
     let mut b = r.clone();
     b.set_measurement("qrs_ms", 98.0, "CD").unwrap();
-    b.set_summary("Second reader: QRS re-measured on lead V5 with the time caliper; agrees otherwise.", "CD")
-        .unwrap();
+    b.set_summary("Second reader: QRS re-measured on lead V5 with the time caliper; agrees otherwise.", "CD").unwrap();
     b.set_stage(Stage::Checked, "CD").unwrap();
     b
 }

@@ -70,7 +70,8 @@ fn num(v: Option<f64>) -> String {
 #[must_use]
 pub fn table(a: &Agreement) -> String {
     let mut out = String::new();
-    let _ = writeln!(out, "Agreement between readers {} over {} recording(s)", a.readers.join(", "), a.recordings.len());
+    let _ =
+        writeln!(out, "Agreement between readers {} over {} recording(s)", a.readers.join(", "), a.recordings.len());
     let rec_name = |i: usize| {
         let r = &a.recordings[i];
         format!("{} ({})", r.file_name, &r.sha256[..r.sha256.len().min(8)])
@@ -122,7 +123,8 @@ pub fn table(a: &Agreement) -> String {
             }
         }
     }
-    let _ = writeln!(out, "\nBland–Altman: bias = mean difference, limits = bias ± 1.96·SD (Bland & Altman, Lancet 1986).");
+    let _ =
+        writeln!(out, "\nBland–Altman: bias = mean difference, limits = bias ± 1.96·SD (Bland & Altman, Lancet 1986).");
     let _ = writeln!(out, "{CAUTION}");
     out
 }

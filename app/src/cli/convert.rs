@@ -5,7 +5,7 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use anyhow::{bail, Context};
+use anyhow::{Context, bail};
 use isoline_core::io::{self, csv, edf};
 
 /// Arguments of `isoline convert`.

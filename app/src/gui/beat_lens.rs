@@ -76,7 +76,10 @@ pub fn beat_lens_ui(
     let marks = doc.effective_marks(&auto);
     ui.horizontal_wrapped(|ui| {
         ui.label(format!("Beat lens ({} beats)", rep.n_beats));
-        let current = state.lens_lead.and_then(|i| loaded.recording.leads.get(i)).map_or("all leads".to_string(), |l| l.name.to_string());
+        let current = state
+            .lens_lead
+            .and_then(|i| loaded.recording.leads.get(i))
+            .map_or("all leads".to_string(), |l| l.name.to_string());
         egui::ComboBox::new("lens_lead", "shown").selected_text(current).show_ui(ui, |ui| {
             ui.selectable_value(&mut state.lens_lead, None, "all leads");
             for (i, l) in loaded.recording.leads.iter().enumerate() {
@@ -114,7 +117,8 @@ pub fn beat_lens_ui(
     let (lo, hi) = if lo < hi { (lo, hi) } else { (-1000.0, 1000.0) };
     let y_of = |uv: f32| plot.bottom() - (uv - lo) / (hi - lo) * plot.height();
     for &i in &shown {
-        let pts: Vec<Pos2> = rep.leads[i].iter().enumerate().map(|(k, &v)| Pos2::new(geo.x_of_sample(k as f64), y_of(v))).collect();
+        let pts: Vec<Pos2> =
+            rep.leads[i].iter().enumerate().map(|(k, &v)| Pos2::new(geo.x_of_sample(k as f64), y_of(v))).collect();
         let alpha = if shown.len() > 1 { 0.55 } else { 1.0 };
         painter.add(Shape::line(pts, Stroke::new(1.2, color(pal.trace).gamma_multiply(alpha))));
     }
@@ -180,7 +184,10 @@ fn draw_grid(painter: &egui::Painter, geo: &LensGeometry, pal: &isoline_core::pa
         let x = geo.x_of_ms(ms);
         let major = (ms / 200.0).round() * 200.0 == ms;
         let c: Color32 = color(if major { pal.major } else { pal.minor });
-        painter.line_segment([Pos2::new(x, geo.rect.top()), Pos2::new(x, geo.rect.bottom())], Stroke::new(if major { 1.0 } else { 0.5 }, c));
+        painter.line_segment(
+            [Pos2::new(x, geo.rect.top()), Pos2::new(x, geo.rect.bottom())],
+            Stroke::new(if major { 1.0 } else { 0.5 }, c),
+        );
         ms += 40.0;
     }
 }

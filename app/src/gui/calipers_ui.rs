@@ -5,7 +5,7 @@ use egui::{Align2, Color32, FontId, Pos2, Rect, Response, Stroke, Vec2};
 use isoline_core::caliper::{Caliper, CaliperKind};
 
 use super::command::Command;
-use super::sheet::{color, SheetGeometry};
+use super::sheet::{SheetGeometry, color};
 use super::state::{Document, Loaded, Part, Tool, UiState, ViewSettings};
 
 /// Grab distance for legs and levels, points.
@@ -49,7 +49,11 @@ pub fn calipers_ui(ui: &egui::Ui, response: &Response, cx: &SheetContext<'_>, st
         let (x_mm, y_mm) = geo.paper_from_screen(p);
         let mut t = cell.time_from_x(&geo.page.paper, x_mm).clamp(0.0, loaded.recording.duration_s());
         if view.snap {
-            t = snap_time(loaded, t, f64::from(GRAB_POINTS) / (geo.page.paper.speed_mm_per_s * f64::from(geo.points_per_mm)));
+            t = snap_time(
+                loaded,
+                t,
+                f64::from(GRAB_POINTS) / (geo.page.paper.speed_mm_per_s * f64::from(geo.points_per_mm)),
+            );
         }
         let uv = row.uv_from_y(&geo.page.paper, y_mm, cell.inverted);
         let kind = match (c.kind, part) {
@@ -88,7 +92,9 @@ fn click(geo: &SheetGeometry, loaded: &Loaded, doc: &Document, tool: Tool, p: Po
             let span_s = loaded.median_rr_ms.map_or(1.0, |ms| ms / 1000.0);
             vec![Command::AddCaliper { kind: CaliperKind::Time { t1_s: t, t2_s: t + span_s }, lead: None }]
         }
-        Tool::VoltageCaliper => vec![Command::AddCaliper { kind: CaliperKind::Voltage { t_s: t, uv1: 0.0, uv2: uv }, lead }],
+        Tool::VoltageCaliper => {
+            vec![Command::AddCaliper { kind: CaliperKind::Voltage { t_s: t, uv1: 0.0, uv2: uv }, lead }]
+        }
         Tool::PlumbLine => vec![Command::AddCaliper { kind: CaliperKind::Plumb { t_s: t }, lead: None }],
     }
 }
@@ -137,7 +143,10 @@ pub fn hit(geo: &SheetGeometry, loaded: &Loaded, doc: &Document, p: Pos2) -> Opt
             CaliperKind::Time { t1_s, t2_s } => vec![(t1_s, Part::First), (t2_s, Part::Second)],
             CaliperKind::Plumb { t_s } => vec![(t_s, Part::First)],
             CaliperKind::Voltage { t_s, uv1, uv2 } => {
-                let on_lead = c.lead.as_deref().is_none_or(|l| loaded.recording.leads.get(cell.lead).is_some_and(|x| x.name.to_string() == l));
+                let on_lead = c
+                    .lead
+                    .as_deref()
+                    .is_none_or(|l| loaded.recording.leads.get(cell.lead).is_some_and(|x| x.name.to_string() == l));
                 if on_lead && cell.contains_time(t_s) && (geo.x_of_time(cell, t_s) - p.x).abs() < 40.0 {
                     for (uv, part) in [(uv2, Part::Second), (uv1, Part::First)] {
                         let y = geo.screen_from_paper(0.0, row.y_from_uv(&geo.page.paper, uv, cell.inverted)).y;
@@ -178,7 +187,10 @@ fn draw_caliper(
             let leg = |t: f64, part: Part| {
                 cell.contains_time(t).then(|| {
                     let x = geo.x_of_time(cell, t);
-                    painter.line_segment([Pos2::new(x, band.top()), Pos2::new(x, band.bottom())], Stroke::new(width(part), col));
+                    painter.line_segment(
+                        [Pos2::new(x, band.top()), Pos2::new(x, band.bottom())],
+                        Stroke::new(width(part), col),
+                    );
                     x
                 })
             };
@@ -206,9 +218,10 @@ fn draw_caliper(
                     }
                 }
                 CaliperKind::Voltage { t_s, uv1, uv2 } => {
-                    let on_lead = c.lead.as_deref().is_none_or(|l| {
-                        loaded.recording.leads.get(cell.lead).is_some_and(|x| x.name.to_string() == l)
-                    });
+                    let on_lead = c
+                        .lead
+                        .as_deref()
+                        .is_none_or(|l| loaded.recording.leads.get(cell.lead).is_some_and(|x| x.name.to_string() == l));
                     if !on_lead || !cell.contains_time(t_s) {
                         continue;
                     }
@@ -216,7 +229,10 @@ fn draw_caliper(
                     let y = |uv: f64| geo.screen_from_paper(0.0, row.y_from_uv(&geo.page.paper, uv, cell.inverted)).y;
                     let (y1, y2) = (y(uv1), y(uv2));
                     for (yy, part) in [(y1, Part::First), (y2, Part::Second)] {
-                        painter.line_segment([Pos2::new(x - 30.0, yy), Pos2::new(x + 30.0, yy)], Stroke::new(width(part), col));
+                        painter.line_segment(
+                            [Pos2::new(x - 30.0, yy), Pos2::new(x + 30.0, yy)],
+                            Stroke::new(width(part), col),
+                        );
                     }
                     painter.line_segment([Pos2::new(x, y1), Pos2::new(x, y2)], Stroke::new(1.0, col));
                     readout(painter, Pos2::new(x + 34.0, (y1 + y2) / 2.0), &label(c), &font, col, &pal);
@@ -232,7 +248,14 @@ pub fn label(c: &Caliper) -> String {
     format!("#{} {}{}", c.id, c.readout(), if c.locked { " (locked)" } else { "" })
 }
 
-fn readout(painter: &egui::Painter, at: Pos2, text: &str, font: &FontId, col: Color32, pal: &isoline_core::paper::Palette) {
+fn readout(
+    painter: &egui::Painter,
+    at: Pos2,
+    text: &str,
+    font: &FontId,
+    col: Color32,
+    pal: &isoline_core::paper::Palette,
+) {
     let galley = painter.layout_no_wrap(text.to_string(), font.clone(), col);
     let rect = Align2::CENTER_BOTTOM.anchor_size(at, galley.size()).expand(2.0);
     painter.rect_filled(rect, 3.0, color(pal.background).gamma_multiply(0.92));

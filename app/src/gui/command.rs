@@ -5,7 +5,7 @@ use std::path::PathBuf;
 
 use isoline_core::beat::MarkKind;
 use isoline_core::caliper::CaliperKind;
-use isoline_core::paper::{LeadOrder, Layout, Scheme};
+use isoline_core::paper::{Layout, LeadOrder, Scheme};
 
 use isoline_core::review::Stage;
 

@@ -126,7 +126,8 @@ mod tests {
 
     #[test]
     fn rate_trend_uses_dominant_pairs() {
-        let beats = [Beat::at(0, BeatKind::Dominant), Beat::at(400, BeatKind::Dominant), Beat::at(600, BeatKind::Other)];
+        let beats =
+            [Beat::at(0, BeatKind::Dominant), Beat::at(400, BeatKind::Dominant), Beat::at(600, BeatKind::Other)];
         let t = rate_trend(&beats, 500.0);
         // 400 samples at 500 Hz = 800 ms -> 75 bpm (references.md §10).
         assert_eq!(t.len(), 1);

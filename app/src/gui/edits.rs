@@ -2,9 +2,9 @@
 
 use isoline_core::caliper::CaliperKind;
 
+use super::IsolineApp;
 use super::command::Command;
 use super::state::{self, Part, Tool};
-use super::IsolineApp;
 
 impl IsolineApp {
     /// Applies a document edit; false when it does not apply (unknown caliper, locked, …).
@@ -32,8 +32,12 @@ impl IsolineApp {
                     (CaliperKind::Time { t1_s, t2_s }, Part::Second) => CaliperKind::Time { t1_s, t2_s: t2_s + dt },
                     (CaliperKind::Plumb { t_s }, _) => CaliperKind::Plumb { t_s: t_s + dt },
                     // Voltage levels step by 10 µV (0.1 mm at 10 mm/mV) per press.
-                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::First) => CaliperKind::Voltage { t_s, uv1: uv1 + 10.0 * *n as f64, uv2 },
-                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::Second) => CaliperKind::Voltage { t_s, uv1, uv2: uv2 + 10.0 * *n as f64 },
+                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::First) => {
+                        CaliperKind::Voltage { t_s, uv1: uv1 + 10.0 * *n as f64, uv2 }
+                    }
+                    (CaliperKind::Voltage { t_s, uv1, uv2 }, Part::Second) => {
+                        CaliperKind::Voltage { t_s, uv1, uv2: uv2 + 10.0 * *n as f64 }
+                    }
                 };
             }
             Command::DeleteCaliper(id) => {
@@ -69,7 +73,9 @@ impl IsolineApp {
                 }
             },
             Command::TakeCaliper { id, key } => {
-                let Some(ms) = doc.caliper(*id).and_then(isoline_core::caliper::Caliper::interval_ms) else { return false };
+                let Some(ms) = doc.caliper(*id).and_then(isoline_core::caliper::Caliper::interval_ms) else {
+                    return false;
+                };
                 doc.reviewed.insert(key.clone(), ms);
             }
             _ => return false,

@@ -3,7 +3,7 @@
 //! measurement on the review's marks, with values the reader typed or took from a caliper taking precedence
 //! (QTc then follows the reviewed QT and RR through `measure::qtc_checked`).
 
-use isoline_core::measure::{self, ranges, MeasuredValue, Sex, Template};
+use isoline_core::measure::{self, MeasuredValue, Sex, Template, ranges};
 
 use super::command::Command;
 use super::state::{Document, Loaded, Origin};
@@ -158,8 +158,10 @@ pub fn ledger_ui(
             ui.horizontal(|ui| {
                 match editing {
                     Some((key, text)) if key == r.key => {
-                        let resp = ui.add(egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key)));
-                        let (enter, escape) = ui.input(|i| (i.key_pressed(egui::Key::Enter), i.key_pressed(egui::Key::Escape)));
+                        let resp =
+                            ui.add(egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key)));
+                        let (enter, escape) =
+                            ui.input(|i| (i.key_pressed(egui::Key::Enter), i.key_pressed(egui::Key::Escape)));
                         if enter {
                             if let Ok(v) = text.trim().parse::<f64>() {
                                 out.push(Command::SetReviewed(r.key.to_string(), Some(v).filter(|v| v.is_finite())));
@@ -172,13 +174,18 @@ pub fn ledger_ui(
                         }
                     }
                     _ => {
-                        let label = ui.add(egui::Button::new(fmt(r.reviewed)).frame(false)).on_hover_text("Click to type a reviewed value");
+                        let label = ui
+                            .add(egui::Button::new(fmt(r.reviewed)).frame(false))
+                            .on_hover_text("Click to type a reviewed value");
                         if label.clicked() && !r.key.starts_with("st_") {
-                            *editing = Some((r.key.to_string(), r.reviewed.map_or_else(String::new, |v| format!("{v:.0}"))));
+                            *editing =
+                                Some((r.key.to_string(), r.reviewed.map_or_else(String::new, |v| format!("{v:.0}"))));
                         }
                     }
                 }
-                if doc.reviewed.contains_key(r.key) && ui.small_button("×").on_hover_text("Clear the typed value").clicked() {
+                if doc.reviewed.contains_key(r.key)
+                    && ui.small_button("×").on_hover_text("Clear the typed value").clicked()
+                {
                     out.push(Command::SetReviewed(r.key.to_string(), None));
                 }
             });

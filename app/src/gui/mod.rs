@@ -15,14 +15,14 @@ pub mod beat_lens;
 pub mod calipers_ui;
 pub mod command;
 pub mod derived;
-pub mod ledger;
 mod edits;
 mod export;
+pub mod ledger;
 mod review_actions;
 pub mod review_io;
 pub mod settings;
-mod shell;
 pub mod sheet;
+mod shell;
 pub mod state;
 pub mod tape;
 
@@ -160,7 +160,9 @@ impl IsolineApp {
 
     /// Applies one command.
     pub fn run_cmd(&mut self, cmd: Command) {
-        if cmd.edits_document() || matches!(cmd, Command::Open(_) | Command::OpenReview(_) | Command::Undo | Command::Redo) {
+        if cmd.edits_document()
+            || matches!(cmd, Command::Open(_) | Command::OpenReview(_) | Command::Undo | Command::Redo)
+        {
             self.ledger_cache = None;
         }
         let changes_work = cmd.edits_document() || matches!(cmd, Command::Undo | Command::Redo);
@@ -312,7 +314,8 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
         .unwrap_or(0);
     let tape = derived::TapeEnvelope::new(&rec, tape_lead);
     let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
-    let beats_source = if beats.is_empty() { "analysing…".to_string() } else { format!("{} annotated beats", beats.len()) };
+    let beats_source =
+        if beats.is_empty() { "analysing…".to_string() } else { format!("{} annotated beats", beats.len()) };
     let mut loaded = Loaded {
         path: path.to_path_buf(),
         format: opened.format,
@@ -368,7 +371,12 @@ impl eframe::App for EframeApp {
                 }
             }
             Some(Dialog::ExportPng) => {
-                let name = self.app.loaded.as_ref().and_then(|l| l.path.file_stem()).map(|s| format!("{}.png", s.to_string_lossy()));
+                let name = self
+                    .app
+                    .loaded
+                    .as_ref()
+                    .and_then(|l| l.path.file_stem())
+                    .map(|s| format!("{}.png", s.to_string_lossy()));
                 let mut dialog = rfd::FileDialog::new().add_filter("PNG image", &["png"]);
                 if let Some(n) = name {
                     dialog = dialog.set_file_name(n);

@@ -5,72 +5,76 @@ use std::path::{Path, PathBuf};
 use isoline_core::review::Stage;
 
 use super::command::Command;
-use super::{review_io, IsolineApp};
+use super::{IsolineApp, review_io};
 
 impl IsolineApp {
     /// Applies a review command (save, open, stage, summary, reader, answers to questions, history).
     pub(super) fn run_review_cmd(&mut self, cmd: Command) {
         match cmd {
-                Command::SaveReview => {
-                    if let Some(l) = &self.loaded {
-                        let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
-                        self.save_review(path);
-                    }
+            Command::SaveReview => {
+                if let Some(l) = &self.loaded {
+                    let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
+                    self.save_review(path);
                 }
-                Command::SaveReviewAs(p) => self.save_review(p),
-                Command::OpenReview(p) => self.open_review(&p, true),
-                Command::SetStage(s) => {
-                    if self.review.stage == Stage::Final {
-                        self.ui_state.error = Some("The review is final: reopen it to change its stage.".into());
-                    } else if self.review.stage != s {
-                        self.review.stage = s;
-                        self.review.dirty = true;
-                    }
-                }
-                Command::Reopen if self.review.stage == Stage::Final => {
-                    self.review.stage = Stage::Draft;
+            }
+            Command::SaveReviewAs(p) => self.save_review(p),
+            Command::OpenReview(p) => self.open_review(&p, true),
+            Command::SetStage(s) => {
+                if self.review.stage == Stage::Final {
+                    self.ui_state.error = Some("The review is final: reopen it to change its stage.".into());
+                } else if self.review.stage != s {
+                    self.review.stage = s;
                     self.review.dirty = true;
                 }
-                Command::SetSummary(t) => {
-                    if self.review.stage == Stage::Final {
-                        self.ui_state.error = Some("The review is final: reopen it to change it.".into());
-                    } else {
-                        self.review.summary = t;
+            }
+            Command::Reopen if self.review.stage == Stage::Final => {
+                self.review.stage = Stage::Draft;
+                self.review.dirty = true;
+            }
+            Command::SetSummary(t) => {
+                if self.review.stage == Stage::Final {
+                    self.ui_state.error = Some("The review is final: reopen it to change it.".into());
+                } else {
+                    self.review.summary = t;
+                    self.review.dirty = true;
+                }
+            }
+            Command::SetReader(name) => {
+                self.settings.reader = Some(name);
+                if let Some(p) = self.review.asking_reader.take() {
+                    self.save_review(p);
+                }
+            }
+            Command::ApplyMismatched(yes) => {
+                if let Some((path, r)) = self.review.mismatch.take()
+                    && yes
+                {
+                    self.apply_review(r, path);
+                }
+            }
+            Command::Recover(yes) => {
+                if let Some(r) = self.review.recovery.take() {
+                    let path = self
+                        .review
+                        .path
+                        .clone()
+                        .or_else(|| self.loaded.as_ref().map(|l| review_io::default_review_path(&l.path)));
+                    if yes {
+                        let base = self.review.base.take();
+                        let saved_path = self.review.path.clone();
+                        self.apply_review(r, path.clone().unwrap_or_default());
+                        // The restored work is unsaved: keep the saved review as the base for history.
+                        self.review.base = base;
+                        self.review.path = saved_path.or(path);
                         self.review.dirty = true;
-                    }
-                }
-                Command::SetReader(name) => {
-                    self.settings.reader = Some(name);
-                    if let Some(p) = self.review.asking_reader.take() {
-                        self.save_review(p);
-                    }
-                }
-                Command::ApplyMismatched(yes) => {
-                    if let Some((path, r)) = self.review.mismatch.take()
-                        && yes
+                    } else if let Some(p) = path
+                        && let Err(e) = isoline_core::review::discard_autosave(&p)
                     {
-                        self.apply_review(r, path);
+                        self.ui_state.error = Some(format!("{e}"));
                     }
                 }
-                Command::Recover(yes) => {
-                    if let Some(r) = self.review.recovery.take() {
-                        let path = self.review.path.clone().or_else(|| self.loaded.as_ref().map(|l| review_io::default_review_path(&l.path)));
-                        if yes {
-                            let base = self.review.base.take();
-                            let saved_path = self.review.path.clone();
-                            self.apply_review(r, path.clone().unwrap_or_default());
-                            // The restored work is unsaved: keep the saved review as the base for history.
-                            self.review.base = base;
-                            self.review.path = saved_path.or(path);
-                            self.review.dirty = true;
-                        } else if let Some(p) = path
-                            && let Err(e) = isoline_core::review::discard_autosave(&p)
-                        {
-                            self.ui_state.error = Some(format!("{e}"));
-                        }
-                    }
-                }
-                Command::ShowHistory(b) => self.review.history_open = b,
+            }
+            Command::ShowHistory(b) => self.review.history_open = b,
             _ => {}
         }
     }
@@ -121,7 +125,14 @@ impl IsolineApp {
         };
         let rows = self.cached_ledger_rows();
         let Some(l) = &self.loaded else { return };
-        let input = review_io::ReviewInput { loaded: l, doc: &self.doc, rows: &rows, session: &self.review, reader: &reader, path: &path };
+        let input = review_io::ReviewInput {
+            loaded: l,
+            doc: &self.doc,
+            rows: &rows,
+            session: &self.review,
+            reader: &reader,
+            path: &path,
+        };
         match review_io::build_review(&input).and_then(|r| r.save(&path).map(|()| r).map_err(anyhow::Error::from)) {
             Ok(r) => {
                 self.review.base = Some(r);
@@ -145,7 +156,14 @@ impl IsolineApp {
         let rows = self.cached_ledger_rows();
         let Some(l) = &self.loaded else { return };
         let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
-        let input = review_io::ReviewInput { loaded: l, doc: &self.doc, rows: &rows, session: &self.review, reader: &reader, path: &path };
+        let input = review_io::ReviewInput {
+            loaded: l,
+            doc: &self.doc,
+            rows: &rows,
+            session: &self.review,
+            reader: &reader,
+            path: &path,
+        };
         if let Err(e) = review_io::build_review(&input).and_then(|r| r.autosave(&path).map_err(anyhow::Error::from)) {
             self.ui_state.error = Some(format!("Autosave failed: {e:#}"));
         }

@@ -7,7 +7,7 @@ use std::time::Instant;
 
 use anyhow::Context as _;
 use isoline_core::beat::MarkKind;
-use isoline_core::review::{MarkOn, Measurement, RecordingIdentity, Review, Stage, REVIEW_SUFFIX};
+use isoline_core::review::{MarkOn, Measurement, REVIEW_SUFFIX, RecordingIdentity, Review, Stage};
 
 use super::command::Command;
 use super::ledger::LedgerRow;
@@ -89,7 +89,9 @@ pub fn build_review(input: &ReviewInput<'_>) -> anyhow::Result<Review> {
         r.put_automatic(Measurement::automatic(row.key, &row.label, row.auto, row.unit))?;
         let current = r.measurement(row.key).and_then(|m| m.reviewed_value);
         match (row.origin, row.reviewed) {
-            (Some(Origin::Moved | Origin::Placed), Some(v)) if current != Some(v) => r.set_measurement(row.key, v, reader)?,
+            (Some(Origin::Moved | Origin::Placed), Some(v)) if current != Some(v) => {
+                r.set_measurement(row.key, v, reader)?
+            }
             (Some(Origin::Auto) | None, _) if current.is_some() => r.revert_measurement(row.key, reader)?,
             _ => {}
         }
@@ -179,7 +181,11 @@ pub fn matches_recording(review: &Review, recording_path: &Path) -> anyhow::Resu
 /// The review's file, stage, summary and save button.
 pub fn review_panel_ui(session: &ReviewSession, ui: &mut egui::Ui, out: &mut Vec<Command>) {
     use isoline_core::review::Stage;
-    let file = session.path.as_ref().and_then(|p| p.file_name()).map_or("not saved yet".into(), |n| n.to_string_lossy().into_owned());
+    let file = session
+        .path
+        .as_ref()
+        .and_then(|p| p.file_name())
+        .map_or("not saved yet".into(), |n| n.to_string_lossy().into_owned());
     ui.horizontal_wrapped(|ui| {
         ui.strong("Review");
         ui.label(format!("{file}{}", if session.dirty { " (unsaved changes)" } else { "" }));

@@ -5,7 +5,7 @@
 //! per screen pixel column, whatever the sampling rate or zoom.
 
 use egui::{Color32, FontId, Pos2, Rect, Shape, Stroke, Vec2};
-use isoline_core::paper::{margins, Cell, Page, PageSpec, Palette, Rgba, MAJOR_MM, MINOR_MM};
+use isoline_core::paper::{Cell, MAJOR_MM, MINOR_MM, Page, PageSpec, Palette, Rgba, margins};
 use isoline_core::recording::Recording;
 use isoline_core::render::decimate_min_max;
 
@@ -109,10 +109,8 @@ pub fn draw_page(
     let page = spec.page(rec);
     let geo = SheetGeometry { origin, points_per_mm, page };
     let pal = view.scheme.palette();
-    let page_rect = Rect::from_min_size(
-        origin,
-        Vec2::new(geo.page.width_mm as f32, geo.page.height_mm as f32) * points_per_mm,
-    );
+    let page_rect =
+        Rect::from_min_size(origin, Vec2::new(geo.page.width_mm as f32, geo.page.height_mm as f32) * points_per_mm);
     painter.rect_filled(page_rect, 0.0, color(pal.background));
     draw_grid(painter, &geo, &pal, page_rect);
     let text_font = FontId::proportional((3.2 * points_per_mm).clamp(11.0, 18.0));

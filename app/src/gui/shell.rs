@@ -2,12 +2,12 @@
 //! and the panels around the Sheet.
 
 use egui::{Key, KeyboardShortcut, Modifiers, Sense, Vec2};
-use isoline_core::paper::{Layout, LeadOrder, PageSpec, Scheme, GAINS_MM_PER_MV, SPEEDS_MM_PER_S};
-use isoline_core::{LeadName, StandardLead, CAUTION};
+use isoline_core::paper::{GAINS_MM_PER_MV, Layout, LeadOrder, PageSpec, SPEEDS_MM_PER_S, Scheme};
+use isoline_core::{CAUTION, LeadName, StandardLead};
 
 use super::command::Command;
 use super::state::Tool;
-use super::{beat_lens, calipers_ui, ledger, settings, sheet, tape, IsolineApp};
+use super::{IsolineApp, beat_lens, calipers_ui, ledger, settings, sheet, tape};
 
 const SHORTCUTS: [(&str, &str); 15] = [
     ("Ctrl+O", "Open a recording"),
@@ -154,13 +154,9 @@ fn status_text(app: &IsolineApp) -> String {
     let Some(l) = &app.loaded else { return format!("No recording open   frame {:.1} ms", app.ui_state.last_frame_ms) };
     let rec = &l.recording;
     let name = l.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
-    let rate = l
-        .median_rr_ms
-        .map_or_else(|| "rate —".to_string(), |rr| format!("rate {:.0} bpm", 60_000.0 / rr));
-    let cursor = app
-        .ui_state
-        .cursor
-        .map_or_else(String::new, |(t, uv)| format!("   cursor {t:.3} s  {:.2} mV", uv / 1000.0));
+    let rate = l.median_rr_ms.map_or_else(|| "rate —".to_string(), |rr| format!("rate {:.0} bpm", 60_000.0 / rr));
+    let cursor =
+        app.ui_state.cursor.map_or_else(String::new, |(t, uv)| format!("   cursor {t:.3} s  {:.2} mV", uv / 1000.0));
     format!(
         "{name} ({})   {} leads   {} Hz   {}   {rate}   {}   filters: {}{cursor}   frame {:.1} ms",
         l.format,
@@ -280,16 +276,19 @@ fn toolbar_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
             }
         }
         if let (Some(loaded), Layout::ThreeByFourPlusOne { .. } | Layout::Strip(_)) = (&app.loaded, &v.layout) {
-            egui::ComboBox::new("layout_lead", "strip lead").selected_text(lead_of_layout.to_string()).show_ui(ui, |ui| {
-                for lead in &loaded.recording.leads {
-                    if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
-                        out.push(Command::SetLayout(match v.layout {
-                            Layout::Strip(_) => Layout::Strip(lead.name.clone()),
-                            _ => Layout::ThreeByFourPlusOne { rhythm: lead.name.clone() },
-                        }));
+            egui::ComboBox::new("layout_lead", "strip lead").selected_text(lead_of_layout.to_string()).show_ui(
+                ui,
+                |ui| {
+                    for lead in &loaded.recording.leads {
+                        if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
+                            out.push(Command::SetLayout(match v.layout {
+                                Layout::Strip(_) => Layout::Strip(lead.name.clone()),
+                                _ => Layout::ThreeByFourPlusOne { rhythm: lead.name.clone() },
+                            }));
+                        }
                     }
-                }
-            });
+                },
+            );
         }
         ui.separator();
         for s in SPEEDS_MM_PER_S {

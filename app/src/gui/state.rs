@@ -13,7 +13,7 @@ use std::sync::Arc;
 use isoline_core::beat::{Beat, Boundaries, MarkKind};
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::io::Format;
-use isoline_core::paper::{LeadOrder, Layout, Paper, Scheme};
+use isoline_core::paper::{Layout, LeadOrder, Paper, Scheme};
 use isoline_core::recording::Recording;
 
 use isoline_core::analysis::Analysis;

@@ -61,7 +61,8 @@ pub fn tape_ui(
     if trend.is_empty() {
         ui.weak("Heart-rate trend: appears when beats are found (analysis may still be running).");
     } else {
-        let (r_lo, r_hi) = trend.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p[1]), b.max(p[1])));
+        let (r_lo, r_hi) =
+            trend.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p[1]), b.max(p[1])));
         let (r_lo, r_hi) = ((r_lo - 10.0).max(0.0), r_hi + 10.0);
         let hr = Plot::new("tape_rate")
             .height(60.0)
@@ -86,7 +87,12 @@ pub fn tape_ui(
     out
 }
 
-fn jump(response: &egui::Response, transform: &egui_plot::PlotTransform, window_s: f64, duration: f64) -> Option<Command> {
+fn jump(
+    response: &egui::Response,
+    transform: &egui_plot::PlotTransform,
+    window_s: f64,
+    duration: f64,
+) -> Option<Command> {
     if !(response.clicked() || response.dragged()) {
         return None;
     }
@@ -130,7 +136,12 @@ mod tests {
 
     #[test]
     fn merged_columns_keep_extremes() {
-        let env = TapeEnvelope { lead: 0, bucket_s: 1.0, min: vec![0.0, -500.0, 10.0, 20.0], max: vec![100.0, 50.0, 2000.0, 30.0] };
+        let env = TapeEnvelope {
+            lead: 0,
+            bucket_s: 1.0,
+            min: vec![0.0, -500.0, 10.0, 20.0],
+            max: vec![100.0, 50.0, 2000.0, 30.0],
+        };
         let (xs, lo, hi) = merged_columns(&env, 2);
         assert_eq!(xs, vec![1.0, 3.0]);
         assert_eq!(lo, vec![-0.5, 0.01]);

@@ -8,7 +8,7 @@
 use std::io::{BufRead, Write};
 use std::path::Path;
 
-use super::{write_atomic, Format, Opened, ReadError, MAX_TOTAL_SAMPLES};
+use super::{Format, MAX_TOTAL_SAMPLES, Opened, ReadError, write_atomic};
 use crate::recording::{Lead, LeadName, Meta, Recording};
 use crate::units::Hertz;
 
@@ -49,14 +49,21 @@ pub fn read_from(path: &Path, input: impl BufRead, rate_hz: Option<f64>) -> Resu
 }
 
 /// Reads CSV; `size_hint` (bytes of input) lets the leads be allocated once, from the first row's length.
-fn read_inner(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>, size_hint: Option<u64>) -> Result<Opened, ReadError> {
+fn read_inner(
+    path: &Path,
+    mut input: impl BufRead,
+    rate_hz: Option<f64>,
+    size_hint: Option<u64>,
+) -> Result<Opened, ReadError> {
     let err = |line: usize, what: String| ReadError::invalid(path, format!("line {line}: {what}"));
     let mut raw = Vec::new();
     let mut line_no = 0usize;
     // Reads the next line into `raw`; false at the end of the input.
     let mut next_line = |raw: &mut Vec<u8>, line_no: &mut usize| -> Result<bool, ReadError> {
         raw.clear();
-        let n = std::io::Read::take(&mut input, MAX_LINE as u64 + 1).read_until(b'\n', raw).map_err(|e| ReadError::io(path, e))?;
+        let n = std::io::Read::take(&mut input, MAX_LINE as u64 + 1)
+            .read_until(b'\n', raw)
+            .map_err(|e| ReadError::io(path, e))?;
         *line_no += 1;
         if raw.len() > MAX_LINE {
             return Err(err(*line_no, format!("line longer than {MAX_LINE} bytes")));
@@ -124,7 +131,17 @@ fn read_inner(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>, size_h
         if (rows as u64 + 1) * lead_names.len() as u64 > MAX_TOTAL_SAMPLES {
             return Err(err(line_no, format!("more than {MAX_TOTAL_SAMPLES} samples")));
         }
-        let bad = |c: usize| err(line_no, format!("column {} ('{}'): '{}' is not a number", c + 1, crate::io::printable(&names[c]), crate::io::printable(row[c])));
+        let bad = |c: usize| {
+            err(
+                line_no,
+                format!(
+                    "column {} ('{}'): '{}' is not a number",
+                    c + 1,
+                    crate::io::printable(&names[c]),
+                    crate::io::printable(row[c])
+                ),
+            )
+        };
         if let Some(tc) = time_col {
             let t = value(row[tc]).ok().flatten().ok_or_else(|| bad(tc))?;
             match (t_first, dt0) {
@@ -140,7 +157,11 @@ fn read_inner(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>, size_h
                     if ((t - t_prev) - dt).abs() > 0.01 * dt + 2e-6 {
                         return Err(err(
                             line_no,
-                            format!("column {} (time_s): step {:.6} s differs from the first step {dt:.6} s", tc + 1, t - t_prev),
+                            format!(
+                                "column {} (time_s): step {:.6} s differs from the first step {dt:.6} s",
+                                tc + 1,
+                                t - t_prev
+                            ),
                         ));
                     }
                 }
@@ -170,7 +191,10 @@ fn read_inner(path: &Path, mut input: impl BufRead, rate_hz: Option<f64>, size_h
         (Some(given), _) => given,
         (None, Some(t)) => t,
         (None, None) => {
-            return Err(ReadError::invalid(path, "no time_s column with two or more rows: give the sampling rate (--rate)"));
+            return Err(ReadError::invalid(
+                path,
+                "no time_s column with two or more rows: give the sampling rate (--rate)",
+            ));
         }
     };
     let sample_rate = Hertz::from_hz(fs).map_err(|e| ReadError::invalid(path, format!("sampling rate: {e}")))?;
@@ -202,7 +226,8 @@ fn push_fixed(out: &mut Vec<u8>, scaled: i64, decimals: u32) {
 /// # Errors
 /// Any error of `out`.
 pub fn write_to(out: &mut impl Write, rec: &Recording) -> std::io::Result<()> {
-    let names: Vec<String> = rec.leads.iter().map(|l| l.name.to_string().replace([',', '"', '\n', '\r'], " ")).collect();
+    let names: Vec<String> =
+        rec.leads.iter().map(|l| l.name.to_string().replace([',', '"', '\n', '\r'], " ")).collect();
     writeln!(out, "time_s,{}", names.join(","))?;
     let fs = rec.sample_rate.hz();
     let mut row = Vec::with_capacity(16 * (rec.leads.len() + 1));
@@ -240,7 +265,8 @@ mod tests {
 
     #[test]
     fn reads_time_and_names() -> Result<(), ReadError> {
-        let o = parse("# made by hand\ntime_s,avr,Lead II,MLII\n0.000,0.5,-1,\n0.004,0.25,1.5,2\n0.008,0,0,NaN\n", None)?;
+        let o =
+            parse("# made by hand\ntime_s,avr,Lead II,MLII\n0.000,0.5,-1,\n0.004,0.25,1.5,2\n0.008,0,0,NaN\n", None)?;
         let r = &o.recording;
         assert_eq!(r.sample_rate.hz(), 250.0);
         assert_eq!(r.leads[0].name.to_string(), "aVR");

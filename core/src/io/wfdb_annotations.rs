@@ -7,7 +7,7 @@
 
 use std::path::Path;
 
-use super::{file_len, read_bytes, ReadError};
+use super::{ReadError, file_len, read_bytes};
 use crate::recording::Annotation;
 
 /// Largest annotation file read (64 MiB; a 24-h Holter annotation file is a few MB).
@@ -18,8 +18,8 @@ const MAX_BYTES: u64 = 64 << 20;
 pub fn mnemonic(code: u16) -> Option<&'static str> {
     const TABLE: [&str; 50] = [
         "", "N", "L", "R", "a", "V", "F", "J", "A", "S", "E", "j", "/", "Q", "~", "", "|", "", "s", "T", "*", "D",
-        "\"", "=", "p", "B", "^", "t", "+", "u", "?", "!", "[", "]", "e", "n", "@", "x", "f", "(", ")", "r", "",
-        "", "", "", "", "", "", "",
+        "\"", "=", "p", "B", "^", "t", "+", "u", "?", "!", "[", "]", "e", "n", "@", "x", "f", "(", ")", "r", "", "",
+        "", "", "", "", "", "",
     ];
     TABLE.get(usize::from(code)).copied().filter(|s| !s.is_empty())
 }
@@ -27,7 +27,10 @@ pub fn mnemonic(code: u16) -> Option<&'static str> {
 /// Whether a mnemonic labels a beat (the beat labels of the MIT-BIH convention).
 #[must_use]
 pub fn is_beat(label: &str) -> bool {
-    matches!(label, "N" | "L" | "R" | "B" | "A" | "a" | "J" | "S" | "V" | "r" | "F" | "e" | "j" | "n" | "E" | "/" | "f" | "Q" | "?")
+    matches!(
+        label,
+        "N" | "L" | "R" | "B" | "A" | "a" | "J" | "S" | "V" | "r" | "F" | "e" | "j" | "n" | "E" | "/" | "f" | "Q" | "?"
+    )
 }
 
 /// Reads an annotation file.
@@ -104,9 +107,9 @@ pub fn parse(path: &Path, bytes: &[u8]) -> Result<Vec<Annotation>, ReadError> {
             }
             63 => {
                 let n = usize::from(i);
-                let text = bytes
-                    .get(at..at + n)
-                    .ok_or_else(|| ReadError::invalid(path, format!("byte {here}: auxiliary text of {n} bytes cut short")))?;
+                let text = bytes.get(at..at + n).ok_or_else(|| {
+                    ReadError::invalid(path, format!("byte {here}: auxiliary text of {n} bytes cut short"))
+                })?;
                 let text = String::from_utf8_lossy(text).trim_end_matches('\0').to_string();
                 if let Some(last) = out.last_mut() {
                     last.aux = Some(text);

@@ -97,11 +97,8 @@ pub fn rmssd_runs(runs: &[Vec<f64>]) -> Option<f64> {
 /// Regularity of all RR intervals between consecutive beats.
 #[must_use]
 pub fn rhythm(beats: &[Beat], fs: Hertz) -> Rhythm {
-    let rr: Vec<f64> = beats
-        .windows(2)
-        .filter(|w| w[1].r > w[0].r)
-        .map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64))
-        .collect();
+    let rr: Vec<f64> =
+        beats.windows(2).filter(|w| w[1].r > w[0].r).map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64)).collect();
     let rr_cv = match (mean(&rr), sample_sd(&rr)) {
         (Some(m), Some(sd)) if m > 0.0 => Some(sd / m),
         _ => None,

@@ -69,7 +69,8 @@ mod tests {
 
     #[test]
     fn spans_at_500_hz() {
-        let b = Boundaries { p_on: Some(100), p_end: Some(150), qrs_on: Some(180), qrs_end: Some(225), t_end: Some(380) };
+        let b =
+            Boundaries { p_on: Some(100), p_end: Some(150), qrs_on: Some(180), qrs_end: Some(225), t_end: Some(380) };
         let i = intervals(&b, fs());
         assert_eq!(i.p_duration_ms, Some(100.0));
         assert_eq!(i.pr_ms, Some(160.0));
@@ -96,8 +97,13 @@ mod tests {
             kind,
             bounds: Boundaries { qrs_on: Some(100), qrs_end: Some(100 + q), ..Boundaries::default() },
         };
-        let beats = [mk(40, BeatKind::Dominant), mk(45, BeatKind::Dominant), mk(50, BeatKind::Dominant),
-            mk(90, BeatKind::Other), mk(95, BeatKind::Other)];
+        let beats = [
+            mk(40, BeatKind::Dominant),
+            mk(45, BeatKind::Dominant),
+            mk(50, BeatKind::Dominant),
+            mk(90, BeatKind::Other),
+            mk(95, BeatKind::Other),
+        ];
         assert_eq!(median_intervals(&beats, fs()).qrs_ms, Some(90.0));
         assert_eq!(median_intervals(&beats, fs()).qt_ms, None);
     }

@@ -21,8 +21,8 @@ pub mod st;
 pub mod stats;
 mod values;
 
-pub use axis::{AxisBasis, Axes};
-pub use hrv::{RrStats, Rhythm};
+pub use axis::{Axes, AxisBasis};
+pub use hrv::{Rhythm, RrStats};
 pub use intervals::{Intervals, intervals, median_intervals};
 pub use qtc::{Qtc, qtc_checked};
 pub use ranges::{RangeNote, Sex};
@@ -110,11 +110,8 @@ pub fn measure_with(
     let (axes, st) = match template {
         Some(t) => {
             let names = recording.leads.iter().map(|l| &l.name);
-            let limb: Vec<(StandardLead, &[f32])> = names
-                .clone()
-                .zip(t.leads)
-                .filter_map(|(n, x)| n.standard().map(|s| (s, x.as_slice())))
-                .collect();
+            let limb: Vec<(StandardLead, &[f32])> =
+                names.clone().zip(t.leads).filter_map(|(n, x)| n.standard().map(|s| (s, x.as_slice()))).collect();
             let st = names.zip(t.leads).map(|(n, x)| st::st_level(n.clone(), x, &t.bounds, t.sample_rate)).collect();
             (axis::axes(&limb, &t.bounds, t.sample_rate, basis), st)
         }

@@ -57,9 +57,21 @@ fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
 /// Heart rate outside 60–100 bpm (references.md §4: textbook resting range).
 #[must_use]
 pub fn heart_rate(bpm: f64) -> Option<RangeNote> {
-    let side = if bpm < 60.0 { "below" } else if bpm > 100.0 { "above" } else { return None };
-    note("heart_rate_bpm", format!("Heart rate {bpm:.0} bpm — {side} the usual resting range of 60–100 bpm \
-        ({SOURCE_TEXTBOOK})"), SOURCE_TEXTBOOK)
+    let side = if bpm < 60.0 {
+        "below"
+    } else if bpm > 100.0 {
+        "above"
+    } else {
+        return None;
+    };
+    note(
+        "heart_rate_bpm",
+        format!(
+            "Heart rate {bpm:.0} bpm — {side} the usual resting range of 60–100 bpm \
+        ({SOURCE_TEXTBOOK})"
+        ),
+        SOURCE_TEXTBOOK,
+    )
 }
 
 /// PR outside 120–200 ms (references.md §4: textbook range).
@@ -79,7 +91,9 @@ pub fn pr(ms: f64) -> Option<RangeNote> {
 #[must_use]
 pub fn qrs(ms: f64) -> Option<RangeNote> {
     let text = if ms >= 120.0 {
-        format!("QRS {ms:.0} ms — at or above 120 ms, beyond the usual adult upper limit of 110 ms (Surawicz et al. 2009)")
+        format!(
+            "QRS {ms:.0} ms — at or above 120 ms, beyond the usual adult upper limit of 110 ms (Surawicz et al. 2009)"
+        )
     } else if ms > 110.0 {
         format!("QRS {ms:.0} ms — above the usual adult upper limit of 110 ms (Surawicz et al. 2009)")
     } else {
@@ -126,8 +140,14 @@ pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
     } else {
         return None;
     };
-    note("axis_qrs_deg", format!("QRS axis {deg:.0}° — outside the usual range of −30° to +90°, {side} \
-        ({SOURCE_TEXTBOOK})"), SOURCE_TEXTBOOK)
+    note(
+        "axis_qrs_deg",
+        format!(
+            "QRS axis {deg:.0}° — outside the usual range of −30° to +90°, {side} \
+        ({SOURCE_TEXTBOOK})"
+        ),
+        SOURCE_TEXTBOOK,
+    )
 }
 
 /// RR intervals irregular (coefficient of variation ≥ the threshold in [`super::hrv::IRREGULAR_CV`]).
@@ -136,8 +156,11 @@ pub fn rr_variation(cv: f64) -> Option<RangeNote> {
     let limit = super::hrv::IRREGULAR_CV;
     (cv >= limit).then(|| RangeNote {
         key: "rr_cv_pct".into(),
-        text: format!("RR intervals irregular: variation {:.0} % (regular below {:.0} %, {SOURCE_COMMON})",
-            cv * 100.0, limit * 100.0),
+        text: format!(
+            "RR intervals irregular: variation {:.0} % (regular below {:.0} %, {SOURCE_COMMON})",
+            cv * 100.0,
+            limit * 100.0
+        ),
         source: SOURCE_COMMON,
     })
 }
@@ -151,7 +174,10 @@ mod tests {
         // Source: Rautaharju et al., J Am Coll Cardiol 2009;53:982-91 (from memory: 450/460/390 ms);
         // Johnson & Ackerman, Br J Sports Med 2009 (500 ms). references.md §4.
         let n = qtc("qtc_bazett_ms", "Bazett", 478.0, Sex::Female).map(|n| n.text).unwrap_or_default();
-        assert_eq!(n, "QTc (Bazett) 478 ms — at or above the usual upper limit of 460 ms for women (Rautaharju et al. 2009)");
+        assert_eq!(
+            n,
+            "QTc (Bazett) 478 ms — at or above the usual upper limit of 460 ms for women (Rautaharju et al. 2009)"
+        );
         assert!(qtc("k", "Bazett", 455.0, Sex::Female).is_none());
         assert!(qtc("k", "Bazett", 455.0, Sex::Male).is_some());
         assert!(qtc("k", "Bazett", 455.0, Sex::Unknown).is_some());

@@ -31,11 +31,7 @@ pub fn st_level(lead: LeadName, samples: &[f32], bounds: &Boundaries, fs: Hertz)
     let iso = isoelectric_level(samples, bounds, fs);
     let delay = fs.sample_from_seconds(ST_DELAY_MS / 1000.0).round() as usize;
     let rel = |i: Option<usize>| Some(at(samples, i?)? - iso?);
-    StLevel {
-        lead,
-        j_uv: rel(bounds.qrs_end),
-        j60_uv: rel(bounds.qrs_end.map(|j| j.saturating_add(delay))),
-    }
+    StLevel { lead, j_uv: rel(bounds.qrs_end), j60_uv: rel(bounds.qrs_end.map(|j| j.saturating_add(delay))) }
 }
 
 #[cfg(test)]

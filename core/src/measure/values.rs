@@ -25,9 +25,25 @@ pub struct MeasuredValue {
 
 /// Every key [`Measurements::values`] can produce, in order (ST keys repeat once per lead).
 pub const KEYS: [&str; 19] = [
-    "heart_rate_bpm", "rr_ms", "rr_sdnn_ms", "rr_rmssd_ms", "rr_cv_pct", "p_duration_ms", "pr_ms", "qrs_ms",
-    "qt_ms", "qtc_bazett_ms", "qtc_fridericia_ms", "qtc_framingham_ms", "qtc_hodges_ms", "qtc_rautaharju_ms",
-    "axis_p_deg", "axis_qrs_deg", "axis_t_deg", "st_j_uv", "st_j60_uv",
+    "heart_rate_bpm",
+    "rr_ms",
+    "rr_sdnn_ms",
+    "rr_rmssd_ms",
+    "rr_cv_pct",
+    "p_duration_ms",
+    "pr_ms",
+    "qrs_ms",
+    "qt_ms",
+    "qtc_bazett_ms",
+    "qtc_fridericia_ms",
+    "qtc_framingham_ms",
+    "qtc_hodges_ms",
+    "qtc_rautaharju_ms",
+    "axis_p_deg",
+    "axis_qrs_deg",
+    "axis_t_deg",
+    "st_j_uv",
+    "st_j60_uv",
 ];
 
 fn v(key: &'static str, label: &str, value: Option<f64>, unit: &'static str) -> MeasuredValue {

@@ -138,7 +138,10 @@ pub fn agreement(reviews: &[Review]) -> Result<Agreement, DuplicateReview> {
         let rec = match recordings.iter().position(|x| x.sha256.eq_ignore_ascii_case(&r.recording.sha256)) {
             Some(k) => k,
             None => {
-                recordings.push(RecordingRef { sha256: r.recording.sha256.to_ascii_lowercase(), file_name: r.recording.file_name.clone() });
+                recordings.push(RecordingRef {
+                    sha256: r.recording.sha256.to_ascii_lowercase(),
+                    file_name: r.recording.file_name.clone(),
+                });
                 cell.push(vec![None; readers.len()]);
                 recordings.len() - 1
             }

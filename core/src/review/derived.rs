@@ -114,7 +114,9 @@ mod tests {
         };
         let mut r = Review::new(id, "AB");
         let auto = qtc(370.0, 710.0);
-        let put = |r: &mut Review, key: &str, v: f64, unit: &str| r.put_automatic(Measurement::automatic(key, key, Some(v), unit));
+        let put = |r: &mut Review, key: &str, v: f64, unit: &str| {
+            r.put_automatic(Measurement::automatic(key, key, Some(v), unit))
+        };
         put(&mut r, "heart_rate_bpm", 60_000.0 / 710.0, "bpm").unwrap();
         put(&mut r, "rr_ms", 710.0, "ms").unwrap();
         put(&mut r, "qt_ms", 370.0, "ms").unwrap();

@@ -48,7 +48,13 @@ impl Review {
     ///
     /// # Errors
     /// [`ReviewError::Final`] on a final review.
-    pub fn put_automatic_mark(&mut self, kind: MarkKind, on: MarkOn, sample: usize, time_s: f64) -> Result<(), ReviewError> {
+    pub fn put_automatic_mark(
+        &mut self,
+        kind: MarkKind,
+        on: MarkOn,
+        sample: usize,
+        time_s: f64,
+    ) -> Result<(), ReviewError> {
         self.writable()?;
         let mark = Mark { kind, on, sample, time_s, origin: Origin::Auto, auto_sample: None };
         match self.marks.iter_mut().find(|m| m.kind == kind && m.on == on) {

@@ -115,13 +115,15 @@ fn edf_header_len(path: &Path) -> Result<u64, ReadError> {
     let mut head = [0u8; 192];
     f.read_exact(&mut head).map_err(|_| ReadError::invalid(path, "shorter than an EDF header (192 bytes)"))?;
     let field = String::from_utf8_lossy(&head[184..192]);
-    let n: u64 = field
-        .trim()
-        .parse()
-        .map_err(|_| ReadError::invalid(path, format!("header byte count (offset 184) {:?} is not a number", field.trim())))?;
+    let n: u64 = field.trim().parse().map_err(|_| {
+        ReadError::invalid(path, format!("header byte count (offset 184) {:?} is not a number", field.trim()))
+    })?;
     let file_len = f.metadata().map_err(|e| ReadError::io(path, e))?.len();
     if n < 256 || n > file_len {
-        return Err(ReadError::invalid(path, format!("header byte count (offset 184) {n} does not fit the file ({file_len} bytes)")));
+        return Err(ReadError::invalid(
+            path,
+            format!("header byte count (offset 184) {n} does not fit the file ({file_len} bytes)"),
+        ));
     }
     Ok(n)
 }

@@ -6,10 +6,10 @@ use std::path::Path;
 
 use serde::Deserialize;
 
+use super::ReviewError;
 use super::identity::signal_sha256;
 use super::model::{FORMAT_VERSION, Review};
 use super::v1::ReviewV1;
-use super::ReviewError;
 
 /// Largest review file read, bytes (a review is a few kB; this guards against opening the wrong file).
 pub const MAX_REVIEW_BYTES: u64 = 64 << 20;
@@ -65,11 +65,8 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
     let at = |field: &str, message: String| {
         // Point at the first line that sets the field.
         let needle = format!("{field}:");
-        let (line, column) = text
-            .lines()
-            .enumerate()
-            .find_map(|(i, l)| l.find(&needle).map(|c| (i + 1, c + 1)))
-            .unwrap_or((1, 1));
+        let (line, column) =
+            text.lines().enumerate().find_map(|(i, l)| l.find(&needle).map(|c| (i + 1, c + 1))).unwrap_or((1, 1));
         Err(parse_error(path, line, column, Some(field), message))
     };
     let sha = &review.recording.sha256;

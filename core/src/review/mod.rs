@@ -92,7 +92,9 @@ pub enum ReviewError {
         found: u64,
     },
     /// The review belongs to another recording: the signal content's SHA-256 differs.
-    #[error("the review belongs to another recording: signal SHA-256 {found} differs from {expected} stored in the review")]
+    #[error(
+        "the review belongs to another recording: signal SHA-256 {found} differs from {expected} stored in the review"
+    )]
     RecordingMismatch {
         /// SHA-256 stored in the review.
         expected: String,

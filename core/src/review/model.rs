@@ -6,8 +6,8 @@ use std::fmt;
 use serde::{Deserialize, Serialize};
 
 use super::history::Change;
-use super::identity::RecordingIdentity;
 use super::history::Timestamp;
+use super::identity::RecordingIdentity;
 use crate::beat::MarkKind;
 use crate::caliper::Caliper;
 

@@ -10,9 +10,9 @@ use std::path::{Path, PathBuf};
 
 use ron::ser::PrettyConfig;
 
+use super::ReviewError;
 use super::load::load;
 use super::model::{FORMAT_VERSION, Review};
-use super::ReviewError;
 use crate::io::atomic;
 
 /// `NAME.review.ron.bak`: the version before the last save.

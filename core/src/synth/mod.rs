@@ -130,7 +130,11 @@ pub enum SynthError {
 }
 
 fn check(name: &'static str, value: f64, lo: f64, hi: f64, range: &'static str) -> Result<(), SynthError> {
-    if value.is_finite() && value >= lo && value <= hi { Ok(()) } else { Err(SynthError::OutOfRange { name, value, range }) }
+    if value.is_finite() && value >= lo && value <= hi {
+        Ok(())
+    } else {
+        Err(SynthError::OutOfRange { name, value, range })
+    }
 }
 
 impl SynthSpec {
@@ -148,7 +152,8 @@ impl SynthSpec {
         check("pr_ms", self.pr_ms, self.p_ms + 10.0, 600.0, "P duration + 10 ms to 600 ms")?;
         check("qrs_ms", self.qrs_ms, 40.0, 250.0, "40 to 250 ms")?;
         check("qt_ms", self.qt_ms, self.qrs_ms + 100.0, 800.0, "QRS + 100 ms to 800 ms")?;
-        for (name, v) in [("axis_deg", self.axis_deg), ("p_axis_deg", self.p_axis_deg), ("t_axis_deg", self.t_axis_deg)] {
+        for (name, v) in [("axis_deg", self.axis_deg), ("p_axis_deg", self.p_axis_deg), ("t_axis_deg", self.t_axis_deg)]
+        {
             check(name, v, -180.0, 360.0, "-180 to 360 degrees")?;
         }
         check("r_amplitude_uv", self.r_amplitude_uv, 1.0, 10_000.0, "1 to 10000 µV")?;
@@ -194,8 +199,11 @@ pub struct Synthetic {
 /// [`SynthError`] for parameters out of range or timing that does not fit.
 pub fn generate(spec: &SynthSpec) -> Result<Synthetic, SynthError> {
     spec.validate()?;
-    let rate = Hertz::from_hz(spec.rate_hz)
-        .map_err(|_| SynthError::OutOfRange { name: "rate_hz", value: spec.rate_hz, range: "above 0 Hz" })?;
+    let rate = Hertz::from_hz(spec.rate_hz).map_err(|_| SynthError::OutOfRange {
+        name: "rate_hz",
+        value: spec.rate_hz,
+        range: "above 0 Hz",
+    })?;
     let plan = rhythm::plan(spec)?;
     let fs = spec.rate_hz;
     let n = (spec.seconds * fs).round() as usize;

@@ -202,7 +202,8 @@ impl<'a> Integrator<'a> {
         self.refresh_active(self.t, t_end);
         let narrowest = self.active.iter().map(|&i| self.events[i].sigma_s).fold(f64::INFINITY, f64::min);
         let span = t_end - self.t;
-        let steps = if narrowest.is_finite() { (span / (STEP_PER_SIGMA * narrowest)).ceil().max(1.0) as usize } else { 1 };
+        let steps =
+            if narrowest.is_finite() { (span / (STEP_PER_SIGMA * narrowest)).ceil().max(1.0) as usize } else { 1 };
         let h = span / steps as f64;
         let lambda = self.pull_per_s;
         let t0 = self.t;

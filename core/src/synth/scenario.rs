@@ -87,7 +87,13 @@ impl Scenario {
             Self::Irregular => SynthSpec { heart_rate_bpm: 78.0, rr_variation: 0.15, ..base },
             Self::Ectopics => SynthSpec { heart_rate_bpm: 70.0, ectopics: Ectopics::Every(5), ..base },
             Self::Noisy => SynthSpec {
-                noise: NoiseSpec { baseline_uv: 150.0, baseline_hz: 0.25, mains_uv: 40.0, mains_hz: 50.0, muscle_uv: 25.0 },
+                noise: NoiseSpec {
+                    baseline_uv: 150.0,
+                    baseline_hz: 0.25,
+                    mains_uv: 40.0,
+                    mains_hz: 50.0,
+                    muscle_uv: 25.0,
+                },
                 ..base
             },
             Self::Holter => SynthSpec {
@@ -98,7 +104,13 @@ impl Scenario {
                 heart_rate_swing_bpm: 10.0,
                 rr_variation: 0.04,
                 ectopics: Ectopics::Chance(0.01),
-                noise: NoiseSpec { baseline_uv: 80.0, baseline_hz: 0.25, mains_uv: 0.0, mains_hz: 50.0, muscle_uv: 10.0 },
+                noise: NoiseSpec {
+                    baseline_uv: 80.0,
+                    baseline_hz: 0.25,
+                    mains_uv: 0.0,
+                    mains_hz: 50.0,
+                    muscle_uv: 10.0,
+                },
                 ..base
             },
         }

@@ -110,11 +110,8 @@ pub fn beat_events(r_s: f64, timing: &Timing, dipoles: &Dipoles) -> (Vec<Event>,
     }
     events.extend(qrs);
     let t_sigma = T_SHARE * (timing.qt_s - timing.qrs_s) / (2.0 * BOUNDARY_SIGMAS);
-    let t = Event {
-        centre_s: qrs_on + timing.qt_s - BOUNDARY_SIGMAS * t_sigma,
-        sigma_s: t_sigma,
-        dipole_uv: dipoles[4],
-    };
+    let t =
+        Event { centre_s: qrs_on + timing.qt_s - BOUNDARY_SIGMAS * t_sigma, sigma_s: t_sigma, dipole_uv: dipoles[4] };
     let (_, t_end) = wave_span(&[t]);
     events.push(t);
     (events, BoundsS { p_on, p_end, qrs_on, qrs_end, t_end })

@@ -116,7 +116,8 @@ impl Truth {
                 .filter(|w| w[0].kind == TrueKind::Sinus && w[1].kind == TrueKind::Sinus)
                 .map(|w| (w[1].r_s - w[0].r_s) * 1e3),
         );
-        let ms = |f: fn(&super::shape::BoundsS) -> Option<f64>| mean(sinus().filter_map(|b| f(&b.bounds)).map(|s| s * 1e3));
+        let ms =
+            |f: fn(&super::shape::BoundsS) -> Option<f64>| mean(sinus().filter_map(|b| f(&b.bounds)).map(|s| s * 1e3));
         Self {
             generator: "Isoline synth: dynamical ECG model of McSharry, Clifford, Tarassenko & Smith, \
                         IEEE Trans Biomed Eng 2003;50:289-94; synthetic data, no patient"

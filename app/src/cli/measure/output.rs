@@ -104,10 +104,29 @@ fn st_leads(rows: &[Row]) -> Vec<LeadName> {
 
 /// Fixed CSV columns before the per-lead ST columns.
 pub const CSV_COLUMNS: [&str; 23] = [
-    "file", "format", "sample_rate_hz", "duration_s", "leads", "beats", "dominant_beats", "heart_rate_bpm",
-    "rr_ms", "rr_sdnn_ms", "rr_rmssd_ms", "p_duration_ms", "pr_ms", "qrs_ms", "qt_ms", "qtc_bazett_ms",
-    "qtc_fridericia_ms", "qtc_framingham_ms", "qtc_hodges_ms", "qtc_rautaharju_ms", "axis_p_deg",
-    "axis_qrs_deg", "axis_t_deg",
+    "file",
+    "format",
+    "sample_rate_hz",
+    "duration_s",
+    "leads",
+    "beats",
+    "dominant_beats",
+    "heart_rate_bpm",
+    "rr_ms",
+    "rr_sdnn_ms",
+    "rr_rmssd_ms",
+    "p_duration_ms",
+    "pr_ms",
+    "qrs_ms",
+    "qt_ms",
+    "qtc_bazett_ms",
+    "qtc_fridericia_ms",
+    "qtc_framingham_ms",
+    "qtc_hodges_ms",
+    "qtc_rautaharju_ms",
+    "axis_p_deg",
+    "axis_qrs_deg",
+    "axis_t_deg",
 ];
 
 /// CSV: a header, then one row per recording; ST at J+60 ms as `st_uv_LEAD` columns; notes joined by `; `.
@@ -217,15 +236,22 @@ mod tests {
         let mut m = Measurements { beats: 12, dominant_beats: 11, ..Measurements::default() };
         m.rr.rr_ms = Some(800.0);
         m.rr.heart_rate_bpm = Some(75.0);
-        m.intervals = Intervals { p_duration_ms: Some(100.0), pr_ms: Some(240.0), qrs_ms: Some(90.0), qt_ms: Some(400.0) };
+        m.intervals =
+            Intervals { p_duration_ms: Some(100.0), pr_ms: Some(240.0), qrs_ms: Some(90.0), qt_ms: Some(400.0) };
         m.qtc = qtc_checked(Some(400.0), Some(800.0));
         m.axes = Axes { p_deg: Some(50.0), qrs_deg: None, t_deg: Some(40.0) };
         m.st = vec![
             StLevel { lead: LeadName::parse("V2"), j_uv: Some(80.0), j60_uv: Some(120.0) },
             StLevel { lead: LeadName::parse("MLII"), j_uv: None, j60_uv: None },
         ];
-        Row { file: "ward 4, bed 2.hea".into(), format: "wfdb", sample_rate_hz: 500.0, duration_s: 10.0,
-            leads: vec![LeadName::parse("V2"), LeadName::parse("MLII")], m }
+        Row {
+            file: "ward 4, bed 2.hea".into(),
+            format: "wfdb",
+            sample_rate_hz: 500.0,
+            duration_s: 10.0,
+            leads: vec![LeadName::parse("V2"), LeadName::parse("MLII")],
+            m,
+        }
     }
 
     #[test]
@@ -233,10 +259,27 @@ mod tests {
         let v = json_value(&row());
         let keys: BTreeSet<&str> = v.as_object().map(|o| o.keys().map(String::as_str).collect()).unwrap_or_default();
         let want: BTreeSet<&str> = [
-            "file", "format", "sample_rate_hz", "duration_s", "leads", "beats", "dominant_beats", "heart_rate_bpm",
-            "rr_ms", "rr_sdnn_ms", "rr_rmssd_ms", "p_duration_ms", "pr_ms", "qrs_ms", "qt_ms", "qtc_ms", "axis_deg",
-            "st_uv", "notes",
-        ].into();
+            "file",
+            "format",
+            "sample_rate_hz",
+            "duration_s",
+            "leads",
+            "beats",
+            "dominant_beats",
+            "heart_rate_bpm",
+            "rr_ms",
+            "rr_sdnn_ms",
+            "rr_rmssd_ms",
+            "p_duration_ms",
+            "pr_ms",
+            "qrs_ms",
+            "qt_ms",
+            "qtc_ms",
+            "axis_deg",
+            "st_uv",
+            "notes",
+        ]
+        .into();
         assert_eq!(keys, want);
         assert_eq!(v["qtc_ms"]["bazett"], serde_json::json!(447.21));
         assert!(v["axis_deg"]["qrs"].is_null());
@@ -252,7 +295,9 @@ mod tests {
         let lines: Vec<&str> = csv.lines().collect();
         assert_eq!(lines.len(), 3);
         assert!(lines[0].starts_with("file,format,") && lines[0].ends_with(",st_uv_V2,st_uv_MLII,notes"));
-        assert!(lines[1].starts_with("\"ward 4, bed 2.hea\",wfdb,500,10,V2 MLII,12,11,75,800,,,100,240,90,400,447.21,"));
+        assert!(
+            lines[1].starts_with("\"ward 4, bed 2.hea\",wfdb,500,10,V2 MLII,12,11,75,800,,,100,240,90,400,447.21,")
+        );
         assert!(lines[1].contains(",50,,40,120,,"));
         let (json_one, json_many) = (to_json(&[row()], false), to_json(&[row()], true));
         assert!(json_one.is_ok_and(|j| j.starts_with('{')));

@@ -151,7 +151,10 @@ pub fn parse_fixed(path: &Path, bytes: &[u8]) -> Result<Fixed, ReadError> {
 /// [`ReadError`] naming the field, the signal and the byte offset.
 pub fn parse_signals(path: &Path, bytes: &[u8], n: usize) -> Result<Vec<Signal>, ReadError> {
     if bytes.len() < 256 * n {
-        return Err(ReadError::invalid(path, format!("byte {}: header ends inside the signal fields", FIXED_BYTES + bytes.len())));
+        return Err(ReadError::invalid(
+            path,
+            format!("byte {}: header ends inside the signal fields", FIXED_BYTES + bytes.len()),
+        ));
     }
     // (length, offset of this field's block within the signal part)
     let widths = [16usize, 80, 8, 8, 8, 8, 8, 80, 8, 32];

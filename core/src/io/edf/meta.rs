@@ -124,7 +124,11 @@ mod tests {
     #[test]
     fn parses_edf_plus_subfields() {
         // From memory: the example fields of Kemp & Olivan 2003 §2.1.3.
-        let m = parse_meta("MCH-0234567 F 02-MAY-1951 Haagse_Harry", "Startdate 02-MAR-2002 PSG-1234/2002 NN Telemetry03", true);
+        let m = parse_meta(
+            "MCH-0234567 F 02-MAY-1951 Haagse_Harry",
+            "Startdate 02-MAR-2002 PSG-1234/2002 NN Telemetry03",
+            true,
+        );
         assert_eq!(m.patient_id.as_deref(), Some("MCH-0234567"));
         assert_eq!(m.sex.as_deref(), Some("F"));
         assert_eq!(m.birth_date.as_deref(), Some("02-MAY-1951"));

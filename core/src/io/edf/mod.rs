@@ -8,7 +8,7 @@
 use std::io::Read;
 use std::path::Path;
 
-use super::{file_len, Format, Opened, ReadError, MAX_TOTAL_SAMPLES};
+use super::{Format, MAX_TOTAL_SAMPLES, Opened, ReadError, file_len};
 use crate::recording::{Annotation, Lead, LeadName, Recording, StandardLead};
 use crate::units::Hertz;
 
@@ -17,8 +17,8 @@ pub mod meta;
 pub mod tal;
 mod write;
 
-pub use header::{Fixed, Signal, ANNOTATION_LABEL};
-pub use write::{write, EdfWriteOptions};
+pub use header::{ANNOTATION_LABEL, Fixed, Signal};
+pub use write::{EdfWriteOptions, write};
 
 /// Raw bytes decoded per chunk of data records (about 4 MiB).
 const CHUNK_BYTES: u64 = 4 << 20;
@@ -51,9 +51,15 @@ fn is_ecg_label(label: &str) -> bool {
 
 /// Which signals become leads (same rate, ECG-like, voltage), with a warning for every other non-annotation
 /// signal.
-fn choose_leads(path: &Path, signals: &[Signal], duration_s: f64, warnings: &mut Vec<String>) -> Result<Vec<usize>, ReadError> {
-    let voltage: Vec<usize> =
-        (0..signals.len()).filter(|&i| !signals[i].is_annotations() && uv_per_unit(&signals[i].physical_dimension).is_some()).collect();
+fn choose_leads(
+    path: &Path,
+    signals: &[Signal],
+    duration_s: f64,
+    warnings: &mut Vec<String>,
+) -> Result<Vec<usize>, ReadError> {
+    let voltage: Vec<usize> = (0..signals.len())
+        .filter(|&i| !signals[i].is_annotations() && uv_per_unit(&signals[i].physical_dimension).is_some())
+        .collect();
     let ecg: Vec<usize> = voltage.iter().copied().filter(|&i| is_ecg_label(&signals[i].label)).collect();
     let pool = if ecg.is_empty() { voltage } else { ecg };
     let Some(max_spr) = pool.iter().map(|&i| signals[i].samples_per_record).max() else {
@@ -69,9 +75,18 @@ fn choose_leads(path: &Path, signals: &[Signal], duration_s: f64, warnings: &mut
         } else if !pool.contains(&i) {
             "not an ECG signal".to_string()
         } else {
-            format!("sampled at {} Hz, not the leads' {} Hz", s.samples_per_record as f64 / duration_s, max_spr as f64 / duration_s)
+            format!(
+                "sampled at {} Hz, not the leads' {} Hz",
+                s.samples_per_record as f64 / duration_s,
+                max_spr as f64 / duration_s
+            )
         };
-        warnings.push(format!("{}: signal {} ('{}') skipped: {why}", path.display(), i + 1, crate::io::printable(&s.label)));
+        warnings.push(format!(
+            "{}: signal {} ('{}') skipped: {why}",
+            path.display(),
+            i + 1,
+            crate::io::printable(&s.label)
+        ));
     }
     Ok(leads)
 }
@@ -92,7 +107,10 @@ pub fn read(path: &Path) -> Result<Opened, ReadError> {
     }
     let plus = fixed.reserved.starts_with("EDF+C");
     if len < fixed.header_bytes {
-        return Err(ReadError::invalid(path, format!("file is {len} bytes, shorter than its {}-byte header", fixed.header_bytes)));
+        return Err(ReadError::invalid(
+            path,
+            format!("file is {len} bytes, shorter than its {}-byte header", fixed.header_bytes),
+        ));
     }
     let mut sig_bytes = Vec::with_capacity(256 * fixed.n_signals);
     (&mut file).take(256 * fixed.n_signals as u64).read_to_end(&mut sig_bytes).map_err(|e| ReadError::io(path, e))?;
@@ -107,7 +125,11 @@ pub fn read(path: &Path) -> Result<Opened, ReadError> {
             match need {
                 Some(need) if need <= len => {
                     if need < len {
-                        warnings.push(format!("{}: {} bytes after the last data record ignored", path.display(), len - need));
+                        warnings.push(format!(
+                            "{}: {} bytes after the last data record ignored",
+                            path.display(),
+                            len - need
+                        ));
                     }
                     n
                 }
@@ -200,7 +222,11 @@ impl Data<'_> {
     ///
     /// Annotation onsets are returned relative to the first sample: EDF+ onsets count from the header's start
     /// time, and the first record may start a fraction of a second after it (its time-keeping TAL says when).
-    fn read_records(&self, file: &mut std::fs::File, warnings: &mut Vec<String>) -> Result<(Vec<Vec<f32>>, Vec<tal::TalAnnotation>), ReadError> {
+    fn read_records(
+        &self,
+        file: &mut std::fs::File,
+        warnings: &mut Vec<String>,
+    ) -> Result<(Vec<Vec<f32>>, Vec<tal::TalAnnotation>), ReadError> {
         let offsets: Vec<u64> = self
             .signals
             .iter()
@@ -279,7 +305,10 @@ impl Data<'_> {
             record += n;
         }
         if let Some(e) = first_tal_error {
-            warnings.push(format!("{}: annotations of {tal_errors} data records not read; first: {e}", self.path.display()));
+            warnings.push(format!(
+                "{}: annotations of {tal_errors} data records not read; first: {e}",
+                self.path.display()
+            ));
         }
         if time_gaps > 0 {
             warnings.push(format!(

@@ -66,15 +66,17 @@ pub fn parse_record(bytes: &[u8], base: u64) -> Result<RecordTals, String> {
         let onset_s = parse_time(onset_raw, true)
             .ok_or_else(|| format!("byte {here}: TAL onset '{}' is not +seconds", onset_raw.escape_ascii()))?;
         let duration_s = match dur_raw {
-            Some(d) => Some(parse_time(d, false).ok_or_else(|| {
-                format!("byte {here}: TAL duration '{}' is not seconds", d.escape_ascii())
-            })?),
+            Some(d) => Some(
+                parse_time(d, false)
+                    .ok_or_else(|| format!("byte {here}: TAL duration '{}' is not seconds", d.escape_ascii()))?,
+            ),
             None => None,
         };
         if !rest.is_empty() && rest.last() != Some(&0x14) {
             return Err(format!("byte {here}: TAL annotation not closed by 0x14"));
         }
-        let texts: Vec<&[u8]> = if rest.is_empty() { Vec::new() } else { rest[..rest.len() - 1].split(|&b| b == 0x14).collect() };
+        let texts: Vec<&[u8]> =
+            if rest.is_empty() { Vec::new() } else { rest[..rest.len() - 1].split(|&b| b == 0x14).collect() };
         let timekeeping = out.record_start_s.is_none();
         for (k, t) in texts.iter().enumerate() {
             if timekeeping && k == 0 && t.is_empty() {
@@ -87,7 +89,9 @@ pub fn parse_record(bytes: &[u8], base: u64) -> Result<RecordTals, String> {
             out.annotations.push(TalAnnotation { onset_s, duration_s, text: String::from_utf8_lossy(t).into_owned() });
         }
         if timekeeping && out.record_start_s.is_none() {
-            return Err(format!("byte {here}: the record's first TAL is not a time-keeping TAL (empty first annotation)"));
+            return Err(format!(
+                "byte {here}: the record's first TAL is not a time-keeping TAL (empty first annotation)"
+            ));
         }
         at = end + 1;
     }

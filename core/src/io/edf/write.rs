@@ -9,8 +9,8 @@ use std::io::Write;
 use std::path::Path;
 
 use super::header::bound_field;
-use super::{meta, tal, ANNOTATION_LABEL};
-use crate::io::{write_atomic, ReadError};
+use super::{ANNOTATION_LABEL, meta, tal};
+use crate::io::{ReadError, write_atomic};
 use crate::recording::{LeadName, Recording};
 
 /// Options for [`write`].
@@ -50,12 +50,7 @@ fn record_duration(fs: f64, n_leads: usize, n: usize) -> Option<(f64, usize)> {
         .collect();
     let fits = |&&(_, spr): &&(f64, usize)| 2 * spr * n_leads <= MAX_RECORD_BYTES;
     let divides = |&&(_, spr): &&(f64, usize)| n.is_multiple_of(spr) && spr >= 10;
-    whole
-        .iter()
-        .find(|c| fits(c) && divides(c))
-        .or_else(|| whole.iter().find(fits))
-        .or_else(|| whole.first())
-        .copied()
+    whole.iter().find(|c| fits(c) && divides(c)).or_else(|| whole.iter().find(fits)).or_else(|| whole.first()).copied()
 }
 
 /// The EDF+ label of a lead: `ECG <name>`, at most 16 ASCII characters.
@@ -108,8 +103,7 @@ pub fn write(path: &Path, rec: &Recording, opts: &EdfWriteOptions) -> Result<(),
     if n_records > 99_999_999 {
         return Err(ReadError::invalid(path, "more than 99 999 999 data records"));
     }
-    let leads =
-        rec.leads.iter().map(|l| plan_lead(path, &l.name, &l.samples)).collect::<Result<Vec<_>, _>>()?;
+    let leads = rec.leads.iter().map(|l| plan_lead(path, &l.name, &l.samples)).collect::<Result<Vec<_>, _>>()?;
 
     // Annotations: each goes into the record holding its sample (the last record for any beyond the end).
     let mut by_record: Vec<(usize, usize)> =

@@ -91,7 +91,11 @@ pub fn parse_header(path: &Path, text: &str) -> Result<Header, ReadError> {
     if sig_lines.len() < record.n_signals {
         return Err(ReadError::invalid(
             path,
-            format!("record line promises {} signals but the header has {} signal lines", record.n_signals, sig_lines.len()),
+            format!(
+                "record line promises {} signals but the header has {} signal lines",
+                record.n_signals,
+                sig_lines.len()
+            ),
         ));
     }
     let signals = sig_lines[..record.n_signals]
@@ -109,7 +113,10 @@ fn parse_record_line(path: &Path, no: usize, line: &str) -> Result<RecordLine, R
     let f: Vec<&str> = line.split_whitespace().collect();
     let name_field = f.first().copied().unwrap_or_default();
     if name_field.contains('/') {
-        return Err(ReadError::unsupported(path, format!("line {no}: multi-segment record '{}'", crate::io::printable(name_field))));
+        return Err(ReadError::unsupported(
+            path,
+            format!("line {no}: multi-segment record '{}'", crate::io::printable(name_field)),
+        ));
     }
     let n_signals = f
         .get(1)
@@ -150,7 +157,10 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
     }
     let file = f[0].to_string();
     if file == "-" || file.contains('/') || file.contains('\\') || file.contains("..") {
-        return Err(ReadError::unsupported(path, format!("line {no}: signal file name '{}'", crate::io::printable(&file))));
+        return Err(ReadError::unsupported(
+            path,
+            format!("line {no}: signal file name '{}'", crate::io::printable(&file)),
+        ));
     }
     // format[xsamp][:skew][+offset]
     let fmt_field = f[1];
@@ -162,7 +172,10 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
         let e = x.find([':', '+']).unwrap_or(x.len());
         let xs: u32 = x[..e].parse().map_err(|_| field_err(path, no, "samples per frame", fmt_field))?;
         if xs > 1 {
-            return Err(ReadError::unsupported(path, format!("line {no}: {xs} samples per frame (multi-rate signals)")));
+            return Err(ReadError::unsupported(
+                path,
+                format!("line {no}: {xs} samples per frame (multi-rate signals)"),
+            ));
         }
         rest = &x[e..];
     }
@@ -243,4 +256,3 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
         description,
     })
 }
-

@@ -9,14 +9,14 @@
 
 use std::path::{Path, PathBuf};
 
-use super::{file_len, read_bytes, Format, Opened, ReadError, MAX_TOTAL_SAMPLES};
+use super::{Format, MAX_TOTAL_SAMPLES, Opened, ReadError, file_len, read_bytes};
 use crate::recording::{Lead, LeadName, Meta, Recording};
 use crate::units::Hertz;
 
 mod header;
 pub mod signal;
 
-pub use header::{header_path, parse_header, Header, RecordLine, SignalLine};
+pub use header::{Header, RecordLine, SignalLine, header_path, parse_header};
 
 /// Largest header read (1 MiB).
 const MAX_HEADER_BYTES: u64 = 1 << 20;
@@ -108,16 +108,9 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
     let mut leads: Vec<Option<Lead>> = vec![None; header.signals.len()];
     let mut files = vec![hea.clone()];
     for plan in plans {
-        let group_scales: Vec<(f64, f64)> =
-            plan.signals.iter().map(|&i| scales[i].unwrap_or((0.0, 0.0))).collect();
-        let decoded = signal::read_signals(
-            &plan.path,
-            plan.format,
-            plan.offset,
-            plan.signals.len(),
-            n_frames,
-            &group_scales,
-        )?;
+        let group_scales: Vec<(f64, f64)> = plan.signals.iter().map(|&i| scales[i].unwrap_or((0.0, 0.0))).collect();
+        let decoded =
+            signal::read_signals(&plan.path, plan.format, plan.offset, plan.signals.len(), n_frames, &group_scales)?;
         for ((samples, sum), &sig) in decoded.samples.into_iter().zip(decoded.checksums).zip(&plan.signals) {
             let s = &header.signals[sig];
             if complete && s.checksum.is_some_and(|c| c != sum) {
@@ -168,7 +161,10 @@ fn plan_files(hea: &Path, dir: &Path, header: &Header) -> Result<Vec<FilePlan>, 
                 ));
             }
             if p.signals.last().is_some_and(|&last| last + 1 != i) {
-                return Err(ReadError::unsupported(hea, format!("signal {}: file {} is not contiguous", i + 1, s.file)));
+                return Err(ReadError::unsupported(
+                    hea,
+                    format!("signal {}: file {} is not contiguous", i + 1, s.file),
+                ));
             }
             p.signals.push(i);
         } else {
@@ -243,7 +239,10 @@ mod tests {
     #[test]
     fn parses_quirky_headers() -> Result<(), ReadError> {
         let p = Path::new("x.hea");
-        let h = parse_header(p, "# c\r\n\r\nsel100 2 250/360 225000\r\nsel100.dat 212 200(0) 11 1024 945 -13873 0 MLII\r\nsel100.dat 212 200(0) 11 1024 955 14507 0 V5\r\n")?;
+        let h = parse_header(
+            p,
+            "# c\r\n\r\nsel100 2 250/360 225000\r\nsel100.dat 212 200(0) 11 1024 945 -13873 0 MLII\r\nsel100.dat 212 200(0) 11 1024 955 14507 0 V5\r\n",
+        )?;
         assert_eq!(h.record.fs_hz, 250.0);
         assert_eq!(h.record.n_samples, Some(225000));
         assert_eq!(h.signals[0].baseline, 0.0);

@@ -52,10 +52,8 @@ pub fn read_signals(
         .ok_or_else(|| ReadError::unsupported(path, format!("signal format {format} (supported: 16, 61, 80, 212)")))?;
     let mut file = std::fs::File::open(path).map_err(|e| ReadError::io(path, e))?;
     file.seek(SeekFrom::Start(offset)).map_err(|e| ReadError::io(path, e))?;
-    let mut out = Decoded {
-        samples: (0..n_sig).map(|_| Vec::with_capacity(n_frames)).collect(),
-        checksums: vec![0; n_sig],
-    };
+    let mut out =
+        Decoded { samples: (0..n_sig).map(|_| Vec::with_capacity(n_frames)).collect(), checksums: vec![0; n_sig] };
     let mut sums = vec![0u16; n_sig];
     let mut buf = Vec::new();
     let mut done = 0usize;
@@ -69,7 +67,10 @@ pub fn read_signals(
         let short = need - buf.len();
         if short > usize::from(format == 212) {
             let at = offset + (done as f64 * fb) as u64 + buf.len() as u64;
-            return Err(ReadError::invalid(path, format!("byte {at}: signal file ends before sample {}", done + frames)));
+            return Err(ReadError::invalid(
+                path,
+                format!("byte {at}: signal file ends before sample {}", done + frames),
+            ));
         }
         buf.resize(need, 0);
         decode_into(format, &buf, n_sig, frames, scales, &mut out.samples, &mut sums);
