@@ -174,7 +174,7 @@ mod no_panic {
             for b in &beats {
                 prop_assert!(b.r < len);
                 for v in [b.bounds.p_on, b.bounds.p_end, b.bounds.qrs_on, b.bounds.qrs_end, b.bounds.t_end].into_iter().flatten() {
-                    prop_assert!(v < len);
+                    prop_assert!(v < len, "{:?} len {}", b, len);
                 }
             }
             if let Some(rep) = representative_beat(&f.recording, &beats) {

@@ -59,7 +59,8 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
     // (a U wave or the next P wave), not as the last lead to finish.
     let med = ends[ends.len() / 2];
     let latest = ends.iter().copied().filter(|&e| e <= med + AGREE_S * sig.fs).fold(f64::NEG_INFINITY, f64::max);
-    (latest.is_finite() && latest >= from as f64).then(|| latest.round() as usize)
+    // A tangent that lands past the last sample gives no T end (the recording stops before the wave does).
+    (latest.is_finite() && latest >= from as f64 && latest.round() < n as f64).then(|| latest.round() as usize)
 }
 
 /// T end on one lead, or `None` when the tangent is flat or lands outside the search window.
