@@ -33,8 +33,8 @@ pub fn analyze(recording: &Recording, settings: &FilterSettings) -> Analysis {
     let filtered = filter::apply(recording, settings);
     let rec = &filtered.recording;
     let mut beats = detect::detect_beats(rec);
-    delineate::delineate_beats(rec, &mut beats);
-    let representative = delineate::representative_beat(rec, &beats);
+    let p_model = delineate::delineate_beats(rec, &mut beats);
+    let representative = delineate::representative_beat_with(rec, &beats, p_model.as_ref());
     let measurements = measure::measure(rec, &beats, representative.as_ref().map(template_of).as_ref());
     Analysis { filtered, beats, representative, measurements }
 }

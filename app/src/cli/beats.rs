@@ -42,6 +42,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         anyhow::bail!("{}: the recording has no samples", args.file.display());
     }
     let filtered = filter::apply(raw, &filter::FilterSettings::default());
+    // Only the filtered copy is needed from here on (a 24-h recording is hundreds of MB).
+    drop(opened);
     let rec = &filtered.recording;
     let mut beats = detect::detect_beats(rec);
     delineate::delineate_beats(rec, &mut beats);

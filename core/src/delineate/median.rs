@@ -1,7 +1,7 @@
 //! The representative beat: the sample-by-sample median of the dominant beats aligned on their R peaks, per
 //! lead, delineated with the same method as single beats (its P wave only when the record's P is consistent).
 
-use super::{Signals, beat_t_end, delineate_with, median_rr, qrs};
+use super::{PModel, Signals, beat_t_end, delineate_with, median_rr, qrs};
 use crate::beat::{Beat, BeatKind, Boundaries};
 use crate::recording::Recording;
 use crate::units::Hertz;
@@ -26,9 +26,28 @@ pub struct RepresentativeBeat {
 }
 
 /// Builds and delineates the representative beat from the dominant beats (all beats when none is dominant).
-/// `recording` should be baseline-corrected. `None` with fewer than 3 usable beats.
+/// `recording` should be baseline-corrected. `None` with fewer than 3 usable beats. Delineates the whole
+/// recording again to get its P model; when the beats were just delineated, pass that model to
+/// [`representative_beat_with`] instead.
 #[must_use]
 pub fn representative_beat(recording: &Recording, beats: &[Beat]) -> Option<RepresentativeBeat> {
+    // The record's P model comes from delineating the beats themselves.
+    let views: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
+    let full = Signals::new(&views, recording.sample_rate.hz());
+    let mut scratch = beats.to_vec();
+    let p_model = delineate_with(&full, &mut scratch);
+    drop(full);
+    representative_beat_with(recording, beats, p_model.as_ref())
+}
+
+/// [`representative_beat`] with the record's P model already known (the value [`super::delineate_beats`]
+/// returned for these beats; `None` = the record has no consistent P wave).
+#[must_use]
+pub fn representative_beat_with(
+    recording: &Recording,
+    beats: &[Beat],
+    p_model: Option<&PModel>,
+) -> Option<RepresentativeBeat> {
     let fs = recording.sample_rate.hz();
     let n = recording.len();
     let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
@@ -61,12 +80,6 @@ pub fn representative_beat(recording: &Recording, beats: &[Beat]) -> Option<Repr
                 .collect()
         })
         .collect();
-    // The record's P model comes from delineating the beats themselves.
-    let views: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
-    let full = Signals::new(&views, fs);
-    let mut scratch = beats.to_vec();
-    let p_model = delineate_with(&full, &mut scratch);
-
     let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
     let sig = Signals::new(&refs, fs);
     let (on, end) = qrs::qrs_bounds(&sig, before, 0, before + after);

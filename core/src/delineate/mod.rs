@@ -11,7 +11,7 @@ mod qrs;
 mod signals;
 mod twave;
 
-pub use median::{RepresentativeBeat, representative_beat};
+pub use median::{RepresentativeBeat, representative_beat, representative_beat_with};
 pub use pwave::PModel;
 pub use signals::Signals;
 
@@ -31,11 +31,12 @@ const T_RR_FRACTION: f64 = 0.65;
 const T_OUTLIER_S: f64 = 0.100;
 
 /// Fills every beat's boundaries from `recording`, which should be baseline-corrected (see
-/// [`crate::filter::apply`]). Beats must be in time order.
-pub fn delineate_beats(recording: &Recording, beats: &mut [Beat]) {
+/// [`crate::filter::apply`]). Beats must be in time order. Returns the record's P model (see
+/// [`delineate_with`]) for [`representative_beat_with`].
+pub fn delineate_beats(recording: &Recording, beats: &mut [Beat]) -> Option<PModel> {
     let leads: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
     let sig = Signals::new(&leads, recording.sample_rate.hz());
-    delineate_with(&sig, beats);
+    delineate_with(&sig, beats)
 }
 
 /// Delineates beats on prepared signals and returns the record's P model (if it has a consistent P wave).

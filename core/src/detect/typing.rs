@@ -9,6 +9,14 @@ const MIN_CORR: f64 = 0.90;
 /// An RR below this fraction of the local median RR is premature.
 // Common practice, no source: 15 % prematurity is a usual cut for supraventricular ectopy.
 const PREMATURE: f64 = 0.85;
+/// How many standard deviations of the surrounding RRs an RR must fall below the local median to count as
+/// premature: in an irregular rhythm (atrial fibrillation, marked sinus arrhythmia) a short RR is ordinary and
+/// says nothing about the beat's origin. The SD is estimated robustly (1.4826 × MAD), see `premature_beats`.
+// Common practice, no source: a 3-SD outlier rule on a robust spread.
+const OUTLIER_SD: f64 = 3.0;
+/// Fewest ordinary RRs (not right after a short one) within 16 RRs either side of a beat to judge the local
+/// variability; with fewer (a run of premature beats) prematurity alone decides.
+const MIN_ORDINARY: usize = 3;
 /// Most beats used to build the template.
 const TEMPLATE_BEATS: usize = 301;
 
@@ -47,13 +55,12 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> V
     if close.len() * 3 >= pool.len() {
         template = median_template(&close, len);
     }
-    let rr_local = local_median_rr(r);
+    let premature = premature_beats(r);
     snippets
         .iter()
-        .enumerate()
-        .map(|(i, s)| {
+        .zip(premature)
+        .map(|(s, premature)| {
             let shape_ok = s.as_ref().is_none_or(|s| correlation(s, &template) >= MIN_CORR);
-            let premature = i > 0 && rr_local[i].is_some_and(|m| ((r[i] - r[i - 1]) as f64) < PREMATURE * m);
             shape_ok && !premature
         })
         .collect()
@@ -96,22 +103,50 @@ pub fn correlation(x: &[f32], y: &[f32]) -> f64 {
     if cxx <= 0.0 || cyy <= 0.0 { 0.0 } else { cxy / (cxx * cyy).sqrt() }
 }
 
-/// Median of the RR intervals of the 8 beats before and 8 after each beat (samples), `None` for beat 0.
-fn local_median_rr(r: &[usize]) -> Vec<Option<f64>> {
+/// Which beats are premature for their rhythm: the RR ending at the beat is below [`PREMATURE`] × the median of
+/// the 8 RRs before and 8 after, AND — when enough ordinary RRs surround it — more than [`OUTLIER_SD`] SDs
+/// (of the 16 RRs before and 16 after) below that median. So in a regular rhythm a 15 % early beat is
+/// premature, while in atrial fibrillation or an irregular sinus rhythm, where short RRs are ordinary, a beat
+/// is `other` only by its shape.
+fn premature_beats(r: &[usize]) -> Vec<bool> {
     let rr: Vec<f64> = r.windows(2).map(|w| (w[1] - w[0]) as f64).collect();
     let mut buf = Vec::with_capacity(17);
+    let mut ordinary = Vec::with_capacity(33);
     (0..r.len())
         .map(|i| {
             if i == 0 || rr.is_empty() {
-                return None;
+                return false;
             }
             let j = i - 1; // rr[j] ends at beat i
             buf.clear();
             buf.extend_from_slice(&rr[j.saturating_sub(8)..(j + 9).min(rr.len())]);
-            buf.sort_by(f64::total_cmp);
-            Some(buf[buf.len() / 2])
+            let m = median(&mut buf);
+            let short = |k: usize| rr[k] < PREMATURE * m;
+            if !short(j) {
+                return false;
+            }
+            // The spread of the 16 RRs before and 16 after: 1.4826 × their median absolute deviation from m
+            // (the SD of a normal spread). Leaves out this beat's own RR, the pause after it and every RR
+            // right after a short one (pauses of other premature beats).
+            ordinary.clear();
+            ordinary.extend(
+                (j.saturating_sub(16)..(j + 17).min(rr.len()))
+                    .filter(|&k| k != j && k != j + 1 && (k == 0 || !short(k - 1)))
+                    .map(|k| (rr[k] - m).abs()),
+            );
+            if ordinary.len() < MIN_ORDINARY {
+                return true;
+            }
+            let sd = 1.4826 * median(&mut ordinary);
+            rr[j] < m - OUTLIER_SD * sd
         })
         .collect()
+}
+
+/// Median of a non-empty buffer (reorders it).
+fn median(v: &mut [f64]) -> f64 {
+    let mid = v.len() / 2;
+    *v.select_nth_unstable_by(mid, f64::total_cmp).1
 }
 
 #[cfg(test)]
@@ -148,5 +183,47 @@ mod tests {
         let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs);
         assert!(!dom[10]);
         assert_eq!(dom.iter().filter(|&&d| d).count(), r.len() - 1);
+    }
+
+    /// R peaks from RRs (samples), starting at 200.
+    fn peaks(rr: &[usize]) -> Vec<usize> {
+        let mut r = vec![200];
+        for v in rr {
+            r.push(r[r.len() - 1] + v);
+        }
+        r
+    }
+
+    #[test]
+    fn early_beat_in_a_regular_rhythm_is_premature() {
+        let mut rr: Vec<usize> = (0..30).map(|k| 200 + k % 3).collect();
+        rr[15] = 160; // 20 % early
+        rr[16] = 240; // compensatory pause
+        let p = premature_beats(&peaks(&rr));
+        assert_eq!(p.iter().filter(|&&b| b).count(), 1);
+        assert!(p[16]);
+    }
+
+    #[test]
+    fn short_rrs_of_an_irregular_rhythm_are_not_premature() {
+        // RRs varying ±25 % beat to beat (fixed pseudo-random pattern), as in atrial fibrillation.
+        let mut state = 11u64;
+        let rr: Vec<usize> = (0..60)
+            .map(|_| {
+                state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+                (200.0 * (0.75 + 0.5 * ((state >> 33) as f64 / (1u64 << 31) as f64))) as usize
+            })
+            .collect();
+        assert!(rr.iter().filter(|&&v| v < 170).count() >= 5, "the pattern must hold short RRs");
+        assert!(premature_beats(&peaks(&rr)).iter().all(|&b| !b));
+    }
+
+    #[test]
+    fn trigeminy_stays_premature() {
+        // Normal, short, pause, normal, short, pause…: the early beats stand out from the steady normal RRs.
+        let rr: Vec<usize> = (0..30).map(|k| [200, 140, 250][k % 3]).collect();
+        let p = premature_beats(&peaks(&rr));
+        let expected: Vec<bool> = (0..p.len()).map(|i| i > 0 && (i - 1) % 3 == 1).collect();
+        assert_eq!(p, expected);
     }
 }
