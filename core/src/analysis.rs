@@ -44,7 +44,6 @@ impl Analysis {
     /// intervals, QTc, axes, ST and notes follow; beats and RR statistics are unchanged.
     pub fn remeasure(&mut self) {
         let rec = &self.filtered.recording;
-        self.measurements =
-            measure::measure(rec, &self.beats, self.representative.as_ref().map(template_of).as_ref());
+        self.measurements = measure::measure(rec, &self.beats, self.representative.as_ref().map(template_of).as_ref());
     }
 }

@@ -26,7 +26,10 @@ pub fn match_beats(reference: &[f64], detected: &[f64], window: f64) -> Vec<(usi
                 continue;
             }
             let k = k as usize;
-            if !used[k] && (detected[k] - r).abs() <= window && best.is_none_or(|b| (detected[k] - r).abs() < (detected[b] - r).abs()) {
+            if !used[k]
+                && (detected[k] - r).abs() <= window
+                && best.is_none_or(|b| (detected[k] - r).abs() < (detected[b] - r).abs())
+            {
                 best = Some(k);
             }
         }
@@ -183,7 +186,8 @@ pub fn read_reference_csv(path: &Path) -> Result<Vec<BeatMarks>, String> {
     let mut lines = text.lines();
     let header: Vec<&str> = lines.next().unwrap_or_default().split(',').map(str::trim).collect();
     let col = |name: &str| header.iter().position(|h| *h == name);
-    let r_col = col("r_sample").or_else(|| col("sample")).ok_or_else(|| format!("{}: no sample column", path.display()))?;
+    let r_col =
+        col("r_sample").or_else(|| col("sample")).ok_or_else(|| format!("{}: no sample column", path.display()))?;
     let key_cols: Vec<Option<usize>> = KEYS.iter().map(|k| col(k)).collect();
     let mut out = Vec::new();
     for (ln, line) in lines.enumerate() {
@@ -226,7 +230,11 @@ pub fn group_wave_annotations(anns: &[Annotation], fs: f64) -> Vec<BeatMarks> {
     let find = |chan: i32, label: &str, num: i32, lo: f64, hi: f64, last: bool| -> Option<f64> {
         let it = anns.iter().filter(|a| a.chan == chan && a.label == label && a.num == num).map(|a| a.sample as f64);
         let inside = it.filter(|&s| s >= lo && s <= hi);
-        if last { inside.fold(None, |m, s| Some(m.map_or(s, |m: f64| m.max(s)))) } else { inside.fold(None, |m, s| Some(m.map_or(s, |m: f64| m.min(s)))) }
+        if last {
+            inside.fold(None, |m, s| Some(m.map_or(s, |m: f64| m.max(s))))
+        } else {
+            inside.fold(None, |m, s| Some(m.map_or(s, |m: f64| m.min(s))))
+        }
     };
     let mut out = Vec::new();
     for (i, &r) in beats.iter().enumerate() {

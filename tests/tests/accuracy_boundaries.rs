@@ -10,7 +10,9 @@
 
 use isoline_core::io::wfdb_annotations;
 use isoline_tests::data;
-use isoline_tests::score::{BeatMarks, BoundaryErrors, KEYS, beats_of, group_wave_annotations, read_reference_csv, score_boundaries};
+use isoline_tests::score::{
+    BeatMarks, BoundaryErrors, KEYS, beats_of, group_wave_annotations, read_reference_csv, score_boundaries,
+};
 
 const QTDB: [&str; 6] = ["sel100", "sel117", "sel16265", "sel803", "sele0104", "sel14046"];
 
@@ -39,7 +41,8 @@ fn check(e: &BoundaryErrors, bounds: [(f64, f64); 4], min_found: f64) {
 
 #[test]
 fn qtdb_boundaries_against_cardiologist_1() -> Result<(), String> {
-    let (mut ours, mut second, mut pu) = (BoundaryErrors::default(), BoundaryErrors::default(), BoundaryErrors::default());
+    let (mut ours, mut second, mut pu) =
+        (BoundaryErrors::default(), BoundaryErrors::default(), BoundaryErrors::default());
     for rec in QTDB {
         let (recording, beats) = beats_of(&data(&format!("qtdb/{rec}.hea")))?;
         let fs = recording.sample_rate.hz();

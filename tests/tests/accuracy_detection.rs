@@ -28,7 +28,14 @@ fn detection_se_and_ppv_at_least_99_5_percent_pooled() -> Result<(), String> {
         println!("{rec}: TP {} FN {} FP {}  Se {:.3} % +P {:.3} %", d.tp, d.fn_, d.fp, d.se(), d.ppv());
         pooled.add(d);
     }
-    println!("pooled: TP {} FN {} FP {}  Se {:.3} % +P {:.3} %", pooled.tp, pooled.fn_, pooled.fp, pooled.se(), pooled.ppv());
+    println!(
+        "pooled: TP {} FN {} FP {}  Se {:.3} % +P {:.3} %",
+        pooled.tp,
+        pooled.fn_,
+        pooled.fp,
+        pooled.se(),
+        pooled.ppv()
+    );
     // Source: goal of the measurement-engine issue, scored as ANSI/AAMI EC57 does.
     assert!(pooled.se() >= 99.5, "Se {:.3} %", pooled.se());
     assert!(pooled.ppv() >= 99.5, "+P {:.3} %", pooled.ppv());

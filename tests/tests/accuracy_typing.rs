@@ -27,8 +27,14 @@ fn typing_of(scenario: Scenario, seed: u64) -> Result<[usize; 4], String> {
         let other = beats[d].kind == BeatKind::Other;
         counts[usize::from(ectopic) * 2 + usize::from(other)] += 1;
     }
-    println!("{} seed {seed}: sinus→dominant {} sinus→other {} ectopic→dominant {} ectopic→other {}",
-        scenario.name(), counts[0], counts[1], counts[2], counts[3]);
+    println!(
+        "{} seed {seed}: sinus→dominant {} sinus→other {} ectopic→dominant {} ectopic→other {}",
+        scenario.name(),
+        counts[0],
+        counts[1],
+        counts[2],
+        counts[3]
+    );
     Ok(counts)
 }
 

@@ -83,7 +83,14 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
 /// T end of the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples): the T wave is sought from
 /// 50 ms after the J point (at least 100 ms after R) to the lesser of [`T_MAX_S`] and [`T_RR_FRACTION`] of the
 /// RR after R, and never at or past `limit`.
-fn beat_t_end(sig: &Signals, r: usize, on: Option<usize>, end: Option<usize>, rr: usize, limit: usize) -> Option<usize> {
+fn beat_t_end(
+    sig: &Signals,
+    r: usize,
+    on: Option<usize>,
+    end: Option<usize>,
+    rr: usize,
+    limit: usize,
+) -> Option<usize> {
     let earliest = r + sig.samples(0.100);
     let from = end.map_or(earliest, |e| (e + sig.samples(0.050)).max(earliest));
     let to = (r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(limit.saturating_sub(1));

@@ -76,8 +76,10 @@ fn segment_of(sig: &Signals, leads: &[Vec<f32>], qrs_on: usize, lag: isize) -> O
 #[must_use]
 pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let w = window(sig);
-    let segs: Vec<(Vec<Vec<f32>>, usize)> =
-        onsets.iter().filter_map(|&(on, earliest)| segment(sig, on, 0).map(|s| (s, on.saturating_sub(earliest)))).collect();
+    let segs: Vec<(Vec<Vec<f32>>, usize)> = onsets
+        .iter()
+        .filter_map(|&(on, earliest)| segment(sig, on, 0).map(|s| (s, on.saturating_sub(earliest))))
+        .collect();
     if segs.len() < 3 {
         return None;
     }
@@ -137,12 +139,8 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let end = (down..=end_to)
         .find(|&k| env[k] <= quiet_after + EDGE_FRACTION * (env[down] - quiet_after))
         .or_else(|| quietest(down..=end_to))?;
-    let mut m = PModel {
-        on_rel: on as isize - w as isize,
-        end_rel: end as isize - w as isize,
-        template,
-        consistency: 0.0,
-    };
+    let mut m =
+        PModel { on_rel: on as isize - w as isize, end_rel: end as isize - w as isize, template, consistency: 0.0 };
     let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
     m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
     (m.consistency >= MIN_CONSISTENCY).then_some(m)

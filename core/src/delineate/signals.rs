@@ -1,7 +1,7 @@
 //! Signals shared by the boundary finders: each lead low-passed for the QRS (40 Hz) and for P and T (12 Hz),
 //! and the multi-lead QRS slope envelope.
 
-use crate::filter::{Biquad, filtfilt, fill_invalid};
+use crate::filter::{Biquad, fill_invalid, filtfilt};
 
 /// Low-pass cutoff for QRS boundaries, Hz.
 const QRS_LP_HZ: f64 = 40.0;
@@ -98,7 +98,8 @@ pub fn smooth(x: &[f32], w: usize) -> Vec<f32> {
 /// A lead's typical QRS slope: the 99th percentile of |slope| (QRS complexes fill ≈ 10 % of a recording).
 fn slope_scale(q: &[f32]) -> f32 {
     let step = (q.len() / 100_000).max(1);
-    let mut v: Vec<f32> = (1..q.len().saturating_sub(1)).step_by(step).map(|k| ((q[k + 1] - q[k - 1]) * 0.5).abs()).collect();
+    let mut v: Vec<f32> =
+        (1..q.len().saturating_sub(1)).step_by(step).map(|k| ((q[k + 1] - q[k - 1]) * 0.5).abs()).collect();
     if v.is_empty() {
         return 0.0;
     }

@@ -58,13 +58,19 @@ fn synth(rs: &[f64], seconds: f64, with_p: bool, fib: bool) -> (Recording, Vec<T
         for (l, lead) in leads.iter_mut().enumerate() {
             for (k, v) in lead.iter_mut().enumerate() {
                 let t = k as f64 / FS;
-                let f = (2.0 * PI * 5.3 * t + l as f64).sin() + (2.0 * PI * 7.1 * t + 0.3).sin() + (2.0 * PI * 6.2 * t).sin();
+                let f = (2.0 * PI * 5.3 * t + l as f64).sin()
+                    + (2.0 * PI * 7.1 * t + 0.3).sin()
+                    + (2.0 * PI * 6.2 * t).sin();
                 *v += (f * 25.0) as f32;
             }
         }
     }
     let rec = Recording {
-        leads: leads.into_iter().enumerate().map(|(i, s)| Lead { name: LeadName::parse(&format!("L{i}")), samples: s }).collect(),
+        leads: leads
+            .into_iter()
+            .enumerate()
+            .map(|(i, s)| Lead { name: LeadName::parse(&format!("L{i}")), samples: s })
+            .collect(),
         sample_rate: Hertz::from_hz(FS).unwrap_or_else(|_| unreachable!()),
         start: None,
         meta: Meta::default(),

@@ -52,8 +52,7 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
     if biggest < MIN_T_UV {
         return None;
     }
-    let mut ends: Vec<f64> =
-        found.iter().filter(|t| t.amplitude.abs() >= RELIABLE * biggest).map(|t| t.end).collect();
+    let mut ends: Vec<f64> = found.iter().filter(|t| t.amplitude.abs() >= RELIABLE * biggest).map(|t| t.end).collect();
     ends.sort_by(f64::total_cmp);
     // Latest end among the leads that agree: a lead more than AGREE_S past the median lead is taken as misled
     // (a U wave or the next P wave), not as the last lead to finish.
@@ -71,7 +70,8 @@ fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap:
     // Terminal lobe: an opposite-sign extremum after the main one, big enough, makes the T biphasic.
     let mut peak = main;
     if main < to {
-        let opp = (main + 1..=to.min(main + gap)).max_by(|&i, &j| (-dev(i) * a_main.signum()).total_cmp(&(-dev(j) * a_main.signum())));
+        let opp = (main + 1..=to.min(main + gap))
+            .max_by(|&i, &j| (-dev(i) * a_main.signum()).total_cmp(&(-dev(j) * a_main.signum())));
         if let Some(o) = opp
             && -dev(o) * a_main.signum() >= BIPHASIC * a_main.abs()
             && o + 2 < to

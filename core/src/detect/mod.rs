@@ -31,21 +31,15 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     let peaks = peaks::pick(&f.combined, fs);
     let r = place_r(&leads, &f.weights, &peaks, fs);
     let dominant = typing::dominant(&leads, &f.weights, &r, fs);
-    r.iter()
-        .zip(dominant)
-        .map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other }))
-        .collect()
+    r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
 }
 
 /// Places each R peak on the lead with the clearest QRS: the sample of largest absolute deflection (of a
 /// short running median, which ignores pacing spikes) from the local mean within ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks
 /// strictly increasing.
 fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
-    let best = weights
-        .iter()
-        .enumerate()
-        .max_by(|a, b| a.1.total_cmp(b.1).then_with(|| b.0.cmp(&a.0)))
-        .map_or(0, |(i, _)| i);
+    let best =
+        weights.iter().enumerate().max_by(|a, b| a.1.total_cmp(b.1).then_with(|| b.0.cmp(&a.0))).map_or(0, |(i, _)| i);
     let lead = leads[best];
     let n = lead.len();
     let h = (R_SEARCH_S * fs) as usize;
@@ -86,9 +80,7 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
 pub fn rr_ms(beats: &[Beat], fs: Hertz) -> Vec<Option<f64>> {
     let mut out = Vec::with_capacity(beats.len());
     for (i, b) in beats.iter().enumerate() {
-        out.push(
-            (i > 0 && b.r > beats[i - 1].r).then(|| fs.ms_from_samples((b.r - beats[i - 1].r) as f64)),
-        );
+        out.push((i > 0 && b.r > beats[i - 1].r).then(|| fs.ms_from_samples((b.r - beats[i - 1].r) as f64)));
     }
     out
 }

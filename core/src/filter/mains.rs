@@ -24,13 +24,17 @@ pub fn detect_mains<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], fs_hz: f64)
     let ratio = |f: f64| -> f64 {
         let bin = |hz: f64| ((hz / df).round() as usize).min(SEG / 2);
         let line = (bin(f - 0.6)..=bin(f + 0.6)).map(|k| psd[k]).fold(0.0, f64::max);
-        let mut around: Vec<f64> = (bin(f - 6.0)..=bin(f + 6.0))
-            .filter(|&k| (k as f64 * df - f).abs() > 2.0)
-            .map(|k| psd[k])
-            .collect();
+        let mut around: Vec<f64> =
+            (bin(f - 6.0)..=bin(f + 6.0)).filter(|&k| (k as f64 * df - f).abs() > 2.0).map(|k| psd[k]).collect();
         around.sort_by(f64::total_cmp);
         let med = around.get(around.len() / 2).copied().unwrap_or(0.0);
-        if med > 0.0 { line / med } else if line > 0.0 { f64::INFINITY } else { 0.0 }
+        if med > 0.0 {
+            line / med
+        } else if line > 0.0 {
+            f64::INFINITY
+        } else {
+            0.0
+        }
     };
     let (r50, r60) = (ratio(50.0), if fs_hz > 2.0 * 67.0 { ratio(60.0) } else { 0.0 });
     let best = if r50 >= r60 { (50.0, r50) } else { (60.0, r60) };
@@ -42,9 +46,8 @@ pub fn detect_mains<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], fs_hz: f64)
 fn averaged_spectrum<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], n: usize) -> Vec<f64> {
     let mut planner = FftPlanner::<f64>::new();
     let fft = planner.plan_fft_forward(SEG);
-    let window: Vec<f64> = (0..SEG)
-        .map(|k| 0.5 - 0.5 * (2.0 * std::f64::consts::PI * k as f64 / SEG as f64).cos())
-        .collect();
+    let window: Vec<f64> =
+        (0..SEG).map(|k| 0.5 - 0.5 * (2.0 * std::f64::consts::PI * k as f64 / SEG as f64).cos()).collect();
     let count = (n / SEG).clamp(1, MAX_SEGMENTS);
     let step = if count > 1 { (n - SEG) / (count - 1) } else { 0 };
     let mut psd = vec![0.0; SEG / 2 + 1];
@@ -56,7 +59,11 @@ fn averaged_spectrum<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], n: usize) 
         }
         for s in 0..count {
             let seg = &lead[s * step..s * step + SEG];
-            let (sum, valid) = seg.iter().map(|&v| v.into()).filter(|v: &f64| v.is_finite()).fold((0.0, 0usize), |(a, k), v| (a + v, k + 1));
+            let (sum, valid) = seg
+                .iter()
+                .map(|&v| v.into())
+                .filter(|v: &f64| v.is_finite())
+                .fold((0.0, 0usize), |(a, k), v| (a + v, k + 1));
             let mean = if valid > 0 { sum / valid as f64 } else { 0.0 };
             for (b, (&v, &w)) in buf.iter_mut().zip(seg.iter().zip(&window)) {
                 let v: f64 = v.into();

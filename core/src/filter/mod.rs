@@ -7,7 +7,7 @@
 mod iir;
 mod mains;
 
-pub use iir::{Biquad, BiquadState, filtfilt, fill_invalid};
+pub use iir::{Biquad, BiquadState, fill_invalid, filtfilt};
 pub use mains::detect_mains;
 
 use crate::recording::{Lead, Recording};
@@ -113,7 +113,11 @@ pub fn apply(recording: &Recording, settings: &FilterSettings) -> Filtered {
 /// Text for a filter set: pass band, then the notch (`0.5–150 Hz, 50 Hz notch`).
 fn describe(baseline: Option<f64>, mains: Option<f64>, lowpass: Option<f64>, nyquist: f64) -> String {
     let num = |f: f64| {
-        if (f - f.round()).abs() < 1e-9 { format!("{}", f.round() as i64) } else { format!("{f:.2}").trim_end_matches('0').to_string() }
+        if (f - f.round()).abs() < 1e-9 {
+            format!("{}", f.round() as i64)
+        } else {
+            format!("{f:.2}").trim_end_matches('0').to_string()
+        }
     };
     let lo = baseline.map_or_else(|| "0".to_string(), num);
     let hi = num(lowpass.unwrap_or(nyquist));
