@@ -1,4 +1,4 @@
-//! Wave boundaries: QRS onset and J point from the multi-lead slope envelope, T end by the tangent method,
+//! Wave boundaries: QRS onset and J point per lead, combined over the leads (see `qrs`), T end by the tangent method,
 //! P onset and end only where the record has a consistent P wave; and the representative (median) beat per
 //! lead with its own global boundaries found by the same method.
 //!

@@ -1,23 +1,33 @@
-//! QRS onset and J point from the multi-lead slope envelope: the QRS is where the summed |slope| of all leads
-//! (each lead scaled by its typical QRS slope, so every lead counts equally) stands high; its onset (end) is where the envelope, walking out from the steep part, falls to a set
-//! fraction of the way from the quiet level before (after) the QRS to the envelope's QRS peak. Summing the
-//! leads makes the boundaries global (the first lead to start and the last to finish move the envelope).
+//! QRS onset and J point, found per lead and combined into global boundaries. The steep part of the QRS comes
+//! from the multi-lead slope envelope; from there each lead's own |slope| (40 Hz signal, smoothed over
+//! ≈ 10 ms) is walked outward to where it falls a set fraction of the way from that lead's quiet level before
+//! (after) the QRS to its own QRS peak slope. Leads with a clear QRS vote: the global onset is a robust
+//! earliest of their onsets and the J point a robust latest of their ends (the usual 12-lead global QRS runs
+//! from the first lead to start to the last to finish).
 
-use super::signals::Signals;
+use super::signals::{Signals, smooth};
 
-/// Fraction of the envelope's rise above the quiet level that marks the onset.
+/// Fraction of a lead's slope rise above its quiet level that marks its onset or end.
 // Common practice, no source: slope-threshold delineators use 5–20 % of the QRS peak slope.
-const ON_FRACTION: f32 = 0.07;
-/// Fraction for the J point (the ST segment slopes, so its quiet level sits higher than the PR segment's).
-const END_FRACTION: f32 = 0.07;
+const EDGE_FRACTION: f32 = 0.05;
 /// The steep part of the QRS: envelope at least this fraction of its peak.
+// Common practice, no source.
 const STEEP: f32 = 0.4;
+/// A lead votes when its QRS peak slope is at least this fraction of the steepest lead's.
+// Common practice, no source: a lead with a small, flat QRS mostly shows noise and ST slope at its edges.
+const CLEAR_LEAD: f32 = 0.35;
+/// With at least this many voting leads, the global onset (end) is the second earliest (latest) lead's, so
+/// one noisy lead cannot move it; with fewer, the earliest (latest).
+// Common practice, no source.
+const ROBUST_LEADS: usize = 4;
+/// A lead's QRS end is sought at most this long after the steep part, s (later is ST or T slope).
+// Common practice, no source.
+const END_REACH_S: f64 = 0.120;
 
-/// QRS onset and J point around R peak `r`, as sample indices. `None` where the envelope gives no clear edge.
+/// QRS onset and J point around R peak `r`, as sample indices. `None` where no lead gives a clear edge.
 #[must_use]
 pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> (Option<usize>, Option<usize>) {
-    let env = &sig.env;
-    let n = env.len();
+    let n = sig.len();
     if n == 0 || r >= n {
         return (None, None);
     }
@@ -26,33 +36,78 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
     if lo >= hi {
         return (None, None);
     }
-    // Peak of the envelope near R.
     let near = (r.saturating_sub(sig.samples(0.060)).max(lo), (r + sig.samples(0.060)).min(hi));
-    let peak = (near.0..=near.1).map(|k| env[k]).fold(0.0f32, f32::max);
-    if peak <= 0.0 {
+    // Steep part from the multi-lead envelope: the first and last samples at ≥ STEEP of its peak near R.
+    let g = &sig.env;
+    let g_peak = (near.0..=near.1).map(|k| g[k]).fold(0.0f32, f32::max);
+    if g_peak <= 0.0 {
         return (None, None);
     }
-    // Steep region: the first and last samples at ≥ STEEP·peak, grown outward from R while they connect.
-    let first = (lo..=r).find(|&k| env[k] >= STEEP * peak).unwrap_or(r);
-    let last = (r..=hi).rev().find(|&k| env[k] >= STEEP * peak).unwrap_or(r);
+    let first = (lo..=r).find(|&k| g[k] >= STEEP * g_peak).unwrap_or(r);
+    let last = (r..=hi).rev().find(|&k| g[k] >= STEEP * g_peak).unwrap_or(r);
+    // Each lead's smoothed |slope| on a window holding every sample the searches can reach.
+    let win = Window {
+        a0: first.saturating_sub(sig.samples(0.200)).max(min_start.min(first)),
+        b0: (last + sig.samples(0.200)).min(n - 1).min(max_end.max(last)),
+    };
+    let w = ((0.010 * sig.fs).round() as usize).max(1) | 1;
+    let envs: Vec<(Vec<f32>, f32)> = sig
+        .qrs
+        .iter()
+        .map(|q| {
+            let raw: Vec<f32> = (win.a0..=win.b0)
+                .map(|k| if k == 0 || k + 1 >= n { 0.0 } else { ((q[k + 1] - q[k - 1]) * 0.5).abs() })
+                .collect();
+            let e = smooth(&raw, w);
+            let peak = (near.0..=near.1).map(|k| e[k - win.a0]).fold(0.0f32, f32::max);
+            (e, peak)
+        })
+        .collect();
+    let top = envs.iter().map(|(_, p)| *p).fold(0.0f32, f32::max);
+    if top <= 0.0 {
+        return (None, None);
+    }
+    let mut onsets = Vec::new();
+    let mut ends = Vec::new();
+    for (e, peak) in envs.iter().filter(|(_, p)| *p >= CLEAR_LEAD * top) {
+        onsets.extend(win.onset(e, *peak, first, sig));
+        ends.extend(win.end(e, *peak, last, sig));
+    }
+    onsets.sort_unstable();
+    ends.sort_unstable_by(|a, b| b.cmp(a));
+    (robust_first(&onsets), robust_first(&ends))
+}
 
-    let onset = {
-        let a = first.saturating_sub(sig.samples(0.200)).max(min_start);
-        let quiet = min_over(env, a, first.saturating_sub(sig.samples(0.020)).max(a));
-        quiet.and_then(|q| {
-            let thr = q + ON_FRACTION * (peak - q);
-            (a..=first).rev().find(|&k| env[k] <= thr)
-        })
-    };
-    let end = {
-        let b = (last + sig.samples(0.200)).min(n - 1).min(max_end.max(last));
-        let quiet = min_over(env, (last + sig.samples(0.020)).min(b), b);
-        quiet.and_then(|q| {
-            let thr = q + END_FRACTION * (peak - q);
-            (last..=b).find(|&k| env[k] <= thr)
-        })
-    };
-    (onset, end)
+/// The first entry of `v` (already ordered), or the second with at least [`ROBUST_LEADS`] entries.
+fn robust_first(v: &[usize]) -> Option<usize> {
+    if v.len() >= ROBUST_LEADS { v.get(1).copied() } else { v.first().copied() }
+}
+
+/// Samples `a0..=b0` of the recording; a lead's envelope `e` holds them from index 0.
+struct Window {
+    a0: usize,
+    b0: usize,
+}
+
+impl Window {
+    /// A lead's onset: walking back from `first` (start of the steep part) to where its slope `e` is at or
+    /// below [`EDGE_FRACTION`] of the way from its quiet level (the 200–20 ms before `first`) to `peak`.
+    fn onset(&self, e: &[f32], peak: f32, first: usize, sig: &Signals) -> Option<usize> {
+        let a = self.a0;
+        let q = min_over(e, 0, first.saturating_sub(sig.samples(0.020)).max(a) - a)?;
+        let thr = q + EDGE_FRACTION * (peak - q);
+        (a..=first).rev().find(|&k| e[k - a] <= thr)
+    }
+
+    /// A lead's end: walking on from `last` (end of the steep part), at most [`END_REACH_S`], to where its
+    /// slope is at or below [`EDGE_FRACTION`] of the way from its quiet level (20–200 ms after `last`) to `peak`.
+    fn end(&self, e: &[f32], peak: f32, last: usize, sig: &Signals) -> Option<usize> {
+        let b = self.b0;
+        let q = min_over(e, (last + sig.samples(0.020)).min(b) - self.a0, b - self.a0)?;
+        let thr = q + EDGE_FRACTION * (peak - q);
+        let reach = (last + sig.samples(END_REACH_S)).min(b);
+        (last..=reach).find(|&k| e[k - self.a0] <= thr)
+    }
 }
 
 fn min_over(x: &[f32], a: usize, b: usize) -> Option<f32> {
