@@ -1,5 +1,8 @@
-//! T wave end by the tangent method: the tangent at the steepest point of the T wave's terminal limb meets the
-//! isoelectric level (McLaughlin, Campbell & Murray, Br Heart J 1995;74:84-9; references.md §8). Works for
+//! T wave end on the terminal limb of the T wave: from the limb's steepest point (as in the tangent method,
+//! McLaughlin, Campbell & Murray, Br Heart J 1995;74:84-9; references.md §8), the end is the point that
+//! maximises the area of the trapezium it forms with the steepest point and a fixed point further on
+//! (trapezium-area method, Vázquez-Seisdedos et al., Biomed Eng Online 2011;10:77 — from memory). The end
+//! itself needs no isoelectric level and lands nearer the visual end than the tangent's baseline crossing. Works for
 //! upright, inverted and biphasic T waves (the terminal lobe is used). Each lead gives a T end when its T wave
 //! is clear; the global T end is the latest over the reliable leads that agree with the others.
 
@@ -17,6 +20,9 @@ const RELIABLE: f32 = 0.35;
 /// A T wave smaller than this (µV) is not delineated.
 // Common practice, no source.
 const MIN_T_UV: f32 = 25.0;
+/// The trapezium's fixed point lies this long after the steepest point of the terminal limb, s.
+// Common practice, no source: past the end of the limb on almost every T wave.
+const TRAPEZIUM_REACH_S: f64 = 0.120;
 /// Leads whose T end lies more than this after the median lead's are left out of the latest end, s.
 // Common practice, no source.
 const AGREE_S: f64 = 0.060;
@@ -45,7 +51,15 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
             let mut pre: Vec<f32> = slow[iso_at.saturating_sub(sig.samples(0.200))..=iso_at].to_vec();
             let mid = pre.len() / 2;
             let iso = *pre.select_nth_unstable_by(mid, f32::total_cmp).1;
-            lead_t_end(slow, iso, from, to, sig.samples(0.250), sig.samples(BIPHASIC_GAP_S))
+            lead_t_end(
+                slow,
+                iso,
+                from,
+                to,
+                sig.samples(0.250),
+                sig.samples(BIPHASIC_GAP_S),
+                sig.samples(TRAPEZIUM_REACH_S),
+            )
         })
         .collect();
     let biggest = found.iter().map(|t| t.amplitude.abs()).fold(0.0f32, f32::max);
@@ -62,8 +76,9 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
     (latest.is_finite() && latest >= from as f64 && latest.round() < n as f64).then(|| latest.round() as usize)
 }
 
-/// T end on one lead, or `None` when the tangent is flat or lands outside the search window.
-fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap: usize) -> Option<LeadT> {
+/// T end on one lead, or `None` when the terminal limb is flat or the end lands outside the search window.
+/// `reach`: [`TRAPEZIUM_REACH_S`] in samples.
+fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap: usize, reach: usize) -> Option<LeadT> {
     let dev = |k: usize| x[k] - iso;
     let main = (from..=to).max_by(|&i, &j| dev(i).abs().total_cmp(&dev(j).abs()))?;
     let a_main = dev(main);
@@ -98,7 +113,12 @@ fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap:
     if s <= 1e-3 {
         return None;
     }
-    let end = k as f64 + f64::from(dev(k) * sign) / f64::from(s);
+    // Trapezium with corners at the steepest point (k, y_k), the candidate (i, y_i) and the fixed point x_r on
+    // the baseline: area ∝ (y_k − y_i)(2·x_r − i − k), largest at the T end.
+    let xr = (k + reach).min(x.len() - 1);
+    let y_k = dev(k) * sign;
+    let area = |i: usize| (y_k - dev(i) * sign) * (2 * xr - i - k) as f32;
+    let end = (k..=xr).max_by(|&i, &j| area(i).total_cmp(&area(j)))? as f64;
     (end > peak as f64 && end <= (to + max_limb / 2) as f64).then_some(LeadT { amplitude: amp, end })
 }
 
@@ -107,7 +127,7 @@ mod tests {
     use super::*;
 
     #[test]
-    fn tangent_of_a_triangle_ends_where_the_line_meets_zero() {
+    fn trapezium_on_a_triangle_ends_where_the_line_meets_zero() {
         // A T wave shaped as a rise then a straight fall from 300 µV at sample 100 to 0 at sample 160.
         let mut x = vec![0.0f32; 300];
         for k in 40..100 {
@@ -116,9 +136,9 @@ mod tests {
         for k in 100..160 {
             x[k] = 300.0 * (160 - k) as f32 / 60.0;
         }
-        let t = lead_t_end(&x, 0.0, 30, 200, 100, 40).map(|t| t.end.round() as usize);
+        let t = lead_t_end(&x, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize);
         assert_eq!(t, Some(160));
         let inv: Vec<f32> = x.iter().map(|v| -v).collect();
-        assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100, 40).map(|t| t.end.round() as usize), Some(160));
+        assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize), Some(160));
     }
 }
