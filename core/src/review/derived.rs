@@ -76,20 +76,7 @@ impl Review {
                     );
                 }
                 (None, Some(idx)) if self.measurements[idx].reviewed_value.is_some() => {
-                    let m = &mut self.measurements[idx];
-                    let old = m.value();
-                    m.reviewed_value = None;
-                    m.origin = Origin::Auto;
-                    let new = m.auto_value;
-                    if new.is_none() {
-                        self.measurements.remove(idx);
-                    }
-                    self.record(
-                        reader,
-                        format!("measurement {key} reverted to automatic with QT and RR"),
-                        old.map(|v| format!("{v} ms")),
-                        new.map(|v| format!("{v} ms")),
-                    );
+                    self.revert_at(idx, reader, &format!("measurement {key} reverted to automatic with QT and RR"));
                 }
                 (None, _) => {}
             }

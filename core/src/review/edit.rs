@@ -119,21 +119,7 @@ impl Review {
             .iter()
             .position(|m| m.key == key)
             .ok_or_else(|| ReviewError::UnknownMeasurement(key.to_owned()))?;
-        let m = &mut self.measurements[idx];
-        let old = m.value();
-        let unit = m.unit.clone();
-        m.reviewed_value = None;
-        m.origin = Origin::Auto;
-        let new = m.auto_value;
-        if new.is_none() {
-            self.measurements.remove(idx);
-        }
-        self.record(
-            reader,
-            format!("measurement {key} reverted to automatic"),
-            old.map(|v| fmt_value(v, &unit)),
-            new.map(|v| fmt_value(v, &unit)),
-        );
+        self.revert_at(idx, reader, &format!("measurement {key} reverted to automatic"));
         if super::derived::QTC_INPUT_KEYS.contains(&key) {
             self.recompute_qtc(reader);
         }
@@ -278,6 +264,23 @@ impl Review {
         self.stage = Stage::Checked;
         self.record(reader, "reopened".to_owned(), Some(Stage::Final.to_string()), Some(Stage::Checked.to_string()));
         Ok(())
+    }
+}
+
+impl Review {
+    /// Drops the reviewed value of the measurement at `idx` (removing it when it has no automatic value) and
+    /// records `what` in the history with the old and new values.
+    pub(super) fn revert_at(&mut self, idx: usize, reader: &str, what: &str) {
+        let m = &mut self.measurements[idx];
+        let old = m.value();
+        let unit = m.unit.clone();
+        m.reviewed_value = None;
+        m.origin = Origin::Auto;
+        let new = m.auto_value;
+        if new.is_none() {
+            self.measurements.remove(idx);
+        }
+        self.record(reader, what.to_owned(), old.map(|v| fmt_value(v, &unit)), new.map(|v| fmt_value(v, &unit)));
     }
 }
 
