@@ -10,6 +10,11 @@ const MAX_SEGMENTS: usize = 24;
 /// A mains line must stand this many times above the neighbouring spectrum (10 dB).
 // Common practice, no source: a line 10 dB above its neighbourhood is clearly interference, not ECG content.
 const MIN_RATIO: f64 = 10.0;
+/// …and this many times above the highest other line in the neighbourhood (6 dB). A regular heart rhythm puts
+/// its own harmonics every 1–2 Hz all the way up the spectrum; one of them near 50 or 60 Hz stands above the
+/// noise floor between them but not above its neighbouring harmonics, while mains hum stands above them all.
+// Common practice, no source.
+const MIN_COMB_RATIO: f64 = 4.0;
 
 /// The mains frequency (50 or 60 Hz) whose line stands out of the spectrum of `leads`, or `None` when neither
 /// does (or the sampling rate is too low to see it).
@@ -28,12 +33,13 @@ pub fn detect_mains<L: AsRef<[T]>, T: Copy + Into<f64>>(leads: &[L], fs_hz: f64)
             (bin(f - 6.0)..=bin(f + 6.0)).filter(|&k| (k as f64 * df - f).abs() > 2.0).map(|k| psd[k]).collect();
         around.sort_by(f64::total_cmp);
         let med = around.get(around.len() / 2).copied().unwrap_or(0.0);
-        if med > 0.0 {
-            line / med
-        } else if line > 0.0 {
-            f64::INFINITY
-        } else {
+        let top = around.last().copied().unwrap_or(0.0);
+        if line <= 0.0 || line < MIN_COMB_RATIO * top {
             0.0
+        } else if med > 0.0 {
+            line / med
+        } else {
+            f64::INFINITY
         }
     };
     let (r50, r60) = (ratio(50.0), if fs_hz > 2.0 * 67.0 { ratio(60.0) } else { 0.0 });
@@ -101,5 +107,20 @@ mod tests {
         assert_eq!(detect_mains(&[ecg_like(fs, 20_000, 50.0, 60.0)], fs), Some(50.0));
         assert_eq!(detect_mains(&[ecg_like(fs, 20_000, 60.0, 60.0)], fs), Some(60.0));
         assert_eq!(detect_mains(&[ecg_like(fs, 20_000, 50.0, 0.0)], fs), None);
+    }
+
+    #[test]
+    fn heart_rate_harmonics_of_the_demo_rhythms_are_not_hum() {
+        // Regular synthetic rhythms put a harmonic of the heart rate within 0.6 Hz of 50 or 60 Hz (at 72 bpm one
+        // sits at 50.4 Hz); only the noisy demo carries hum (50 Hz).
+        use crate::synth::{Scenario, generate};
+        for scenario in Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter) {
+            let synthetic = generate(&scenario.spec()).map_err(|e| e.to_string());
+            let Ok(synthetic) = synthetic else { panic!("{}: {synthetic:?}", scenario.name()) };
+            let rec = &synthetic.recording;
+            let leads: Vec<&[f32]> = rec.leads.iter().map(|l| l.samples.as_slice()).collect();
+            let want = (scenario == Scenario::Noisy).then_some(50.0);
+            assert_eq!(detect_mains(&leads, rec.sample_rate.hz()), want, "{}", scenario.name());
+        }
     }
 }
