@@ -260,7 +260,8 @@ impl Recording {
             return Vec::new();
         };
         let (i, ii) = (i.samples.clone(), ii.samples.clone());
-        let rules: [(StandardLead, fn(f32, f32) -> f32); 4] = [
+        type Rule = fn(f32, f32) -> f32;
+        let rules: [(StandardLead, Rule); 4] = [
             (StandardLead::III, |i, ii| ii - i),
             (StandardLead::AVR, |i, ii| -(i + ii) / 2.0),
             (StandardLead::AVL, |i, ii| i - ii / 2.0),

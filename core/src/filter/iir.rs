@@ -139,8 +139,8 @@ pub fn fill_invalid(samples: &[f32]) -> Vec<f64> {
         match (last_valid, next) {
             (Some(a), Some(b)) => {
                 let (va, vb) = (out[a], out[b]);
-                for k in start..i {
-                    out[k] = va + (vb - va) * (k - a) as f64 / (b - a) as f64;
+                for (k, v) in out.iter_mut().enumerate().take(i).skip(start) {
+                    *v = va + (vb - va) * (k - a) as f64 / (b - a) as f64;
                 }
             }
             (Some(a), None) => {
