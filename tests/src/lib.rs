@@ -1,4 +1,4 @@
-//! Shared helpers for Isoline's end-to-end and reference tests. The tests live in `tests/tests/`.
+//! Shared helpers for Isoline's end-to-end and reference tests. The tests live in `tests/tests/suite/` (one binary, one module per area).
 
 use std::path::PathBuf;
 

@@ -3,13 +3,11 @@
 
 #![allow(clippy::unwrap_used)] // a test fails by panicking
 
-mod review_support;
-
 use std::fs;
 use std::time::{Duration, SystemTime};
 
+use crate::review_support::sample_review;
 use isoline_core::review::{Review, Stage, autosave_path, backup_path, discard_autosave, load, recover};
-use review_support::sample_review;
 
 fn later_version(r: &Review) -> Review {
     let mut b = r.clone();

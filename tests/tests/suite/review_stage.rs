@@ -3,12 +3,10 @@
 
 #![allow(clippy::unwrap_used)] // a test fails by panicking
 
-mod review_support;
-
+use crate::review_support::sample_review;
 use isoline_core::MarkKind;
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::review::{MarkOn, Measurement, Origin, ReviewError, Stage};
-use review_support::sample_review;
 
 #[test]
 fn final_is_read_only_until_reopened() {

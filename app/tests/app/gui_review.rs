@@ -4,13 +4,11 @@
 
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
-mod gui_support;
-
 use std::path::{Path, PathBuf};
 
+use crate::gui_support::{data, settle};
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
-use gui_support::{data, settle};
 use isoline::gui::IsolineApp;
 use isoline::gui::command::Command;
 use isoline_core::beat::MarkKind;

@@ -3,12 +3,10 @@
 
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
-mod gui_support;
-
+use crate::gui_support::{click_at, drag, harness, settle, sheet_point};
 use egui::Pos2;
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
-use gui_support::{click_at, drag, harness, settle, sheet_point};
 use isoline::gui::IsolineApp;
 use isoline_core::caliper::CaliperKind;
 

@@ -5,13 +5,11 @@
 //! Circulation 2007;115:1306-24 (25 mm/s, 10 mm/mV, 1 mV calibration pulse, 1 mm and 5 mm squares);
 //! 1 inch = 25.4 mm exactly (international yard and pound agreement, 1959), so 1 mm = dpi / 25.4 px.
 
-mod render_common;
-
+use crate::render_common::{Image, Res, centre, ptb, render_png, runs};
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::paper::{Layout, PageSpec, Paper, Scheme};
 use isoline_core::recording::StandardLead;
 use isoline_core::render::RenderInput;
-use render_common::{Image, Res, centre, ptb, render_png, runs};
 
 const DPI: f64 = 300.0;
 /// Pixels per mm at 300 dpi. Source: 1 inch = 25.4 mm exactly.

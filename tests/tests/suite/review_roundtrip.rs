@@ -2,8 +2,6 @@
 
 #![allow(clippy::unwrap_used)] // a test fails by panicking
 
-mod review_support;
-
 use isoline_core::MarkKind;
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::review::{
@@ -119,7 +117,7 @@ proptest! {
 
 #[test]
 fn file_uses_the_vocabulary() {
-    let text = review_support::sample_review("AB").to_ron().unwrap();
+    let text = crate::review_support::sample_review("AB").to_ron().unwrap();
     for needle in [
         "format_version: 2",
         "reader: \"AB\"",

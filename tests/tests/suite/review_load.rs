@@ -3,8 +3,6 @@
 
 #![allow(clippy::unwrap_used)] // a test fails by panicking
 
-mod review_support;
-
 use std::path::Path;
 
 use isoline_core::MarkKind;
@@ -59,7 +57,7 @@ fn write(dir: &Path, text: &str) -> std::path::PathBuf {
 }
 
 fn current_text() -> String {
-    review_support::sample_review("AB").to_ron().unwrap()
+    crate::review_support::sample_review("AB").to_ron().unwrap()
 }
 
 fn parse_err(path: &Path) -> (usize, usize, Option<String>, String) {

@@ -6,11 +6,9 @@
 
 #![allow(clippy::unwrap_used)] // a test fails by panicking
 
-mod review_support;
-
+use crate::review_support::identity;
 use isoline_core::review::agreement::{agreement, bland_altman};
 use isoline_core::review::{Measurement, Review};
-use review_support::identity;
 
 fn review(reader: &str, sha_digit: char, qt_auto: f64, qt_reviewed: Option<f64>, qrs: Option<f64>) -> Review {
     let mut r = Review::new(identity(&sha_digit.to_string().repeat(64)), reader);

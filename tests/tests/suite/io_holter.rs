@@ -1,6 +1,6 @@
 //! 24-hour 3-lead 250 Hz files (the size of an ambulatory recording): written with the EDF writer and as a
 //! hand-packed WFDB format-212 record, read back, values checked, read speed printed. Heavy: run with
-//! `cargo test --release -p isoline-tests --test io_holter -- --ignored --nocapture`. Set `ISOLINE_HOLTER_DIR`
+//! `cargo test --release -p isoline-tests -- io_holter --ignored --nocapture`. Set `ISOLINE_HOLTER_DIR`
 //! to keep the files (e.g. to measure `isoline info` with `/usr/bin/time -v`).
 //! The memory target (≤ 1.5 × samples × 4 bytes) comes from design.md; common practice, no source.
 

@@ -2,10 +2,8 @@
 
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
-mod gui_support;
-
+use crate::gui_support::{data, harness, settle};
 use egui_kittest::kittest::Queryable;
-use gui_support::{data, harness, settle};
 use isoline::gui::IsolineApp;
 use isoline_core::paper::{Layout, Scheme};
 

@@ -1,17 +1,15 @@
 //! Snapshot tests: whole pages compared with golden PNGs in `tests/snapshots/`, allowing a small per-pixel
 //! tolerance (anti-aliasing may differ slightly between builds). After an intended change, regenerate with
-//! `ISOLINE_BLESS=1 cargo test -p isoline-tests --release --test render_snapshot` and look at the new files.
-
-mod render_common;
+//! `ISOLINE_BLESS=1 cargo test -p isoline-tests --release -- render_snapshot` and look at the new files.
 
 use std::path::PathBuf;
 
+use crate::render_common::{Res, decode, ptb, render_png};
 use isoline_core::MarkKind;
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
 use isoline_core::recording::StandardLead;
 use isoline_core::render::{LedgerLine, RenderInput};
-use render_common::{Res, decode, ptb, render_png};
 
 /// A channel may differ by this much before a pixel counts as changed.
 const CHANNEL_TOLERANCE: u8 = 24;

@@ -317,7 +317,7 @@ fn truth_json_has_the_documented_keys() {
     assert!(ectopic.is_some_and(|b| b["p_on"].is_null()));
 }
 
-/// A full day at 250 Hz, 3 leads. Run with `cargo test --release -p isoline-tests --test synth -- --ignored`.
+/// A full day at 250 Hz, 3 leads. Run with `cargo test --release -p isoline-tests -- synth:: --ignored`.
 #[test]
 #[ignore = "heavy: generates 24 h of signal"]
 fn holter_day_fits_in_memory_and_reports_its_time() {

@@ -1,5 +1,5 @@
 //! Frame time on a 24-hour recording (the `holter` demo: 3 leads, 250 Hz). Heavy: run with
-//! `cargo test --release -p isoline --test gui_frame_time -- --ignored --nocapture`.
+//! `cargo test --release -p isoline -- gui_frame_time --ignored --nocapture`.
 
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 

@@ -1,13 +1,11 @@
 //! Exports are de-identified unless the user asks otherwise (`Meta::deidentified`), and every page carries the
 //! caution. Also the renderer's guards against unusable requests.
 
-mod render_common;
-
+use crate::render_common::{Res, render_png};
 use isoline_core::paper::{Layout, PageSpec};
 use isoline_core::recording::{Lead, Meta, Recording, StandardLead};
 use isoline_core::render::{RenderError, RenderInput, header_lines, render_page};
 use isoline_core::units::Hertz;
-use render_common::{Res, render_png};
 
 /// A made-up demo patient (invented for this test; no real person).
 fn demo_recording() -> Res<Recording> {

@@ -1,0 +1,28 @@
+//! Isoline's reference and end-to-end tests, built as one binary. Each module covers one area; every check
+//! against an outside source names it beside the check. Run one area with a filter, e.g.
+//! `cargo test --release -p isoline-tests -- accuracy_boundaries`.
+
+mod render_common;
+mod review_support;
+
+mod accuracy_boundaries;
+mod accuracy_detection;
+mod accuracy_rhythm;
+mod accuracy_typing;
+mod io_edf;
+mod io_fuzz;
+mod io_holter;
+mod io_wfdb;
+mod measure_formulas;
+mod measure_ludb;
+mod measure_synth;
+mod render_geometry;
+mod render_privacy;
+mod render_snapshot;
+mod review_agreement;
+mod review_identity;
+mod review_load;
+mod review_roundtrip;
+mod review_save;
+mod review_stage;
+mod synth;
