@@ -193,7 +193,8 @@ pub fn ledger_ui(
             ui.label(r.origin.map_or("—", Origin::as_str));
             ui.label(r.unit);
             match &r.note {
-                Some(n) => ui.colored_label(ui.visuals().warn_fg_color, n),
+                // The whole note (with its source) on hover: a narrow panel shows only its start.
+                Some(n) => ui.colored_label(ui.visuals().warn_fg_color, n).on_hover_text(n.as_str()),
                 None => ui.label(""),
             };
             ui.end_row();
