@@ -296,7 +296,15 @@ fn ludb_qrs_axis_category_from_expert_boundaries() {
     // The goal is NOT met, and no variant above meets it: even limits fitted to the labels afterwards would put at
     // most 39–40 of 47 records (83–85 %) in their category with any of these methods, because the diagnosed
     // categories overlap on the measured angle (records diagnosed left axis deviation measure −27° … +33°, those
-    // diagnosed horizontal +9° … +32°). Floor of today's figure, to guard the measurement against regressions.
+    // diagnosed horizontal +9° … +32°). The diagnoses follow a practice in which the two overlap:
+    // Source: teaching manual of propedeutics (engime.org, "Учебное пособие для практических занятий по
+    // пропедевтике", p. 101): by visual inspection "horizontal position, or left axis deviation (angle +30° to
+    // −90°)" is one class (R I > R II > R III, deep S in III, tall R in aVL); the angle itself comes from tables
+    // of the algebraic sum of the QRS waves in I and III (Pismenny's tables) — the wavI3 column.
+    // Source: poisk-ru.ru, "Таблица определения угла альфа": an older scheme calls 0° … +50° left deviation
+    // ("левограмма") and 0° … −30° marked left deviation — under it records 1, 9, 12, 13, 19, 29, 31, 32 (+2° … +33°)
+    // are left deviation as diagnosed.
+    // Floor of today's figure, to guard the measurement against regressions.
     assert!(shipped_ok * 100 >= total * 68, "axis category agrees on {shipped_ok}/{total} records");
 }
 
@@ -405,7 +413,7 @@ fn ludb_full_analysis_axis_and_pr() {
     assert!(axis_n >= 40);
     // Floors of what the pipeline measures today (see the report); the issue's goals are 85 % axis agreement,
     // no PR in ≥ 80 % of AF records and a PR in ≥ 95 % of sinus records.
-    assert!(axis_ok * 100 >= axis_n * 60, "axis category agrees on {axis_ok}/{axis_n}");
+    assert!(axis_ok * 100 >= axis_n * 68, "axis category agrees on {axis_ok}/{axis_n}");
     // Source: LUDB rhythm diagnoses (Kalyakulina et al., IEEE Access 2020): sinus records have a P wave to
     // measure; atrial fibrillation records have none. Goals from the measurement-engine issue.
     assert!(sinus_n >= 40 && sinus_pr * 100 >= sinus_n * 95, "sinus records with a PR: {sinus_pr}/{sinus_n}");
