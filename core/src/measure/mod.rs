@@ -12,6 +12,7 @@
 //! ```
 
 pub mod axis;
+pub mod einthoven;
 pub mod hrv;
 pub mod intervals;
 pub mod level;

@@ -5,18 +5,28 @@
 //! Axis categories as the diagnoses use them (tests/data/README.md, from memory): left axis deviation below 0°,
 //! horizontal 0 to +30°, normal +30 to +70°, vertical +70 to +90°, right axis deviation above +90°.
 //!
-//! This test measures the axis on a median beat built here from the cardiologists' own beat positions and
-//! global boundaries (`N.global.csv`), so it checks the axis measurement alone, apart from detection and
+//! The axis tests measure the axis on a median beat built here from the cardiologists' own beat positions and
+//! global boundaries (`N.global.csv`), so they check the axis measurement alone, apart from detection and
 //! delineation.
+//!
+//! Finding (records 1–50): the header gains of LUDB 1.0.1 differ by lead (e.g. record 1: I 1716, II 1206, III 1229
+//! units/mV) while the stored integers obey Einthoven's law II = I + III exactly; the scaled limb leads therefore
+//! break the law by 10–20 %. The axis code fits relative gains that restore it (`measure::einthoven`) and the
+//! test below checks that the fitted gains are the header's own ratios.
 
 use std::path::Path;
 
 use isoline_core::beat::Boundaries;
 use isoline_core::io;
-use isoline_core::measure::{self, AxisBasis, Template};
+use isoline_core::measure::axis::{self, AxisBasis, Wave};
+use isoline_core::measure::einthoven::LIMB_LEADS;
+use isoline_core::measure::{self, Template};
+use isoline_core::recording::StandardLead;
 use isoline_tests::data;
 
-/// Axis category of an angle, as the LUDB diagnoses name them (None outside −90°…+180°).
+/// Axis category of an angle, as the LUDB diagnoses name them (None below −90°: no category given).
+/// Limits: a value on a limit belongs to the category above it (0° horizontal, 30° normal, 70° vertical), +90°
+/// is still vertical. From memory (tests/data/README.md); the data hold no angle exactly on a limit.
 fn category(deg: f64) -> Option<&'static str> {
     match deg {
         d if (-90.0..0.0).contains(&d) => Some("left axis deviation"),
@@ -25,6 +35,24 @@ fn category(deg: f64) -> Option<&'static str> {
         d if (70.0..=90.0).contains(&d) => Some("vertical"),
         d if d > 90.0 => Some("right axis deviation"),
         _ => None,
+    }
+}
+
+/// Degrees from `deg` to the nearest angle inside the category `label` (0 inside).
+fn distance_to(label: &str, deg: f64) -> f64 {
+    let (lo, hi) = match label {
+        "left axis deviation" => (-90.0, 0.0),
+        "horizontal" => (0.0, 30.0),
+        "normal" => (30.0, 70.0),
+        "vertical" => (70.0, 90.0),
+        _ => (90.0, 180.0),
+    };
+    if deg < lo {
+        lo - deg
+    } else if deg > hi {
+        deg - hi
+    } else {
+        0.0
     }
 }
 
@@ -106,58 +134,227 @@ fn labelled_records() -> Vec<(String, String)> {
         .collect()
 }
 
-fn agreement(basis: AxisBasis) -> (usize, usize, Vec<String>) {
-    let records = labelled_records();
-    let (mut agree, mut total, mut lines) = (0, 0, Vec::new());
-    for (record, want) in &records {
-        let opened = io::open(&data(&format!("ludb/{record}.hea")), &io::OpenOptions::default());
-        let Ok(opened) = opened else {
-            lines.push(format!("{record}: unreadable"));
-            total += 1;
-            continue;
-        };
-        let rec = &opened.recording;
-        let fs = rec.sample_rate;
-        let beats = read_global(&data(&format!("ludb/{record}.global.csv")));
-        let leads: Vec<Vec<f32>> = rec.leads.iter().map(|l| l.samples.clone()).collect();
-        let pre = fs.sample_from_seconds(0.4) as usize;
-        let post = fs.sample_from_seconds(0.7) as usize;
-        total += 1;
-        let Some((template, bounds)) = median_template(&leads, &beats, pre, post) else {
-            lines.push(format!("{record}: no annotated beats"));
-            continue;
-        };
-        let t = Template { leads: &template, sample_rate: fs, bounds };
-        let axis = measure::measure_with(rec, &[], Some(&t), basis).axes.qrs_deg;
-        let got = axis.and_then(category);
-        let ok = got == Some(want.as_str());
-        agree += usize::from(ok);
-        lines.push(format!(
-            "{record:>3}: {:>7} → {:<22} diagnosed {want}{}",
-            axis.map_or("—".into(), |a| format!("{a:.0}°")),
-            got.unwrap_or("—"),
-            if ok { "" } else { "  ✗" }
-        ));
-    }
-    (agree, total, lines)
+/// A record's median beat: the recording, the per-lead template and its boundaries.
+struct Case {
+    record: String,
+    label: String,
+    rec: isoline_core::recording::Recording,
+    template: Vec<Vec<f32>>,
+    bounds: Boundaries,
 }
+
+fn cases() -> Vec<Case> {
+    labelled_records()
+        .into_iter()
+        .map(|(record, label)| {
+            let opened = io::open(&data(&format!("ludb/{record}.hea")), &io::OpenOptions::default())
+                .unwrap_or_else(|e| panic!("ludb/{record}.hea: {e}"));
+            let rec = opened.recording;
+            let fs = rec.sample_rate;
+            let beats = read_global(&data(&format!("ludb/{record}.global.csv")));
+            let leads: Vec<Vec<f32>> = rec.leads.iter().map(|l| l.samples.clone()).collect();
+            let (pre, post) = (fs.sample_from_seconds(0.4) as usize, fs.sample_from_seconds(0.7) as usize);
+            let (template, bounds) = median_template(&leads, &beats, pre, post)
+                .unwrap_or_else(|| panic!("ludb/{record}: no annotated beats"));
+            Case { record, label, rec, template, bounds }
+        })
+        .collect()
+}
+
+impl Case {
+    fn limb(&self) -> Vec<(StandardLead, &[f32])> {
+        self.rec
+            .leads
+            .iter()
+            .zip(&self.template)
+            .filter_map(|(l, x)| {
+                l.name.standard().filter(|s| s.frontal_angle_deg().is_some()).map(|s| (s, x.as_slice()))
+            })
+            .collect()
+    }
+
+    /// QRS axis from the net values of `basis` in `use_leads` (gain-corrected unless `raw_gains`).
+    fn axis(&self, basis: AxisBasis, use_leads: &[StandardLead], raw_gains: bool) -> Option<f64> {
+        let limb = self.limb();
+        let fs = self.rec.sample_rate;
+        let values: Vec<(StandardLead, f64)> = if raw_gains {
+            let (s, e) = (self.bounds.qrs_on?, self.bounds.qrs_end?);
+            limb.iter()
+                .filter_map(|&(l, x)| {
+                    let reference = measure::level::isoelectric_level(x, &self.bounds, fs)?;
+                    Some((l, axis::net_deflection(x, s, e, reference, basis)?))
+                })
+                .collect()
+        } else {
+            axis::net_values(&limb, &self.bounds, fs, Wave::Qrs, basis)
+        };
+        let chosen: Vec<(StandardLead, f64)> = values.into_iter().filter(|(l, _)| use_leads.contains(l)).collect();
+        axis::axis_from_limb_leads(&chosen)
+    }
+
+    /// Direction of the largest instantaneous frontal QRS vector (gain-corrected limb leads, least squares per
+    /// sample over the six limb leads).
+    fn max_vector_axis(&self) -> Option<f64> {
+        let limb = self.limb();
+        let fs = self.rec.sample_rate;
+        let (s, e) = (self.bounds.qrs_on?, self.bounds.qrs_end?);
+        let gains = axis::qrs_limb_gains(&limb, &self.bounds, fs).filter(|g| g.applies());
+        let refs: Vec<f64> =
+            limb.iter().map(|&(_, x)| measure::level::isoelectric_level(x, &self.bounds, fs).unwrap_or(0.0)).collect();
+        (s..=e)
+            .filter_map(|t| {
+                let v: Vec<(StandardLead, f64)> = limb
+                    .iter()
+                    .zip(&refs)
+                    .map(|(&(l, x), r)| (l, gains.map_or(1.0, |g| g.factor(l)) * (f64::from(x[t]) - r)))
+                    .collect();
+                let deg = axis::axis_from_limb_leads(&v)?;
+                let size: f64 = v.iter().map(|(_, a)| a * a).sum();
+                Some((size, deg))
+            })
+            .max_by(|a, b| a.0.total_cmp(&b.0))
+            .map(|(_, d)| d)
+    }
+
+    /// The measurement as `isoline measure` makes it from this template (default basis).
+    fn measured(&self) -> Option<f64> {
+        let t = Template { leads: &self.template, sample_rate: self.rec.sample_rate, bounds: self.bounds };
+        measure::measure(&self.rec, &[], Some(&t)).axes.qrs_deg
+    }
+}
+
+const SIX: [StandardLead; 6] = LIMB_LEADS;
+const I_AVF: [StandardLead; 2] = [StandardLead::I, StandardLead::AVF];
+const I_III: [StandardLead; 2] = [StandardLead::I, StandardLead::III];
 
 #[test]
 fn ludb_qrs_axis_category_from_expert_boundaries() {
     // Goal (issue 3): the QRS axis falls in the diagnosed category for ≥ 85 % of non-paced records.
-    // Measured on records 1–50 (47 labelled, non-paced): net amplitude 33/47 (70 %), net area 28/47 (60 %).
-    // The goal is NOT met. Several diagnoses disagree with every variant tried (net area or amplitude; I+aVF,
-    // I+III or all limb leads; median beat or per-beat median), e.g. record 44 measures +65° in all of them but
-    // is diagnosed left axis deviation, record 31 +37° to +45° (left axis deviation), record 35 above +100°
-    // (vertical). This floor guards against regressions of the measurement itself.
-    let (agree, total, lines) = agreement(AxisBasis::default());
-    for l in &lines {
-        println!("{l}");
+    let cases = cases();
+    type AxisFn = Box<dyn Fn(&Case) -> Option<f64>>;
+    type Method = (&'static str, AxisFn);
+    let m =
+        |basis, leads: &'static [StandardLead], raw| -> AxisFn { Box::new(move |c: &Case| c.axis(basis, leads, raw)) };
+    let methods: Vec<Method> = vec![
+        ("amp6", m(AxisBasis::NetAmplitude, &SIX, false)),
+        ("ampIF", m(AxisBasis::NetAmplitude, &I_AVF, false)),
+        ("ampI3", m(AxisBasis::NetAmplitude, &I_III, false)),
+        ("wav6", m(AxisBasis::WaveSum, &SIX, false)),
+        ("wavIF", m(AxisBasis::WaveSum, &I_AVF, false)),
+        ("wavI3", m(AxisBasis::WaveSum, &I_III, false)),
+        ("area6", m(AxisBasis::NetArea, &SIX, false)),
+        ("areaIF", m(AxisBasis::NetArea, &I_AVF, false)),
+        ("areaI3", m(AxisBasis::NetArea, &I_III, false)),
+        ("maxvec", Box::new(Case::max_vector_axis)),
+        ("amp6hdr", m(AxisBasis::NetAmplitude, &SIX, true)),
+        ("ampI3hdr", m(AxisBasis::NetAmplitude, &I_III, true)),
+    ];
+    let mut agree = vec![0_usize; methods.len()];
+    let mut header = format!("{:>3} {:<20}", "rec", "diagnosed");
+    for (name, _) in &methods {
+        header.push_str(&format!(" {name:>8}"));
     }
-    let (agree_area, _, _) = agreement(AxisBasis::NetArea);
-    println!("default (net amplitude): {agree}/{total}; net area: {agree_area}/{total}");
+    println!("{header}   (✗ = outside the diagnosed category; *hdr = header gains, no Einthoven fit)");
+    let (mut shipped_ok, mut misses) = (0, Vec::new());
+    for c in &cases {
+        let mut line = format!("{:>3} {:<20}", c.record, c.label);
+        for (k, (_, f)) in methods.iter().enumerate() {
+            let a = f(c);
+            let ok = a.and_then(category) == Some(c.label.as_str());
+            agree[k] += usize::from(ok);
+            line.push_str(&format!(
+                " {:>7}{}",
+                a.map_or("—".into(), |a| format!("{a:.0}")),
+                if ok { ' ' } else { '✗' }
+            ));
+        }
+        println!("{line}");
+        let shipped = c.measured();
+        assert_eq!(shipped, c.axis(AxisBasis::default(), &SIX, false), "record {}", c.record);
+        if shipped.and_then(category) == Some(c.label.as_str()) {
+            shipped_ok += 1;
+        } else {
+            misses.push((c, shipped));
+        }
+    }
+    let total = cases.len();
+    let counts: Vec<String> = methods.iter().zip(&agree).map(|((name, _), n)| format!("{name} {n}/{total}")).collect();
+    println!("agreement: {}", counts.join(", "));
+    println!("misses of the shipped method (net amplitude, six limb leads, Einthoven-consistent gains):");
+    for (c, a) in &misses {
+        let a = a.unwrap_or(f64::NAN);
+        println!(
+            "{:>3}: {a:>5.0}° {:<20} diagnosed {:<20} {:>4.0}° outside",
+            c.record,
+            category(a).unwrap_or("—"),
+            c.label,
+            distance_to(&c.label, a)
+        );
+    }
+    println!("shipped: {shipped_ok}/{total}");
     assert!(total >= 40, "expected the 47 labelled non-paced LUDB records, found {total}");
-    assert!(agree * 100 >= total * 65, "axis category agrees on {agree}/{total} records");
+    // The goal is NOT met, and no variant above meets it: even limits fitted to the labels afterwards would put at
+    // most 39–40 of 47 records (83–85 %) in their category with any of these methods, because the diagnosed
+    // categories overlap on the measured angle (records diagnosed left axis deviation measure −27° … +33°, those
+    // diagnosed horizontal +9° … +32°). The diagnoses follow a practice in which the two overlap:
+    // Source: teaching manual of propedeutics (engime.org, "Учебное пособие для практических занятий по
+    // пропедевтике", p. 101): by visual inspection "horizontal position, or left axis deviation (angle +30° to
+    // −90°)" is one class (R I > R II > R III, deep S in III, tall R in aVL); the angle itself comes from tables
+    // of the algebraic sum of the QRS waves in I and III (Pismenny's tables) — the wavI3 column.
+    // Source: poisk-ru.ru, "Таблица определения угла альфа": an older scheme calls 0° … +50° left deviation
+    // ("левограмма") and 0° … −30° marked left deviation — under it records 1, 9, 12, 13, 19, 29, 31, 32 (+2° … +33°)
+    // are left deviation as diagnosed.
+    // Floor of today's figure, to guard the measurement against regressions.
+    assert!(shipped_ok * 100 >= total * 68, "axis category agrees on {shipped_ok}/{total} records");
+}
+
+/// Gains per lead name from a WFDB header's signal lines (`1716(6)/mV` → 1716).
+fn header_gains(record: &str) -> Vec<(String, f64)> {
+    let text = std::fs::read_to_string(data(&format!("ludb/{record}.hea"))).unwrap_or_default();
+    text.lines()
+        .skip(1)
+        .filter(|l| !l.starts_with('#'))
+        .filter_map(|l| {
+            let f: Vec<&str> = l.split_whitespace().collect();
+            let gain = f.get(2)?.split(['(', '/']).next()?.parse().ok()?;
+            Some((f.last()?.to_lowercase(), gain))
+        })
+        .collect()
+}
+
+#[test]
+fn ludb_limb_gains_are_the_header_ratios() {
+    // The stored integers of LUDB obey Einthoven's law and Goldberger's equations (references.md §5), so the
+    // relative gains that make the scaled leads obey them must be the header gains' own ratios gain_k / gain_I.
+    let cases = cases();
+    let (mut close, mut fired) = (0, 0);
+    for c in &cases {
+        let limb = c.limb();
+        let Some(g) = axis::qrs_limb_gains(&limb, &c.bounds, c.rec.sample_rate) else { panic!("{}: no fit", c.record) };
+        fired += usize::from(g.applies());
+        let gains = header_gains(&c.record);
+        let gain_of = |l: StandardLead| {
+            let name = format!("{l:?}").to_lowercase();
+            gains.iter().find(|(n, _)| *n == name).map_or(f64::NAN, |(_, v)| *v)
+        };
+        let worst = LIMB_LEADS
+            .iter()
+            .map(|&l| (g.factor(l) / (gain_of(l) / gain_of(StandardLead::I)) - 1.0).abs())
+            .fold(0.0_f64, f64::max);
+        close += usize::from(worst < 0.10);
+        println!(
+            "{:>3}: residual {:.3} → {:.3}, worst factor error {:.1} %",
+            c.record,
+            g.residual_before,
+            g.residual_after,
+            worst * 100.0
+        );
+    }
+    println!("fit applies on {fired}/{}; factors within 10 % of the header ratios on {close}", cases.len());
+    assert_eq!(fired, cases.len());
+    // The median beat is not a linear function of the beats, so on irregular rhythms (record 44, atrial
+    // fibrillation) it obeys the lead relations less exactly and the factors stray further (up to ~20 %).
+    assert!(close * 100 >= cases.len() * 85, "{close}/{}", cases.len());
 }
 
 /// (record, rhythm, axis category, paced) of every LUDB record in `labels.csv`.
@@ -216,7 +413,7 @@ fn ludb_full_analysis_axis_and_pr() {
     assert!(axis_n >= 40);
     // Floors of what the pipeline measures today (see the report); the issue's goals are 85 % axis agreement,
     // no PR in ≥ 80 % of AF records and a PR in ≥ 95 % of sinus records.
-    assert!(axis_ok * 100 >= axis_n * 60, "axis category agrees on {axis_ok}/{axis_n}");
+    assert!(axis_ok * 100 >= axis_n * 68, "axis category agrees on {axis_ok}/{axis_n}");
     // Source: LUDB rhythm diagnoses (Kalyakulina et al., IEEE Access 2020): sinus records have a P wave to
     // measure; atrial fibrillation records have none. Goals from the measurement-engine issue.
     assert!(sinus_n >= 40 && sinus_pr * 100 >= sinus_n * 95, "sinus records with a PR: {sinus_pr}/{sinus_n}");
