@@ -81,6 +81,10 @@ pub struct Measurements {
     pub st: Vec<StLevel>,
     /// Sex used for the usual ranges.
     pub sex: Sex,
+    /// When the limb leads broke Einthoven's law (inconsistent lead gains in the file) and the axes were
+    /// computed after rescaling them ([`einthoven`]): the relative residual before rescaling, %.
+    #[serde(default)]
+    pub limb_gain_mismatch_pct: Option<f64>,
 }
 
 /// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
@@ -108,15 +112,18 @@ pub fn measure_with(
         None if beat_medians != Intervals::default() => (beat_medians, IntervalSource::BeatMedians),
         None => (Intervals::default(), IntervalSource::None),
     };
-    let (axes, st) = match template {
+    let (axes, st, limb_gain_mismatch_pct) = match template {
         Some(t) => {
             let names = recording.leads.iter().map(|l| &l.name);
             let limb: Vec<(StandardLead, &[f32])> =
                 names.clone().zip(t.leads).filter_map(|(n, x)| n.standard().map(|s| (s, x.as_slice()))).collect();
             let st = names.zip(t.leads).map(|(n, x)| st::st_level(n.clone(), x, &t.bounds, t.sample_rate)).collect();
-            (axis::axes(&limb, &t.bounds, t.sample_rate, basis), st)
+            let mismatch = axis::qrs_limb_gains(&limb, &t.bounds, t.sample_rate)
+                .filter(einthoven::LimbGains::applies)
+                .map(|g| 100.0 * g.residual_before);
+            (axis::axes(&limb, &t.bounds, t.sample_rate, basis), st, mismatch)
         }
-        None => (Axes::default(), Vec::new()),
+        None => (Axes::default(), Vec::new(), None),
     };
     Measurements {
         beats: beats.len(),
@@ -129,6 +136,7 @@ pub fn measure_with(
         axes,
         st,
         sex: ranges::Sex::parse(recording.meta.sex.as_deref()),
+        limb_gain_mismatch_pct,
     }
 }
 
@@ -142,7 +150,9 @@ impl Measurements {
     /// Every range note, in the order of [`Measurements::values`].
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
-        self.values().into_iter().filter_map(|v| v.note).collect()
+        let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
+        notes.extend(self.limb_gain_mismatch_pct.and_then(ranges::limb_gain_mismatch));
+        notes
     }
 }
 

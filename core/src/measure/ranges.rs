@@ -47,6 +47,8 @@ pub const SOURCE_QTC: &str = "Rautaharju et al. 2009, J Am Coll Cardiol 53:982-9
 pub const SOURCE_QTC_500: &str = "Johnson & Ackerman 2009, Br J Sports Med";
 /// Source of the PR, heart-rate and axis ranges (references.md §4: textbook values, no single paper).
 pub const SOURCE_TEXTBOOK: &str = "usual textbook range";
+/// Source of the limb-lead relations (references.md §5).
+pub const SOURCE_EINTHOVEN: &str = "Einthoven's law; Goldberger 1942, Am Heart J 23:483";
 /// Source of the regularity threshold.
 pub const SOURCE_COMMON: &str = "common practice";
 
@@ -147,6 +149,20 @@ pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
         ({SOURCE_TEXTBOOK})"
         ),
         SOURCE_TEXTBOOK,
+    )
+}
+
+/// Limb leads that break Einthoven's law by `pct` % (see [`super::einthoven`]): the frontal axes were computed
+/// after rescaling the limb leads to one scale, and the reader should check the recording's lead gains.
+#[must_use]
+pub fn limb_gain_mismatch(pct: f64) -> Option<RangeNote> {
+    note(
+        "axis_qrs_deg",
+        format!(
+            "Limb leads disagree with Einthoven's law by {pct:.0} % (inconsistent lead gains in the file?): \
+        frontal axes computed after rescaling the limb leads to one scale ({SOURCE_EINTHOVEN})"
+        ),
+        SOURCE_EINTHOVEN,
     )
 }
 

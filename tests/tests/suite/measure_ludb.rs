@@ -419,3 +419,22 @@ fn ludb_full_analysis_axis_and_pr() {
     assert!(sinus_n >= 40 && sinus_pr * 100 >= sinus_n * 95, "sinus records with a PR: {sinus_pr}/{sinus_n}");
     assert!(af_n >= 1 && af_no_pr * 100 >= af_n * 50, "AF records without a PR: {af_no_pr}/{af_n}");
 }
+
+#[test]
+fn inconsistent_limb_lead_gains_are_told_to_the_reader() {
+    // LUDB record 1's header gives lead I 1716 and lead II 1206 units/mV while its stored integers obey
+    // Einthoven's law (Source: the record's own header, LUDB 1.0.1); the PTB record's leads are consistent.
+    let note_of = |path: &str| {
+        let opened = io::open(&data(path), &io::OpenOptions::default()).unwrap_or_else(|e| panic!("{path}: {e}"));
+        let a = isoline_core::analysis::analyze(&opened.recording, &isoline_core::filter::FilterSettings::default());
+        (
+            a.measurements.limb_gain_mismatch_pct,
+            a.measurements.notes().into_iter().find(|n| n.text.contains("Einthoven")),
+        )
+    };
+    let (pct, note) = note_of("ludb/1.hea");
+    assert!(pct.is_some_and(|p| p > 3.0), "LUDB 1 mismatch {pct:?}");
+    assert!(note.is_some_and(|n| n.text.contains("rescaling")));
+    let (pct, note) = note_of("ptb-s0010/s0010_re.hea");
+    assert_eq!((pct, note), (None, None));
+}
