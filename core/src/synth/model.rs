@@ -97,8 +97,8 @@ impl PaperEvent {
 /// wave's last stretch before its end lies within a few µV of the baseline, where no reader and no delineator
 /// can see it end. k = 2.5 lowers by 4.4 %, leaves a corner of 18 % of the steepest slope (the wave is visibly
 /// still moving when it meets the baseline) and keeps 3.7 % of the peak a quarter σ before the end. k = 2
-/// would leave a kink of 45 % and a 13.5 % step removed; k = 3 would spend its last half σ below 1.3 % of the
-/// peak.
+/// would leave a kink of 45 % and a 13.5 % step removed; k = 3 would keep only 1.2 % of the peak a quarter σ
+/// before the end, a tail that no eye separates from the baseline.
 pub const CUT_SIGMAS: f64 = 2.5;
 
 /// Value of the paper's Gaussian at the cuts, E = e^(−k²/2) with k = [`CUT_SIGMAS`].
