@@ -10,7 +10,8 @@
 //! assert!((demo.truth.qt_ms.unwrap() - spec.qt_ms).abs() < 1e-6);
 //! ```
 //!
-//! - [`model`]: the paper's ODE, integrated with a fixed-step fourth-order Runge–Kutta scheme;
+//! - [`model`]: the paper's ODE with events of compact support (each wave starts and ends at a definite
+//!   instant), integrated with a fixed-step fourth-order Runge–Kutta scheme;
 //! - [`shape`]: one beat's events, time-scaled from the paper's to the requested PR, QRS and QT, and the
 //!   boundary rule that defines the truth;
 //! - [`rhythm`]: the beat schedule (rate, irregularity, ectopic beats);
@@ -210,7 +211,7 @@ pub fn generate(spec: &SynthSpec) -> Result<Synthetic, SynthError> {
     let projected = spec.leads.projected();
     let proj: Vec<[f64; 3]> = projected.iter().map(|&l| leads::projection(l).unwrap_or([0.0; 3])).collect();
 
-    // Start the pull term at its steady level: minus the mean of the beat's Gaussians over one RR.
+    // Start the pull term at its steady level: minus the mean of the beat's events over one RR.
     let mut offset = [0.0; 3];
     if spec.pull_per_s > 0.0 {
         let first_r = plan.beats.first().map_or(0.0, |b| b.r_s);

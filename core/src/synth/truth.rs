@@ -1,8 +1,8 @@
 //! The known truth of a synthetic recording: every beat's boundaries and the mean intervals.
 
 use super::SynthSpec;
+use super::model::{CUT_SIGMAS, cut_level};
 use super::rhythm::{Plan, TrueKind};
-use super::shape::BOUNDARY_SIGMAS;
 use crate::beat::{Beat, BeatKind, Boundaries};
 
 /// One beat's true R peak and boundaries, as sample indices (rounded to the nearest sample); `None` where the
@@ -123,9 +123,12 @@ impl Truth {
                         IEEE Trans Biomed Eng 2003;50:289-94; synthetic data, no patient"
                 .into(),
             boundary_rule: format!(
-                "each boundary lies {BOUNDARY_SIGMAS} sigma outside the centre of the outermost Gaussian event of \
-                 its wave (where the tangent at its steepest point meets the baseline; the event is at e^-2 of \
-                 its peak there); sample indices rounded to the nearest sample"
+                "every event is the model's Gaussian lowered by its value at {CUT_SIGMAS} sigma from the centre \
+                 ({:.1} % of its peak), clipped to zero beyond and rescaled to its peak, so each wave has a \
+                 definite start and end; a boundary is the instant the wave leaves the baseline (start of its first \
+                 event) or returns to it (end of its last event), independent of any delineation method; sample \
+                 indices rounded to the nearest sample",
+                100.0 * cut_level()
             ),
             scenario: spec.scenario.clone(),
             sample_rate_hz: fs,

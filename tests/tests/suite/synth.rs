@@ -101,30 +101,64 @@ fn baseline(x: &[f32], first: usize, fs: f64) -> f64 {
     x[first - w..first].iter().map(|&v| f64::from(v)).sum::<f64>() / w as f64
 }
 
+/// Largest change from sample `k` to `k + 1` over all leads, µV.
+fn step(s: &Synthetic, k: usize) -> f64 {
+    s.recording.leads.iter().map(|l| (f64::from(l.samples[k + 1]) - f64::from(l.samples[k])).abs()).fold(0.0, f64::max)
+}
+
+/// Most the trace may move per sample where no wave is: only the model's slow pull to baseline acts there
+/// (λ = 2π·0.05 s⁻¹ on an offset of some tens of µV: at most 0.07 µV per sample at 500 Hz in these
+/// scenarios, where a Gaussian's tail 2–3σ out would still move by several µV).
+const FLAT_UV: f64 = 0.2;
+/// Least move per sample just inside a wave: every event leaves the baseline at its corner slope
+/// h·k·e^(−k²/2)/((1 − e^(−k²/2))σ), about 1.7 µV per sample for the smallest (the 150 µV P wave) at 500 Hz.
+const MOVING_UV: f64 = 0.5;
+
 #[test]
 fn truth_agrees_with_the_waveform() {
-    let spec = Scenario::Normal.spec();
-    let s = make(&spec);
-    let fs = spec.rate_hz;
-    let ii = lead(&s, L::II);
-    for b in &s.truth.beats {
-        let (Some(p_on), Some(qrs_on), Some(qrs_end), Some(t_end)) = (b.p_on, b.qrs_on, b.qrs_end, b.t_end) else {
-            panic!("sinus beat without boundaries: {b:?}");
-        };
-        let base = baseline(ii, p_on, fs);
-        // The largest deflection of the beat in lead II lies inside the QRS, within 4 ms of the R peak.
-        let (kmax, _) = (p_on..t_end)
-            .map(|k| (k, (f64::from(ii[k]) - base).abs()))
-            .fold((0, 0.0), |a, c| if c.1 > a.1 { c } else { a });
-        assert!(kmax > qrs_on && kmax < qrs_end && kmax.abs_diff(b.r_sample) as f64 <= 0.004 * fs, "{b:?}");
-        // Outside the waves (before P onset, and between J point and the T wave's rise) the trace is
-        // isoelectric to within 30 µV, the boundary rule's level (e⁻² of the outermost event, module docs).
-        for k in [p_on - 5, qrs_end + 5] {
-            assert!((f64::from(ii[k]) - base).abs() < 30.0, "sample {k}: {}", f64::from(ii[k]) - base);
+    for scenario in [Scenario::Normal, Scenario::LongQt, Scenario::WideQrs, Scenario::Ectopics] {
+        let spec = scenario.spec();
+        let s = make(&spec);
+        let fs = spec.rate_hz;
+        let name = scenario.name();
+        let ii = lead(&s, L::II);
+        for b in &s.truth.beats {
+            let (Some(qrs_on), Some(qrs_end), Some(t_end)) = (b.qrs_on, b.qrs_end, b.t_end) else {
+                panic!("{name}: beat without QRS or T: {b:?}");
+            };
+            let first = b.p_on.unwrap_or(qrs_on);
+            if scenario == Scenario::Normal {
+                // The largest deflection of the beat in lead II lies inside the QRS, within 4 ms of the R peak,
+                // and is clearly away from the baseline.
+                let base = baseline(ii, first, fs);
+                let (kmax, dev) = (first..t_end)
+                    .map(|k| (k, (f64::from(ii[k]) - base).abs()))
+                    .fold((0, 0.0), |a, c| if c.1 > a.1 { c } else { a });
+                assert!(kmax > qrs_on && kmax < qrs_end && kmax.abs_diff(b.r_sample) as f64 <= 0.004 * fs, "{b:?}");
+                assert!(dev > 500.0, "R deflection {dev} µV");
+            }
+            // Boundary rule (synth::shape): every wave leaves the baseline at its onset and regains it at its
+            // end, in the leads taken together. A true instant is rounded to the nearest sample, so the sample
+            // before an onset (after an end) is outside the wave and the sample after it (before it) inside.
+            let mut onsets = vec![qrs_on];
+            let mut ends = vec![qrs_end, t_end];
+            if let (Some(p_on), Some(p_end)) = (b.p_on, b.p_end) {
+                onsets.push(p_on);
+                ends.push(p_end);
+            }
+            for on in onsets {
+                for k in on - 6..on - 1 {
+                    assert!(step(&s, k) < FLAT_UV, "{name}: moving {} µV at {k}, before onset {on}", step(&s, k));
+                }
+                assert!(step(&s, on + 1) > MOVING_UV, "{name}: still flat after onset {on}: {}", step(&s, on + 1));
+            }
+            for end in ends {
+                assert!(step(&s, end - 2) > MOVING_UV, "{name}: already flat before end {end}: {}", step(&s, end - 2));
+                for k in end + 1..end + 6 {
+                    assert!(step(&s, k) < FLAT_UV, "{name}: moving {} µV at {k}, after end {end}", step(&s, k));
+                }
+            }
         }
-        // Inside the waves the trace is clearly away from the baseline.
-        let r_dev = (f64::from(ii[b.r_sample]) - base).abs();
-        assert!(r_dev > 500.0, "R deflection {r_dev} µV");
     }
 }
 
