@@ -159,3 +159,118 @@ fn lower_quartile(x: &[f32]) -> Option<f32> {
 fn min_over(x: &[f32], a: usize, b: usize) -> Option<f32> {
     (a < b && b <= x.len()).then(|| x[a..b].iter().copied().fold(f32::INFINITY, f32::min))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::delineate::signals::pacing_spikes;
+    use std::f64::consts::PI;
+
+    const FS: f64 = 500.0;
+
+    /// Raised-cosine bump: 0 at `a`, `amp` at `peak`, 0 at `b` (s).
+    fn bump(t: f64, a: f64, peak: f64, b: f64, amp: f64) -> f64 {
+        if t <= a || t >= b {
+            0.0
+        } else if t <= peak {
+            amp * 0.5 * (1.0 - (PI * (t - a) / (peak - a)).cos())
+        } else {
+            amp * 0.5 * (1.0 + (PI * (t - peak) / (b - peak)).cos())
+        }
+    }
+
+    /// Small deterministic noise in ±`amp` (linear congruential generator).
+    fn noise(n: usize, amp: f32, seed: u64) -> Vec<f32> {
+        let mut s = seed;
+        (0..n)
+            .map(|_| {
+                s = s.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1_442_695_040_888_963_407);
+                ((s >> 33) as f32 / (1u64 << 31) as f32 * 2.0 - 1.0) * amp
+            })
+            .collect()
+    }
+
+    /// Beats every second from 0.5 s over `secs` s: QRS from `on` to `on + width` s after each beat start, peak
+    /// at its middle, `amp` µV per lead. Returns the leads and the QRS onsets (s).
+    fn beats(secs: f64, width: f64, amps: &[f64]) -> (Vec<Vec<f32>>, Vec<f64>) {
+        let n = (secs * FS) as usize;
+        let onsets: Vec<f64> = (0..).map(|i| 0.5 + f64::from(i)).take_while(|&t| t + 1.0 < secs).collect();
+        let leads = amps
+            .iter()
+            .map(|&a| {
+                (0..n)
+                    .map(|k| {
+                        let t = k as f64 / FS;
+                        onsets.iter().map(|&o| bump(t, o, o + width / 2.0, o + width, a)).sum::<f64>() as f32
+                    })
+                    .collect()
+            })
+            .collect();
+        (leads, onsets)
+    }
+
+    #[test]
+    fn agreed_first_takes_the_earliest_onset_another_lead_confirms() {
+        assert_eq!(agreed_first(&[100, 120, 122, 130], 3), Some(120));
+        assert_eq!(agreed_first(&[100, 102, 120, 130], 3), Some(100));
+        // No two leads agree: second earliest with four or more leads, earliest with fewer.
+        assert_eq!(agreed_first(&[100, 110, 120, 130], 3), Some(110));
+        assert_eq!(agreed_first(&[100, 110], 3), Some(100));
+        assert_eq!(agreed_first(&[], 3), None);
+    }
+
+    #[test]
+    fn pacing_spikes_are_found_and_steep_qrs_limbs_are_not() {
+        let (mut leads, onsets) = beats(6.0, 0.060, &[1500.0]);
+        let x = &mut leads[0];
+        let spikes: Vec<usize> = onsets.iter().map(|&o| ((o - 0.010) * FS) as usize).collect();
+        for &s in &spikes {
+            x[s] += 2000.0;
+        }
+        let x64: Vec<f64> = x.iter().map(|&v| f64::from(v)).collect();
+        assert_eq!(pacing_spikes(&x64, FS), spikes);
+        let clean: Vec<f64> = beats(6.0, 0.060, &[1500.0]).0[0].iter().map(|&v| f64::from(v)).collect();
+        assert!(pacing_spikes(&clean, FS).is_empty());
+    }
+
+    #[test]
+    fn paced_qrs_starts_after_the_spike() {
+        // Wide paced QRS (140 ms) 10 ms after a one-sample 2 mV stimulus artefact in both leads.
+        let (mut leads, onsets) = beats(6.0, 0.140, &[1200.0, -900.0]);
+        for x in &mut leads {
+            for &o in &onsets {
+                x[((o - 0.010) * FS) as usize] += 2000.0;
+            }
+        }
+        let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
+        let sig = Signals::new(&refs, FS);
+        for &o in &onsets[1..onsets.len() - 1] {
+            let spike = ((o - 0.010) * FS) as usize;
+            let r = ((o + 0.070) * FS) as usize;
+            let (on, _) = qrs_bounds(&sig, r, 0, sig.len());
+            let on = on.expect("onset found");
+            assert!(on > spike, "onset {on} not after the spike at {spike}");
+            let err_ms = (on as f64 / FS - o) * 1000.0;
+            assert!(err_ms.abs() <= 10.0, "onset error {err_ms:+.1} ms");
+        }
+    }
+
+    #[test]
+    fn noisy_lead_does_not_start_the_qrs_early() {
+        // A clean lead and a lead with ±40 µV noise; the noise must not move the onset out of ±10 ms.
+        let (mut leads, onsets) = beats(6.0, 0.090, &[1000.0, 800.0]);
+        for (v, e) in leads[1].iter_mut().zip(noise(3000, 40.0, 7)) {
+            *v += e;
+        }
+        let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
+        let sig = Signals::new(&refs, FS);
+        for &o in &onsets[1..onsets.len() - 1] {
+            let r = ((o + 0.045) * FS) as usize;
+            let (on, end) = qrs_bounds(&sig, r, 0, sig.len());
+            let err_ms = (on.expect("onset found") as f64 / FS - o) * 1000.0;
+            assert!(err_ms.abs() <= 10.0, "onset error {err_ms:+.1} ms");
+            let end_ms = (end.expect("end found") as f64 / FS - o - 0.090) * 1000.0;
+            assert!(end_ms.abs() <= 10.0, "end error {end_ms:+.1} ms");
+        }
+    }
+}
