@@ -1,23 +1,42 @@
 //! QRS onset and J point, found per lead and combined into global boundaries. The steep part of the QRS comes
 //! from the multi-lead slope envelope; from there each lead's own |slope| (40 Hz signal, smoothed over
 //! ≈ 10 ms) is walked outward to where it falls a set fraction of the way from that lead's quiet level before
-//! (after) the QRS to its own QRS peak slope. Leads with a clear QRS vote: the global onset is a robust
-//! earliest of their onsets and the J point a robust latest of their ends (the usual 12-lead global QRS runs
-//! from the first lead to start to the last to finish).
+//! (after) the QRS to its own QRS peak slope; before the QRS the threshold is never below a multiple of the
+//! lead's noise (its typical slope before the QRS), so a clean lead is followed down to its first small
+//! deflection while a noisy lead stops where the QRS rises out of its noise. Leads with a clear QRS vote: the
+//! global onset is the earliest lead onset that another lead confirms within [`AGREE_S`], and the J point a
+//! robust latest of their ends (the usual 12-lead global QRS runs from the first lead to start to the last to
+//! finish). A pacing spike before the QRS bounds the onset search: the QRS starts after the stimulus artefact.
 
 use super::signals::{Signals, smooth};
 
-/// Fraction of a lead's slope rise above its quiet level that marks its onset or end.
+/// Fraction of a lead's slope rise above its quiet level that marks its end.
 // Common practice, no source: slope-threshold delineators use 5–20 % of the QRS peak slope.
 const EDGE_FRACTION: f32 = 0.05;
+/// Fraction of a lead's slope rise above its quiet level that marks its onset, where the noise floor
+/// ([`ONSET_NOISE`]) also holds: lower than at the end, since the first deflection of a QRS is often small and
+/// slow (septal q or initial r) and the reference onset is the first lead to leave its baseline.
+// Common practice, no source.
+const ONSET_FRACTION: f32 = 0.025;
+/// The onset threshold is at least this many times the lead's noise slope: the lower quartile of its smoothed
+/// |slope| over the 200–20 ms before the steep part (the PR segment and P wave; robust to a P wave or a spike).
+// Common practice, no source: a deflection is told from noise when it exceeds a few times the noise level.
+const ONSET_NOISE: f32 = 4.0;
+/// The global onset is the earliest lead onset that another voting lead confirms within this time, s.
+// Common practice, no source: one lead alone starting early is more often noise than an early QRS vector, but
+// two leads within a few ms of each other mark the start of depolarisation.
+const AGREE_S: f64 = 0.006;
+/// The onset is sought no earlier than this long after a pacing spike, s.
+// Common practice, no source: the stimulus artefact and its recovery last a few ms at most.
+const AFTER_SPIKE_S: f64 = 0.006;
 /// The steep part of the QRS: envelope at least this fraction of its peak.
 // Common practice, no source.
 const STEEP: f32 = 0.4;
 /// A lead votes when its QRS peak slope is at least this fraction of the steepest lead's.
 // Common practice, no source: a lead with a small, flat QRS mostly shows noise and ST slope at its edges.
 const CLEAR_LEAD: f32 = 0.35;
-/// With at least this many voting leads, the global onset (end) is the second earliest (latest) lead's, so
-/// one noisy lead cannot move it; with fewer, the earliest (latest).
+/// With at least this many voting leads, the global end is the second latest lead's, so one noisy lead cannot
+/// move it; with fewer, the latest. The same holds for the onset when no two leads agree (see [`AGREE_S`]).
 // Common practice, no source.
 const ROBUST_LEADS: usize = 4;
 /// A lead's QRS end is sought at most this long after the steep part, s (later is ST or T slope).
@@ -32,6 +51,11 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
         return (None, None);
     }
     let lo = r.saturating_sub(sig.samples(0.120)).max(min_start);
+    // After a pacing spike between the search start and R, the QRS can only start once the artefact is over.
+    let lo = match sig.spikes.iter().rev().find(|&&s| s >= lo && s < r) {
+        Some(&s) => (s + sig.samples(AFTER_SPIKE_S)).min(r),
+        None => lo,
+    };
     let hi = (r + sig.samples(0.150)).min(n - 1).min(max_end);
     if lo >= hi {
         return (None, None);
@@ -49,6 +73,7 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
     let win = Window {
         a0: first.saturating_sub(sig.samples(0.200)).max(min_start.min(first)),
         b0: (last + sig.samples(0.200)).min(n - 1).min(max_end.max(last)),
+        on_min: lo,
     };
     let w = ((0.010 * sig.fs).round() as usize).max(1) | 1;
     let envs: Vec<(Vec<f32>, f32)> = sig
@@ -75,7 +100,13 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
     }
     onsets.sort_unstable();
     ends.sort_unstable_by(|a, b| b.cmp(a));
-    (robust_first(&onsets), robust_first(&ends))
+    (agreed_first(&onsets, sig.samples(AGREE_S)), robust_first(&ends))
+}
+
+/// The first entry of ascending `v` that the next one follows within `agree` samples; without such a pair, the
+/// robust first ([`robust_first`]). With two entries this is the earlier one either way.
+fn agreed_first(v: &[usize], agree: usize) -> Option<usize> {
+    v.windows(2).find(|w| w[1] - w[0] <= agree).map(|w| w[0]).or_else(|| robust_first(v))
 }
 
 /// The first entry of `v` (already ordered), or the second with at least [`ROBUST_LEADS`] entries.
@@ -83,20 +114,25 @@ fn robust_first(v: &[usize]) -> Option<usize> {
     if v.len() >= ROBUST_LEADS { v.get(1).copied() } else { v.first().copied() }
 }
 
-/// Samples `a0..=b0` of the recording; a lead's envelope `e` holds them from index 0.
+/// Samples `a0..=b0` of the recording; a lead's envelope `e` holds them from index 0. No onset before `on_min`.
 struct Window {
     a0: usize,
     b0: usize,
+    on_min: usize,
 }
 
 impl Window {
     /// A lead's onset: walking back from `first` (start of the steep part) to where its slope `e` is at or
-    /// below [`EDGE_FRACTION`] of the way from its quiet level (the 200–20 ms before `first`) to `peak`.
+    /// below [`ONSET_FRACTION`] of the way from its quiet level (least slope over the 200–20 ms before
+    /// `first`) to `peak`, and at or below [`ONSET_NOISE`] times its noise slope over the same time; never
+    /// before `on_min`.
     fn onset(&self, e: &[f32], peak: f32, first: usize, sig: &Signals) -> Option<usize> {
         let a = self.a0;
-        let q = min_over(e, 0, first.saturating_sub(sig.samples(0.020)).max(a) - a)?;
-        let thr = q + EDGE_FRACTION * (peak - q);
-        (a..=first).rev().find(|&k| e[k - a] <= thr)
+        let quiet = &e[..first.saturating_sub(sig.samples(0.020)).max(a) - a];
+        let q = min_over(quiet, 0, quiet.len())?;
+        let noise = lower_quartile(quiet)?;
+        let thr = (q + ONSET_FRACTION * (peak - q)).max(ONSET_NOISE * noise);
+        (a..=first).rev().find(|&k| e[k - a] <= thr).map(|k| k.max(self.on_min))
     }
 
     /// A lead's end: walking on from `last` (end of the steep part), at most [`END_REACH_S`], to where its
@@ -110,6 +146,131 @@ impl Window {
     }
 }
 
+/// Lower quartile of `x` (`None` when empty).
+fn lower_quartile(x: &[f32]) -> Option<f32> {
+    if x.is_empty() {
+        return None;
+    }
+    let mut v = x.to_vec();
+    let idx = v.len() / 4;
+    Some(*v.select_nth_unstable_by(idx, f32::total_cmp).1)
+}
+
 fn min_over(x: &[f32], a: usize, b: usize) -> Option<f32> {
     (a < b && b <= x.len()).then(|| x[a..b].iter().copied().fold(f32::INFINITY, f32::min))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::delineate::signals::pacing_spikes;
+    use std::f64::consts::PI;
+
+    const FS: f64 = 500.0;
+
+    /// Raised-cosine bump: 0 at `a`, `amp` at `peak`, 0 at `b` (s).
+    fn bump(t: f64, a: f64, peak: f64, b: f64, amp: f64) -> f64 {
+        if t <= a || t >= b {
+            0.0
+        } else if t <= peak {
+            amp * 0.5 * (1.0 - (PI * (t - a) / (peak - a)).cos())
+        } else {
+            amp * 0.5 * (1.0 + (PI * (t - peak) / (b - peak)).cos())
+        }
+    }
+
+    /// Small deterministic noise in ±`amp` (linear congruential generator).
+    fn noise(n: usize, amp: f32, seed: u64) -> Vec<f32> {
+        let mut s = seed;
+        (0..n)
+            .map(|_| {
+                s = s.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1_442_695_040_888_963_407);
+                ((s >> 33) as f32 / (1u64 << 31) as f32 * 2.0 - 1.0) * amp
+            })
+            .collect()
+    }
+
+    /// Beats every second from 0.5 s over `secs` s: QRS from `on` to `on + width` s after each beat start, peak
+    /// at its middle, `amp` µV per lead. Returns the leads and the QRS onsets (s).
+    fn beats(secs: f64, width: f64, amps: &[f64]) -> (Vec<Vec<f32>>, Vec<f64>) {
+        let n = (secs * FS) as usize;
+        let onsets: Vec<f64> = (0..).map(|i| 0.5 + f64::from(i)).take_while(|&t| t + 1.0 < secs).collect();
+        let leads = amps
+            .iter()
+            .map(|&a| {
+                (0..n)
+                    .map(|k| {
+                        let t = k as f64 / FS;
+                        onsets.iter().map(|&o| bump(t, o, o + width / 2.0, o + width, a)).sum::<f64>() as f32
+                    })
+                    .collect()
+            })
+            .collect();
+        (leads, onsets)
+    }
+
+    #[test]
+    fn agreed_first_takes_the_earliest_onset_another_lead_confirms() {
+        assert_eq!(agreed_first(&[100, 120, 122, 130], 3), Some(120));
+        assert_eq!(agreed_first(&[100, 102, 120, 130], 3), Some(100));
+        // No two leads agree: second earliest with four or more leads, earliest with fewer.
+        assert_eq!(agreed_first(&[100, 110, 120, 130], 3), Some(110));
+        assert_eq!(agreed_first(&[100, 110], 3), Some(100));
+        assert_eq!(agreed_first(&[], 3), None);
+    }
+
+    #[test]
+    fn pacing_spikes_are_found_and_steep_qrs_limbs_are_not() {
+        let (mut leads, onsets) = beats(6.0, 0.060, &[1500.0]);
+        let x = &mut leads[0];
+        let spikes: Vec<usize> = onsets.iter().map(|&o| ((o - 0.010) * FS) as usize).collect();
+        for &s in &spikes {
+            x[s] += 2000.0;
+        }
+        let x64: Vec<f64> = x.iter().map(|&v| f64::from(v)).collect();
+        assert_eq!(pacing_spikes(&x64, FS), spikes);
+        let clean: Vec<f64> = beats(6.0, 0.060, &[1500.0]).0[0].iter().map(|&v| f64::from(v)).collect();
+        assert!(pacing_spikes(&clean, FS).is_empty());
+    }
+
+    #[test]
+    fn paced_qrs_starts_after_the_spike() {
+        // Wide paced QRS (140 ms) 10 ms after a one-sample 2 mV stimulus artefact in both leads.
+        let (mut leads, onsets) = beats(6.0, 0.140, &[1200.0, -900.0]);
+        for x in &mut leads {
+            for &o in &onsets {
+                x[((o - 0.010) * FS) as usize] += 2000.0;
+            }
+        }
+        let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
+        let sig = Signals::new(&refs, FS);
+        for &o in &onsets[1..onsets.len() - 1] {
+            let spike = ((o - 0.010) * FS) as usize;
+            let r = ((o + 0.070) * FS) as usize;
+            let (on, _) = qrs_bounds(&sig, r, 0, sig.len());
+            let on = on.expect("onset found");
+            assert!(on > spike, "onset {on} not after the spike at {spike}");
+            let err_ms = (on as f64 / FS - o) * 1000.0;
+            assert!(err_ms.abs() <= 10.0, "onset error {err_ms:+.1} ms");
+        }
+    }
+
+    #[test]
+    fn noisy_lead_does_not_start_the_qrs_early() {
+        // A clean lead and a lead with ±40 µV noise; the noise must not move the onset out of ±10 ms.
+        let (mut leads, onsets) = beats(6.0, 0.090, &[1000.0, 800.0]);
+        for (v, e) in leads[1].iter_mut().zip(noise(3000, 40.0, 7)) {
+            *v += e;
+        }
+        let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
+        let sig = Signals::new(&refs, FS);
+        for &o in &onsets[1..onsets.len() - 1] {
+            let r = ((o + 0.045) * FS) as usize;
+            let (on, end) = qrs_bounds(&sig, r, 0, sig.len());
+            let err_ms = (on.expect("onset found") as f64 / FS - o) * 1000.0;
+            assert!(err_ms.abs() <= 10.0, "onset error {err_ms:+.1} ms");
+            let end_ms = (end.expect("end found") as f64 / FS - o - 0.090) * 1000.0;
+            assert!(end_ms.abs() <= 10.0, "end error {end_ms:+.1} ms");
+        }
+    }
 }

@@ -1,5 +1,5 @@
 //! Signals shared by the boundary finders: each lead low-passed for the QRS (40 Hz) and for P and T (12 Hz),
-//! and the multi-lead QRS slope envelope.
+//! the multi-lead QRS slope envelope, and the pacing spikes found in the unfiltered leads.
 
 use crate::filter::{Biquad, fill_invalid, filtfilt};
 
@@ -8,6 +8,14 @@ const QRS_LP_HZ: f64 = 40.0;
 /// Most a lead's slope is raised relative to the lead with the steepest QRS when the leads are equalised.
 // Common practice, no source.
 const MAX_GAIN: f32 = 4.0;
+/// A pacing spike departs from the lead's running median (over [`SPIKE_MEDIAN_S`]) by more than this many times
+/// the lead's 99th percentile sample-to-sample step.
+// Common practice, no source: a pacemaker stimulus artefact is a step of a few mV within one or two samples, far
+// steeper than any QRS limb, and a short running median ignores it.
+const SPIKE_FACTOR: f64 = 4.0;
+/// Running median window for the pacing spike test, s.
+// Common practice, no source: stimulus artefacts last under ≈ 2 ms; 10 ms spans them and keeps QRS limbs.
+const SPIKE_MEDIAN_S: f64 = 0.010;
 /// Low-pass cutoff for P and T waves, Hz.
 const WAVE_LP_HZ: f64 = 12.0;
 
@@ -22,6 +30,9 @@ pub struct Signals {
     /// Largest over the leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so
     /// the first lead to start and the last to finish set the edges), smoothed over ≈ 10 ms. Dimensionless.
     pub env: Vec<f32>,
+    /// Pacing spikes: sorted sample indices where any unfiltered lead jumps away from and back to its local
+    /// level within a few samples (see [`pacing_spikes`]).
+    pub spikes: Vec<usize>,
 }
 
 impl Signals {
@@ -34,8 +45,10 @@ impl Signals {
         let lp_w = [Biquad::lowpass(WAVE_LP_HZ, fs)];
         let mut qrs = Vec::with_capacity(leads.len());
         let mut slow = Vec::with_capacity(leads.len());
+        let mut spikes = Vec::new();
         for lead in leads {
             let x = fill_invalid(lead);
+            spikes.extend(pacing_spikes(&x, fs));
             qrs.push(filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect::<Vec<f32>>());
             slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
         }
@@ -54,7 +67,9 @@ impl Signals {
             }
         }
         let w = ((0.010 * fs).round() as usize).max(1) | 1;
-        Self { fs, qrs, slow, env: smooth(&raw_env, w) }
+        spikes.sort_unstable();
+        spikes.dedup();
+        Self { fs, qrs, slow, env: smooth(&raw_env, w), spikes }
     }
 
     /// Number of samples.
@@ -105,4 +120,33 @@ fn slope_scale(q: &[f32]) -> f32 {
     }
     let idx = (v.len() * 99 / 100).min(v.len() - 1);
     *v.select_nth_unstable_by(idx, f32::total_cmp).1
+}
+
+/// Pacing spikes of one unfiltered lead `x` (µV) at `fs` Hz: samples that stand more than [`SPIKE_FACTOR`] times
+/// the lead's 99th percentile sample-to-sample step away from the running median over [`SPIKE_MEDIAN_S`] (a
+/// spike of one or two samples; a QRS limb, however steep, follows the median). Only samples next to such a step
+/// are tested, so a long recording costs one pass.
+pub fn pacing_spikes(x: &[f64], fs: f64) -> Vec<usize> {
+    let n = x.len();
+    if n < 3 {
+        return Vec::new();
+    }
+    let step = (n / 100_000).max(1);
+    let mut d: Vec<f64> = (1..n).step_by(step).map(|k| (x[k] - x[k - 1]).abs()).collect();
+    let idx = (d.len() * 99 / 100).min(d.len() - 1);
+    let limit = SPIKE_FACTOR * *d.select_nth_unstable_by(idx, f64::total_cmp).1;
+    if limit <= 0.0 {
+        return Vec::new();
+    }
+    let h = ((SPIKE_MEDIAN_S * fs).round() as usize / 2).max(1);
+    let mut buf = Vec::with_capacity(2 * h + 1);
+    (1..n)
+        .filter(|&k| (x[k] - x[k - 1]).abs() > limit || (k + 1 < n && (x[k + 1] - x[k]).abs() > limit))
+        .filter(|&k| {
+            buf.clear();
+            buf.extend_from_slice(&x[k.saturating_sub(h)..(k + h + 1).min(n)]);
+            let mid = buf.len() / 2;
+            (x[k] - *buf.select_nth_unstable_by(mid, f64::total_cmp).1).abs() > limit
+        })
+        .collect()
 }
