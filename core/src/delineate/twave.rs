@@ -4,7 +4,9 @@
 //! (trapezium-area method, Vázquez-Seisdedos et al., Biomed Eng Online 2011;10:77 — from memory). The end
 //! itself needs no isoelectric level and lands nearer the visual end than the tangent's baseline crossing. Works for
 //! upright, inverted and biphasic T waves (the terminal lobe is used). Each lead gives a T end when its T wave
-//! is clear; the global T end is the latest over the reliable leads that agree with the others.
+//! is clear. The global T end is the latest lead end (as the 12-lead global T end is defined: the last lead to
+//! finish) among the leads whose T wave is at least [`CANDIDATE`] of the largest, leaving out any lead that ends
+//! more than [`AGREE_S`] after the median end of the leads with a large T (at least [`RELIABLE`] of the largest).
 
 use super::signals::Signals;
 
@@ -14,9 +16,15 @@ const BIPHASIC: f32 = 0.5;
 /// …and when its peak comes within this time of the main lobe's (a later, separate wave is a U wave), s.
 // Common practice, no source.
 const BIPHASIC_GAP_S: f64 = 0.150;
-/// A lead's T wave is used when its amplitude is at least this fraction of the largest T over the leads.
-// Common practice, no source: leads with a near-flat T give unreliable tangents.
+/// A lead's T wave sets the agreement reference (the median end) when its amplitude is at least this fraction
+/// of the largest T over the leads.
+// Common practice, no source: leads with a near-flat T give unreliable ends, so they do not set the reference.
 const RELIABLE: f32 = 0.35;
+/// A lead's T end may be the global (latest) end when its amplitude is at least this fraction of the largest T
+/// and it agrees with the reference. Smaller than [`RELIABLE`]: the last lead to finish is often one with a
+/// smaller T wave, and the agreement test already guards against a lead misled by another wave.
+// Common practice, no source.
+const CANDIDATE: f32 = 0.20;
 /// A T wave smaller than this (µV) is not delineated.
 // Common practice, no source.
 const MIN_T_UV: f32 = 25.0;
@@ -66,12 +74,17 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
     if biggest < MIN_T_UV {
         return None;
     }
-    let mut ends: Vec<f64> = found.iter().filter(|t| t.amplitude.abs() >= RELIABLE * biggest).map(|t| t.end).collect();
-    ends.sort_by(f64::total_cmp);
-    // Latest end among the leads that agree: a lead more than AGREE_S past the median lead is taken as misled
-    // (a U wave or the next P wave), not as the last lead to finish.
-    let med = ends[ends.len() / 2];
-    let latest = ends.iter().copied().filter(|&e| e <= med + AGREE_S * sig.fs).fold(f64::NEG_INFINITY, f64::max);
+    let mut reference: Vec<f64> =
+        found.iter().filter(|t| t.amplitude.abs() >= RELIABLE * biggest).map(|t| t.end).collect();
+    reference.sort_by(f64::total_cmp);
+    // Latest end among the leads that agree: a lead more than AGREE_S past the median of the large-T leads is
+    // taken as misled (a U wave or the next P wave), not as the last lead to finish.
+    let med = reference[reference.len() / 2];
+    let latest = found
+        .iter()
+        .filter(|t| t.amplitude.abs() >= CANDIDATE * biggest && t.end <= med + AGREE_S * sig.fs)
+        .map(|t| t.end)
+        .fold(f64::NEG_INFINITY, f64::max);
     // A tangent that lands past the last sample gives no T end (the recording stops before the wave does).
     (latest.is_finite() && latest >= from as f64 && latest.round() < n as f64).then(|| latest.round() as usize)
 }
