@@ -35,6 +35,18 @@ const TRAPEZIUM_REACH_S: f64 = 0.120;
 // Common practice, no source.
 const AGREE_S: f64 = 0.060;
 
+/// A lead's T end is left out when it lies more than this from the median of the same lead's T ends (each
+/// measured from its beat's QRS onset) over the neighbouring beats, s.
+// Common practice, no source: the QT interval changes by a few tens of ms from one beat to the next (see
+// `T_OUTLIER_S` in the parent module); one lead jumping further has followed another wave or noise.
+const LEAD_CONSISTENT_S: f64 = 0.040;
+/// Neighbouring beats on each side compared by [`drop_inconsistent_leads`].
+// Common practice, no source.
+const NEIGHBOURS: usize = 6;
+/// Fewest T ends of a lead (the beat's own included) among the neighbours for the comparison to be made.
+// Common practice, no source.
+const MIN_NEIGHBOURS: usize = 5;
+
 /// One lead's T wave: amplitude of the lobe used (µV, signed) and its T end (fractional sample).
 #[derive(Debug, Clone, Copy)]
 struct LeadT {
@@ -42,19 +54,31 @@ struct LeadT {
     end: f64,
 }
 
-/// Global T end for a beat. `iso_at` is where the isoelectric level is read (just before QRS onset), `from`
-/// the start of the T search (after the J point) and `to` its end (before the next beat's P).
+/// One beat's T wave as found on each lead, before the leads are combined by [`global_end`].
+#[derive(Debug, Clone)]
+pub struct BeatT {
+    /// Where the isoelectric level was read (just before QRS onset), sample; lead ends are compared from here.
+    anchor: usize,
+    /// Start of the T search, sample.
+    from: usize,
+    /// Each lead's T (`None` where the lead gives none), in lead order.
+    leads: Vec<Option<LeadT>>,
+}
+
+/// Each lead's T wave for a beat. `iso_at` is where the isoelectric level is read (just before QRS onset),
+/// `from` the start of the T search (after the J point) and `to` its end (before the next beat's P). `None` when
+/// the search window is too short.
 #[must_use]
-pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usize> {
+pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<BeatT> {
     let n = sig.len();
     let to = to.min(n.saturating_sub(2));
     if from + sig.samples(0.060) >= to || iso_at < sig.samples(0.020) {
         return None;
     }
-    let found: Vec<LeadT> = sig
+    let leads = sig
         .slow
         .iter()
-        .filter_map(|slow| {
+        .map(|slow| {
             // Isoelectric level: median of the 200 ms before QRS onset (PR and TP segments; the P wave is brief).
             let mut pre: Vec<f32> = slow[iso_at.saturating_sub(sig.samples(0.200))..=iso_at].to_vec();
             let mid = pre.len() / 2;
@@ -70,6 +94,50 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
             )
         })
         .collect();
+    Some(BeatT { anchor: iso_at, from, leads })
+}
+
+/// Removes, lead by lead, the T ends that disagree with the same lead's T ends on the neighbouring beats
+/// ([`NEIGHBOURS`] each side; at least [`MIN_NEIGHBOURS`] ends needed): more than [`LEAD_CONSISTENT_S`] from
+/// their median, measured from each beat's QRS onset. `beats` in time order; `None` = beat without a T search.
+pub fn drop_inconsistent_leads(sig: &Signals, beats: &mut [Option<BeatT>]) {
+    let idx: Vec<usize> = (0..beats.len()).filter(|&i| beats[i].is_some()).collect();
+    let tol = LEAD_CONSISTENT_S * sig.fs;
+    for lead in 0..sig.slow.len() {
+        let rel: Vec<Option<f64>> = idx
+            .iter()
+            .map(|&i| {
+                let b = beats[i].as_ref()?;
+                Some(b.leads.get(lead).copied().flatten()?.end - b.anchor as f64)
+            })
+            .collect();
+        for (j, &i) in idx.iter().enumerate() {
+            let Some(v) = rel[j] else { continue };
+            let mut near: Vec<f64> = rel[j.saturating_sub(NEIGHBOURS)..(j + NEIGHBOURS + 1).min(rel.len())]
+                .iter()
+                .flatten()
+                .copied()
+                .collect();
+            if near.len() < MIN_NEIGHBOURS {
+                continue;
+            }
+            near.sort_by(f64::total_cmp);
+            let m = near.len() / 2;
+            let median = if near.len() % 2 == 0 { 0.5 * (near[m - 1] + near[m]) } else { near[m] };
+            if (v - median).abs() > tol
+                && let Some(slot) = beats[i].as_mut().and_then(|b| b.leads.get_mut(lead))
+            {
+                *slot = None;
+            }
+        }
+    }
+}
+
+/// The global T end of a beat from its leads' T waves: the latest lead end among the leads whose T is at least
+/// [`CANDIDATE`] of the largest and that agree with the large-T leads (see the module comment).
+#[must_use]
+pub fn global_end(sig: &Signals, beat: &BeatT) -> Option<usize> {
+    let found: Vec<LeadT> = beat.leads.iter().flatten().copied().collect();
     let biggest = found.iter().map(|t| t.amplitude.abs()).fold(0.0f32, f32::max);
     if biggest < MIN_T_UV {
         return None;
@@ -86,7 +154,8 @@ pub fn t_end(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<usi
         .map(|t| t.end)
         .fold(f64::NEG_INFINITY, f64::max);
     // A tangent that lands past the last sample gives no T end (the recording stops before the wave does).
-    (latest.is_finite() && latest >= from as f64 && latest.round() < n as f64).then(|| latest.round() as usize)
+    (latest.is_finite() && latest >= beat.from as f64 && latest.round() < sig.len() as f64)
+        .then(|| latest.round() as usize)
 }
 
 /// T end on one lead, or `None` when the terminal limb is flat or the end lands outside the search window.
@@ -153,5 +222,33 @@ mod tests {
         assert_eq!(t, Some(160));
         let inv: Vec<f32> = x.iter().map(|v| -v).collect();
         assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize), Some(160));
+    }
+
+    #[test]
+    fn a_lead_jumping_away_from_its_neighbouring_beats_is_dropped() {
+        let flat = vec![0.0f32; 5000];
+        let sig = Signals::new(&[&flat, &flat], 500.0);
+        // Eight beats 500 samples apart; lead 0 ends 150 samples after each anchor except beat 3 (+50 samples =
+        // 100 ms late); lead 1 drifts by 4 samples a beat (QT adapting) and stays within 40 ms of its neighbours.
+        let mut beats: Vec<Option<BeatT>> = (0..8)
+            .map(|i| {
+                let anchor = 100 + 500 * i;
+                let e0 = (anchor + if i == 3 { 200 } else { 150 }) as f64;
+                let e1 = (anchor + 140 + 4 * i) as f64;
+                Some(BeatT {
+                    anchor,
+                    from: anchor + 60,
+                    leads: vec![Some(LeadT { amplitude: 300.0, end: e0 }), Some(LeadT { amplitude: 200.0, end: e1 })],
+                })
+            })
+            .collect();
+        beats.insert(5, None); // a beat without a T search does not break the comparison
+        drop_inconsistent_leads(&sig, &mut beats);
+        let kept = |lead: usize| beats.iter().flatten().filter(|b| b.leads[lead].is_some()).count();
+        assert_eq!(kept(0), 7);
+        assert!(beats[3].as_ref().is_some_and(|b| b.leads[0].is_none() && b.leads[1].is_some()));
+        assert_eq!(kept(1), 8);
+        // The beat that lost its misled lead still gets a global end, from the other lead.
+        assert_eq!(beats[3].as_ref().and_then(|b| global_end(&sig, b)), Some(100 + 1500 + 152));
     }
 }
