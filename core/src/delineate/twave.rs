@@ -123,7 +123,7 @@ pub fn drop_inconsistent_leads(sig: &Signals, beats: &mut [Option<BeatT>]) {
             }
             near.sort_by(f64::total_cmp);
             let m = near.len() / 2;
-            let median = if near.len() % 2 == 0 { 0.5 * (near[m - 1] + near[m]) } else { near[m] };
+            let median = if near.len().is_multiple_of(2) { 0.5 * (near[m - 1] + near[m]) } else { near[m] };
             if (v - median).abs() > tol
                 && let Some(slot) = beats[i].as_mut().and_then(|b| b.leads.get_mut(lead))
             {
@@ -212,11 +212,8 @@ mod tests {
     fn trapezium_on_a_triangle_ends_where_the_line_meets_zero() {
         // A T wave shaped as a rise then a straight fall from 300 µV at sample 100 to 0 at sample 160.
         let mut x = vec![0.0f32; 300];
-        for k in 40..100 {
-            x[k] = 300.0 * (k - 40) as f32 / 60.0;
-        }
-        for k in 100..160 {
-            x[k] = 300.0 * (160 - k) as f32 / 60.0;
+        for (k, v) in x.iter_mut().enumerate().take(160).skip(40) {
+            *v = if k < 100 { 300.0 * (k - 40) as f32 / 60.0 } else { 300.0 * (160 - k) as f32 / 60.0 };
         }
         let t = lead_t_end(&x, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize);
         assert_eq!(t, Some(160));
