@@ -1,12 +1,16 @@
-//! T wave end on the terminal limb of the T wave: from the limb's steepest point (as in the tangent method,
-//! McLaughlin, Campbell & Murray, Br Heart J 1995;74:84-9; references.md §8), the end is the point that
-//! maximises the area of the trapezium it forms with the steepest point and a fixed point further on
-//! (trapezium-area method, Vázquez-Seisdedos et al., Biomed Eng Online 2011;10:77 — from memory). The end
-//! itself needs no isoelectric level and lands nearer the visual end than the tangent's baseline crossing. Works for
-//! upright, inverted and biphasic T waves (the terminal lobe is used). Each lead gives a T end when its T wave
-//! is clear. The global T end is the latest lead end (as the 12-lead global T end is defined: the last lead to
-//! finish) among the leads whose T wave is at least [`CANDIDATE`] of the largest, leaving out any lead that ends
-//! more than [`AGREE_S`] after the median end of the leads with a large T (at least [`RELIABLE`] of the largest).
+//! T wave end on the terminal limb of the T wave. The limb's steepest point is found as in the tangent method
+//! (McLaughlin, Campbell & Murray, Br Heart J 1995;74:84-9; references.md §8), but the end is not the tangent's
+//! crossing of the isoelectric level: it is the point that maximises the area of the trapezium it forms with the
+//! steepest point and a fixed point further on (trapezium-area method, Vázquez-Seisdedos et al., Biomed Eng
+//! Online 2011;10:77 — from memory). The end itself needs no isoelectric level. Measured on the LUDB per-lead
+//! annotations (leads with a large T), the trapezium end scatters less than the tangent's crossing (robust SD
+//! about 9 against 12 ms). Works for upright, inverted and biphasic T waves (the terminal lobe is used).
+//!
+//! Combining leads: each lead gives a T end when its T wave is clear; a lead's end that jumps away from the same
+//! lead's ends on the neighbouring beats is dropped ([`drop_inconsistent_leads`]). The global T end is the latest
+//! lead end (as the 12-lead global T end is defined: the last lead to finish) among the leads whose T wave is at
+//! least [`CANDIDATE`] of the largest, leaving out any lead that ends more than [`AGREE_S`] after the median end of
+//! the leads with a large T (at least [`RELIABLE`] of the largest).
 
 use super::signals::Signals;
 
