@@ -54,7 +54,8 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         t_waves.push(beat_t_waves(sig, r, on, end, rr_next, n));
         beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: None };
     }
-    twave::drop_inconsistent_leads(sig, &mut t_waves);
+    let kinds: Vec<BeatKind> = beats.iter().map(|b| b.kind).collect();
+    twave::drop_inconsistent_leads(sig, &mut t_waves, &kinds);
     for (b, t) in beats.iter_mut().zip(&t_waves) {
         b.bounds.t_end = t.as_ref().and_then(|t| twave::global_end(sig, t));
     }

@@ -13,6 +13,7 @@
 //! the leads with a large T (at least [`RELIABLE`] of the largest).
 
 use super::signals::Signals;
+use crate::beat::BeatKind;
 
 /// The second lobe of a biphasic T counts as terminal when at least this fraction of the main lobe.
 // Common practice, no source.
@@ -101,11 +102,20 @@ pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<B
     Some(BeatT { anchor: iso_at, from, leads })
 }
 
-/// Removes, lead by lead, the T ends that disagree with the same lead's T ends on the neighbouring beats
-/// ([`NEIGHBOURS`] each side; at least [`MIN_NEIGHBOURS`] ends needed): more than [`LEAD_CONSISTENT_S`] from
-/// their median, measured from each beat's QRS onset. `beats` in time order; `None` = beat without a T search.
-pub fn drop_inconsistent_leads(sig: &Signals, beats: &mut [Option<BeatT>]) {
-    let idx: Vec<usize> = (0..beats.len()).filter(|&i| beats[i].is_some()).collect();
+/// Removes, lead by lead, the T ends that disagree with the same lead's T ends on the neighbouring beats of the
+/// same kind ([`NEIGHBOURS`] each side; at least [`MIN_NEIGHBOURS`] ends needed): more than [`LEAD_CONSISTENT_S`]
+/// from their median, measured from each beat's QRS onset. `beats` in time order (`None` = beat without a T
+/// search) with their `kinds`: an ectopic beat's repolarisation differs from a dominant beat's, so the two are
+/// never compared.
+pub fn drop_inconsistent_leads(sig: &Signals, beats: &mut [Option<BeatT>], kinds: &[BeatKind]) {
+    for kind in [BeatKind::Dominant, BeatKind::Other] {
+        let idx: Vec<usize> = (0..beats.len()).filter(|&i| beats[i].is_some() && kinds.get(i) == Some(&kind)).collect();
+        drop_inconsistent_among(sig, beats, &idx);
+    }
+}
+
+/// [`drop_inconsistent_leads`] over the beats `idx` (indices into `beats`, in time order).
+fn drop_inconsistent_among(sig: &Signals, beats: &mut [Option<BeatT>], idx: &[usize]) {
     let tol = LEAD_CONSISTENT_S * sig.fs;
     for lead in 0..sig.slow.len() {
         let rel: Vec<Option<f64>> = idx
@@ -244,7 +254,17 @@ mod tests {
             })
             .collect();
         beats.insert(5, None); // a beat without a T search does not break the comparison
-        drop_inconsistent_leads(&sig, &mut beats);
+        let mut kinds = vec![BeatKind::Dominant; beats.len()];
+        // An ectopic beat with a much later T end on lead 0: compared with no dominant beat, so kept.
+        beats.push(Some(BeatT {
+            anchor: 4600,
+            from: 4660,
+            leads: vec![Some(LeadT { amplitude: 300.0, end: 4850.0 }), None],
+        }));
+        kinds.push(BeatKind::Other);
+        drop_inconsistent_leads(&sig, &mut beats, &kinds);
+        assert!(beats[9].as_ref().is_some_and(|b| b.leads[0].is_some()));
+        beats.pop();
         let kept = |lead: usize| beats.iter().flatten().filter(|b| b.leads[lead].is_some()).count();
         assert_eq!(kept(0), 7);
         assert!(beats[3].as_ref().is_some_and(|b| b.leads[0].is_none() && b.leads[1].is_some()));
