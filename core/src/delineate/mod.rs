@@ -44,14 +44,20 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
     let n = sig.len();
     let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
     let typical_rr = median_rr(&rs).unwrap_or(sig.samples(1.0));
+    let mut t_waves = Vec::with_capacity(beats.len());
     for i in 0..beats.len() {
         let r = rs[i];
         let min_start = if i > 0 { rs[i - 1] + sig.samples(0.150).min((r - rs[i - 1]) / 2) } else { 0 };
         let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
         let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
         let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
-        let t = beat_t_end(sig, r, on, end, rr_next, n);
-        beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: t };
+        t_waves.push(beat_t_waves(sig, r, on, end, rr_next, n));
+        beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: None };
+    }
+    let kinds: Vec<BeatKind> = beats.iter().map(|b| b.kind).collect();
+    twave::drop_inconsistent_leads(sig, &mut t_waves, &kinds);
+    for (b, t) in beats.iter_mut().zip(&t_waves) {
+        b.bounds.t_end = t.as_ref().and_then(|t| twave::global_end(sig, t));
     }
     drop_outlying_t_ends(sig, beats);
     // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R).
@@ -80,9 +86,8 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
     Some(model)
 }
 
-/// T end of the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples): the T wave is sought from
-/// 50 ms after the J point (at least 100 ms after R) to the lesser of [`T_MAX_S`] and [`T_RR_FRACTION`] of the
-/// RR after R, and never at or past `limit`.
+/// T end of the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples), from this beat alone (the
+/// representative beat); the beats of a record use [`beat_t_waves`] and compare each lead over the beats first.
 fn beat_t_end(
     sig: &Signals,
     r: usize,
@@ -91,10 +96,24 @@ fn beat_t_end(
     rr: usize,
     limit: usize,
 ) -> Option<usize> {
+    beat_t_waves(sig, r, on, end, rr, limit).and_then(|t| twave::global_end(sig, &t))
+}
+
+/// Each lead's T wave for the beat of [`beat_t_end`]: the T wave is sought from 50 ms after the J point (at
+/// least 100 ms after R) to the lesser of [`T_MAX_S`] and [`T_RR_FRACTION`] of the RR after R, and never at or
+/// past `limit`.
+fn beat_t_waves(
+    sig: &Signals,
+    r: usize,
+    on: Option<usize>,
+    end: Option<usize>,
+    rr: usize,
+    limit: usize,
+) -> Option<twave::BeatT> {
     let earliest = r + sig.samples(0.100);
     let from = end.map_or(earliest, |e| (e + sig.samples(0.050)).max(earliest));
     let to = (r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(limit.saturating_sub(1));
-    on.and_then(|q| twave::t_end(sig, q.saturating_sub(sig.samples(0.008)), from, to))
+    on.and_then(|q| twave::lead_ts(sig, q.saturating_sub(sig.samples(0.008)), from, to))
 }
 
 /// A beat whose R-to-T-end time differs from the record's median by more than [`T_OUTLIER_S`] has followed
