@@ -16,6 +16,7 @@ mod io_wfdb;
 mod measure_formulas;
 mod measure_ludb;
 mod measure_synth;
+mod qrs_edges;
 mod render_geometry;
 mod render_privacy;
 mod render_snapshot;
