@@ -80,9 +80,7 @@ fn qrs_edge_slopes_per_lead() {
         let sl = |k: usize| ((q[k + 1] - q[k - 1]) * 0.5).abs();
         let peak = (b.r_sample - 30..b.r_sample + 30).map(sl).fold(0.0f32, f32::max);
         let line = |c: usize| -> String {
-            (c - 8..=c + 8)
-                .map(|k| format!("{:5.1}{}", 100.0 * sl(k) / peak, if k == c { "|" } else { " " }))
-                .collect()
+            (c - 8..=c + 8).map(|k| format!("{:5.1}{}", 100.0 * sl(k) / peak, if k == c { "|" } else { " " })).collect()
         };
         let rawl = |c: usize| -> String { (c - 3..=c + 3).map(|k| format!("{:7.1}", raw[k])).collect() };
         println!("{:>4} on : {}  raw {}", rec.leads[li].name, line(on), rawl(on));
