@@ -1,11 +1,14 @@
-//! Diagnostic: QRS onset and J point of the delineator against the generator's true boundaries, per demo
-//! scenario, clean and with the `noisy` scenario's noise over several seeds (samples; measured − truth).
+//! QRS onset and J point of the delineator against the generator's true boundaries, per demo scenario, clean and
+//! with the `noisy` scenario's noise over several seeds (samples; measured − truth). Source of the model:
+//! McSharry et al., IEEE Trans Biomed Eng 2003;50:289-94, with compact support (see `isoline_core::synth::model`),
+//! so every true boundary is a definite instant.
 
 use isoline_core::analysis::analyze;
 use isoline_core::filter::FilterSettings;
 use isoline_core::synth::{self, Scenario, SynthSpec, TrueKind};
 
-fn row(spec: &SynthSpec) -> String {
+/// One scenario: its printed line and the representative beat's onset and end errors (samples).
+fn row(spec: &SynthSpec) -> (String, Option<f64>, Option<f64>) {
     let s = synth::generate(spec).unwrap_or_else(|e| panic!("{}: {e}", spec.scenario));
     let a = analyze(&s.recording, &FilterSettings::default());
     let sinus: Vec<_> = s.truth.beats.iter().filter(|b| b.kind == TrueKind::Sinus).collect();
@@ -34,7 +37,7 @@ fn row(spec: &SynthSpec) -> String {
     let r_on = rep.and_then(|r| r.bounds.qrs_on.map(|q| q as f64 - r.r_index as f64 - t_on));
     let r_end = rep.and_then(|r| r.bounds.qrs_end.map(|q| q as f64 - r.r_index as f64 - t_end));
     let f = |v: Option<f64>| v.map_or("   —".into(), |x| format!("{x:+4.0}"));
-    format!(
+    let line = format!(
         "{:<26} QRS {:>6} / {:>6.1} ms  rep on {} end {}  beats on {:+5.2} end {:+5.2} (n {})",
         spec.scenario,
         a.measurements.intervals.qrs_ms.map_or("—".into(), |x| format!("{x:.1}")),
@@ -44,46 +47,51 @@ fn row(spec: &SynthSpec) -> String {
         mean(&on_err),
         mean(&end_err),
         on_err.len()
-    )
+    );
+    (line, r_on, r_end)
 }
 
+/// Allowed error of each edge, samples (issue 3: "within 1–2 samples of the truth").
+const TOLERANCE_SAMPLES: f64 = 2.0;
+
 #[test]
-#[ignore = "diagnostic print"]
-fn qrs_edges_against_synthetic_truth() {
-    let noise = Scenario::Noisy.spec().noise;
-    for sc in Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter) {
-        let spec = sc.spec();
-        println!("{}", row(&spec));
-        for seed in 1..=6 {
-            let noisy = SynthSpec { noise, seed, scenario: format!("{}+noise#{seed}", spec.scenario), ..spec.clone() };
-            println!("{}", row(&noisy));
+fn clean_scenarios_qrs_edges_match_the_truth() {
+    // Measured: representative beat onset −2..0, end −1..0 samples on every clean scenario; QRS 90–92 ms on
+    // 90 ms, 140 on 140.
+    let mut bad = Vec::new();
+    for spec in
+        Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter && *s != Scenario::Noisy).map(Scenario::spec)
+    {
+        let (line, on, end) = row(&spec);
+        println!("{line}");
+        for (k, v) in [("onset", on), ("end", end)] {
+            if !v.is_some_and(|e| e.abs() <= TOLERANCE_SAMPLES) {
+                bad.push(format!("{} {k}: {v:?}", spec.scenario));
+            }
         }
     }
+    assert!(bad.is_empty(), "outside ±{TOLERANCE_SAMPLES} samples: {bad:#?}");
 }
 
 #[test]
-#[ignore = "diagnostic print"]
-fn qrs_edge_slopes_per_lead() {
-    use isoline_core::delineate::Signals;
-    let name = std::env::var("SCEN").unwrap_or_else(|_| "normal".into());
-    let spec = Scenario::from_name(&name).expect("scenario").spec();
-    let s = synth::generate(&spec).expect("synth");
-    let a = analyze(&s.recording, &FilterSettings::default());
-    let rec = &a.filtered.recording;
-    let leads: Vec<&[f32]> = rec.leads.iter().map(|l| l.samples.as_slice()).collect();
-    let sig = Signals::new(&leads, spec.rate_hz);
-    let b = s.truth.beats[4];
-    let (on, end) = (b.qrs_on.expect("on"), b.qrs_end.expect("end"));
-    println!("beat r {} true on {} end {}  raw signal (µV) and 40 Hz |slope| / lead peak (%)", b.r_sample, on, end);
-    for (li, q) in sig.qrs.iter().enumerate() {
-        let raw = &leads[li];
-        let sl = |k: usize| ((q[k + 1] - q[k - 1]) * 0.5).abs();
-        let peak = (b.r_sample - 30..b.r_sample + 30).map(sl).fold(0.0f32, f32::max);
-        let line = |c: usize| -> String {
-            (c - 8..=c + 8).map(|k| format!("{:5.1}{}", 100.0 * sl(k) / peak, if k == c { "|" } else { " " })).collect()
-        };
-        let rawl = |c: usize| -> String { (c - 3..=c + 3).map(|k| format!("{:7.1}", raw[k])).collect() };
-        println!("{:>4} on : {}  raw {}", rec.leads[li].name, line(on), rawl(on));
-        println!("{:>4} end: {}  raw {}", "", line(end), rawl(end));
+#[ignore = "with noise (muscle 25 µV RMS, 50 Hz 40 µV, wander 150 µV; 6 seeds) the low-pass spread is not \
+            corrected (the unfiltered leads do not resolve the threshold): representative onset 2-5 samples \
+            early, end 0-2 late, QRS 96-100 ms on 90 ms, 140-146 on 140"]
+fn noisy_scenarios_qrs_edges_match_the_truth() {
+    let noise = Scenario::Noisy.spec().noise;
+    let mut bad = Vec::new();
+    for sc in Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter) {
+        let spec = sc.spec();
+        for seed in 1..=6 {
+            let noisy = SynthSpec { noise, seed, scenario: format!("{}+noise#{seed}", spec.scenario), ..spec.clone() };
+            let (line, on, end) = row(&noisy);
+            println!("{line}");
+            for (k, v) in [("onset", on), ("end", end)] {
+                if !v.is_some_and(|e| e.abs() <= TOLERANCE_SAMPLES) {
+                    bad.push(format!("{} {k}: {v:?}", noisy.scenario));
+                }
+            }
+        }
     }
+    assert!(bad.is_empty(), "outside ±{TOLERANCE_SAMPLES} samples: {bad:#?}");
 }
