@@ -7,6 +7,11 @@
 //! global onset is the earliest lead onset that another lead confirms within [`AGREE_S`], and the J point a
 //! robust latest of their ends (the usual 12-lead global QRS runs from the first lead to start to the last to
 //! finish). A pacing spike before the QRS bounds the onset search: the QRS starts after the stimulus artefact.
+//!
+//! The zero-phase low-pass and the smoothing spread an abrupt start (end) of a deflection a few samples outward,
+//! so the smoothed slope crosses the threshold 1–3 samples before the lead leaves (after it regains) its level.
+//! Where the unfiltered lead resolves the threshold (its noise and quantisation steps well below it), each lead
+//! edge is moved inward, at most [`SPREAD_S`], over samples where the unfiltered lead still stands still.
 
 use super::signals::{Signals, smooth};
 
@@ -29,6 +34,15 @@ const AGREE_S: f64 = 0.006;
 /// The onset is sought no earlier than this long after a pacing spike, s.
 // Common practice, no source: the stimulus artefact and its recovery last a few ms at most.
 const AFTER_SPIKE_S: f64 = 0.006;
+/// How far the 40 Hz zero-phase low-pass and the 10 ms smoothing spread an abrupt change of slope, s: a lead
+/// edge found on the smoothed slope is moved at most this far towards the QRS, over samples where the
+/// unfiltered lead has not yet left (has already regained) its level at the edge by more than the threshold.
+// Common practice, no source: half the 10 ms smoothing plus about one period of the 40 Hz cutoff's ripple.
+const SPREAD_S: f64 = 0.020;
+/// Within [`SPREAD_S`] of a lead edge, the unfiltered lead is still at its level while its sample-to-sample step
+/// is at most this fraction of the edge threshold (the low-passed slope there is filter spread).
+// Common practice, no source: a step under half the threshold slope is taken as no departure.
+const STILL: f32 = 0.5;
 /// The steep part of the QRS: envelope at least this fraction of its peak.
 // Common practice, no source.
 const STEEP: f32 = 0.4;
@@ -94,9 +108,10 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
     }
     let mut onsets = Vec::new();
     let mut ends = Vec::new();
-    for (e, peak) in envs.iter().filter(|(_, p)| *p >= CLEAR_LEAD * top) {
-        onsets.extend(win.onset(e, *peak, first, sig));
-        ends.extend(win.end(e, *peak, last, sig));
+    for (i, (e, peak)) in envs.iter().enumerate().filter(|(_, (_, p))| *p >= CLEAR_LEAD * top) {
+        let lead = Lead { x: &sig.wide[i], q: &sig.qrs[i] };
+        onsets.extend(win.onset(e, lead, *peak, first, sig));
+        ends.extend(win.end(e, lead, *peak, last, sig));
     }
     onsets.sort_unstable();
     ends.sort_unstable_by(|a, b| b.cmp(a));
@@ -124,25 +139,67 @@ struct Window {
 impl Window {
     /// A lead's onset: walking back from `first` (start of the steep part) to where its slope `e` is at or
     /// below [`ONSET_FRACTION`] of the way from its quiet level (least slope over the 200–20 ms before
-    /// `first`) to `peak`, and at or below [`ONSET_NOISE`] times its noise slope over the same time; never
-    /// before `on_min`.
-    fn onset(&self, e: &[f32], peak: f32, first: usize, sig: &Signals) -> Option<usize> {
+    /// `first`) to `peak`, and at or below [`ONSET_NOISE`] times its noise slope over the same time; then, where
+    /// the unfiltered lead resolves the threshold, on to its last still sample;
+    /// never before `on_min`.
+    fn onset(&self, e: &[f32], lead: Lead<'_>, peak: f32, first: usize, sig: &Signals) -> Option<usize> {
+        let x = lead.x;
         let a = self.a0;
-        let quiet = &e[..first.saturating_sub(sig.samples(0.020)).max(a) - a];
+        let quiet_end = first.saturating_sub(sig.samples(0.020)).max(a);
+        let quiet = &e[..quiet_end - a];
         let q = min_over(quiet, 0, quiet.len())?;
         let noise = lower_quartile(quiet)?;
         let thr = (q + ONSET_FRACTION * (peak - q)).max(ONSET_NOISE * noise);
-        (a..=first).rev().find(|&k| e[k - a] <= thr).map(|k| k.max(self.on_min))
+        let k = (a..=first).rev().find(|&k| e[k - a] <= thr)?;
+        let k = match lead.noise(a, quiet_end) {
+            Some(wn) if wn <= STILL * thr => {
+                let reach = (k + sig.samples(SPREAD_S)).min(first);
+                (k..reach).find(|&j| (x[j + 1] - x[j]).abs() > STILL * thr).unwrap_or(reach)
+            }
+            _ => k,
+        };
+        Some(k.max(self.on_min))
     }
 
     /// A lead's end: walking on from `last` (end of the steep part), at most [`END_REACH_S`], to where its
-    /// slope is at or below [`EDGE_FRACTION`] of the way from its quiet level (20–200 ms after `last`) to `peak`.
-    fn end(&self, e: &[f32], peak: f32, last: usize, sig: &Signals) -> Option<usize> {
+    /// slope is at or below [`EDGE_FRACTION`] of the way from its quiet level (20–200 ms after `last`) to `peak`;
+    /// then, where the unfiltered lead resolves the threshold, back to its first still sample.
+    fn end(&self, e: &[f32], lead: Lead<'_>, peak: f32, last: usize, sig: &Signals) -> Option<usize> {
+        let x = lead.x;
         let b = self.b0;
-        let q = min_over(e, (last + sig.samples(0.020)).min(b) - self.a0, b - self.a0)?;
+        let quiet_start = (last + sig.samples(0.020)).min(b);
+        let q = min_over(e, quiet_start - self.a0, b - self.a0)?;
         let thr = q + EDGE_FRACTION * (peak - q);
         let reach = (last + sig.samples(END_REACH_S)).min(b);
-        (last..=reach).find(|&k| e[k - self.a0] <= thr)
+        let k = (last..=reach).find(|&k| e[k - self.a0] <= thr)?;
+        Some(match lead.noise(quiet_start, b) {
+            Some(wn) if wn <= STILL * thr => {
+                let back = k.saturating_sub(sig.samples(SPREAD_S)).max(last).max(1);
+                (back..=k).rev().find(|&j| (x[j] - x[j - 1]).abs() > STILL * thr).unwrap_or(back)
+            }
+            _ => k,
+        })
+    }
+}
+
+/// One lead unfiltered (`x`) and low-passed at 40 Hz (`q`), µV, over the whole recording.
+#[derive(Clone, Copy)]
+struct Lead<'a> {
+    x: &'a [f32],
+    q: &'a [f32],
+}
+
+impl Lead<'_> {
+    /// What the unfiltered lead adds to the 40 Hz one over samples `a..b` (noise, quantisation steps): its
+    /// sample-to-sample step noise, µV, taken as [`ONSET_NOISE`] times the median |unfiltered − 40 Hz|.
+    fn noise(&self, a: usize, b: usize) -> Option<f32> {
+        let b = b.min(self.x.len().saturating_sub(1));
+        let mut v: Vec<f32> = (a..b).map(|k| (self.x[k] - self.q[k]).abs()).collect();
+        if v.is_empty() {
+            return None;
+        }
+        let mid = v.len() / 2;
+        Some(ONSET_NOISE * *v.select_nth_unstable_by(mid, f32::total_cmp).1)
     }
 }
 
@@ -252,6 +309,36 @@ mod tests {
             assert!(on > spike, "onset {on} not after the spike at {spike}");
             let err_ms = (on as f64 / FS - o) * 1000.0;
             assert!(err_ms.abs() <= 10.0, "onset error {err_ms:+.1} ms");
+        }
+    }
+
+    #[test]
+    fn abrupt_edges_are_found_on_the_sample_in_clean_leads() {
+        // A triangular QRS (slope jumps from zero at its onset and back to zero at its end, 80 ms) in three clean
+        // leads of different size: the 40 Hz low-pass and the smoothing spread both corners outward, the
+        // unfiltered leads show them on the sample. Tolerance 1 sample.
+        let n = 3000;
+        let onsets: Vec<usize> = (0..5).map(|i| 250 + 500 * i).collect();
+        let width = 40;
+        let leads: Vec<Vec<f32>> = [1000.0f32, -700.0, 300.0]
+            .iter()
+            .map(|&a| {
+                let mut x = vec![0.0f32; n];
+                for &o in &onsets {
+                    for k in 0..=width {
+                        x[o + k] = a * (1.0 - (2.0 * k as f32 / width as f32 - 1.0).abs());
+                    }
+                }
+                x
+            })
+            .collect();
+        let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
+        let sig = Signals::new(&refs, FS);
+        for &o in &onsets[1..onsets.len() - 1] {
+            let (on, end) = qrs_bounds(&sig, o + width / 2, 0, sig.len());
+            let (on, end) = (on.expect("onset found"), end.expect("end found"));
+            assert!(on.abs_diff(o) <= 1, "onset {on} vs {o}");
+            assert!(end.abs_diff(o + width) <= 1, "end {end} vs {}", o + width);
         }
     }
 

@@ -27,6 +27,9 @@ pub struct Signals {
     pub qrs: Vec<Vec<f32>>,
     /// Each lead low-passed at 12 Hz, µV.
     pub slow: Vec<Vec<f32>>,
+    /// Each lead as given (no low-pass; invalid samples interpolated), µV: where a lead is clean it shows the
+    /// instant a wave leaves the baseline, which the zero-phase low-pass spreads a few samples either way.
+    pub wide: Vec<Vec<f32>>,
     /// Largest over the leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so
     /// the first lead to start and the last to finish set the edges), smoothed over ≈ 10 ms. Dimensionless.
     pub env: Vec<f32>,
@@ -45,12 +48,14 @@ impl Signals {
         let lp_w = [Biquad::lowpass(WAVE_LP_HZ, fs)];
         let mut qrs = Vec::with_capacity(leads.len());
         let mut slow = Vec::with_capacity(leads.len());
+        let mut wide = Vec::with_capacity(leads.len());
         let mut spikes = Vec::new();
         for lead in leads {
             let x = fill_invalid(lead);
             spikes.extend(pacing_spikes(&x, fs));
             qrs.push(filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect::<Vec<f32>>());
             slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
+            wide.push(x.iter().map(|&v| v as f32).collect());
         }
         // Each lead's slope in units of its typical QRS slope; a lead with a small QRS is raised at most
         // MAX_GAIN times relative to the largest, so its noise cannot start the QRS early.
@@ -69,7 +74,7 @@ impl Signals {
         let w = ((0.010 * fs).round() as usize).max(1) | 1;
         spikes.sort_unstable();
         spikes.dedup();
-        Self { fs, qrs, slow, env: smooth(&raw_env, w), spikes }
+        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), spikes }
     }
 
     /// Number of samples.

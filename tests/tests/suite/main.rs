@@ -17,6 +17,7 @@ mod measure_formulas;
 mod measure_ludb;
 mod measure_synth;
 mod measure_synth_p;
+mod qrs_edges;
 mod render_geometry;
 mod render_privacy;
 mod render_snapshot;
