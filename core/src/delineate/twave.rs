@@ -36,6 +36,14 @@ const MIN_T_UV: f32 = 25.0;
 /// The trapezium's fixed point lies this long after the steepest point of the terminal limb, s.
 // Common practice, no source: past the end of the limb on almost every T wave.
 const TRAPEZIUM_REACH_S: f64 = 0.120;
+/// Past the trapezium end, the lead is still on its terminal limb while the unfiltered lead steps back toward
+/// the baseline by more than this fraction of the limb's steepest slope each sample.
+// Source: threshold on the first derivative as a fraction of the limb's largest slope (Laguna et al., Comput
+// Biomed Res 1994;27:45-60 — from memory); the fraction is common practice, no source.
+const MOVING: f32 = 0.05;
+/// The unfiltered lead resolves [`MOVING`] where its step noise is at most this fraction of that step.
+// Common practice, no source: as for the QRS edges (`STILL` in `qrs`).
+const STILL: f32 = 0.5;
 /// Leads whose T end lies more than this after the median lead's are left out of the latest end, s.
 // Common practice, no source.
 const AGREE_S: f64 = 0.060;
@@ -83,13 +91,14 @@ pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<B
     let leads = sig
         .slow
         .iter()
-        .map(|slow| {
+        .zip(&sig.wide)
+        .map(|(slow, wide)| {
             // Isoelectric level: median of the 200 ms before QRS onset (PR and TP segments; the P wave is brief).
             let mut pre: Vec<f32> = slow[iso_at.saturating_sub(sig.samples(0.200))..=iso_at].to_vec();
             let mid = pre.len() / 2;
             let iso = *pre.select_nth_unstable_by(mid, f32::total_cmp).1;
             lead_t_end(
-                slow,
+                Lead { x: slow, wide },
                 iso,
                 from,
                 to,
@@ -174,7 +183,8 @@ pub fn global_end(sig: &Signals, beat: &BeatT) -> Option<usize> {
 
 /// T end on one lead, or `None` when the terminal limb is flat or the end lands outside the search window.
 /// `reach`: [`TRAPEZIUM_REACH_S`] in samples.
-fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap: usize, reach: usize) -> Option<LeadT> {
+fn lead_t_end(lead: Lead<'_>, iso: f32, from: usize, to: usize, max_limb: usize, gap: usize, reach: usize) -> Option<LeadT> {
+    let x = lead.x;
     let dev = |k: usize| x[k] - iso;
     let main = (from..=to).max_by(|&i, &j| dev(i).abs().total_cmp(&dev(j).abs()))?;
     let a_main = dev(main);
@@ -214,8 +224,44 @@ fn lead_t_end(x: &[f32], iso: f32, from: usize, to: usize, max_limb: usize, gap:
     let xr = (k + reach).min(x.len() - 1);
     let y_k = dev(k) * sign;
     let area = |i: usize| (y_k - dev(i) * sign) * (2 * xr - i - k) as f32;
-    let end = (k..=xr).max_by(|&i, &j| area(i).total_cmp(&area(j)))? as f64;
+    let end = (k..=xr).max_by(|&i, &j| area(i).total_cmp(&area(j)))?;
+    let end = lead.moving_on(end, sign, s, (end + reach / 2).min(to + max_limb / 2).min(x.len() - 2)) as f64;
     (end > peak as f64 && end <= (to + max_limb / 2) as f64).then_some(LeadT { amplitude: amp, end })
+}
+
+/// One lead low-passed for P and T (`x`, 12 Hz) and as given (`wide`), µV.
+#[derive(Clone, Copy)]
+struct Lead<'a> {
+    x: &'a [f32],
+    wide: &'a [f32],
+}
+
+impl Lead<'_> {
+    /// The trapezium end `end` carried on, at most to `limit`, over samples where the unfiltered lead still
+    /// heads back to the baseline (direction `sign` of the lobe) by more than [`MOVING`] of the limb's steepest
+    /// slope `steepest` (µV per sample, 12 Hz signal) per sample. Only where the unfiltered lead resolves that
+    /// step: its step noise (see [`Lead::noise`]) at most [`STILL`] of it; otherwise `end` stands.
+    fn moving_on(&self, end: usize, sign: f32, steepest: f32, limit: usize) -> usize {
+        let thr = MOVING * steepest;
+        if end >= limit || self.noise(end, limit).is_none_or(|wn| wn > STILL * thr) {
+            return end;
+        }
+        (end..limit).find(|&j| (self.wide[j] - self.wide[j + 1]) * sign <= thr).unwrap_or(limit)
+    }
+
+    /// The unfiltered lead's sample-to-sample step noise over samples `a..b`, µV: four times the step noise
+    /// of white noise estimated from the mean |second difference| (which a smooth wave barely moves; for white
+    /// noise it is about √3 times the mean |step|). The mean, not the median, so that quantisation steps count
+    /// even where most samples repeat their neighbour's value.
+    fn noise(&self, a: usize, b: usize) -> Option<f32> {
+        let b = b.min(self.wide.len().saturating_sub(1));
+        let a = a.max(1);
+        if a >= b {
+            return None;
+        }
+        let sum: f32 = (a..b).map(|k| (self.wide[k + 1] - 2.0 * self.wide[k] + self.wide[k - 1]).abs()).sum();
+        Some(4.0 / 3.0f32.sqrt() * sum / (b - a) as f32)
+    }
 }
 
 #[cfg(test)]
@@ -229,10 +275,10 @@ mod tests {
         for (k, v) in x.iter_mut().enumerate().take(160).skip(40) {
             *v = if k < 100 { 300.0 * (k - 40) as f32 / 60.0 } else { 300.0 * (160 - k) as f32 / 60.0 };
         }
-        let t = lead_t_end(&x, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize);
+        let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize);
         assert_eq!(t, Some(160));
         let inv: Vec<f32> = x.iter().map(|v| -v).collect();
-        assert_eq!(lead_t_end(&inv, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize), Some(160));
+        assert_eq!(lead_t_end(Lead { x: &inv, wide: &inv }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize), Some(160));
     }
 
     #[test]
