@@ -6,6 +6,14 @@
 //! annotations (leads with a large T), the trapezium end scatters less than the tangent's crossing (robust SD
 //! about 9 against 12 ms). Works for upright, inverted and biphasic T waves (the terminal lobe is used).
 //!
+//! The trapezium lands on the knee where a limb regains the baseline only when its fixed point lies far enough
+//! past the knee (about 3.3 σ past the steepest point for a Gaussian limb cut at 2.5 σ); a fixed point further
+//! out moves the end later on real T waves, whose tails fade slowly. So the fixed point stays put, and where the
+//! unfiltered lead is clean enough to show it (its step noise and quantisation well below the step looked for),
+//! the end is carried on over the samples where the lead still heads back to the baseline at more than
+//! [`MOVING`] of the limb's steepest slope ([`Lead::moving_on`]). On real records the noise gate keeps the
+//! trapezium end (QT Database and LUDB T ends unchanged); on a clean wide T wave the end reaches the knee.
+//!
 //! Combining leads: each lead gives a T end when its T wave is clear; a lead's end that jumps away from the same
 //! lead's ends on the neighbouring beats is dropped ([`drop_inconsistent_leads`]). The global T end is the latest
 //! lead end (as the 12-lead global T end is defined: the last lead to finish) among the leads whose T wave is at
@@ -183,7 +191,15 @@ pub fn global_end(sig: &Signals, beat: &BeatT) -> Option<usize> {
 
 /// T end on one lead, or `None` when the terminal limb is flat or the end lands outside the search window.
 /// `reach`: [`TRAPEZIUM_REACH_S`] in samples.
-fn lead_t_end(lead: Lead<'_>, iso: f32, from: usize, to: usize, max_limb: usize, gap: usize, reach: usize) -> Option<LeadT> {
+fn lead_t_end(
+    lead: Lead<'_>,
+    iso: f32,
+    from: usize,
+    to: usize,
+    max_limb: usize,
+    gap: usize,
+    reach: usize,
+) -> Option<LeadT> {
     let x = lead.x;
     let dev = |k: usize| x[k] - iso;
     let main = (from..=to).max_by(|&i, &j| dev(i).abs().total_cmp(&dev(j).abs()))?;
@@ -278,7 +294,43 @@ mod tests {
         let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize);
         assert_eq!(t, Some(160));
         let inv: Vec<f32> = x.iter().map(|v| -v).collect();
-        assert_eq!(lead_t_end(Lead { x: &inv, wide: &inv }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize), Some(160));
+        assert_eq!(
+            lead_t_end(Lead { x: &inv, wide: &inv }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize),
+            Some(160)
+        );
+    }
+
+    #[test]
+    fn a_wide_t_wave_that_stops_at_a_knee_ends_there_where_the_lead_is_clean() {
+        // Gaussian T (400 µV, σ = 25.8 samples ≈ 52 ms at 500 Hz) lowered by its value at 2.5σ and cut there, as
+        // the demo generator draws it: it regains the baseline with a knee at sample 400 + 64.5. The trapezium
+        // with its fixed point 60 samples (120 ms) past the steepest point stops short of the knee; on the clean
+        // unfiltered lead the end is carried on to the knee. With noise on the unfiltered lead it is not.
+        let (sigma, k_cut) = (25.8f64, 2.5f64);
+        let e = (-0.5 * k_cut * k_cut).exp();
+        let raw: Vec<f32> = (0..900)
+            .map(|i| {
+                let u = (i as f64 - 400.0) / sigma;
+                if u.abs() >= k_cut { 0.0 } else { (400.0 * ((-0.5 * u * u).exp() - e) / (1.0 - e)) as f32 }
+            })
+            .collect();
+        let sig = Signals::new(&[&raw], 500.0);
+        let knee = 400.0 + k_cut * sigma;
+        let end = |wide: &[f32]| {
+            lead_t_end(Lead { x: &sig.slow[0], wide }, 0.0, 300, 600, 125, 75, 60).map_or(f64::NAN, |t| t.end)
+        };
+        let clean = end(&raw);
+        assert!((clean - knee).abs() <= 1.0, "clean end {clean} vs knee {knee}");
+        let mut s = 11u64;
+        let noisy: Vec<f32> = raw
+            .iter()
+            .map(|v| {
+                s = s.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1_442_695_040_888_963_407);
+                v + ((s >> 33) as f32 / (1u64 << 31) as f32 * 2.0 - 1.0) * 10.0
+            })
+            .collect();
+        let rough = end(&noisy);
+        assert!(rough < knee - 3.0, "noisy end {rough} carried on to the knee {knee}");
     }
 
     #[test]

@@ -109,9 +109,9 @@ fn full_analysis_qrs_axis_matches_the_truth() {
 #[ignore = "delineator on the demo waves (compact support, k = 2.5; 500 Hz; ms, clean / with noise over 8 \
             seeds): QRS 0..+2 / +6..+10 on 90 ms QRS (clean leads: edges refined on the unfiltered lead; with \
             noise the low-pass spread stays: onset 2-5 samples early, J point 0-2 late), 0 / +2..+6 on 140 ms; \
-            QT +2..+4 / +2..+8, but long-qt -10 / -4..-8 (trapezium fixed point 120 ms after the steepest \
-            point, short of the 3.3 sigma a 52 ms-sigma T needs); PR 0..+4 / -4..+6 (SD 2.1 over 48 noisy runs, \
-            measure_synth_p): P onset 2-3 samples early and P end 2 late (10 % of the 16 ms smoothed envelope), \
+            QT 0..+2 / +2..+8, long-qt 0 / -6..-2 (with noise the unfiltered lead cannot show the knee where \
+            the T wave stops, and the trapezium end, short of it on a 52 ms-sigma T, stands); PR 0..+4 / \
+            -4..+6 (SD 2.1 over 48 noisy runs, measure_synth_p): P onset 2-3 samples early and P end 2 late (10 % of the 16 ms smoothed envelope), \
             with noise P onset -6..+2, partly offset in PR by the QRS onset; RR within 0.4"]
 fn full_analysis_intervals_match_the_truth() {
     // Goal (issue 3): RR, PR, QRS, QT within 1–2 samples of the truth on every scenario, also with noise.
