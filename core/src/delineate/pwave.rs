@@ -2,7 +2,10 @@
 //! the dominant beats (aligned on QRS onset) shows a P wave, and the individual beats resemble that median
 //! (an irregular rhythm with fibrillatory waves gives a flat median and low resemblance, so no P).
 //! Boundaries are found on the median with a multi-lead slope envelope, and carried to each beat at the lag
-//! where the beat best matches the median.
+//! where the beat best matches the median. As for the QRS edges, where the unfiltered median leads resolve it
+//! the edges are then moved inward over the few samples the low-pass and smoothing spread the wave's abrupt start
+//! and end (see [`SPREAD_S`]). The PR window is [`WINDOW_S`], reaching back towards the previous T end (at most
+//! [`LONG_WINDOW_S`]) when the P wave runs into its start: a long PR (first-degree AV block) is measured whole.
 //!
 //! Accuracy limit (measured on the 43 LUDB records with P waves): LUDB's global P onset is the earliest of twelve
 //! leads annotated one by one, so a single lead's early mark moves it; relative to any fixed point of the beat it
@@ -79,26 +82,36 @@ pub struct PModel {
     pub consistency: f64,
 }
 
-/// The PR window of one beat (per lead, relative to the PR-segment level), `w` samples long, if it lies inside
-/// the recording.
-fn segment(sig: &Signals, qrs_on: usize, lag: isize, w: usize) -> Option<Vec<Vec<f32>>> {
-    segment_of(sig, &sig.slow, qrs_on, lag, w)
+/// The PR window of one beat (per lead, relative to the PR-segment level), `w` samples long, if its last `need`
+/// samples lie inside the recording (any earlier ones outside it read 0).
+fn segment(sig: &Signals, qrs_on: usize, lag: isize, w: usize, need: usize) -> Option<Vec<Vec<f32>>> {
+    segment_of(sig, &sig.slow, qrs_on, lag, w, need)
 }
 
 /// [`segment`] on chosen leads (`sig.slow`, `sig.qrs` or `sig.wide`).
-fn segment_of(sig: &Signals, leads: &[Vec<f32>], qrs_on: usize, lag: isize, w: usize) -> Option<Vec<Vec<f32>>> {
+fn segment_of(
+    sig: &Signals,
+    leads: &[Vec<f32>],
+    qrs_on: usize,
+    lag: isize,
+    w: usize,
+    need: usize,
+) -> Option<Vec<Vec<f32>>> {
     let end = qrs_on as isize + lag;
-    if end < w as isize + 1 || end as usize >= sig.len() {
+    if end < need.min(w) as isize + 1 || end as usize >= sig.len() {
         return None;
     }
     let end = end as usize;
     let ref_a = end - sig.samples(0.012).max(1);
+    let lead_in = w.saturating_sub(end);
     Some(
         leads
             .iter()
             .map(|x| {
                 let base = x[ref_a..end].iter().sum::<f32>() / (end - ref_a) as f32;
-                x[end - w..end].iter().map(|v| v - base).collect()
+                let mut v = vec![0.0f32; lead_in];
+                v.extend(x[end + lead_in - w..end].iter().map(|v| v - base));
+                v
             })
             .collect(),
     )
@@ -135,7 +148,7 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
 fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PModel, bool)> {
     let segs: Vec<(Vec<Vec<f32>>, usize)> = onsets
         .iter()
-        .filter_map(|&(on, earliest)| segment(sig, on, 0, w).map(|s| (s, on.saturating_sub(earliest))))
+        .filter_map(|&(on, earliest)| segment(sig, on, 0, w, w).map(|s| (s, on.saturating_sub(earliest))))
         .collect();
     if segs.len() < 3 {
         return None;
@@ -174,7 +187,7 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     let lp = [Biquad::lowpass(P_LP_HZ.min(sig.fs * 0.45), sig.fs)];
     let fine_segs: Vec<Vec<Vec<f32>>> = onsets
         .iter()
-        .filter_map(|&(on, _)| segment_of(sig, &sig.qrs, on, 0, w))
+        .filter_map(|&(on, _)| segment_of(sig, &sig.qrs, on, 0, w, w))
         .map(|seg| {
             seg.iter()
                 .map(|t| {
@@ -237,7 +250,7 @@ fn refine(
     (end, down, end_level): (usize, usize, f32),
 ) -> (usize, usize) {
     let wide_segs: Vec<Vec<Vec<f32>>> =
-        onsets.iter().filter_map(|&(q, _)| segment_of(sig, &sig.wide, q, 0, w)).collect();
+        onsets.iter().filter_map(|&(q, _)| segment_of(sig, &sig.wide, q, 0, w, w)).collect();
     if wide_segs.is_empty() {
         return (on, end);
     }
@@ -313,11 +326,13 @@ impl PModel {
     pub fn for_beat(&self, sig: &Signals, qrs_on: usize, earliest: usize) -> Option<(usize, usize)> {
         let max_lag = sig.samples(MAX_LAG_S) as isize;
         let w = self.template.first().map_or(0, Vec::len);
+        // Only the P wave and its margins are compared: a beat (the representative one) may start inside the window.
+        let need = (-self.on_rel).max(0) as usize + self.margin;
         let step = if sig.fs > 300.0 { 2 } else { 1 };
         let mut best: Option<(isize, f64)> = None;
         let mut lag = -max_lag;
         while lag <= max_lag {
-            if let Some(seg) = segment(sig, qrs_on, lag, w) {
+            if let Some(seg) = segment(sig, qrs_on, lag, w, need) {
                 let c = self.similarity(&seg);
                 if best.is_none_or(|(_, b)| c > b) {
                     best = Some((lag, c));
