@@ -18,8 +18,7 @@ use crate::filter::{Biquad, filtfilt};
 
 /// Length of the PR window before QRS onset, s.
 const WINDOW_S: f64 = 0.300;
-/// Longest PR window, s, tried when the P wave runs into the start of the [`WINDOW_S`] one (or none is found
-/// there) and the time since the previous T end leaves room: a first-degree AV block has a PR above 200 ms,
+/// Longest PR window, s, tried when the P wave runs into the start of the [`WINDOW_S`] one and the time since the previous T end leaves room: a first-degree AV block has a PR above 200 ms,
 /// often 300–400 ms.
 // Common practice, no source: PR intervals above ≈ 450 ms are rare; the window also spans the quiet before P.
 const LONG_WINDOW_S: f64 = 0.500;
@@ -120,10 +119,12 @@ fn segment_of(
 /// Builds the P model from dominant beats' QRS onsets; `earliest` is, per beat, the first sample the P wave
 /// may occupy (after the previous T wave). `None` when the record has no consistent P wave.
 ///
-/// The P wave is sought in the [`WINDOW_S`] before QRS onset. Where it runs into the start of that search (or
-/// none is found) and the beats' typical time since the previous T end is longer, it is sought again in a
-/// window reaching back to that T end (at most [`LONG_WINDOW_S`]); a long PR (first-degree AV block) is then
-/// measured whole. At fast rates the previous T end bounds both searches, so neither reaches into a T wave.
+/// The P wave is sought in the [`WINDOW_S`] before QRS onset. Where it runs into the start of that search and
+/// the beats' typical time since the previous T end is longer, it is sought again in a window reaching back to
+/// that T end (at most [`LONG_WINDOW_S`]); a long PR (first-degree AV block) is then measured whole. A record
+/// with no P wave in the usual window is not searched further (a wider search would more often take a T or U
+/// wave tail, or a paced rhythm's artefacts, for a P wave). At fast rates the previous T end bounds both
+/// searches, so neither reaches into a T wave.
 #[must_use]
 pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let base = sig.samples(WINDOW_S);
@@ -138,8 +139,8 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
         return first.map(|(m, _)| m);
     }
     match first {
-        Some((m, false)) => Some(m),
-        first => model_in(sig, onsets, long).map(|(m, _)| m).or(first.map(|(m, _)| m)),
+        Some((m, true)) => Some(model_in(sig, onsets, long).map_or(m, |(l, _)| l)),
+        first => first.map(|(m, _)| m),
     }
 }
 
