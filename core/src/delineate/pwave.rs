@@ -18,8 +18,8 @@ use crate::filter::{Biquad, filtfilt};
 
 /// Length of the PR window before QRS onset, s.
 const WINDOW_S: f64 = 0.300;
-/// Longest PR window, s, tried when the P wave runs into the start of the [`WINDOW_S`] one and the time since the previous T end leaves room: a first-degree AV block has a PR above 200 ms,
-/// often 300–400 ms.
+/// Longest PR window, s, tried when the P wave runs into the start of the [`WINDOW_S`] one and the time since
+/// the previous T end leaves room: a first-degree AV block has a PR above 200 ms, often 300–400 ms.
 // Common practice, no source: PR intervals above ≈ 450 ms are rare; the window also spans the quiet before P.
 const LONG_WINDOW_S: f64 = 0.500;
 /// The P wave is taken as cut by the window when its onset lies within this time of the search start, s.
