@@ -2,7 +2,10 @@
 //! the dominant beats (aligned on QRS onset) shows a P wave, and the individual beats resemble that median
 //! (an irregular rhythm with fibrillatory waves gives a flat median and low resemblance, so no P).
 //! Boundaries are found on the median with a multi-lead slope envelope, and carried to each beat at the lag
-//! where the beat best matches the median.
+//! where the beat best matches the median. As for the QRS edges, where the unfiltered median leads resolve it
+//! the edges are then moved inward over the few samples the low-pass and smoothing spread the wave's abrupt start
+//! and end (see [`SPREAD_S`]). The PR window is [`WINDOW_S`], reaching back towards the previous T end (at most
+//! [`LONG_WINDOW_S`]) when the P wave runs into its start: a long PR (first-degree AV block) is measured whole.
 //!
 //! Accuracy limit (measured on the 43 LUDB records with P waves): LUDB's global P onset is the earliest of twelve
 //! leads annotated one by one, so a single lead's early mark moves it; relative to any fixed point of the beat it
@@ -15,6 +18,13 @@ use crate::filter::{Biquad, filtfilt};
 
 /// Length of the PR window before QRS onset, s.
 const WINDOW_S: f64 = 0.300;
+/// Longest PR window, s, tried when the P wave runs into the start of the [`WINDOW_S`] one and the time since
+/// the previous T end leaves room: a first-degree AV block has a PR above 200 ms, often 300–400 ms.
+// Common practice, no source: PR intervals above ≈ 450 ms are rare; the window also spans the quiet before P.
+const LONG_WINDOW_S: f64 = 0.500;
+/// The P wave is taken as cut by the window when its onset lies within this time of the search start, s.
+// Common practice, no source: a few samples of baseline before the onset show the wave has started inside.
+const CUT_S: f64 = 0.010;
 /// The median P wave must be at least this big on its clearest lead, µV.
 // Common practice, no source: normal P waves are 50–250 µV in their clearest lead; the median of
 // fibrillatory or flutter waves over beats is far smaller.
@@ -40,6 +50,20 @@ const EDGE_REACH_S: f64 = 0.080;
 const P_LP_HZ: f64 = 35.0;
 /// Largest lag tried when matching a beat to the median P, s.
 const MAX_LAG_S: f64 = 0.024;
+/// How far the P-band and 40 Hz zero-phase low-passes and the 16 ms envelope smoothing spread an abrupt start
+/// (end) of the P wave, s: an edge found on the envelope moves at most this far towards the P peak, over samples
+/// where the unfiltered median leads still stand still (as for the QRS edges in `qrs`).
+// Common practice, no source: half the 16 ms smoothing plus about half a period of the 35 Hz cutoff.
+const SPREAD_S: f64 = 0.024;
+/// Within [`SPREAD_S`] of a P edge, the unfiltered median leads stand still while their summed sample-to-sample
+/// step is at most this fraction of the edge threshold; the refinement applies only where their noise (see
+/// [`NOISE_FACTOR`]) is below the same level.
+// Common practice, no source: a step under half the threshold slope is taken as no departure.
+const STILL: f32 = 0.5;
+/// Noise of an unfiltered median lead: this many times the median absolute deviation of (unfiltered − P-band)
+/// over the search region outside the P wave (where the low-pass leaves a clean lead unchanged).
+// Common practice, no source: a deflection is told from noise when it exceeds a few times the noise level.
+const NOISE_FACTOR: f32 = 4.0;
 
 /// The record's P wave: offsets of its onset and end from QRS onset (samples, negative = before), and the
 /// median P window used to match beats.
@@ -51,34 +75,42 @@ pub struct PModel {
     pub end_rel: isize,
     /// Median PR window per lead, baseline at the PR segment, µV; index 0 is `qrs_on − window`.
     template: Vec<Vec<f32>>,
+    /// Margin around the P wave over which beats are compared with the template, samples.
+    margin: usize,
     /// Mean correlation of the beats with the template (0–1).
     pub consistency: f64,
 }
 
-fn window(sig: &Signals) -> usize {
-    sig.samples(WINDOW_S)
+/// The PR window of one beat (per lead, relative to the PR-segment level), `w` samples long, if its last `need`
+/// samples lie inside the recording (any earlier ones outside it read 0).
+fn segment(sig: &Signals, qrs_on: usize, lag: isize, w: usize, need: usize) -> Option<Vec<Vec<f32>>> {
+    segment_of(sig, &sig.slow, qrs_on, lag, w, need)
 }
 
-/// The PR window of one beat (per lead, relative to the PR-segment level), if it lies inside the recording.
-fn segment(sig: &Signals, qrs_on: usize, lag: isize) -> Option<Vec<Vec<f32>>> {
-    segment_of(sig, &sig.slow, qrs_on, lag)
-}
-
-/// [`segment`] on chosen leads (`sig.slow` or `sig.qrs`).
-fn segment_of(sig: &Signals, leads: &[Vec<f32>], qrs_on: usize, lag: isize) -> Option<Vec<Vec<f32>>> {
-    let w = window(sig);
+/// [`segment`] on chosen leads (`sig.slow`, `sig.qrs` or `sig.wide`).
+fn segment_of(
+    sig: &Signals,
+    leads: &[Vec<f32>],
+    qrs_on: usize,
+    lag: isize,
+    w: usize,
+    need: usize,
+) -> Option<Vec<Vec<f32>>> {
     let end = qrs_on as isize + lag;
-    if end < w as isize + 1 || end as usize >= sig.len() {
+    if end < need.min(w) as isize + 1 || end as usize >= sig.len() {
         return None;
     }
     let end = end as usize;
     let ref_a = end - sig.samples(0.012).max(1);
+    let lead_in = w.saturating_sub(end);
     Some(
         leads
             .iter()
             .map(|x| {
                 let base = x[ref_a..end].iter().sum::<f32>() / (end - ref_a) as f32;
-                x[end - w..end].iter().map(|v| v - base).collect()
+                let mut v = vec![0.0f32; lead_in];
+                v.extend(x[end + lead_in - w..end].iter().map(|v| v - base));
+                v
             })
             .collect(),
     )
@@ -86,12 +118,38 @@ fn segment_of(sig: &Signals, leads: &[Vec<f32>], qrs_on: usize, lag: isize) -> O
 
 /// Builds the P model from dominant beats' QRS onsets; `earliest` is, per beat, the first sample the P wave
 /// may occupy (after the previous T wave). `None` when the record has no consistent P wave.
+///
+/// The P wave is sought in the [`WINDOW_S`] before QRS onset. Where it runs into the start of that search and
+/// the beats' typical time since the previous T end is longer, it is sought again in a window reaching back to
+/// that T end (at most [`LONG_WINDOW_S`]); a long PR (first-degree AV block) is then measured whole. A record
+/// with no P wave in the usual window is not searched further (a wider search would more often take a T or U
+/// wave tail, or a paced rhythm's artefacts, for a P wave). At fast rates the previous T end bounds both
+/// searches, so neither reaches into a T wave.
 #[must_use]
 pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
-    let w = window(sig);
+    let base = sig.samples(WINDOW_S);
+    let first = model_in(sig, onsets, base);
+    let mut room: Vec<usize> = onsets.iter().map(|&(on, earliest)| on.saturating_sub(earliest)).collect();
+    if room.is_empty() {
+        return None;
+    }
+    let mid = room.len() / 2;
+    let long = (*room.select_nth_unstable(mid).1).min(sig.samples(LONG_WINDOW_S));
+    if long <= base + sig.samples(CUT_S) {
+        return first.map(|(m, _)| m);
+    }
+    match first {
+        Some((m, true)) => Some(model_in(sig, onsets, long).map_or(m, |(l, _)| l)),
+        first => first.map(|(m, _)| m),
+    }
+}
+
+/// [`model`] in a PR window of `w` samples; the flag says the onset lies within [`CUT_S`] of the search start
+/// (the P wave may begin before the window).
+fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PModel, bool)> {
     let segs: Vec<(Vec<Vec<f32>>, usize)> = onsets
         .iter()
-        .filter_map(|&(on, earliest)| segment(sig, on, 0).map(|s| (s, on.saturating_sub(earliest))))
+        .filter_map(|&(on, earliest)| segment(sig, on, 0, w, w).map(|s| (s, on.saturating_sub(earliest))))
         .collect();
     if segs.len() < 3 {
         return None;
@@ -130,7 +188,7 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let lp = [Biquad::lowpass(P_LP_HZ.min(sig.fs * 0.45), sig.fs)];
     let fine_segs: Vec<Vec<Vec<f32>>> = onsets
         .iter()
-        .filter_map(|&(on, _)| segment_of(sig, &sig.qrs, on, 0))
+        .filter_map(|&(on, _)| segment_of(sig, &sig.qrs, on, 0, w, w))
         .map(|seg| {
             seg.iter()
                 .map(|t| {
@@ -164,11 +222,70 @@ pub fn model(sig: &Signals, onsets: &[(usize, usize)]) -> Option<PModel> {
     let quietest = |r: std::ops::RangeInclusive<usize>| r.min_by(|&a, &b| env[a].total_cmp(&env[b]));
     let on = (on_from..=up).rev().find(|&k| env[k] <= on_level).or_else(|| quietest(on_from..=up))?;
     let end = (down..=end_to).find(|&k| env[k] <= end_level).or_else(|| quietest(down..=end_to))?;
-    let mut m =
-        PModel { on_rel: on as isize - w as isize, end_rel: end as isize - w as isize, template, consistency: 0.0 };
+    let (on, end) = refine(sig, onsets, w, &fine, (start, stop), (on, up, on_level), (end, down, end_level));
+    let cut = on <= start + sig.samples(CUT_S);
+    let mut m = PModel {
+        on_rel: on as isize - w as isize,
+        end_rel: end as isize - w as isize,
+        template,
+        margin: sig.samples(0.020),
+        consistency: 0.0,
+    };
     let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
     m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
-    (m.consistency >= MIN_CONSISTENCY).then_some(m)
+    (m.consistency >= MIN_CONSISTENCY).then_some((m, cut))
+}
+
+/// Moves the P edges found on the envelope inward over the low-pass spread: the onset `on` (steepest upslope
+/// `up`, threshold `on_level`) forward to the last sample before the unfiltered median leads step by more than
+/// [`STILL`] times the threshold, at most [`SPREAD_S`] and not past `up`; the end likewise back towards `down`.
+/// Only where those leads' noise over the search region `start..stop` outside the P wave (see [`NOISE_FACTOR`])
+/// is below the same level, so noisy or coarsely quantised records keep the envelope's edges.
+fn refine(
+    sig: &Signals,
+    onsets: &[(usize, usize)],
+    w: usize,
+    fine: &[Vec<f32>],
+    (start, stop): (usize, usize),
+    (on, up, on_level): (usize, usize, f32),
+    (end, down, end_level): (usize, usize, f32),
+) -> (usize, usize) {
+    let wide_segs: Vec<Vec<Vec<f32>>> =
+        onsets.iter().filter_map(|&(q, _)| segment_of(sig, &sig.wide, q, 0, w, w)).collect();
+    if wide_segs.is_empty() {
+        return (on, end);
+    }
+    let raw = median_of(&wide_segs.iter().collect::<Vec<_>>(), w);
+    let noise: f32 = raw
+        .iter()
+        .zip(fine)
+        .map(|(r, f)| {
+            // The two are levelled on different PR-segment means, so the deviation is taken about its median.
+            let mut d: Vec<f32> = (start..on).chain(end + 1..stop).map(|k| r[k] - f[k]).collect();
+            if d.is_empty() {
+                return f32::INFINITY;
+            }
+            let mid = d.len() / 2;
+            let offset = *d.select_nth_unstable_by(mid, f32::total_cmp).1;
+            let mut dev: Vec<f32> = d.iter().map(|v| (v - offset).abs()).collect();
+            NOISE_FACTOR * *dev.select_nth_unstable_by(mid, f32::total_cmp).1
+        })
+        .sum();
+    let step = |k: usize| -> f32 { raw.iter().map(|r| (r[k + 1] - r[k]).abs()).sum() };
+    let spread = sig.samples(SPREAD_S);
+    let on = if noise <= STILL * on_level {
+        let reach = (on + spread).min(up);
+        (on..reach).find(|&j| step(j) > STILL * on_level).unwrap_or(reach)
+    } else {
+        on
+    };
+    let end = if noise <= STILL * end_level && end > 0 {
+        let back = end.saturating_sub(spread).max(down).max(1);
+        (back..=end).rev().find(|&j| step(j - 1) > STILL * end_level).unwrap_or(back)
+    } else {
+        end
+    };
+    (on, end)
 }
 
 /// Sample-by-sample median over segments (per lead).
@@ -193,7 +310,7 @@ impl PModel {
     /// Correlation of a beat's PR window with the template over the P wave (±20 ms), all leads together.
     fn similarity(&self, seg: &[Vec<f32>]) -> f64 {
         let w = self.template.first().map_or(0, Vec::len) as isize;
-        let margin = (w as f64 * 0.020 / WINDOW_S).round() as isize;
+        let margin = self.margin as isize;
         let a = (w + self.on_rel - margin).clamp(0, w - 1) as usize;
         let b = (w + self.end_rel + margin).clamp(0, w) as usize;
         if b <= a + 2 {
@@ -209,11 +326,14 @@ impl PModel {
     #[must_use]
     pub fn for_beat(&self, sig: &Signals, qrs_on: usize, earliest: usize) -> Option<(usize, usize)> {
         let max_lag = sig.samples(MAX_LAG_S) as isize;
+        let w = self.template.first().map_or(0, Vec::len);
+        // Only the P wave and its margins are compared: a beat (the representative one) may start inside the window.
+        let need = (-self.on_rel).max(0) as usize + self.margin;
         let step = if sig.fs > 300.0 { 2 } else { 1 };
         let mut best: Option<(isize, f64)> = None;
         let mut lag = -max_lag;
         while lag <= max_lag {
-            if let Some(seg) = segment(sig, qrs_on, lag) {
+            if let Some(seg) = segment(sig, qrs_on, lag, w, need) {
                 let c = self.similarity(&seg);
                 if best.is_none_or(|(_, b)| c > b) {
                     best = Some((lag, c));

@@ -16,6 +16,7 @@ mod io_wfdb;
 mod measure_formulas;
 mod measure_ludb;
 mod measure_synth;
+mod measure_synth_long_pr;
 mod measure_synth_p;
 mod qrs_edges;
 mod render_geometry;
