@@ -55,17 +55,27 @@ fn check(outcomes: &[Outcome]) {
     assert!(bad.is_empty(), "outside ±{TOLERANCE_SAMPLES} samples: {bad:#?}");
 }
 
-/// Every scenario but the 24-hour one, without and with the `noisy` scenario's noise.
-fn specs() -> Vec<SynthSpec> {
+/// Every scenario without noise (all but the 24-hour one and the noisy one).
+fn clean_specs() -> Vec<SynthSpec> {
+    Scenario::ALL
+        .into_iter()
+        .filter(|s| *s != Scenario::Holter)
+        .map(Scenario::spec)
+        .filter(|s| s.noise.is_none())
+        .collect()
+}
+
+/// The noisy scenario, and the clean ones again with its noise (baseline wander, mains, muscle noise).
+fn noisy_specs() -> Vec<SynthSpec> {
     let noise = Scenario::Noisy.spec().noise;
-    let base: Vec<SynthSpec> =
-        Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter).map(Scenario::spec).collect();
-    let noisy = base.iter().filter(|s| s.noise.is_none()).map(|s| SynthSpec {
-        noise,
-        scenario: format!("{}+noise", s.scenario),
-        ..s.clone()
-    });
-    base.clone().into_iter().chain(noisy).collect()
+    let with_noise =
+        clean_specs().into_iter().map(|s| SynthSpec { noise, scenario: format!("{}+noise", s.scenario), ..s });
+    std::iter::once(Scenario::Noisy.spec()).chain(with_noise).collect()
+}
+
+/// Every scenario but the 24-hour one, without and with noise.
+fn specs() -> Vec<SynthSpec> {
+    clean_specs().into_iter().chain(noisy_specs()).collect()
 }
 
 #[test]
@@ -106,14 +116,19 @@ fn full_analysis_qrs_axis_matches_the_truth() {
 }
 
 #[test]
-#[ignore = "delineator on the demo waves (compact support, k = 2.5; 500 Hz; ms, clean / with noise over 8 \
-            seeds): QRS 0..+2 / +6..+10 on 90 ms QRS (clean leads: edges refined on the unfiltered lead; with \
-            noise the low-pass spread stays: onset 2-5 samples early, J point 0-2 late), 0 / +2..+6 on 140 ms; \
-            QT 0..+2 / +2..+8, long-qt 0 / -6..-2 (with noise the unfiltered lead cannot show the knee where \
-            the T wave stops, and the trapezium end, short of it on a 52 ms-sigma T, stands); PR 0..+4 / \
-            -4..+6 (SD 2.1 over 48 noisy runs, measure_synth_p): P onset 2-3 samples early and P end 2 late (10 % of the 16 ms smoothed envelope), \
-            with noise P onset -6..+2, partly offset in PR by the QRS onset; RR within 0.4"]
-fn full_analysis_intervals_match_the_truth() {
-    // Goal (issue 3): RR, PR, QRS, QT within 1–2 samples of the truth on every scenario, also with noise.
-    check(&specs().iter().map(run).collect::<Vec<_>>());
+fn full_analysis_intervals_match_the_truth_without_noise() {
+    // Goal (issue 3): RR, PR, QRS, QT within 1–2 samples of the truth on every scenario. Measured today (500 Hz,
+    // ms): PR and RR exact, QRS 0..+2, QT 0..+2 on every clean scenario.
+    check(&clean_specs().iter().map(run).collect::<Vec<_>>());
+}
+
+#[test]
+#[ignore = "with noise (25 uV muscle, 40 uV mains, 150 uV wander; 500 Hz; ms, seed 1): QRS +8..+10 on the 90 ms \
+            QRS (onset 2-5 samples early, J point 0-2 late: the unfiltered leads are too noisy to refine the \
+            low-pass spread), +4 on 140 ms; QT +6..+8 (from the early QRS onset), long-qt -6 (the trapezium \
+            end on a 52 ms-sigma T stands short of the knee the noise hides); PR 0 / -4..-6 on three scenarios \
+            (SD 2.4 ms over 48 runs, measure_synth_p); RR within 0.4"]
+fn full_analysis_intervals_match_the_truth_with_noise() {
+    // Goal (issue 3): the same, also with noise switched on.
+    check(&noisy_specs().iter().map(run).collect::<Vec<_>>());
 }
