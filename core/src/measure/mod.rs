@@ -147,7 +147,9 @@ impl Measurements {
         self.st.iter().find(|s| &s.lead == lead).and_then(|s| s.j60_uv)
     }
 
-    /// Every range note, in the order of [`Measurements::values`].
+    /// Every range note, in the order of [`Measurements::values`], then the limb-lead gain note when the axes
+    /// were computed after rescaling ([`ranges::limb_gain_mismatch`]; it belongs to no single value, so
+    /// [`Measurements::values`] does not carry it).
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
