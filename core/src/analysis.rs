@@ -47,3 +47,67 @@ impl Analysis {
         self.measurements = measure::measure(rec, &self.beats, self.representative.as_ref().map(template_of).as_ref());
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::recording::{Lead, LeadName, Meta};
+    use crate::units::Hertz;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(24))]
+        /// The whole pipeline on six named limb leads (so the pacing-spike search, the lead-edge refinement on
+        /// the unfiltered leads, the T end lead comparison and the Einthoven gain fit all run) with any samples,
+        /// lengths and usual rates: no panic, every reported value finite, every boundary inside the recording.
+        #[test]
+        fn analyze_never_panics_on_limb_leads(
+            len in 0usize..3000,
+            rate in prop_oneof![Just(100.0f64), Just(250.0), Just(500.0), Just(1000.0)],
+            seed in proptest::collection::vec(prop_oneof![8 => -3000.0f32..3000.0, 1 => Just(f32::NAN)], 97),
+            spikes in proptest::collection::vec(0usize..3000, 0..12),
+            gains in proptest::collection::vec(0.2f32..3.0, 6),
+            qrs_uv in proptest::collection::vec(-1500.0f32..1500.0, 6),
+        ) {
+            let names = ["I", "II", "III", "aVR", "aVL", "aVF"];
+            let leads: Vec<Lead> = names
+                .iter()
+                .zip(&gains)
+                .enumerate()
+                .map(|(l, (name, &g))| {
+                    // Noise from the seed plus a 40 ms triangular QRS every 0.8 s, so beats are found.
+                    let period = (0.8 * rate) as usize;
+                    let half = ((0.02 * rate) as usize).max(1);
+                    let mut v: Vec<f32> = (0..len)
+                        .map(|k| {
+                            let d = (k % period).abs_diff(period / 2);
+                            let qrs = if d < half { 1.0 - d as f32 / half as f32 } else { 0.0 };
+                            0.05 * seed[(k * 5 + l * 11) % seed.len()] + g * qrs_uv[l] * qrs
+                        })
+                        .collect();
+                    for &s in spikes.iter().filter(|&&s| s < len) {
+                        v[s] += 4000.0;
+                    }
+                    Lead { name: LeadName::parse(name), samples: v }
+                })
+                .collect();
+            let rec = Recording {
+                leads,
+                sample_rate: Hertz::from_hz(rate).unwrap_or_else(|_| unreachable!()),
+                start: None,
+                meta: Meta::default(),
+                annotations: Vec::new(),
+            };
+            let a = analyze(&rec, &FilterSettings::default());
+            for b in &a.beats {
+                for v in [b.bounds.p_on, b.bounds.p_end, b.bounds.qrs_on, b.bounds.qrs_end, b.bounds.t_end].into_iter().flatten() {
+                    prop_assert!(v < len, "{:?} len {}", b, len);
+                }
+            }
+            for v in a.measurements.values() {
+                prop_assert!(v.value.is_none_or(f64::is_finite), "{} = {:?}", v.key, v.value);
+            }
+            prop_assert!(a.measurements.limb_gain_mismatch_pct.is_none_or(f64::is_finite));
+        }
+    }
+}

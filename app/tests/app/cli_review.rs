@@ -44,7 +44,7 @@ fn stderr(o: &Output) -> String {
 fn agreement_table_and_json() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    // The worked example of tests/tests/review_agreement.rs: AB − CD = 10, −5, 10, 10 ms → bias 6.25,
+    // The worked example of tests/tests/suite/review_agreement.rs: AB − CD = 10, −5, 10, 10 ms → bias 6.25,
     // SD 7.5, limits −8.45 to 20.95 (Bland & Altman, Lancet 1986;1(8476):307-10; from memory).
     let files = [
         write_review(d, "1-ab.review.ron", "AB", '1', 400.0),

@@ -1,6 +1,7 @@
-//! Wave boundaries: QRS onset and J point per lead, combined over the leads (see `qrs`), T end by the tangent method,
-//! P onset and end only where the record has a consistent P wave; and the representative (median) beat per
-//! lead with its own global boundaries found by the same method.
+//! Wave boundaries: QRS onset and J point per lead, combined over the leads (see `qrs`), T end by the
+//! trapezium-area method per lead, combined over the leads after each lead is compared with its neighbouring
+//! beats (see `twave`), P onset and end only where the record has a consistent P wave; and the representative
+//! (median) beat per lead with its own global boundaries found by the same method.
 //!
 //! All leads are combined, so the boundaries are global (earliest onset and latest end over the leads, as the
 //! usual 12-lead global intervals are defined). A boundary that cannot be found is `None`, never a guess.

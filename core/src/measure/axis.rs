@@ -23,7 +23,7 @@ pub enum AxisBasis {
     NetArea,
     /// Net amplitude: largest positive plus largest negative deflection (the default; on LUDB records 1–50 it
     /// agrees with the cardiologists' axis categories on 33 of 47 records, net area on 30, the algebraic sum of
-    /// the waves on 32 — see tests/tests/measure_ludb.rs).
+    /// the waves on 32 — see tests/tests/suite/measure_ludb.rs).
     #[default]
     NetAmplitude,
     /// Algebraic sum of the waves, R − |Q| − |S| (R′, S′ included): the peak of every run of samples on one side

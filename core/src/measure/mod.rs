@@ -147,7 +147,9 @@ impl Measurements {
         self.st.iter().find(|s| &s.lead == lead).and_then(|s| s.j60_uv)
     }
 
-    /// Every range note, in the order of [`Measurements::values`].
+    /// Every range note, in the order of [`Measurements::values`], then the limb-lead gain note when the axes
+    /// were computed after rescaling ([`ranges::limb_gain_mismatch`]; it belongs to no single value, so
+    /// [`Measurements::values`] does not carry it).
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
@@ -176,7 +178,8 @@ mod tests {
             rs in proptest::collection::vec(0usize..5000, 0..20),
         ) {
             let bounds = Boundaries { p_on: b.0, p_end: b.1, qrs_on: b.2, qrs_end: b.3, t_end: b.4 };
-            let names = ["I", "II", "aVF", "V2", "X"];
+            // All six limb leads, so the Einthoven gain fit runs too (on values that break the law).
+            let names = ["I", "II", "III", "aVR", "aVL", "aVF", "V2", "X"];
             let leads: Vec<Vec<f32>> = names.iter().enumerate()
                 .map(|(i, _)| (0..len).map(|k| if k == nan_at { f32::NAN } else { ((k * (i + 1)) % 17) as f32 }).collect())
                 .collect();
