@@ -66,7 +66,9 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
     }
     let lo = r.saturating_sub(sig.samples(0.120)).max(min_start);
     // After a pacing spike between the search start and R, the QRS can only start once the artefact is over.
-    let lo = match sig.spikes.iter().rev().find(|&&s| s >= lo && s < r) {
+    // (`spikes` is sorted: the last spike before R is found by bisection, not by a scan per beat.)
+    let before_r = &sig.spikes[..sig.spikes.partition_point(|&s| s < r)];
+    let lo = match before_r.last().filter(|&&s| s >= lo) {
         Some(&s) => (s + sig.samples(AFTER_SPIKE_S)).min(r),
         None => lo,
     };

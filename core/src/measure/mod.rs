@@ -147,13 +147,17 @@ impl Measurements {
         self.st.iter().find(|s| &s.lead == lead).and_then(|s| s.j60_uv)
     }
 
-    /// Every range note, in the order of [`Measurements::values`], then the limb-lead gain note when the axes
-    /// were computed after rescaling ([`ranges::limb_gain_mismatch`]; it belongs to no single value, so
-    /// [`Measurements::values`] does not carry it).
+    /// Every range note, in the order of [`Measurements::values`], and the limb-lead gain note when the axes
+    /// were computed after rescaling ([`ranges::limb_gain_mismatch`]): on the QRS axis row when that row has no
+    /// range note of its own, otherwise last.
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
-        notes.extend(self.limb_gain_mismatch_pct.and_then(ranges::limb_gain_mismatch));
+        if let Some(gain) = self.limb_gain_mismatch_pct.and_then(ranges::limb_gain_mismatch)
+            && !notes.contains(&gain)
+        {
+            notes.push(gain);
+        }
         notes
     }
 }

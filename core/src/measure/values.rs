@@ -88,7 +88,12 @@ impl Measurements {
             out.push(with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex)));
         }
         out.push(v("axis_p_deg", "P axis", self.axes.p_deg, "deg"));
-        out.push(with_note(v("axis_qrs_deg", "QRS axis", self.axes.qrs_deg, "deg"), ranges::qrs_axis));
+        // The QRS axis row carries its range note, or else the note that the limb leads were rescaled.
+        let mut qrs_axis = with_note(v("axis_qrs_deg", "QRS axis", self.axes.qrs_deg, "deg"), ranges::qrs_axis);
+        if qrs_axis.note.is_none() && qrs_axis.value.is_some() {
+            qrs_axis.note = self.limb_gain_mismatch_pct.and_then(ranges::limb_gain_mismatch);
+        }
+        out.push(qrs_axis);
         out.push(v("axis_t_deg", "T axis", self.axes.t_deg, "deg"));
         for s in &self.st {
             let mut a = v("st_j_uv", &format!("ST at J ({})", s.lead), s.j_uv, "µV");

@@ -256,6 +256,9 @@ impl<'a> Integrator<'a> {
     /// at a step of σ/2 it reproduces an event to within about 10⁻⁴ of its height (tested against the closed
     /// form below).
     pub fn advance(&mut self, t_end: f64) {
+        if t_end.is_nan() || t_end <= self.t {
+            return; // time only runs forward
+        }
         let t_start = self.t;
         self.refresh_active(t_start, t_end);
         let events = self.events;

@@ -427,10 +427,18 @@ fn inconsistent_limb_lead_gains_are_told_to_the_reader() {
     let note_of = |path: &str| {
         let opened = io::open(&data(path), &io::OpenOptions::default()).unwrap_or_else(|e| panic!("{path}: {e}"));
         let a = isoline_core::analysis::analyze(&opened.recording, &isoline_core::filter::FilterSettings::default());
-        (
-            a.measurements.limb_gain_mismatch_pct,
-            a.measurements.notes().into_iter().find(|n| n.text.contains("Einthoven")),
-        )
+        let m = &a.measurements;
+        let notes: Vec<_> = m.notes().into_iter().filter(|n| n.text.contains("Einthoven")).collect();
+        assert!(notes.len() <= 1, "{path}: the note is given once: {notes:?}");
+        // The Ledger shows it on the QRS axis row (LUDB 1's QRS axis has no range note of its own).
+        let on_row = m
+            .values()
+            .into_iter()
+            .find(|v| v.key == "axis_qrs_deg")
+            .and_then(|v| v.note)
+            .filter(|n| n.text.contains("Einthoven"));
+        assert_eq!(on_row.as_ref(), notes.first(), "{path}");
+        (m.limb_gain_mismatch_pct, notes.into_iter().next())
     };
     let (pct, note) = note_of("ludb/1.hea");
     assert!(pct.is_some_and(|p| p > 3.0), "LUDB 1 mismatch {pct:?}");
