@@ -88,9 +88,9 @@ fn segment(sig: &Signals, qrs_on: usize, lag: isize, w: usize, need: usize) -> O
 }
 
 /// [`segment`] on chosen leads (`sig.slow`, `sig.qrs` or `sig.wide`).
-fn segment_of(
+fn segment_of<L: AsRef<[f32]>>(
     sig: &Signals,
-    leads: &[Vec<f32>],
+    leads: &[L],
     qrs_on: usize,
     lag: isize,
     w: usize,
@@ -107,6 +107,7 @@ fn segment_of(
         leads
             .iter()
             .map(|x| {
+                let x = x.as_ref();
                 let base = x[ref_a..end].iter().sum::<f32>() / (end - ref_a) as f32;
                 let mut v = vec![0.0f32; lead_in];
                 v.extend(x[end + lead_in - w..end].iter().map(|v| v - base));

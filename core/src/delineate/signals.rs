@@ -1,6 +1,8 @@
 //! Signals shared by the boundary finders: each lead low-passed for the QRS (40 Hz) and for P and T (12 Hz),
 //! the multi-lead QRS slope envelope, and the pacing spikes found in the unfiltered leads.
 
+use std::borrow::Cow;
+
 use crate::filter::{Biquad, fill_invalid, filtfilt};
 
 /// Low-pass cutoff for QRS boundaries, Hz.
@@ -19,8 +21,9 @@ const SPIKE_MEDIAN_S: f64 = 0.010;
 /// Low-pass cutoff for P and T waves, Hz.
 const WAVE_LP_HZ: f64 = 12.0;
 
-/// Prepared signals of a multi-lead recording (or of a representative beat).
-pub struct Signals {
+/// Prepared signals of a multi-lead recording (or of a representative beat); `'a` is the life of the leads
+/// given to [`Signals::new`], which `wide` borrows when they hold no invalid sample.
+pub struct Signals<'a> {
     /// Sampling rate, Hz.
     pub fs: f64,
     /// Each lead low-passed at 40 Hz, µV.
@@ -29,7 +32,9 @@ pub struct Signals {
     pub slow: Vec<Vec<f32>>,
     /// Each lead as given (no low-pass; invalid samples interpolated), µV: where a lead is clean it shows the
     /// instant a wave leaves the baseline, which the zero-phase low-pass spreads a few samples either way.
-    pub wide: Vec<Vec<f32>>,
+    /// Borrowed from the caller's leads unless a lead has invalid samples to interpolate (no copy of a 24-h
+    /// recording).
+    pub wide: Vec<Cow<'a, [f32]>>,
     /// Largest over the leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so
     /// the first lead to start and the last to finish set the edges), smoothed over ≈ 10 ms. Dimensionless.
     pub env: Vec<f32>,
@@ -38,10 +43,10 @@ pub struct Signals {
     pub spikes: Vec<usize>,
 }
 
-impl Signals {
+impl<'a> Signals<'a> {
     /// Prepares `leads` (µV, NaN = invalid; interpolated here).
     #[must_use]
-    pub fn new(leads: &[&[f32]], fs: f64) -> Self {
+    pub fn new(leads: &[&'a [f32]], fs: f64) -> Self {
         let n = leads.first().map_or(0, |l| l.len());
         let pad = (fs * 0.3) as usize;
         let lp_q = [Biquad::lowpass(QRS_LP_HZ.min(fs * 0.45), fs)];
@@ -50,12 +55,16 @@ impl Signals {
         let mut slow = Vec::with_capacity(leads.len());
         let mut wide = Vec::with_capacity(leads.len());
         let mut spikes = Vec::new();
-        for lead in leads {
+        for &lead in leads {
             let x = fill_invalid(lead);
             spikes.extend(pacing_spikes(&x, fs));
             qrs.push(filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect::<Vec<f32>>());
             slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
-            wide.push(x.iter().map(|&v| v as f32).collect());
+            wide.push(if lead.iter().all(|v| v.is_finite()) {
+                Cow::Borrowed(lead)
+            } else {
+                Cow::Owned(x.iter().map(|&v| v as f32).collect())
+            });
         }
         // Each lead's slope in units of its typical QRS slope; a lead with a small QRS is raised at most
         // MAX_GAIN times relative to the largest, so its noise cannot start the QRS early.
