@@ -355,13 +355,12 @@ impl PModel {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use std::f64::consts::PI;
 
     const FS: f64 = 500.0;
 
-    /// Raised-cosine bump of `amp` µV from `a` to `b` seconds.
+    /// Raised-cosine bump of `amp` µV from `a` to `b` seconds, peaking half-way.
     fn bump(t: f64, a: f64, b: f64, amp: f64) -> f32 {
-        if t <= a || t >= b { 0.0 } else { (amp * 0.5 * (1.0 - (2.0 * PI * (t - a) / (b - a)).cos())) as f32 }
+        crate::delineate::tests::bump(t, a, (a + b) / 2.0, b, amp) as f32
     }
 
     /// Four leads with QRS onsets every 0.8 s (returned, samples). Leads 0–2 carry a 100 µV P wave from 160 to

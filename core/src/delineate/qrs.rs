@@ -223,20 +223,9 @@ fn min_over(x: &[f32], a: usize, b: usize) -> Option<f32> {
 mod tests {
     use super::*;
     use crate::delineate::signals::pacing_spikes;
-    use std::f64::consts::PI;
+    use crate::delineate::tests::bump;
 
     const FS: f64 = 500.0;
-
-    /// Raised-cosine bump: 0 at `a`, `amp` at `peak`, 0 at `b` (s).
-    fn bump(t: f64, a: f64, peak: f64, b: f64, amp: f64) -> f64 {
-        if t <= a || t >= b {
-            0.0
-        } else if t <= peak {
-            amp * 0.5 * (1.0 - (PI * (t - a) / (peak - a)).cos())
-        } else {
-            amp * 0.5 * (1.0 + (PI * (t - peak) / (b - peak)).cos())
-        }
-    }
 
     /// Small deterministic noise in ±`amp` (linear congruential generator).
     fn noise(n: usize, amp: f32, seed: u64) -> Vec<f32> {

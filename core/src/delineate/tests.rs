@@ -8,8 +8,9 @@ use std::f64::consts::PI;
 
 const FS: f64 = 500.0;
 
-/// Half-cosine bump: 0 at `a`, `amp` at `peak`, 0 at `b` (rises and falls as raised-cosine halves).
-fn bump(t: f64, a: f64, peak: f64, b: f64, amp: f64) -> f64 {
+/// Half-cosine bump: 0 at `a`, `amp` at `peak`, 0 at `b` (rises and falls as raised-cosine halves). Shared by the
+/// delineation tests of every module.
+pub(super) fn bump(t: f64, a: f64, peak: f64, b: f64, amp: f64) -> f64 {
     if t <= a || t >= b {
         0.0
     } else if t <= peak {
