@@ -1,7 +1,7 @@
 //! The representative beat: the sample-by-sample median of the dominant beats aligned on their R peaks, per
 //! lead, delineated with the same method as single beats (its P wave only when the record's P is consistent).
 
-use super::{PModel, Signals, beat_t_end, delineate_with, median_rr, qrs};
+use super::{PModel, Signals, beat_t_waves, delineate_with, median_rr, qrs, twave};
 use crate::beat::{Beat, BeatKind, Boundaries};
 use crate::recording::Recording;
 use crate::units::Hertz;
@@ -83,7 +83,7 @@ pub fn representative_beat_with(
     let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
     let sig = Signals::new(&refs, fs);
     let (on, end) = qrs::qrs_bounds(&sig, before, 0, before + after);
-    let t_end = beat_t_end(&sig, before, on, end, rr, before + after);
+    let t_end = beat_t_waves(&sig, before, on, end, rr, before + after).and_then(|t| twave::global_end(&sig, &t));
     let (p_on, p_end) = match (p_model, on) {
         (Some(m), Some(q)) => m.for_beat(&sig, q, 0).map_or((None, None), |(a, b)| (Some(a), Some(b))),
         _ => (None, None),

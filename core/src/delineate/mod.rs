@@ -87,22 +87,10 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
     Some(model)
 }
 
-/// T end of the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples), from this beat alone (the
-/// representative beat); the beats of a record use [`beat_t_waves`] and compare each lead over the beats first.
-fn beat_t_end(
-    sig: &Signals,
-    r: usize,
-    on: Option<usize>,
-    end: Option<usize>,
-    rr: usize,
-    limit: usize,
-) -> Option<usize> {
-    beat_t_waves(sig, r, on, end, rr, limit).and_then(|t| twave::global_end(sig, &t))
-}
-
-/// Each lead's T wave for the beat of [`beat_t_end`]: the T wave is sought from 50 ms after the J point (at
-/// least 100 ms after R) to the lesser of [`T_MAX_S`] and [`T_RR_FRACTION`] of the RR after R, and never at or
-/// past `limit`.
+/// Each lead's T wave for the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples); the leads
+/// are combined by [`twave::global_end`] (for the beats of a record, after comparing each lead over the beats).
+/// The T wave is sought from 50 ms after the J point (at least 100 ms after R) to the lesser of [`T_MAX_S`] and
+/// [`T_RR_FRACTION`] of the RR after R, and never at or past `limit`.
 fn beat_t_waves(
     sig: &Signals,
     r: usize,
