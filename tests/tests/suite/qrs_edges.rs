@@ -54,6 +54,17 @@ fn row(spec: &SynthSpec) -> (String, Option<f64>, Option<f64>) {
 /// Allowed error of each edge, samples (issue 3: "within 1–2 samples of the truth").
 const TOLERANCE_SAMPLES: f64 = 2.0;
 
+/// Prints the scenario's line and notes each edge outside [`TOLERANCE_SAMPLES`] in `bad`.
+fn check(spec: &SynthSpec, bad: &mut Vec<String>) {
+    let (line, on, end) = row(spec);
+    println!("{line}");
+    for (k, v) in [("onset", on), ("end", end)] {
+        if !v.is_some_and(|e| e.abs() <= TOLERANCE_SAMPLES) {
+            bad.push(format!("{} {k}: {v:?}", spec.scenario));
+        }
+    }
+}
+
 #[test]
 fn clean_scenarios_qrs_edges_match_the_truth() {
     // Measured: representative beat onset −2..0, end −1..0 samples on every clean scenario; QRS 90–92 ms on
@@ -62,13 +73,7 @@ fn clean_scenarios_qrs_edges_match_the_truth() {
     for spec in
         Scenario::ALL.into_iter().filter(|s| *s != Scenario::Holter && *s != Scenario::Noisy).map(Scenario::spec)
     {
-        let (line, on, end) = row(&spec);
-        println!("{line}");
-        for (k, v) in [("onset", on), ("end", end)] {
-            if !v.is_some_and(|e| e.abs() <= TOLERANCE_SAMPLES) {
-                bad.push(format!("{} {k}: {v:?}", spec.scenario));
-            }
-        }
+        check(&spec, &mut bad);
     }
     assert!(bad.is_empty(), "outside ±{TOLERANCE_SAMPLES} samples: {bad:#?}");
 }
@@ -84,13 +89,7 @@ fn noisy_scenarios_qrs_edges_match_the_truth() {
         let spec = sc.spec();
         for seed in 1..=6 {
             let noisy = SynthSpec { noise, seed, scenario: format!("{}+noise#{seed}", spec.scenario), ..spec.clone() };
-            let (line, on, end) = row(&noisy);
-            println!("{line}");
-            for (k, v) in [("onset", on), ("end", end)] {
-                if !v.is_some_and(|e| e.abs() <= TOLERANCE_SAMPLES) {
-                    bad.push(format!("{} {k}: {v:?}", noisy.scenario));
-                }
-            }
+            check(&noisy, &mut bad);
         }
     }
     assert!(bad.is_empty(), "outside ±{TOLERANCE_SAMPLES} samples: {bad:#?}");
