@@ -117,23 +117,23 @@ impl IsolineApp {
         self.review.dirty = false;
     }
 
+    /// The review as it stands (document, Ledger rows, session), by `reader`, to be written to `path`; `None`
+    /// without a loaded recording. Saving and autosaving both write this.
+    fn review_to_write(&mut self, reader: &str, path: &Path) -> Option<anyhow::Result<isoline_core::review::Review>> {
+        let rows = self.cached_ledger_rows();
+        let loaded = self.loaded.as_ref()?;
+        let input = review_io::ReviewInput { loaded, doc: &self.doc, rows: &rows, session: &self.review, reader, path };
+        Some(review_io::build_review(&input))
+    }
+
     /// Saves the review to `path`, asking the reader's name first when it is not known yet.
     fn save_review(&mut self, path: PathBuf) {
         let Some(reader) = self.settings.reader.clone() else {
             self.review.asking_reader = Some(path);
             return;
         };
-        let rows = self.cached_ledger_rows();
-        let Some(l) = &self.loaded else { return };
-        let input = review_io::ReviewInput {
-            loaded: l,
-            doc: &self.doc,
-            rows: &rows,
-            session: &self.review,
-            reader: &reader,
-            path: &path,
-        };
-        match review_io::build_review(&input).and_then(|r| r.save(&path).map(|()| r).map_err(anyhow::Error::from)) {
+        let Some(built) = self.review_to_write(&reader, &path) else { return };
+        match built.and_then(|r| r.save(&path).map(|()| r).map_err(anyhow::Error::from)) {
             Ok(r) => {
                 self.review.base = Some(r);
                 self.review.path = Some(path);
@@ -153,18 +153,10 @@ impl IsolineApp {
         }
         self.review.last_autosave = Some(std::time::Instant::now());
         let reader = self.settings.reader.clone().unwrap_or_else(|| "(reader not named yet)".into());
-        let rows = self.cached_ledger_rows();
         let Some(l) = &self.loaded else { return };
         let path = self.review.path.clone().unwrap_or_else(|| review_io::default_review_path(&l.path));
-        let input = review_io::ReviewInput {
-            loaded: l,
-            doc: &self.doc,
-            rows: &rows,
-            session: &self.review,
-            reader: &reader,
-            path: &path,
-        };
-        if let Err(e) = review_io::build_review(&input).and_then(|r| r.autosave(&path).map_err(anyhow::Error::from)) {
+        let Some(built) = self.review_to_write(&reader, &path) else { return };
+        if let Err(e) = built.and_then(|r| r.autosave(&path).map_err(anyhow::Error::from)) {
             self.ui_state.error = Some(format!("Autosave failed: {e:#}"));
         }
     }
