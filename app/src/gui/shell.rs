@@ -154,7 +154,12 @@ fn status_text(app: &IsolineApp) -> String {
     let Some(l) = &app.loaded else { return format!("No recording open   frame {:.1} ms", app.ui_state.last_frame_ms) };
     let rec = &l.recording;
     let name = l.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
-    let rate = l.median_rr_ms.map_or_else(|| "rate —".to_string(), |rr| format!("rate {:.0} bpm", 60_000.0 / rr));
+    // The Ledger's heart rate once the analysis has run (so the two never disagree); before, the file's beats.
+    let bpm = match &l.analysis {
+        Some(a) => a.measurements.rr.heart_rate_bpm,
+        None => l.median_rr_ms.map(|rr| 60_000.0 / rr),
+    };
+    let rate = bpm.map_or_else(|| "rate —".to_string(), |bpm| format!("rate {bpm:.0} bpm"));
     let cursor =
         app.ui_state.cursor.map_or_else(String::new, |(t, uv)| format!("   cursor {t:.3} s  {:.2} mV", uv / 1000.0));
     format!(

@@ -256,3 +256,13 @@ fn exporting_the_page_writes_a_png() {
     empty.state_mut().run_cmd(isoline::gui::command::Command::ExportPng(dir.path().join("none.png")));
     assert!(empty.state().ui_state.error.is_some());
 }
+
+#[test]
+fn the_status_bar_rate_is_the_ledger_heart_rate() {
+    // LUDB record 1: the median RR (46 bpm) and the Ledger's mean NN (1319 ms, 45 bpm) differ; the
+    // status bar must show the Ledger's figure once the analysis has run.
+    let h = harness(Some("ludb/1.hea"));
+    let loaded = h.state().loaded.as_ref().expect("recording open");
+    let hr = loaded.analysis.as_ref().expect("analysis done").measurements.rr.heart_rate_bpm.expect("heart rate");
+    h.get_by_label_contains(&format!("   rate {hr:.0} bpm   "));
+}
