@@ -1,0 +1,131 @@
+use crate::recording::{LeadName, Recording, StandardLead};
+
+use super::*;
+use crate::recording::{Lead, Meta};
+use crate::units::Hertz;
+
+fn twelve_lead() -> Recording {
+    Recording {
+        leads: StandardLead::ALL.iter().map(|&l| Lead { name: l.into(), samples: vec![0.0; 5000] }).collect(),
+        sample_rate: Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!()),
+        start: None,
+        meta: Meta::default(),
+        annotations: vec![],
+    }
+}
+
+#[test]
+fn grid_squares_at_standard_speed_and_gain() {
+    // Source: Kligfield et al. 2007 (references.md §1): at 25 mm/s 5 mm = 200 ms, 1 mm = 40 ms;
+    // at 10 mm/mV 1 mm = 0.1 mV.
+    let p = Paper::STANDARD;
+    assert!((p.seconds_from_mm(MAJOR_MM) - 0.200).abs() < 1e-12);
+    assert!((p.seconds_from_mm(MINOR_MM) - 0.040).abs() < 1e-12);
+    assert!((p.uv_from_mm(MINOR_MM) - 100.0).abs() < 1e-9);
+    assert!((p.mm_from_seconds(1.0) - 25.0).abs() < 1e-12);
+    let fast = Paper { speed_mm_per_s: 50.0, ..p };
+    assert!((fast.seconds_from_mm(1.0) - 0.020).abs() < 1e-12);
+}
+
+#[test]
+fn dpi_conversion() {
+    // Source: 1 inch = 25.4 mm exactly (1959 agreement; references.md §1).
+    assert!((px_per_mm(300.0) * MAJOR_MM - 59.055).abs() < 1e-3);
+    assert!((px_per_mm(25.4) - 1.0).abs() < 1e-12);
+}
+
+#[test]
+fn layouts_parse_and_print() -> Result<(), PaperError> {
+    for s in ["3x4+1", "6x2", "12x1", "strip:II", "3x4+1:V1"] {
+        assert_eq!(s.parse::<Layout>()?.to_string(), s);
+    }
+    assert_eq!("strip:avr".parse::<Layout>()?, Layout::Strip(LeadName::Standard(StandardLead::AVR)));
+    assert!("4x3".parse::<Layout>().is_err());
+    assert!("strip:".parse::<Layout>().is_err());
+    Ok(())
+}
+
+#[test]
+fn three_by_four_page() {
+    let rec = twelve_lead();
+    let page = PageSpec::default().page(&rec);
+    assert_eq!(page.rows.len(), 4);
+    let labels: Vec<_> = page.rows[0].cells.iter().map(|c| c.label.clone()).collect();
+    assert_eq!(labels, ["I", "aVR", "V1", "V4"]);
+    assert!((page.rows[0].cells[1].t0_s - 2.5).abs() < 1e-12);
+    assert_eq!(page.rows[3].cells.len(), 1);
+    assert_eq!(page.rows[3].cells[0].label, "II");
+    assert!((page.rows[3].cells[0].width_mm - 250.0).abs() < 1e-9);
+}
+
+#[test]
+fn missing_rhythm_lead_falls_back_to_first_lead_in_file_order() {
+    // A two-lead Holter-style record (MLII, V5): page order puts V5 first, file order MLII.
+    let rec = Recording {
+        leads: ["MLII", "V5"].iter().map(|n| Lead { name: LeadName::parse(n), samples: vec![0.0; 5000] }).collect(),
+        ..twelve_lead()
+    };
+    assert_eq!(ordered_leads(&rec, LeadOrder::default())[0].1, "V5");
+    let page = PageSpec::default().page(&rec);
+    let rhythm = &page.rows.last().map(|r| r.cells.clone()).unwrap_or_default();
+    assert_eq!(rhythm.len(), 1);
+    assert_eq!((rhythm[0].lead, rhythm[0].label.as_str()), (0, "MLII"));
+    let strip = PageSpec { layout: Layout::Strip(StandardLead::II.into()), ..PageSpec::default() }.page(&rec);
+    assert_eq!(strip.rows.len(), 1);
+    assert_eq!((strip.rows[0].cells[0].lead, strip.rows[0].cells[0].label.as_str()), (0, "MLII"));
+}
+
+#[test]
+fn few_leads_fill_whole_columns() {
+    let mut rec = twelve_lead();
+    rec.leads.truncate(3); // I, II, III
+    let page = PageSpec::default().page(&rec);
+    assert_eq!(page.rows.len(), 4);
+    for row in &page.rows {
+        assert_eq!(row.cells.len(), 1);
+        assert!((row.cells[0].width_mm - 250.0).abs() < 1e-9);
+        assert!((row.cells[0].t1_s - 10.0).abs() < 1e-12);
+    }
+    let five = {
+        let mut r = twelve_lead();
+        r.leads.truncate(5);
+        r
+    };
+    let page = PageSpec::default().page(&five);
+    assert_eq!(page.rows[0].cells.len(), 2);
+    assert!((page.rows[0].cells[1].t0_s - 5.0).abs() < 1e-12);
+}
+
+#[test]
+fn cabrera_inverts_avr() {
+    let rec = twelve_lead();
+    let spec = PageSpec { order: LeadOrder::Cabrera, layout: Layout::SixByTwo, ..PageSpec::default() };
+    let page = spec.page(&rec);
+    let first_col: Vec<_> = page.rows.iter().map(|r| r.cells[0].label.clone()).collect();
+    // Source: the Cabrera sequence orders the limb leads by frontal angle, aVL −30°, I 0°, −aVR +30°,
+    // II +60°, aVF +90°, III +120° (hexaxial angles in references.md §5). From memory: the sequence itself.
+    assert_eq!(first_col, ["aVL", "I", "\u{2212}aVR", "II", "aVF", "III"]);
+    assert!(page.rows[2].cells[0].inverted);
+    let row = &page.rows[2];
+    assert!((row.y_from_uv(&page.paper, 1000.0, true) - (row.baseline_mm + 10.0)).abs() < 1e-9);
+}
+
+#[test]
+fn calibration_pulse_is_one_millivolt_tall() {
+    let rec = twelve_lead();
+    let page = PageSpec::default().page(&rec);
+    let pts = page.rows[0].calibration_pulse(&page.paper);
+    // Source: Kligfield et al. 2007: 1 mV calibration = 10 mm at 10 mm/mV, 200 ms wide (5 mm at 25 mm/s).
+    assert!(((pts[0].1 - pts[2].1) - 10.0).abs() < 1e-9);
+    assert!(((pts[3].0 - pts[2].0) - 5.0).abs() < 1e-9);
+}
+
+#[test]
+fn cell_time_mapping_round_trips() {
+    let rec = twelve_lead();
+    let page = PageSpec { start_s: 3.0, ..PageSpec::default() }.page(&rec);
+    let cell = &page.rows[3].cells[0];
+    let x = cell.x_from_time(&page.paper, 4.2);
+    assert!((cell.time_from_x(&page.paper, x) - 4.2).abs() < 1e-12);
+    assert!((x - cell.x_mm - 30.0).abs() < 1e-9);
+}
