@@ -1,5 +1,8 @@
 //! Delineation on synthetic beats whose boundaries are known by construction.
 
+// Test signals are written sample by sample at the index they describe.
+#![allow(clippy::needless_range_loop)]
+
 use super::*;
 use crate::detect::detect_beats;
 use crate::recording::{Lead, LeadName, Meta};

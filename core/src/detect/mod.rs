@@ -86,6 +86,8 @@ pub fn rr_ms(beats: &[Beat], fs: Hertz) -> Vec<Option<f64>> {
 }
 
 #[cfg(test)]
+// Test signals are written sample by sample at the index they describe.
+#[allow(clippy::needless_range_loop)]
 mod tests {
     use super::*;
     use crate::recording::{Lead, LeadName, Meta};

@@ -92,6 +92,8 @@ pub fn pick(x: &[f32], fs: f64) -> Vec<usize> {
 }
 
 #[cfg(test)]
+// Test signals are written sample by sample at the index they describe.
+#[allow(clippy::needless_range_loop)]
 mod tests {
     use super::*;
 

@@ -150,6 +150,8 @@ fn median(v: &mut [f64]) -> f64 {
 }
 
 #[cfg(test)]
+// Test signals are written sample by sample at the index they describe.
+#[allow(clippy::needless_range_loop)]
 mod tests {
     use super::*;
 
