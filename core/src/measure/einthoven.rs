@@ -13,9 +13,13 @@
 //! Access 2020: the stored integers obey the relations to ±0.5 unit, while the header gains differ by lead — e.g.
 //! 1716 vs 1206 units/mV for I and II of record 1 — so the scaled values miss them by 10–20 % of the signal.)
 //!
-//! [`limb_gains`] fits one factor per lead (lead I fixed at 1) that makes the scaled leads obey the relations in
-//! the least-squares sense, and says whether the fit explains the inconsistency ([`LimbGains::applies`]). The
-//! factors are relative: the file's absolute scale stays that of lead I.
+//! [`limb_gains`] fits one factor per lead that makes the scaled leads obey the relations in the least-squares
+//! sense, and says whether the fit explains the inconsistency ([`LimbGains::applies`]). The factors are relative:
+//! the largest limb lead on the beat (most signal energy) keeps factor 1 and the file's absolute scale stays its
+//! own. Anchoring on the largest lead rather than on a fixed one keeps the fit well determined when the fixed lead
+//! would be nearly flat — lead I with a frontal vector near +90° (on LUDB records 1–50 the worst factor error against
+//! the header's own ratios falls on record 35 from 11 % anchored on lead I to 4 %, on record 44 from 20 % to 12 %;
+//! within 10 % on 44 of 47 records instead of 43; the QRS axes move by at most 1°).
 
 use crate::recording::StandardLead;
 
@@ -34,8 +38,10 @@ const RELATIONS: [[f64; 6]; 4] = [
 /// The fitted relative gain factors of the limb leads.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct LimbGains {
-    /// Factor per lead in [`LIMB_LEADS`] order (lead I = 1): multiply a lead's values by its factor.
+    /// Factor per lead in [`LIMB_LEADS`] order (the anchor = 1): multiply a lead's values by its factor.
     pub factors: [f64; 6],
+    /// The lead whose scale is kept (factor 1): the limb lead with the most signal energy in the fitted samples.
+    pub anchor: StandardLead,
     /// Relative residual of the relations with the file's own scaling (0 = exact).
     pub residual_before: f64,
     /// Relative residual after applying `factors`.
@@ -132,13 +138,17 @@ pub fn limb_gains(leads: &[(StandardLead, &[f64])]) -> Option<LimbGains> {
     if n < 5 || series.iter().any(|s| s[..n].iter().any(|v| !v.is_finite())) {
         return None;
     }
-    // Unknowns: factors of II, III, aVR, aVL, aVF (I fixed at 1). Each relation at each instant gives one
-    // equation Σ_k≥1 row[k]·c_k·x_k(t) = −row[0]·x_I(t); accumulate the normal equations.
+    // The anchor is the lead with the most energy; its factor is fixed at 1 and the other five are the unknowns.
+    // Each relation at each instant gives one equation Σ_k≠anchor row[k]·c_k·x_k(t) = −row[anchor]·x_anchor(t);
+    // accumulate the normal equations.
+    let energy = |k: usize| series[k][..n].iter().map(|v| v * v).sum::<f64>();
+    let anchor = (0..6).max_by(|&i, &j| energy(i).total_cmp(&energy(j)))?;
+    let free: [usize; 5] = std::array::from_fn(|j| if j < anchor { j } else { j + 1 });
     let (mut ata, mut atb) = ([[0.0_f64; 5]; 5], [0.0_f64; 5]);
     for t in 0..n {
         for row in &RELATIONS {
-            let a: [f64; 5] = std::array::from_fn(|j| row[j + 1] * series[j + 1][t]);
-            let b = -row[0] * series[0][t];
+            let a: [f64; 5] = std::array::from_fn(|j| row[free[j]] * series[free[j]][t]);
+            let b = -row[anchor] * series[anchor][t];
             for i in 0..5 {
                 atb[i] += a[i] * b;
                 for j in 0..5 {
@@ -148,9 +158,13 @@ pub fn limb_gains(leads: &[(StandardLead, &[f64])]) -> Option<LimbGains> {
         }
     }
     let c = solve(ata, atb)?;
-    let factors = [1.0, c[0], c[1], c[2], c[3], c[4]];
+    let mut factors = [1.0; 6];
+    for (j, &k) in free.iter().enumerate() {
+        factors[k] = c[j];
+    }
     Some(LimbGains {
         factors,
+        anchor: LIMB_LEADS[anchor],
         residual_before: relative_residual(&series, &[1.0; 6]),
         residual_after: relative_residual(&series, &factors),
     })
@@ -198,8 +212,10 @@ mod tests {
         }
         let g = limb_gains(&pairs(&x)).unwrap_or_else(|| panic!("fit failed"));
         assert!(g.applies(), "{g:?}");
+        // Relative factors: f·s is the same for every lead (the anchor's own scale).
+        let k = LIMB_LEADS.iter().position(|l| *l == g.anchor).map_or(f64::NAN, |a| scale[a]);
         for (f, s) in g.factors.iter().zip(scale) {
-            assert!((f * s - 1.0).abs() < 1e-6, "{f} vs 1/{s}");
+            assert!((f * s / k - 1.0).abs() < 1e-6, "{f} vs {k}/{s}");
         }
         assert!(g.residual_after < 1e-9);
     }

@@ -173,23 +173,58 @@ impl Case {
             .collect()
     }
 
-    /// QRS axis from the net values of `basis` in `use_leads` (gain-corrected unless `raw_gains`).
-    fn axis(&self, basis: AxisBasis, use_leads: &[StandardLead], raw_gains: bool) -> Option<f64> {
+    /// QRS axis from the net values of `basis` in `use_leads`, the limb leads on the scale `scale`.
+    fn axis(&self, basis: AxisBasis, use_leads: &[StandardLead], scale: Scale) -> Option<f64> {
         let limb = self.limb();
         let fs = self.rec.sample_rate;
-        let values: Vec<(StandardLead, f64)> = if raw_gains {
+        let values: Vec<(StandardLead, f64)> = if scale == Scale::Fitted {
+            axis::net_values(&limb, &self.bounds, fs, Wave::Qrs, basis)
+        } else {
             let (s, e) = (self.bounds.qrs_on?, self.bounds.qrs_end?);
+            let gains = header_gains(&self.record);
             limb.iter()
                 .filter_map(|&(l, x)| {
                     let reference = measure::level::isoelectric_level(x, &self.bounds, fs)?;
-                    Some((l, axis::net_deflection(x, s, e, reference, basis)?))
+                    let k = if scale == Scale::Integer { gain_of(&gains, l) } else { 1.0 };
+                    Some((l, k * axis::net_deflection(x, s, e, reference, basis)?))
                 })
                 .collect()
-        } else {
-            axis::net_values(&limb, &self.bounds, fs, Wave::Qrs, basis)
         };
         let chosen: Vec<(StandardLead, f64)> = values.into_iter().filter(|(l, _)| use_leads.contains(l)).collect();
         axis::axis_from_limb_leads(&chosen)
+    }
+
+    /// Hexaxial method: the axis lies at right angles to the most equiphasic limb lead (smallest |R − |S|| relative
+    /// to R + |S|), on the side where the lead at right angles to it is positive; 30° steps.
+    // Source: AMC Amsterdam, medical physics notes "ECG: hexaxial reference system"
+    // (onderwijs1.amc.nl/medfysica/doc/ECG_Hexaxial RefSystem.htm). Equiphasic ratio and net amplitude do not
+    // depend on a lead's gain, so the file's scaling does not matter here.
+    fn isoelectric_lead_axis(&self) -> Option<f64> {
+        let fs = self.rec.sample_rate;
+        let (s, e) = (self.bounds.qrs_on?, self.bounds.qrs_end?);
+        let peaks: Vec<(StandardLead, f64, f64)> = self
+            .limb()
+            .iter()
+            .filter_map(|&(l, x)| {
+                let r = measure::level::isoelectric_level(x, &self.bounds, fs)?;
+                let seg = x.get(s..=e)?.iter().map(|&v| f64::from(v) - r);
+                let (lo, hi) = seg.fold((0.0_f64, 0.0_f64), |(lo, hi), v| (lo.min(v), hi.max(v)));
+                Some((l, hi, lo))
+            })
+            .collect();
+        let ratio = |&(_, hi, lo): &(StandardLead, f64, f64)| (hi + lo).abs() / (hi - lo).max(f64::MIN_POSITIVE);
+        let flattest = peaks.iter().min_by(|a, b| ratio(a).total_cmp(&ratio(b)))?.0;
+        let perpendicular = match flattest {
+            StandardLead::I => StandardLead::AVF,
+            StandardLead::AVF => StandardLead::I,
+            StandardLead::II => StandardLead::AVL,
+            StandardLead::AVL => StandardLead::II,
+            StandardLead::III => StandardLead::AVR,
+            _ => StandardLead::III,
+        };
+        let &(_, hi, lo) = peaks.iter().find(|p| p.0 == perpendicular)?;
+        let deg = perpendicular.frontal_angle_deg()? + if hi + lo >= 0.0 { 0.0 } else { 180.0 };
+        Some(if deg > 180.0 { deg - 360.0 } else { deg })
     }
 
     /// Direction of the largest instantaneous frontal QRS vector (gain-corrected limb leads, least squares per
@@ -223,6 +258,17 @@ impl Case {
     }
 }
 
+/// The scale of the limb leads an axis is computed on.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Scale {
+    /// Rescaled by the gains fitted to Einthoven's law and Goldberger's equations (what `isoline` does).
+    Fitted,
+    /// The header's gains as the file gives them (LUDB 1.0.1: break Einthoven's law by 10–20 %).
+    Header,
+    /// The stored integers, all leads on one scale (the header gains undone).
+    Integer,
+}
+
 const SIX: [StandardLead; 6] = LIMB_LEADS;
 const I_AVF: [StandardLead; 2] = [StandardLead::I, StandardLead::AVF];
 const I_III: [StandardLead; 2] = [StandardLead::I, StandardLead::III];
@@ -233,48 +279,61 @@ fn ludb_qrs_axis_category_from_expert_boundaries() {
     let cases = cases();
     type AxisFn = Box<dyn Fn(&Case) -> Option<f64>>;
     type Method = (&'static str, AxisFn);
-    let m =
-        |basis, leads: &'static [StandardLead], raw| -> AxisFn { Box::new(move |c: &Case| c.axis(basis, leads, raw)) };
+    let m = |basis, leads: &'static [StandardLead], scale| -> AxisFn {
+        Box::new(move |c: &Case| c.axis(basis, leads, scale))
+    };
     let methods: Vec<Method> = vec![
-        ("amp6", m(AxisBasis::NetAmplitude, &SIX, false)),
-        ("ampIF", m(AxisBasis::NetAmplitude, &I_AVF, false)),
-        ("ampI3", m(AxisBasis::NetAmplitude, &I_III, false)),
-        ("wav6", m(AxisBasis::WaveSum, &SIX, false)),
-        ("wavIF", m(AxisBasis::WaveSum, &I_AVF, false)),
-        ("wavI3", m(AxisBasis::WaveSum, &I_III, false)),
-        ("area6", m(AxisBasis::NetArea, &SIX, false)),
-        ("areaIF", m(AxisBasis::NetArea, &I_AVF, false)),
-        ("areaI3", m(AxisBasis::NetArea, &I_III, false)),
+        ("amp6", m(AxisBasis::NetAmplitude, &SIX, Scale::Fitted)),
+        ("amp6int", m(AxisBasis::NetAmplitude, &SIX, Scale::Integer)),
+        ("amp6hdr", m(AxisBasis::NetAmplitude, &SIX, Scale::Header)),
+        ("ampIF", m(AxisBasis::NetAmplitude, &I_AVF, Scale::Fitted)),
+        ("ampIFhdr", m(AxisBasis::NetAmplitude, &I_AVF, Scale::Header)),
+        ("ampI3", m(AxisBasis::NetAmplitude, &I_III, Scale::Fitted)),
+        ("ampI3hdr", m(AxisBasis::NetAmplitude, &I_III, Scale::Header)),
+        ("wav6", m(AxisBasis::WaveSum, &SIX, Scale::Fitted)),
+        ("wavIF", m(AxisBasis::WaveSum, &I_AVF, Scale::Fitted)),
+        ("wavI3", m(AxisBasis::WaveSum, &I_III, Scale::Fitted)),
+        ("wavI3hdr", m(AxisBasis::WaveSum, &I_III, Scale::Header)),
+        ("area6", m(AxisBasis::NetArea, &SIX, Scale::Fitted)),
+        ("area6hdr", m(AxisBasis::NetArea, &SIX, Scale::Header)),
         ("maxvec", Box::new(Case::max_vector_axis)),
-        ("amp6hdr", m(AxisBasis::NetAmplitude, &SIX, true)),
-        ("ampI3hdr", m(AxisBasis::NetAmplitude, &I_III, true)),
+        ("isolead", Box::new(Case::isoelectric_lead_axis)),
     ];
     let mut agree = vec![0_usize; methods.len()];
     let mut header = format!("{:>3} {:<20}", "rec", "diagnosed");
     for (name, _) in &methods {
         header.push_str(&format!(" {name:>8}"));
     }
-    println!("{header}   (✗ = outside the diagnosed category; *hdr = header gains, no Einthoven fit)");
-    let (mut shipped_ok, mut misses) = (0, Vec::new());
+    println!("{header}  dist  (✗ = outside the diagnosed category; dist = degrees from amp6 to it)");
+    println!(
+        "  (fitted = Einthoven-consistent gains, as shipped; int = the stored integers; hdr = the header's gains)"
+    );
+    let (mut shipped_ok, mut misses, mut never) = (0, Vec::new(), Vec::new());
     for c in &cases {
         let mut line = format!("{:>3} {:<20}", c.record, c.label);
+        let (mut nearest, mut any_ok) = (f64::INFINITY, false);
         for (k, (_, f)) in methods.iter().enumerate() {
             let a = f(c);
             let ok = a.and_then(category) == Some(c.label.as_str());
             agree[k] += usize::from(ok);
+            any_ok |= ok;
+            nearest = nearest.min(a.map_or(f64::INFINITY, |a| distance_to(&c.label, a)));
             line.push_str(&format!(
                 " {:>7}{}",
                 a.map_or("—".into(), |a| format!("{a:.0}")),
                 if ok { ' ' } else { '✗' }
             ));
         }
-        println!("{line}");
         let shipped = c.measured();
-        assert_eq!(shipped, c.axis(AxisBasis::default(), &SIX, false), "record {}", c.record);
+        assert_eq!(shipped, c.axis(AxisBasis::default(), &SIX, Scale::Fitted), "record {}", c.record);
+        println!("{line} {:>5.0}", shipped.map_or(f64::NAN, |a| distance_to(&c.label, a)));
         if shipped.and_then(category) == Some(c.label.as_str()) {
             shipped_ok += 1;
         } else {
             misses.push((c, shipped));
+        }
+        if !any_ok {
+            never.push((c.record.as_str(), nearest));
         }
     }
     let total = cases.len();
@@ -291,12 +350,25 @@ fn ludb_qrs_axis_category_from_expert_boundaries() {
             distance_to(&c.label, a)
         );
     }
+    let never_text: Vec<String> = never.iter().map(|(r, d)| format!("{r} ({d:.1}°)")).collect();
+    println!(
+        "outside the diagnosed category by every method above (nearest method's distance): {}; at most {}/{total} with \
+         the best method chosen per record",
+        never_text.join(", "),
+        total - never.len()
+    );
     println!("shipped: {shipped_ok}/{total}");
     assert!(total >= 40, "expected the 47 labelled non-paced LUDB records, found {total}");
-    // The goal is NOT met, and no variant above meets it: even limits fitted to the labels afterwards would put at
-    // most 39–40 of 47 records (83–85 %) in their category with any of these methods, because the diagnosed
-    // categories overlap on the measured angle (records diagnosed left axis deviation measure −27° … +33°, those
-    // diagnosed horizontal +9° … +32°). The diagnoses follow a practice in which the two overlap:
+    // The goal is NOT met, and no variant above meets it (best 35/47). Records 17, 19, 22, 29, 31, 32 and 44 fall
+    // outside their diagnosed category by every method, so even the best method chosen per record after the fact
+    // reaches 40/47 (85.1 %), and no single one comes near. The scale of the limb leads is not the cause: the
+    // stored integers (amp6int) and the Einthoven-fitted gains (amp6) agree within 1° on every record, and the
+    // header's gains (…hdr) move records both ways (33 → 33 with net amplitude). Nor is a method: net amplitude
+    // (peak R − S), net area (mean vector), the algebraic sum of the waves, the maximal QRS vector and the
+    // most-equiphasic-lead reading all leave the same records out. The diagnosed categories overlap on the
+    // measured angle (records diagnosed left axis deviation measure −27° … +33°, those diagnosed horizontal
+    // +9° … +32°; record 44, complete LBBB, measures +60° … +70° by every method; record 31 +31° … +55°).
+    // The diagnoses follow a practice in which the two overlap:
     // Source: teaching manual of propedeutics (engime.org, "Учебное пособие для практических занятий по
     // пропедевтике", p. 101): by visual inspection "horizontal position, or left axis deviation (angle +30° to
     // −90°)" is one class (R I > R II > R III, deep S in III, tall R in aVL); the angle itself comes from tables
@@ -322,10 +394,16 @@ fn header_gains(record: &str) -> Vec<(String, f64)> {
         .collect()
 }
 
+/// The gain of `lead` among `gains` ([`header_gains`]), NaN when the header does not give it.
+fn gain_of(gains: &[(String, f64)], lead: StandardLead) -> f64 {
+    let name = format!("{lead:?}").to_lowercase();
+    gains.iter().find(|(n, _)| *n == name).map_or(f64::NAN, |(_, v)| *v)
+}
+
 #[test]
 fn ludb_limb_gains_are_the_header_ratios() {
     // The stored integers of LUDB obey Einthoven's law and Goldberger's equations (references.md §5), so the
-    // relative gains that make the scaled leads obey them must be the header gains' own ratios gain_k / gain_I.
+    // relative gains that make the scaled leads obey them must be the header gains' own ratios gain_k / gain_anchor.
     let cases = cases();
     let (mut close, mut fired) = (0, 0);
     for c in &cases {
@@ -333,28 +411,27 @@ fn ludb_limb_gains_are_the_header_ratios() {
         let Some(g) = axis::qrs_limb_gains(&limb, &c.bounds, c.rec.sample_rate) else { panic!("{}: no fit", c.record) };
         fired += usize::from(g.applies());
         let gains = header_gains(&c.record);
-        let gain_of = |l: StandardLead| {
-            let name = format!("{l:?}").to_lowercase();
-            gains.iter().find(|(n, _)| *n == name).map_or(f64::NAN, |(_, v)| *v)
-        };
+        let gain_of = |l: StandardLead| gain_of(&gains, l);
         let worst = LIMB_LEADS
             .iter()
-            .map(|&l| (g.factor(l) / (gain_of(l) / gain_of(StandardLead::I)) - 1.0).abs())
+            .map(|&l| (g.factor(l) / (gain_of(l) / gain_of(g.anchor)) - 1.0).abs())
             .fold(0.0_f64, f64::max);
         close += usize::from(worst < 0.10);
         println!(
-            "{:>3}: residual {:.3} → {:.3}, worst factor error {:.1} %",
+            "{:>3}: residual {:.3} → {:.3}, anchor {:?}, worst factor error {:.1} %",
             c.record,
             g.residual_before,
             g.residual_after,
+            g.anchor,
             worst * 100.0
         );
     }
     println!("fit applies on {fired}/{}; factors within 10 % of the header ratios on {close}", cases.len());
     assert_eq!(fired, cases.len());
     // The median beat is not a linear function of the beats, so on irregular rhythms (record 44, atrial
-    // fibrillation) it obeys the lead relations less exactly and the factors stray further (up to ~20 %).
-    assert!(close * 100 >= cases.len() * 85, "{close}/{}", cases.len());
+    // fibrillation) it obeys the lead relations less exactly and the factors of its smallest lead stray further (up
+    // to ~16 %: records 9, 17 and 44; anchored on lead I rather than the largest lead, 43/47 and up to 20 %).
+    assert!(close * 100 >= cases.len() * 90, "{close}/{}", cases.len());
 }
 
 /// (record, rhythm, axis category, paced) of every LUDB record in `labels.csv`.
