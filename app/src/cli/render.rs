@@ -99,6 +99,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         identify: args.identify,
         filter_text: Some(filtered.description.clone()),
         ledger: render::ledger_lines(&analysis.measurements, review.as_ref()),
+        notes: render::ledger_notes(&analysis.measurements, review.as_ref()),
         ..RenderInput::new(&filtered.recording, spec, args.dpi)
     };
     if let Some(r) = &review {

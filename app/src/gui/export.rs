@@ -41,6 +41,8 @@ impl IsolineApp {
         input.header = render::header_fields(self.settings.reader.as_deref(), self.review.stage);
         input.calipers = self.doc.calipers.clone();
         input.ledger = export_ledger(&rows);
+        // The Ledger's range notes, which follow the reader's values.
+        input.notes = rows.iter().filter_map(|r| r.note.clone()).collect();
         let pixmap = render::render_page(&input)?;
         let bytes = render::encode_png(&pixmap, EXPORT_DPI)?;
         render::write_png_atomic(path, &bytes)?;

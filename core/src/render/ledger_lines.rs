@@ -79,6 +79,20 @@ pub fn ledger_lines(measurements: &Measurements, review: Option<&Review>) -> Vec
     ledger_lines_from(&values)
 }
 
+/// The notes for a page made by the command line: the range notes of the automatic values (with their sources,
+/// see [`Measurements::notes`]), leaving out the note of a value the reader changed in `review` — the box prints
+/// the reader's value, and a note on the automatic one would no longer describe it.
+#[must_use]
+pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec<String> {
+    let auto = measurements.values();
+    let changed = |key: &str| {
+        let stored = review.and_then(|r| r.measurement(key)).and_then(|s| s.reviewed_value);
+        let own = auto.iter().find(|v| v.key == key).and_then(|v| v.value);
+        stored.is_some_and(|x| own.is_none_or(|a| (a - x).abs() > 1e-9))
+    };
+    measurements.notes().into_iter().filter(|n| !changed(&n.key)).map(|n| n.text).collect()
+}
+
 /// Header fields naming the reader (when known) and the stage: `Reader: AB`, `Stage: checked`.
 #[must_use]
 pub fn header_fields(reader: Option<&str>, stage: Stage) -> Vec<(String, String)> {
@@ -138,6 +152,38 @@ mod tests {
         assert_eq!((lines[1].auto.as_deref(), lines[1].reviewed.as_deref()), (Some("402"), Some("420")));
         assert_eq!((lines[2].auto.as_deref(), lines[2].unit.as_str()), (Some("0"), "\u{b0}"));
         assert_eq!((lines[3].reviewed.as_deref(), lines[3].unit.as_str()), (Some("\u{2212}60"), "\u{b5}V"));
+    }
+
+    #[test]
+    fn notes_leave_out_values_the_reader_changed() {
+        use crate::measure::{Intervals, Measurements, RrStats, qtc_checked};
+        use crate::review::{Measurement, RecordingIdentity};
+        // QT 560 ms at RR 1000 ms: every QTc is 560 ms, above 500 ms; heart rate 60 bpm has no note.
+        let m = Measurements {
+            rr: RrStats { rr_ms: Some(1000.0), heart_rate_bpm: Some(60.0), ..RrStats::default() },
+            intervals: Intervals { qt_ms: Some(560.0), qrs_ms: Some(130.0), ..Intervals::default() },
+            qtc: qtc_checked(Some(560.0), Some(1000.0)),
+            ..Measurements::default()
+        };
+        let all = ledger_notes(&m, None);
+        assert_eq!(all.len(), 6, "{all:#?}"); // QRS and five QTc
+        assert!(all[0].starts_with("QRS 130 ms") && all[1].starts_with("QTc (Bazett) 560 ms"), "{all:#?}");
+        let id = RecordingIdentity {
+            file_name: "ward7-bed2.csv".into(),
+            relative_path: "ward7-bed2.csv".into(),
+            sha256: "0".repeat(64),
+            leads: vec!["II".into()],
+            sample_rate_hz: 500.0,
+        };
+        let mut r = Review::new(id, "AB");
+        for v in m.values().iter().filter(|v| v.lead.is_none()) {
+            r.put_automatic(Measurement::automatic(v.key, &v.label, v.value, v.unit)).unwrap_or_else(|e| panic!("{e}"));
+        }
+        // The reader's QRS equals the automatic value: its note stays. A new QT recomputes every QTc: their
+        // notes speak of the automatic values and go.
+        r.set_measurement("qrs_ms", 130.0, "AB").unwrap_or_else(|e| panic!("{e}"));
+        r.set_measurement("qt_ms", 400.0, "AB").unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(ledger_notes(&m, Some(&r)), all[..1]);
     }
 
     #[test]

@@ -28,6 +28,7 @@ mod furniture;
 mod grid;
 mod ledger;
 mod ledger_lines;
+mod notes;
 mod overlay;
 mod page;
 mod png;
@@ -42,7 +43,7 @@ use crate::paper::{PageSpec, Scheme};
 use crate::recording::Recording;
 
 pub use self::furniture::header_lines;
-pub use self::ledger_lines::{LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from};
+pub use self::ledger_lines::{LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes};
 pub use self::png::{encode_png, write_png_atomic};
 pub use self::trace::{Column, decimate_min_max};
 
@@ -87,6 +88,8 @@ pub struct RenderInput<'a> {
     pub marks: Vec<(MarkKind, f64)>,
     /// Lines of the measurement box (empty: no box).
     pub ledger: Vec<LedgerLine>,
+    /// Notes printed under the measurement box, one per note (range notes with their sources); empty: none.
+    pub notes: Vec<String>,
     /// Show the patient fields of `recording.meta`; otherwise only what [`crate::recording::Meta::deidentified`]
     /// keeps.
     pub identify: bool,
@@ -107,6 +110,7 @@ impl<'a> RenderInput<'a> {
             calipers: Vec::new(),
             marks: Vec::new(),
             ledger: Vec::new(),
+            notes: Vec::new(),
             identify: false,
         }
     }

@@ -9,7 +9,7 @@ use tiny_skia::Pixmap;
 use super::canvas::{Canvas, color};
 use super::grid::{self, Area};
 use super::text::{Align, Fonts, Style};
-use super::{MAX_DPI, MAX_PIXELS, RenderError, RenderInput, furniture, ledger, overlay, trace};
+use super::{MAX_DPI, MAX_PIXELS, RenderError, RenderInput, furniture, ledger, notes, overlay, trace};
 use crate::paper::{Page, Palette, margins, px_per_mm};
 
 const LABEL_PT: f64 = 9.0;
@@ -75,8 +75,9 @@ pub(super) fn render(input: &RenderInput) -> Result<Pixmap, RenderError> {
     let width_mm = page.width_mm.max(MIN_WIDTH_MM);
     let plan = ledger::plan(&fonts, &input.ledger, width_mm, ppm, &pal);
     let ledger_h = plan.as_ref().map_or(0.0, ledger::height_mm);
+    let note_lines = notes::lines(&fonts, &input.notes, width_mm, ppm, &pal);
     let caution = furniture::caution_lines(&fonts, width_mm, ppm);
-    let footer_top = area.y1 + ledger_h;
+    let footer_top = area.y1 + ledger_h + notes::height_mm(note_lines.len());
     let height_mm = footer_top + furniture::footer_height_mm(caution.len());
     let (w, h) = size_px(width_mm, height_mm.max(page.height_mm), ppm)?;
     let pixmap = Pixmap::new(w, h).ok_or(RenderError::TooLarge { width: u64::from(w), height: u64::from(h) })?;
@@ -91,6 +92,7 @@ pub(super) fn render(input: &RenderInput) -> Result<Pixmap, RenderError> {
     if let Some(plan) = &plan {
         ledger::draw(&mut canvas, &fonts, &input.ledger, plan, area.y1, &pal);
     }
+    notes::draw(&mut canvas, &fonts, &note_lines, area.y1 + ledger_h, &pal);
     furniture::draw_footer(&mut canvas, &fonts, &caution, footer_top, &pal);
     Ok(canvas.pixmap)
 }
