@@ -98,3 +98,62 @@ fn ludb_global_boundaries() -> Result<(), String> {
     check(&pooled, [(9.5, 23.5), (8.7, 10.0), (9.5, 11.9), (5.0, 29.5)], 0.95);
     Ok(())
 }
+
+#[test]
+fn ludb_reference_p_onset_scatters_more_than_the_goal_allows() {
+    // The LUDB global P onset is the earliest of 12 hand-marked leads. Its position relative to the same beat's
+    // QRS onset (the PR interval, steady within a 10-s sinus record) scatters from beat to beat by more than the
+    // goal's P onset SD of 15 ms: even a method that put every P onset at exactly the right mean PR of each
+    // record would score this SD. Taking the second-earliest lead's mark instead (one early outlier lead left
+    // out) removes most of the scatter. Source: LUDB per-lead annotations (Kalyakulina et al., IEEE Access 2020).
+    let mut earliest = Vec::new();
+    let mut second = Vec::new();
+    for n in 1..=50 {
+        let Ok(reference) = read_reference_csv(&data(&format!("ludb/{n}.global.csv"))) else { continue };
+        let pr: Vec<f64> = reference.iter().filter_map(|b| Some(b.marks[1]? - b.marks[0]?)).collect();
+        if pr.len() < 2 {
+            continue;
+        }
+        let mean = pr.iter().sum::<f64>() / pr.len() as f64;
+        earliest.extend(pr.iter().map(|p| (p - mean) * 2.0)); // 500 Hz: 2 ms per sample
+        let per_lead = second_earliest_p_onsets(n, &reference);
+        let pr2: Vec<f64> = per_lead.iter().filter_map(|&(p, q)| Some(q? - p?)).collect();
+        if pr2.len() >= 2 {
+            let m2 = pr2.iter().sum::<f64>() / pr2.len() as f64;
+            second.extend(pr2.iter().map(|p| (p - m2) * 2.0));
+        }
+    }
+    let sd = |v: &[f64]| (v.iter().map(|x| x * x).sum::<f64>() / (v.len() - 1) as f64).sqrt();
+    let (s1, s2) = (sd(&earliest), sd(&second));
+    println!(
+        "LUDB reference PR scatter within records: earliest lead {s1:.1} ms (n {}), second-earliest lead {s2:.1} ms (n {})",
+        earliest.len(),
+        second.len()
+    );
+    assert!(s1 > 15.0 && s2 < s1, "earliest {s1:.1}, second {s2:.1}");
+}
+
+/// For each beat of `reference` (LUDB record `n`): the second-earliest P onset over the 12 per-lead annotation
+/// files and the global QRS onset, samples.
+fn second_earliest_p_onsets(n: usize, reference: &[BeatMarks]) -> Vec<(Option<f64>, Option<f64>)> {
+    let leads = ["i", "ii", "iii", "avr", "avl", "avf", "v1", "v2", "v3", "v4", "v5", "v6"];
+    // Every lead's P onsets: a `(` followed by a `p` peak.
+    let onsets: Vec<Vec<f64>> = leads
+        .iter()
+        .filter_map(|l| wfdb_annotations::read(&data(&format!("ludb/{n}.{l}"))).ok())
+        .map(|anns| {
+            anns.windows(2).filter(|w| w[0].label == "(" && w[1].label == "p").map(|w| w[0].sample as f64).collect()
+        })
+        .collect();
+    reference
+        .iter()
+        .map(|b| {
+            let Some(q) = b.marks[1] else { return (None, None) };
+            // Each lead's P onset within 400 ms before this beat's QRS onset.
+            let mut p: Vec<f64> =
+                onsets.iter().filter_map(|o| o.iter().copied().filter(|&x| x < q && q - x < 200.0).last()).collect();
+            p.sort_by(f64::total_cmp);
+            (p.get(1).copied(), Some(q))
+        })
+        .collect()
+}
