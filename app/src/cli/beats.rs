@@ -6,7 +6,12 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::Context as _;
-use isoline_core::{delineate, detect, filter, io};
+use isoline_core::{analysis, delineate, detect, filter, io};
+
+/// Window length for recordings longer than [`analysis::LONG_RECORDING_S`], s.
+// Common practice, no source: five minutes hold hundreds of beats for the detector's and delineator's
+// per-record statistics while a window's working copies stay a few MB.
+const WINDOW_S: f64 = 300.0;
 
 /// Output format of `beats`.
 #[derive(Debug, Clone, Copy, Default, clap::ValueEnum)]
@@ -41,13 +46,19 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if raw.leads.is_empty() || raw.is_empty() {
         anyhow::bail!("{}: the recording has no samples", args.file.display());
     }
-    let filtered = filter::apply(raw, &filter::FilterSettings::default());
-    // Only the filtered copy is needed from here on (a 24-h recording is hundreds of MB).
-    drop(opened);
-    let rec = &filtered.recording;
-    let mut beats = detect::detect_beats(rec);
-    delineate::delineate_beats(rec, &mut beats);
-    let fs = rec.sample_rate;
+    let fs = raw.sample_rate;
+    let settings = filter::FilterSettings::default();
+    let (beats, filters) = if raw.duration_s() > analysis::LONG_RECORDING_S {
+        // A long recording window by window: memory stays near the recording's own size.
+        analysis::beats_in_windows(raw, &settings, WINDOW_S)
+    } else {
+        let filtered = filter::apply(raw, &settings);
+        // Only the filtered copy is needed from here on.
+        drop(opened);
+        let mut beats = detect::detect_beats(&filtered.recording);
+        delineate::delineate_beats(&filtered.recording, &mut beats);
+        (beats, filtered.description)
+    };
     let rr = detect::rr_ms(&beats, fs);
     let mut out = String::new();
     match args.format {
@@ -93,7 +104,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
             let v = serde_json::json!({
                 "file": args.file.display().to_string(),
                 "sample_rate_hz": fs.hz(),
-                "filters": filtered.description,
+                "filters": filters,
                 "caution": isoline_core::CAUTION,
                 "beats": rows,
             });

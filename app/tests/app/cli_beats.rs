@@ -67,3 +67,35 @@ fn bad_input_exits_2_with_one_line() {
     assert_eq!(err.trim_end().lines().count(), 1, "{err}");
     assert!(err.contains("record.hea"));
 }
+
+#[test]
+fn a_recording_over_an_hour_is_analysed_in_windows_without_losing_or_doubling_beats() {
+    // 3700 s of the demo Holter (invented data): longer than analysis::LONG_RECORDING_S, so `beats` works in
+    // 5-minute windows. Every true beat is found once, within 150 ms (ANSI/AAMI EC57 practice), and the QRS
+    // boundaries stay within 2 samples of the generator's truth on nearly every beat.
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let (edf, truth) = (dir.path().join("h.edf"), dir.path().join("h.json"));
+    let s = |p: &std::path::Path| p.to_str().unwrap_or_default().to_string();
+    let made =
+        isoline(&["synth", "--scenario", "holter", "--seconds", "3700", "--out", &s(&edf), "--truth", &s(&truth)]);
+    assert!(made.status.success(), "{}", String::from_utf8_lossy(&made.stderr));
+    let out = isoline(&["beats", &s(&edf)]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let text = String::from_utf8_lossy(&out.stdout);
+    let rows: Vec<Vec<&str>> = text.lines().skip(1).map(|l| l.split(',').collect()).collect();
+    let truth: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&truth).unwrap_or_default()).unwrap_or_default();
+    let true_beats = truth["beats"].as_array().cloned().unwrap_or_default();
+    assert!(true_beats.len() > 4000, "{} true beats", true_beats.len());
+    assert_eq!(rows.len(), true_beats.len());
+    let mut close = 0;
+    for (row, t) in rows.iter().zip(&true_beats) {
+        let num = |s: &str| s.parse::<i64>().unwrap_or(-1000);
+        let want = |k: &str| t[k].as_i64().unwrap_or(-2000);
+        assert!((num(row[0]) - want("r_sample")).abs() <= 37, "beat at {} vs {}", row[0], want("r_sample"));
+        if (num(row[6]) - want("qrs_on")).abs() <= 2 && (num(row[7]) - want("qrs_end")).abs() <= 2 {
+            close += 1;
+        }
+    }
+    assert!(close as f64 >= 0.99 * rows.len() as f64, "QRS within 2 samples on {close} of {}", rows.len());
+}

@@ -62,6 +62,24 @@ pub struct Filtered {
     pub mains_hz: Option<f64>,
 }
 
+impl FilterSettings {
+    /// These settings with an automatic notch decided once from the spectrum of `recording` (50 Hz, 60 Hz or
+    /// off), so every part of a long recording filtered separately gets the same notch.
+    #[must_use]
+    pub fn with_mains_decided(self, recording: &Recording) -> Self {
+        if self.mains != Mains::Auto {
+            return self;
+        }
+        let leads: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
+        let mains = match detect_mains(&leads, recording.sample_rate.hz()) {
+            Some(f) if f < 55.0 => Mains::Hz50,
+            Some(_) => Mains::Hz60,
+            None => Mains::Off,
+        };
+        Self { mains, ..self }
+    }
+}
+
 /// Filters a copy of `recording`. Invalid (NaN) samples are interpolated for filtering and stay NaN in the
 /// output; the input is never changed.
 #[must_use]

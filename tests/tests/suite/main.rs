@@ -10,6 +10,7 @@ mod accuracy_detection;
 mod accuracy_intervals;
 mod accuracy_rhythm;
 mod accuracy_typing;
+mod accuracy_windowed;
 mod io_edf;
 mod io_fuzz;
 mod io_holter;

@@ -8,6 +8,10 @@ use crate::filter::{self, FilterSettings, Filtered};
 use crate::measure::{self, Measurements, Template};
 use crate::recording::Recording;
 
+mod windowed;
+
+pub use windowed::{LONG_RECORDING_S, beats_in_windows};
+
 /// Everything derived from a recording for review.
 #[derive(Debug, Clone)]
 pub struct Analysis {
