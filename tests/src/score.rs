@@ -143,6 +143,17 @@ impl BoundaryErrors {
     }
 }
 
+/// Median (the mean of the two middle values for an even count); `None` when empty.
+#[must_use]
+pub fn median(mut v: Vec<f64>) -> Option<f64> {
+    if v.is_empty() {
+        return None;
+    }
+    v.sort_by(f64::total_cmp);
+    let m = v.len();
+    Some(if m % 2 == 1 { v[m / 2] } else { (v[m / 2 - 1] + v[m / 2]) / 2.0 })
+}
+
 /// Mean and sample standard deviation.
 #[must_use]
 pub fn mean_sd(v: &[f64]) -> Option<(f64, f64)> {

@@ -168,13 +168,7 @@ mod tests {
         let all = ledger_notes(&m, None);
         assert_eq!(all.len(), 6, "{all:#?}"); // QRS and five QTc
         assert!(all[0].starts_with("QRS 130 ms") && all[1].starts_with("QTc (Bazett) 560 ms"), "{all:#?}");
-        let id = RecordingIdentity {
-            file_name: "ward7-bed2.csv".into(),
-            relative_path: "ward7-bed2.csv".into(),
-            sha256: "0".repeat(64),
-            leads: vec!["II".into()],
-            sample_rate_hz: 500.0,
-        };
+        let id = RecordingIdentity::example();
         let mut r = Review::new(id, "AB");
         for v in m.values().iter().filter(|v| v.lead.is_none()) {
             r.put_automatic(Measurement::automatic(v.key, &v.label, v.value, v.unit)).unwrap_or_else(|e| panic!("{e}"));

@@ -92,13 +92,7 @@ mod tests {
     use crate::review::identity::RecordingIdentity;
 
     fn review_with_auto() -> Review {
-        let id = RecordingIdentity {
-            file_name: "ward7-bed2.csv".into(),
-            relative_path: "ward7-bed2.csv".into(),
-            sha256: "0".repeat(64),
-            leads: vec!["II".into()],
-            sample_rate_hz: 500.0,
-        };
+        let id = RecordingIdentity::example();
         let mut r = Review::new(id, "AB");
         let auto = qtc(370.0, 710.0);
         let put = |r: &mut Review, key: &str, v: f64, unit: &str| {

@@ -28,6 +28,20 @@ pub struct RecordingIdentity {
     pub sample_rate_hz: f64,
 }
 
+#[cfg(test)]
+impl RecordingIdentity {
+    /// An invented one-lead recording's identity for unit tests (ward 7, bed 2 of our demo ward).
+    pub(crate) fn example() -> Self {
+        Self {
+            file_name: "ward7-bed2.csv".into(),
+            relative_path: "ward7-bed2.csv".into(),
+            sha256: "0".repeat(64),
+            leads: vec!["II".into()],
+            sample_rate_hz: 500.0,
+        }
+    }
+}
+
 impl RecordingIdentity {
     /// The identity of an opened recording (`recording_path` as given to [`crate::io::open`]) for a review that
     /// will be saved at `review_path`.

@@ -14,7 +14,7 @@ use isoline_core::analysis::analyze;
 use isoline_core::filter::FilterSettings;
 use isoline_core::io;
 use isoline_tests::data;
-use isoline_tests::score::{BeatMarks, mean_sd, read_reference_csv};
+use isoline_tests::score::{BeatMarks, mean_sd, median, read_reference_csv};
 
 /// Interval names, in the order of the arrays below.
 const NAMES: [&str; 3] = ["PR", "QRS", "QT"];
@@ -23,14 +23,6 @@ const IEC: [(f64, f64); 3] = [(10.0, 10.0), (10.0, 10.0), (25.0, 30.0)];
 
 /// Median of the experts' per-beat PR, QRS and QT of a record, ms (marks: P on, QRS on, QRS end, T end).
 fn expert_intervals(reference: &[BeatMarks], fs: f64) -> [Option<f64>; 3] {
-    let median = |mut v: Vec<f64>| -> Option<f64> {
-        if v.is_empty() {
-            return None;
-        }
-        v.sort_by(f64::total_cmp);
-        let m = v.len();
-        Some(if m % 2 == 1 { v[m / 2] } else { (v[m / 2 - 1] + v[m / 2]) / 2.0 })
-    };
     let span = |a: usize, b: usize| {
         median(reference.iter().filter_map(|x| Some((x.marks[b]? - x.marks[a]?) * 1000.0 / fs)).collect())
     };

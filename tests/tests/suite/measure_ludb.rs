@@ -23,6 +23,7 @@ use isoline_core::measure::einthoven::LIMB_LEADS;
 use isoline_core::measure::{self, Template};
 use isoline_core::recording::StandardLead;
 use isoline_tests::data;
+use isoline_tests::score::median;
 
 /// Axis category of an angle, as the LUDB diagnoses name them (None below −90°: no category given).
 /// Limits: a value on a limit belongs to the category above it (0° horizontal, 30° normal, 70° vertical), +90°
@@ -90,24 +91,16 @@ fn median_template(
     if used.is_empty() {
         return None;
     }
-    let med = |mut v: Vec<f64>| -> Option<f64> {
-        if v.is_empty() {
-            return None;
-        }
-        v.sort_by(f64::total_cmp);
-        let m = v.len();
-        Some(if m % 2 == 1 { v[m / 2] } else { (v[m / 2 - 1] + v[m / 2]) / 2.0 })
-    };
     let template = leads
         .iter()
         .map(|x| {
             (0..pre + post)
-                .map(|k| med(used.iter().map(|(r, _)| f64::from(x[r - pre + k])).collect()).unwrap_or(0.0) as f32)
+                .map(|k| median(used.iter().map(|(r, _)| f64::from(x[r - pre + k])).collect()).unwrap_or(0.0) as f32)
                 .collect()
         })
         .collect();
     let offset = |get: fn(&Boundaries) -> Option<usize>| {
-        med(used.iter().filter_map(|(r, b)| get(b).map(|v| v as f64 - *r as f64)).collect())
+        median(used.iter().filter_map(|(r, b)| get(b).map(|v| v as f64 - *r as f64)).collect())
             .map(|o| (o + pre as f64).round().max(0.0) as usize)
     };
     let bounds = Boundaries {
