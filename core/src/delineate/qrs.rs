@@ -220,6 +220,7 @@ fn min_over(x: &[f32], a: usize, b: usize) -> Option<f32> {
 }
 
 #[cfg(test)]
+#[allow(clippy::expect_used)] // a test fails by panicking
 mod tests {
     use super::*;
     use crate::delineate::signals::pacing_spikes;

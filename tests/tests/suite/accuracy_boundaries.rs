@@ -151,7 +151,7 @@ fn second_earliest_p_onsets(n: usize, reference: &[BeatMarks]) -> Vec<(Option<f6
             let Some(q) = b.marks[1] else { return (None, None) };
             // Each lead's P onset within 400 ms before this beat's QRS onset.
             let mut p: Vec<f64> =
-                onsets.iter().filter_map(|o| o.iter().copied().filter(|&x| x < q && q - x < 200.0).last()).collect();
+                onsets.iter().filter_map(|o| o.iter().copied().rfind(|&x| x < q && q - x < 200.0)).collect();
             p.sort_by(f64::total_cmp);
             (p.get(1).copied(), Some(q))
         })
