@@ -90,3 +90,48 @@ fn shifted(beat: &Beat, a: usize) -> Beat {
         },
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::recording::LeadName;
+    use crate::units::Hertz;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(16))]
+        /// Any samples (NaN included), lengths and window lengths: no panic, beats in order and at least the
+        /// refractory period apart, every boundary inside the recording.
+        #[test]
+        fn windows_never_panic_and_never_count_a_beat_twice(
+            len in 0usize..6000,
+            window_s in prop_oneof![Just(1.0f64), Just(3.0), Just(7.5), Just(f64::NAN)],
+            seed in proptest::collection::vec(prop_oneof![8 => -2000.0f32..2000.0, 1 => Just(f32::NAN)], 53),
+        ) {
+            let fs = 250.0;
+            let samples: Vec<f32> = (0..len)
+                .map(|k| {
+                    let beat = if k % 200 < 6 { 1500.0 } else { 0.0 };
+                    beat + seed[k % seed.len()] * 0.05
+                })
+                .collect();
+            let recording = Recording {
+                leads: vec![
+                    Lead { name: LeadName::parse("II"), samples: samples.clone() },
+                    Lead { name: LeadName::parse("V5"), samples: samples.iter().map(|v| -v).collect() },
+                ],
+                sample_rate: Hertz::from_hz(fs).unwrap_or_else(|_| unreachable!()),
+                start: None,
+                meta: Meta::default(),
+                annotations: Vec::new(),
+            };
+            let (beats, description) = beats_in_windows(&recording, &FilterSettings::default(), window_s);
+            prop_assert!(description.contains("Hz"));
+            prop_assert!(beats.windows(2).all(|w| w[1].r >= w[0].r + (REFRACTORY_S * fs) as usize));
+            for b in &beats {
+                let bounds = [b.bounds.p_on, b.bounds.p_end, b.bounds.qrs_on, b.bounds.qrs_end, b.bounds.t_end];
+                prop_assert!(b.r < len && bounds.iter().flatten().all(|&x| x < len));
+            }
+        }
+    }
+}
