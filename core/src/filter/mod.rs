@@ -70,14 +70,19 @@ impl FilterSettings {
         if self.mains != Mains::Auto {
             return self;
         }
-        let leads: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
-        let mains = match detect_mains(&leads, recording.sample_rate.hz()) {
+        let mains = match detected_mains(recording) {
             Some(f) if f < 55.0 => Mains::Hz50,
             Some(_) => Mains::Hz60,
             None => Mains::Off,
         };
         Self { mains, ..self }
     }
+}
+
+/// The mains frequency the spectrum of `recording` shows, if any (see [`detect_mains`]).
+fn detected_mains(recording: &Recording) -> Option<f64> {
+    let leads: Vec<&[f32]> = recording.leads.iter().map(|l| l.samples.as_slice()).collect();
+    detect_mains(&leads, recording.sample_rate.hz())
 }
 
 /// Filters a copy of `recording`. Invalid (NaN) samples are interpolated for filtering and stay NaN in the
@@ -91,7 +96,7 @@ pub fn apply(recording: &Recording, settings: &FilterSettings) -> Filtered {
         Mains::Off => None,
         Mains::Hz50 => Some(50.0),
         Mains::Hz60 => Some(60.0),
-        Mains::Auto => detect_mains(&recording.leads.iter().map(|l| l.samples.as_slice()).collect::<Vec<_>>(), fs),
+        Mains::Auto => detected_mains(recording),
     }
     .filter(|&f| f < nyquist * 0.95);
     let lowpass = settings.lowpass_hz.filter(|&f| f.is_finite() && f > 0.0 && f < nyquist * 0.95);
