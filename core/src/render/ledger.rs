@@ -51,8 +51,8 @@ pub(super) fn plan(fonts: &Fonts, lines: &[LedgerLine], width_mm: f64, ppm: f64,
 /// Height of the band holding the box, mm.
 pub(super) fn height_mm(plan: &Plan) -> f64 {
     let st = Style { pt: BODY, bold: false, color: [0; 4] };
-    // Padding, capitals of the heading, one line per row, descenders (about 0.25 em), padding, 1 mm above and below.
-    PAD_MM + Fonts::cap_mm(st) + plan.per_block as f64 * Fonts::line_mm(st) + 0.3 * BODY * 25.4 / 72.0 + PAD_MM + 2.0
+    // Padding, capitals of the heading, one line per row, descenders, padding, 1 mm above and below.
+    PAD_MM + Fonts::cap_mm(st) + plan.per_block as f64 * Fonts::line_mm(st) + Fonts::descent_mm(st) + PAD_MM + 2.0
 }
 
 /// Draws the box in the band starting at paper y `top_mm`.

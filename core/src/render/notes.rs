@@ -29,7 +29,7 @@ pub(super) fn height_mm(count: usize) -> f64 {
         return 0.0;
     }
     let st = Style { pt: BODY, bold: false, color: [0; 4] };
-    2.0 * PAD_MM + Fonts::cap_mm(st) + (count - 1) as f64 * Fonts::line_mm(st) + 0.3 * BODY * 25.4 / 72.0
+    2.0 * PAD_MM + Fonts::cap_mm(st) + (count - 1) as f64 * Fonts::line_mm(st) + Fonts::descent_mm(st)
 }
 
 /// Draws the printed lines in the band starting at paper y `top_mm`.
@@ -80,7 +80,7 @@ mod tests {
         assert!(
             a.data()[..(grid_bottom * a.width() * 4) as usize] == b.data()[..(grid_bottom * b.width() * 4) as usize]
         );
-        // Three or more more lines of dark text (≈ 8 px of glyph rows each at 100 dpi).
+        // Three or more further lines of dark text (≈ 8 px of glyph rows each at 100 dpi).
         assert!(dark_rows(&b, 0, b.height()) >= dark_rows(&a, 0, a.height()) + 20);
     }
 }

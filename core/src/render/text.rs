@@ -79,6 +79,11 @@ impl Fonts {
         style.pt * MM_PER_PT * 0.73
     }
 
+    /// Depth of descenders below the baseline, with a little room, paper mm (0.3 em).
+    pub fn descent_mm(style: Style) -> f64 {
+        style.pt * MM_PER_PT * 0.3
+    }
+
     /// Line spacing for a style, paper mm.
     pub fn line_mm(style: Style) -> f64 {
         style.pt * MM_PER_PT * 1.25
