@@ -8,11 +8,6 @@ use std::process::ExitCode;
 use anyhow::Context as _;
 use isoline_core::{analysis, delineate, detect, filter, io};
 
-/// Window length for recordings longer than [`analysis::LONG_RECORDING_S`], s.
-// Common practice, no source: five minutes hold hundreds of beats for the detector's and delineator's
-// per-record statistics while a window's working copies stay a few MB.
-const WINDOW_S: f64 = 300.0;
-
 /// Output format of `beats`.
 #[derive(Debug, Clone, Copy, Default, clap::ValueEnum)]
 pub enum BeatsFormat {
@@ -50,7 +45,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let settings = filter::FilterSettings::default();
     let (beats, filters) = if raw.duration_s() > analysis::LONG_RECORDING_S {
         // A long recording window by window: memory stays near the recording's own size.
-        analysis::beats_in_windows(raw, &settings, WINDOW_S)
+        analysis::beats_in_windows(raw, &settings, analysis::WINDOW_S)
     } else {
         let filtered = filter::apply(raw, &settings);
         // Only the filtered copy is needed from here on.

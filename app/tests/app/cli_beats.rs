@@ -98,4 +98,17 @@ fn a_recording_over_an_hour_is_analysed_in_windows_without_losing_or_doubling_be
         }
     }
     assert!(close as f64 >= 0.99 * rows.len() as f64, "QRS within 2 samples on {close} of {}", rows.len());
+    // `measure` takes the same windows and builds the representative beat from the whole hour: its intervals
+    // are those of the generator's truth, as on the 10-s demos (within 2 samples = 8 ms at 250 Hz; the truth is
+    // exact time, so 0.01 ms more for its rounding).
+    let out = isoline(&["measure", &s(&edf), "--format", "json"]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let m: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap_or_default();
+    let m = if m.is_array() { m[0].clone() } else { m };
+    assert_eq!(m["beats"].as_u64(), Some(rows.len() as u64));
+    for key in ["rr_ms", "pr_ms", "qrs_ms", "qt_ms"] {
+        let (got, want) = (m[key].as_f64(), truth[key].as_f64());
+        println!("{key}: measured {got:?}, truth {want:?}");
+        assert!(matches!((got, want), (Some(g), Some(w)) if (g - w).abs() <= 8.01), "{key}: {got:?} vs {want:?}");
+    }
 }

@@ -10,7 +10,7 @@ use crate::recording::Recording;
 
 mod windowed;
 
-pub use windowed::{LONG_RECORDING_S, beats_in_windows};
+pub use windowed::{LONG_RECORDING_S, WINDOW_S, analyze_in_windows, beats_in_windows};
 
 /// Everything derived from a recording for review.
 #[derive(Debug, Clone)]
@@ -31,9 +31,13 @@ pub fn template_of(rep: &RepresentativeBeat) -> Template<'_> {
     Template { leads: &rep.leads, sample_rate: rep.sample_rate, bounds: rep.bounds }
 }
 
-/// Runs the whole pipeline on a recording.
+/// Runs the whole pipeline on a recording; one longer than [`LONG_RECORDING_S`] window by window
+/// ([`analyze_in_windows`], windows of [`WINDOW_S`]), so its working memory stays near its own size.
 #[must_use]
 pub fn analyze(recording: &Recording, settings: &FilterSettings) -> Analysis {
+    if recording.duration_s() > LONG_RECORDING_S {
+        return analyze_in_windows(recording, settings, WINDOW_S);
+    }
     let filtered = filter::apply(recording, settings);
     let rec = &filtered.recording;
     let mut beats = detect::detect_beats(rec);

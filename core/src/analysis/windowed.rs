@@ -7,16 +7,26 @@
 //! part have their T waves. A beat belongs to the window its R peak falls in. At a seam a beat is kept only when
 //! it comes at least the detector's refractory period after the last beat kept, so a beat both windows see
 //! counts once, and one the earlier window missed just before the seam is still found.
+//!
+//! The whole analysis ([`analyze_in_windows`]) also keeps each window's own part of the filtered copy (one
+//! copy of the recording in all), and builds the representative beat from the dominant beats of the whole
+//! recording on that copy, with the P model of the window whose beats matched their P wave best.
 
+use super::{Analysis, template_of};
 use crate::beat::{Beat, Boundaries};
-use crate::delineate;
+use crate::delineate::{self, PModel};
 use crate::detect;
-use crate::filter::{self, FilterSettings};
+use crate::filter::{self, FilterSettings, Filtered};
+use crate::measure;
 use crate::recording::{Lead, Meta, Recording};
 
-/// Recordings longer than this (s) are best analysed window by window (see [`beats_in_windows`]).
+/// Recordings longer than this (s) are analysed window by window (see [`beats_in_windows`]).
 // Common practice, no source: an hour is far longer than any resting ECG and shorter than any Holter recording.
 pub const LONG_RECORDING_S: f64 = 3600.0;
+/// Window length for long recordings, s.
+// Common practice, no source: five minutes hold hundreds of beats for the detector's and delineator's
+// per-record statistics while a window's working copies stay a few MB.
+pub const WINDOW_S: f64 = 300.0;
 /// Margin filtered and analysed on each side of a window, s.
 // Common practice, no source: the 0.5 Hz zero-phase high-pass settles within a few seconds, the detector's
 // thresholds within a few beats; 20 s holds both with room to spare.
@@ -26,26 +36,77 @@ const SEAM_S: f64 = 1.0;
 /// Two beats closer than this are one beat seen by two windows, s (the detector's refractory period).
 const REFRACTORY_S: f64 = 0.200;
 
+/// What one pass over the windows gives.
+struct Pass {
+    beats: Vec<Beat>,
+    description: String,
+    mains_hz: Option<f64>,
+    /// Each lead filtered, when asked for (each window's own part of its filtered copy).
+    filtered: Option<Vec<Vec<f32>>>,
+    /// The P model of the window whose beats matched it best.
+    p_model: Option<PModel>,
+}
+
 /// Detected and delineated beats of `recording` in windows of `window_s` seconds, with the filters' description.
 /// Beat indices are samples of the whole recording, as from the whole-record pipeline.
 #[must_use]
 pub fn beats_in_windows(recording: &Recording, settings: &FilterSettings, window_s: f64) -> (Vec<Beat>, String) {
+    let pass = windows(recording, settings, window_s, false);
+    (pass.beats, pass.description)
+}
+
+/// The whole pipeline of [`super::analyze`] window by window (windows of `window_s` seconds): the same
+/// [`Analysis`], with the working memory of one window beside the recording and its filtered copy.
+#[must_use]
+pub fn analyze_in_windows(recording: &Recording, settings: &FilterSettings, window_s: f64) -> Analysis {
+    let pass = windows(recording, settings, window_s, true);
+    let leads = recording
+        .leads
+        .iter()
+        .zip(pass.filtered.unwrap_or_default())
+        .map(|(l, samples)| Lead { name: l.name.clone(), samples })
+        .collect();
+    let rec = Recording {
+        leads,
+        sample_rate: recording.sample_rate,
+        start: recording.start,
+        meta: recording.meta.clone(),
+        annotations: recording.annotations.clone(),
+    };
+    let filtered = Filtered { recording: rec, description: pass.description, mains_hz: pass.mains_hz };
+    let beats = pass.beats;
+    let rec = &filtered.recording;
+    let representative = delineate::representative_beat_with(rec, &beats, pass.p_model.as_ref());
+    let measurements = measure::measure(rec, &beats, representative.as_ref().map(template_of).as_ref());
+    Analysis { filtered, beats, representative, measurements }
+}
+
+/// Filters, detects and delineates `recording` window by window; keeps each window's filtered part when
+/// `keep_filtered`.
+fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, keep_filtered: bool) -> Pass {
     let fs = recording.sample_rate.hz();
     let n = recording.len();
     let settings = settings.with_mains_decided(recording);
     let window = ((window_s.max(1.0) * fs) as usize).max(1);
     let (margin, seam, refractory) =
         ((MARGIN_S * fs) as usize, (SEAM_S * fs) as usize, ((REFRACTORY_S * fs) as usize).max(1));
+    let mut filtered: Option<Vec<Vec<f32>>> =
+        keep_filtered.then(|| recording.leads.iter().map(|_| Vec::with_capacity(n)).collect());
     let mut beats: Vec<Beat> = Vec::new();
+    let mut p_model: Option<PModel> = None;
     let mut description = None;
     let mut start = 0;
     while start < n {
         let end = (start + window).min(n);
         let a = start.saturating_sub(margin);
-        let filtered = filter::apply(&part(recording, a, (end + margin).min(n)), &settings);
-        description = Some(filtered.description);
-        let mut found = detect::detect_beats(&filtered.recording);
-        delineate::delineate_beats(&filtered.recording, &mut found);
+        let part_filtered = filter::apply(&part(recording, a, (end + margin).min(n)), &settings);
+        description = Some((part_filtered.description, part_filtered.mains_hz));
+        let rec = part_filtered.recording;
+        let mut found = detect::detect_beats(&rec);
+        let model = delineate::delineate_beats(&rec, &mut found);
+        if let Some(m) = model.filter(|m| p_model.as_ref().is_none_or(|best| m.consistency > best.consistency)) {
+            p_model = Some(m);
+        }
         for b in found {
             let r = b.r + a;
             let after_last = beats.last().is_none_or(|l| r >= l.r + refractory);
@@ -53,10 +114,18 @@ pub fn beats_in_windows(recording: &Recording, settings: &FilterSettings, window
                 beats.push(shifted(&b, a));
             }
         }
+        if let Some(f) = filtered.as_mut() {
+            for (whole, lead) in f.iter_mut().zip(&rec.leads) {
+                whole.extend_from_slice(&lead.samples[start - a..end - a]);
+            }
+        }
         start = end;
     }
-    let description = description.unwrap_or_else(|| filter::apply(&part(recording, 0, 0), &settings).description);
-    (beats, description)
+    let (description, mains_hz) = description.unwrap_or_else(|| {
+        let f = filter::apply(&part(recording, 0, 0), &settings);
+        (f.description, f.mains_hz)
+    });
+    Pass { beats, description, mains_hz, filtered, p_model }
 }
 
 /// Samples `a..b` of every lead, as a recording of its own.
@@ -132,6 +201,9 @@ mod tests {
                 let bounds = [b.bounds.p_on, b.bounds.p_end, b.bounds.qrs_on, b.bounds.qrs_end, b.bounds.t_end];
                 prop_assert!(b.r < len && bounds.iter().flatten().all(|&x| x < len));
             }
+            let a = analyze_in_windows(&recording, &FilterSettings::default(), window_s);
+            prop_assert_eq!(a.beats.len(), beats.len());
+            prop_assert!(a.filtered.recording.leads.iter().all(|l| l.samples.len() == len));
         }
     }
 }

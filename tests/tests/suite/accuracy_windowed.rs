@@ -1,9 +1,10 @@
-//! Window-by-window analysis of long recordings (`analysis::beats_in_windows`) against the whole-record
+//! Window-by-window analysis of long recordings (`analysis::beats_in_windows`, `analysis::analyze_in_windows`)
+//! against the whole-record
 //! pipeline and the expert beat annotations, on the real records with 60-s windows (so a 15-min record has 15
 //! seams). Source of the annotations: Moody & Mark, IEEE Eng Med Biol 2001;20(3):45-50 (MIT-BIH); Laguna et al.,
 //! Computers in Cardiology 1997;24:673-6 (QT Database); scored as ANSI/AAMI EC57 does (150 ms window).
 
-use isoline_core::analysis::beats_in_windows;
+use isoline_core::analysis::{analyze, analyze_in_windows, beats_in_windows};
 use isoline_core::beat::{Beat, MarkKind};
 use isoline_core::filter::FilterSettings;
 use isoline_core::io;
@@ -78,5 +79,43 @@ fn windows_find_the_same_beats_and_boundaries_as_the_whole_record() -> Result<()
     }
     println!("pooled: same R {same_r} of {total}, every boundary within one sample {same_bounds}");
     assert!(same_r as f64 >= 0.999 * total as f64, "same R {same_r} of {total}");
+    Ok(())
+}
+
+#[test]
+fn whole_analysis_in_windows_measures_as_the_whole_record_does() -> Result<(), String> {
+    // The representative beat of a windowed analysis comes from the dominant beats of the whole recording on
+    // the windows' filtered parts, with the P model of one window: its intervals must stay those of the
+    // whole-record pipeline (60-s windows, so a 15-min record has 15 seams). Source of the records: Moody &
+    // Mark 2001 (MIT-BIH); Laguna et al. 1997 (QT Database).
+    for rec in ["mitdb-100/100.hea", "qtdb/sel100.hea", "qtdb/sele0104.hea", "qtdb/sel117.hea"] {
+        let recording = io::open(&data(rec), &io::OpenOptions::default()).map_err(|e| e.to_string())?.recording;
+        let whole = analyze(&recording, &FilterSettings::default());
+        let windowed = analyze_in_windows(&recording, &FilterSettings::default(), 60.0);
+        let n = recording.len();
+        assert!(windowed.filtered.recording.leads.iter().all(|l| l.samples.len() == n), "{rec}: filtered length");
+        assert_eq!(windowed.filtered.description, whole.filtered.description, "{rec}");
+        let (w, x) = (&windowed.measurements, &whole.measurements);
+        let pair = |a: Option<f64>, b: Option<f64>| format!("{a:.1?} / {b:.1?}");
+        println!(
+            "{rec}: windows / whole — beats {} / {}, HR {}, PR {}, QRS {}, QT {}",
+            w.beats,
+            x.beats,
+            pair(w.rr.heart_rate_bpm, x.rr.heart_rate_bpm),
+            pair(w.intervals.pr_ms, x.intervals.pr_ms),
+            pair(w.intervals.qrs_ms, x.intervals.qrs_ms),
+            pair(w.intervals.qt_ms, x.intervals.qt_ms)
+        );
+        assert!(w.beats.abs_diff(x.beats) as f64 <= 0.001 * x.beats as f64, "{rec}: beats");
+        let close = |a: Option<f64>, b: Option<f64>, tol: f64| match (a, b) {
+            (Some(a), Some(b)) => (a - b).abs() <= tol,
+            (a, b) => a.is_none() && b.is_none(),
+        };
+        // One sample at 250/360 Hz is 4/2.8 ms; the P model of one window may move P by a few samples.
+        assert!(close(w.rr.heart_rate_bpm, x.rr.heart_rate_bpm, 0.5), "{rec}: heart rate");
+        assert!(close(w.intervals.qrs_ms, x.intervals.qrs_ms, 8.0), "{rec}: QRS");
+        assert!(close(w.intervals.qt_ms, x.intervals.qt_ms, 8.0), "{rec}: QT");
+        assert!(close(w.intervals.pr_ms, x.intervals.pr_ms, 16.0), "{rec}: PR");
+    }
     Ok(())
 }
