@@ -1,7 +1,8 @@
 //! Window-by-window analysis of long recordings (`analysis::beats_in_windows`, `analysis::analyze_in_windows`)
 //! against the whole-record pipeline and the expert beat annotations, on the real records with 60-s windows (so
-//! a 15-min record has 15 seams). Source of the annotations: Moody & Mark, IEEE Eng Med Biol 2001;20(3):45-50 (MIT-BIH); Laguna et al.,
-//! Computers in Cardiology 1997;24:673-6 (QT Database); scored as ANSI/AAMI EC57 does (150 ms window).
+//! a 15-min record has 15 seams). Source of the annotations: Moody & Mark, IEEE Eng Med Biol 2001;20(3):45-50
+//! (MIT-BIH); Laguna et al., Computers in Cardiology 1997;24:673-6 (QT Database); scored as ANSI/AAMI EC57 does
+//! (150 ms window).
 
 use isoline_core::analysis::{analyze, analyze_in_windows, beats_in_windows};
 use isoline_core::beat::{Beat, MarkKind};
