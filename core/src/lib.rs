@@ -23,6 +23,7 @@ pub mod recording;
 pub mod render;
 pub mod review;
 pub mod synth;
+pub mod timescale;
 pub mod units;
 
 pub use beat::{Beat, BeatKind, Boundaries, MarkKind};

@@ -3,7 +3,7 @@
 
 use egui::{Key, KeyboardShortcut, Modifiers, Sense, Vec2};
 use isoline_core::paper::{GAINS_MM_PER_MV, Layout, LeadOrder, PageSpec, SPEEDS_MM_PER_S, Scheme};
-use isoline_core::{CAUTION, LeadName, StandardLead};
+use isoline_core::{CAUTION, LeadName, StandardLead, timescale};
 
 use super::command::Command;
 use super::state::Tool;
@@ -128,8 +128,8 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
         view.paper.describe(),
         view.layout,
         filter_text(loaded, view.filters),
-        tape::clock(app.start_s),
-        tape::clock(app.start_s + app.window_s)
+        timescale::clock(app.start_s),
+        timescale::clock(app.start_s + app.window_s)
     );
     egui::ScrollArea::both().auto_shrink([false, false]).show(ui, |ui| {
         let (rect, response) = ui.allocate_exact_size(size, Sense::click_and_drag());
@@ -167,7 +167,7 @@ fn status_text(app: &IsolineApp) -> String {
         l.format,
         rec.leads.len(),
         rec.sample_rate.hz(),
-        tape::clock(rec.duration_s()),
+        timescale::clock(rec.duration_s()),
         l.beats_source,
         filter_text(l, app.settings.view.filters),
         app.ui_state.last_frame_ms

@@ -2,11 +2,15 @@
 //! the Sheet there; the Sheet's window is outlined. Drawing cost follows the Tape's width in pixels: the stored
 //! envelope (at most 4096 buckets) is merged down to one bucket per pixel column.
 
-use egui_plot::{FilledArea, Line, Plot, PlotPoints, Polygon};
+use egui_plot::{FilledArea, GridInput, GridMark, Line, Plot, PlotPoints, Polygon};
+use isoline_core::timescale::clock;
 
 use super::command::Command;
 use super::derived::TapeEnvelope;
 use super::state::Loaded;
+
+/// Width kept for the y-axis labels of both Tape plots, points, so their time axes line up.
+const AXIS_WIDTH: f32 = 40.0;
 
 /// Draws the Tape; returns a command to move the Sheet when clicked or dragged.
 ///
@@ -44,9 +48,10 @@ pub fn tape_ui(
         .allow_double_click_reset(false)
         .show_y(false)
         .y_axis_label("mV")
+        .y_axis_min_width(AXIS_WIDTH)
         .x_axis_formatter(|m, _| clock(m.value))
-        .include_x(0.0)
-        .include_x(duration)
+        .x_grid_spacer(clock_marks)
+        .default_x_bounds(0.0, duration.max(1.0))
         .show(ui, |p| {
             p.add(FilledArea::new(lead_name.as_str(), &xs, &lo, &hi).fill_color(fill));
             p.add(window(y_lo, y_hi));
@@ -72,9 +77,10 @@ pub fn tape_ui(
             .allow_boxed_zoom(false)
             .allow_double_click_reset(false)
             .y_axis_label("bpm")
+            .y_axis_min_width(AXIS_WIDTH)
             .x_axis_formatter(|m, _| clock(m.value))
-            .include_x(0.0)
-            .include_x(duration)
+            .x_grid_spacer(clock_marks)
+            .default_x_bounds(0.0, duration.max(1.0))
             .include_y(r_lo)
             .include_y(r_hi)
             .show(ui, |p| {
@@ -123,11 +129,13 @@ fn thin(points: &[[f64; 2]], columns: usize) -> Vec<[f64; 2]> {
     points.iter().step_by(step).copied().collect()
 }
 
-/// `h:mm:ss` for a duration in seconds.
-#[must_use]
-pub fn clock(seconds: f64) -> String {
-    let s = seconds.max(0.0).round() as u64;
-    format!("{}:{:02}:{:02}", s / 3600, (s / 60) % 60, s % 60)
+/// Time-axis grid on clock steps (hours, minutes, seconds) instead of decimal fractions of the duration.
+fn clock_marks(input: GridInput) -> Vec<GridMark> {
+    let (from, to) = input.bounds;
+    isoline_core::timescale::clock_grid(from, to, input.base_step_size)
+        .into_iter()
+        .map(|(value, step_size)| GridMark { value, step_size })
+        .collect()
 }
 
 #[cfg(test)]
@@ -146,6 +154,5 @@ mod tests {
         assert_eq!(xs, vec![1.0, 3.0]);
         assert_eq!(lo, vec![-0.5, 0.01]);
         assert_eq!(hi, vec![0.1, 2.0]);
-        assert_eq!(clock(3725.0), "1:02:05");
     }
 }
