@@ -4,6 +4,7 @@
 use std::path::Path;
 
 use anyhow::Context as _;
+use isoline_core::measure::{RangeNote, ranges};
 use isoline_core::paper::PageSpec;
 use isoline_core::render::{self, LedgerLine, LedgerValue, RenderInput};
 use isoline_core::review::Origin;
@@ -42,7 +43,8 @@ impl IsolineApp {
         input.calipers = self.doc.calipers.clone();
         input.ledger = export_ledger(&rows);
         // The Ledger's range notes, which follow the reader's values.
-        input.notes = rows.iter().filter_map(|r| r.note.clone()).collect();
+        let notes: Vec<RangeNote> = rows.iter().filter_map(|r| r.note.clone()).collect();
+        input.notes = ranges::condensed(&notes);
         let pixmap = render::render_page(&input)?;
         let bytes = render::encode_png(&pixmap, EXPORT_DPI)?;
         render::write_png_atomic(path, &bytes)?;

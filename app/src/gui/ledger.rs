@@ -3,7 +3,7 @@
 //! measurement on the review's marks, with values the reader typed or took from a caliper taking precedence
 //! (QTc then follows the reviewed QT and RR through `measure::qtc_checked`).
 
-use isoline_core::measure::{self, MeasuredValue, Sex, Template, ranges};
+use isoline_core::measure::{self, MeasuredValue, RangeNote, Sex, Template, ranges};
 
 use super::command::Command;
 use super::state::{Document, Loaded, Origin};
@@ -24,7 +24,7 @@ pub struct LedgerRow {
     /// Where the reviewed value came from.
     pub origin: Option<Origin>,
     /// Range note with its source, when the reviewed value is outside the usual range.
-    pub note: Option<String>,
+    pub note: Option<RangeNote>,
 }
 
 impl LedgerRow {
@@ -72,7 +72,7 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
             auto: a.value,
             reviewed: r.value,
             origin: origin(a.value, r.value),
-            note: r.note.as_ref().map(|n| n.text.clone()),
+            note: r.note.clone(),
         })
         .collect()
 }
@@ -194,7 +194,7 @@ pub fn ledger_ui(
             ui.label(r.unit);
             match &r.note {
                 // The whole note (with its source) on hover: a narrow panel shows only its start.
-                Some(n) => ui.colored_label(ui.visuals().warn_fg_color, n).on_hover_text(n.as_str()),
+                Some(n) => ui.colored_label(ui.visuals().warn_fg_color, &n.text).on_hover_text(n.text.as_str()),
                 None => ui.label(""),
             };
             ui.end_row();

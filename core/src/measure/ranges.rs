@@ -36,6 +36,21 @@ pub struct RangeNote {
     pub text: String,
     /// Where the range comes from.
     pub source: &'static str,
+    /// For a QTc note, its parts, so the notes of several formulas that break the same limit can be told as
+    /// one ([`condensed`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub qtc: Option<QtcFinding>,
+}
+
+/// The parts of a QTc note: `QTc ({formula}) {ms} ms — {finding}`.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct QtcFinding {
+    /// Formula name (`Bazett`, …).
+    pub formula: String,
+    /// The QTc, ms.
+    pub ms: f64,
+    /// The limit it breaks, with its source (`above 500 ms (Johnson & Ackerman 2009, …)`).
+    pub finding: String,
 }
 
 /// Source of the QRS duration limits.
@@ -53,7 +68,7 @@ pub const SOURCE_EINTHOVEN: &str = "Einthoven's law; Goldberger 1942, Am Heart J
 pub const SOURCE_COMMON: &str = "common practice";
 
 fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
-    Some(RangeNote { key: key.to_string(), text, source })
+    Some(RangeNote { key: key.to_string(), text, source, qtc: None })
 }
 
 /// Heart rate outside 60–100 bpm (references.md §4: textbook resting range).
@@ -108,26 +123,76 @@ pub fn qrs(ms: f64) -> Option<RangeNote> {
 /// al. 2009 — from memory), > 500 ms (Johnson & Ackerman 2009).
 #[must_use]
 pub fn qtc(key: &str, formula: &str, ms: f64, sex: Sex) -> Option<RangeNote> {
-    let head = format!("QTc ({formula}) {ms:.0} ms");
+    let (finding, source) = qtc_finding(ms, sex)?;
+    Some(RangeNote {
+        key: key.to_string(),
+        text: format!("QTc ({formula}) {ms:.0} ms — {finding}"),
+        source,
+        qtc: Some(QtcFinding { formula: formula.to_string(), ms, finding }),
+    })
+}
+
+/// The QTc limit `ms` breaks, as text with its source, and the source.
+fn qtc_finding(ms: f64, sex: Sex) -> Option<(String, &'static str)> {
     if ms > 500.0 {
-        return note(key, format!("{head} — above 500 ms ({SOURCE_QTC_500})"), SOURCE_QTC_500);
+        return Some((format!("above 500 ms ({SOURCE_QTC_500})"), SOURCE_QTC_500));
     }
     // From memory: Rautaharju et al. 2009 limits (references.md §4).
     let text = match sex {
-        Sex::Female if ms >= 460.0 => {
-            format!("{head} — at or above the usual upper limit of 460 ms for women (Rautaharju et al. 2009)")
+        Sex::Female if ms >= 460.0 => "at or above the usual upper limit of 460 ms for women",
+        Sex::Male if ms >= 450.0 => "at or above the usual upper limit of 450 ms for men",
+        Sex::Unknown if ms >= 450.0 => {
+            "at or above the usual upper limit of 450 ms for men (460 ms for women; sex not recorded)"
         }
-        Sex::Male if ms >= 450.0 => {
-            format!("{head} — at or above the usual upper limit of 450 ms for men (Rautaharju et al. 2009)")
-        }
-        Sex::Unknown if ms >= 450.0 => format!(
-            "{head} — at or above the usual upper limit of 450 ms for men (460 ms for women; sex not recorded) \
-             (Rautaharju et al. 2009)"
-        ),
-        _ if ms <= 390.0 => format!("{head} — at or below the usual lower limit of 390 ms (Rautaharju et al. 2009)"),
+        _ if ms <= 390.0 => "at or below the usual lower limit of 390 ms",
         _ => return None,
     };
-    note(key, text, SOURCE_QTC)
+    Some((format!("{text} (Rautaharju et al. 2009)"), SOURCE_QTC))
+}
+
+/// The notes as lines for a page or a report: the QTc notes of several formulas that break the same limit
+/// become one line, where the first of them stood (`QTc 520 ms by Bazett, Fridericia and Hodges — above
+/// 500 ms (…)`, or with each formula's value when they differ); every other note is its own line.
+#[must_use]
+pub fn condensed(notes: &[RangeNote]) -> Vec<String> {
+    let mut out: Vec<String> = Vec::with_capacity(notes.len());
+    let mut done = vec![false; notes.len()];
+    for (i, n) in notes.iter().enumerate() {
+        if done[i] {
+            continue;
+        }
+        let Some(q) = &n.qtc else {
+            out.push(n.text.clone());
+            continue;
+        };
+        let same: Vec<&QtcFinding> = notes[i..]
+            .iter()
+            .zip(&mut done[i..])
+            .filter_map(|(m, d)| m.qtc.as_ref().filter(|x| x.finding == q.finding).inspect(|_| *d = true))
+            .collect();
+        if same.len() == 1 {
+            out.push(n.text.clone());
+            continue;
+        }
+        let names: Vec<&str> = same.iter().map(|x| x.formula.as_str()).collect();
+        let one_value = same.iter().all(|x| x.ms.round() == q.ms.round());
+        out.push(if one_value {
+            format!("QTc {:.0} ms by {} — {}", q.ms, listed(&names), q.finding)
+        } else {
+            let each: Vec<String> = same.iter().map(|x| format!("{} {:.0} ms", x.formula, x.ms)).collect();
+            format!("QTc by {} — {}", listed(&each.iter().map(String::as_str).collect::<Vec<_>>()), q.finding)
+        });
+    }
+    out
+}
+
+/// `a`, `a and b`, `a, b and c`.
+fn listed(items: &[&str]) -> String {
+    match items {
+        [] => String::new(),
+        [one] => (*one).to_string(),
+        [head @ .., last] => format!("{} and {last}", head.join(", ")),
+    }
 }
 
 /// QRS axis outside −30° to +90° (references.md §4: textbook frontal axis ranges).
@@ -178,6 +243,7 @@ pub fn rr_variation(cv: f64) -> Option<RangeNote> {
             limit * 100.0
         ),
         source: SOURCE_COMMON,
+        qtc: None,
     })
 }
 
@@ -200,6 +266,31 @@ mod tests {
         assert!(qtc("k", "Bazett", 420.0, Sex::Unknown).is_none());
         assert!(qtc("k", "Bazett", 385.0, Sex::Male).is_some());
         assert_eq!(qtc("k", "Bazett", 520.0, Sex::Female).map(|n| n.source), Some(SOURCE_QTC_500));
+    }
+
+    #[test]
+    fn qtc_notes_breaking_one_limit_read_as_one_line() {
+        let five = [("Bazett", 520.0), ("Fridericia", 520.0), ("Framingham", 519.6), ("Hodges", 520.4)];
+        let notes: Vec<RangeNote> =
+            five.iter().filter_map(|&(f, ms)| qtc("k", f, ms, Sex::Male)).chain(pr(230.0)).collect();
+        assert_eq!(
+            condensed(&notes),
+            vec![
+                "QTc 520 ms by Bazett, Fridericia, Framingham and Hodges — above 500 ms (Johnson & Ackerman 2009, \
+                 Br J Sports Med)"
+                    .to_string(),
+                notes[4].text.clone(),
+            ]
+        );
+        // Different values and limits: one line per limit, each formula with its own value.
+        let mixed: Vec<RangeNote> = [("Bazett", 530.0), ("Fridericia", 470.0), ("Hodges", 505.0)]
+            .iter()
+            .filter_map(|&(f, ms)| qtc("k", f, ms, Sex::Male))
+            .collect();
+        let lines = condensed(&mixed);
+        assert_eq!(lines.len(), 2);
+        assert!(lines[0].starts_with("QTc by Bazett 530 ms and Hodges 505 ms — above 500 ms"), "{}", lines[0]);
+        assert_eq!(lines[1], mixed[1].text);
     }
 
     #[test]

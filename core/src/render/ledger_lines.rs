@@ -2,7 +2,7 @@
 //! values and units are written. The command line and the workstation both build their box here.
 
 use super::LedgerLine;
-use crate::measure::Measurements;
+use crate::measure::{Measurements, RangeNote, ranges};
 use crate::review::{Review, Stage};
 
 /// Measurement keys the box always lists (when measured or reviewed), in order. Any other measurement follows
@@ -81,7 +81,8 @@ pub fn ledger_lines(measurements: &Measurements, review: Option<&Review>) -> Vec
 
 /// The notes for a page made by the command line: the range notes of the automatic values (with their sources,
 /// see [`Measurements::notes`]), leaving out the note of a value the reader changed in `review` — the box prints
-/// the reader's value, and a note on the automatic one would no longer describe it.
+/// the reader's value, and a note on the automatic one would no longer describe it. QTc notes breaking one limit
+/// share a line ([`ranges::condensed`]).
 #[must_use]
 pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec<String> {
     let auto = measurements.values();
@@ -90,7 +91,8 @@ pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec
         let own = auto.iter().find(|v| v.key == key).and_then(|v| v.value);
         stored.is_some_and(|x| own.is_none_or(|a| (a - x).abs() > 1e-9))
     };
-    measurements.notes().into_iter().filter(|n| !changed(&n.key)).map(|n| n.text).collect()
+    let kept: Vec<RangeNote> = measurements.notes().into_iter().filter(|n| !changed(&n.key)).collect();
+    ranges::condensed(&kept)
 }
 
 /// Header fields naming the reader (when known) and the stage: `Reader: AB`, `Stage: checked`.
@@ -166,8 +168,10 @@ mod tests {
             ..Measurements::default()
         };
         let all = ledger_notes(&m, None);
-        assert_eq!(all.len(), 6, "{all:#?}"); // QRS and five QTc
-        assert!(all[0].starts_with("QRS 130 ms") && all[1].starts_with("QTc (Bazett) 560 ms"), "{all:#?}");
+        // QRS, and the five QTc notes as one line.
+        assert_eq!(all.len(), 2, "{all:#?}");
+        assert!(all[0].starts_with("QRS 130 ms"), "{all:#?}");
+        assert!(all[1].starts_with("QTc 560 ms by Bazett, Fridericia, Framingham, Hodges and Rautaharju"), "{all:#?}");
         let id = RecordingIdentity::example();
         let mut r = Review::new(id, "AB");
         for v in m.values().iter().filter(|v| v.lead.is_none()) {

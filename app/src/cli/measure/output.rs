@@ -3,7 +3,7 @@
 use std::collections::BTreeSet;
 use std::fmt::Write as _;
 
-use isoline_core::measure::Measurements;
+use isoline_core::measure::{Measurements, ranges};
 use isoline_core::recording::{LeadName, StandardLead};
 
 /// One measured recording.
@@ -62,7 +62,7 @@ pub fn json_value(row: &Row) -> serde_json::Value {
         },
         "axis_deg": { "p": r2(m.axes.p_deg), "qrs": r2(m.axes.qrs_deg), "t": r2(m.axes.t_deg) },
         "st_uv": st,
-        "notes": m.notes().into_iter().map(|n| n.text).collect::<Vec<_>>(),
+        "notes": ranges::condensed(&m.notes()),
     })
 }
 
@@ -169,8 +169,7 @@ pub fn to_csv(rows: &[Row]) -> String {
             num(m.axes.t_deg),
         ];
         cells.extend(leads.iter().map(|l| num(m.st_j60(l))));
-        let notes: Vec<String> = m.notes().into_iter().map(|n| n.text).collect();
-        cells.push(csv_field(&notes.join("; ")));
+        cells.push(csv_field(&ranges::condensed(&m.notes()).join("; ")));
         out.push_str(&cells.join(","));
         out.push('\n');
     }
@@ -216,11 +215,11 @@ pub fn to_table(rows: &[Row]) -> String {
         );
     }
     for r in rows {
-        let notes = r.m.notes();
+        let notes = ranges::condensed(&r.m.notes());
         if !notes.is_empty() {
             let _ = writeln!(out, "\n{}: rhythm {}", r.file, r.m.rr.rhythm.describe());
             for n in notes {
-                let _ = writeln!(out, "  {}", n.text);
+                let _ = writeln!(out, "  {n}");
             }
         }
     }
