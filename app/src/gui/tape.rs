@@ -51,7 +51,7 @@ pub fn tape_ui(
         .y_axis_min_width(AXIS_WIDTH)
         .x_axis_formatter(|m, _| clock(m.value))
         .x_grid_spacer(clock_marks)
-        .default_x_bounds(0.0, duration.max(1.0))
+        .default_x_bounds(0.0, x_end(duration))
         .show(ui, |p| {
             p.add(FilledArea::new(lead_name.as_str(), &xs, &lo, &hi).fill_color(fill));
             p.add(window(y_lo, y_hi));
@@ -80,7 +80,7 @@ pub fn tape_ui(
             .y_axis_min_width(AXIS_WIDTH)
             .x_axis_formatter(|m, _| clock(m.value))
             .x_grid_spacer(clock_marks)
-            .default_x_bounds(0.0, duration.max(1.0))
+            .default_x_bounds(0.0, x_end(duration))
             .include_y(r_lo)
             .include_y(r_hi)
             .show(ui, |p| {
@@ -127,6 +127,12 @@ pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>
 fn thin(points: &[[f64; 2]], columns: usize) -> Vec<[f64; 2]> {
     let step = points.len().div_ceil(2 * columns.max(1)).max(1);
     points.iter().step_by(step).copied().collect()
+}
+
+/// Right end of the Tape's time axis, s: the recording's end and a little room, so the label of a mark at the
+/// very end is not cut off.
+fn x_end(duration: f64) -> f64 {
+    duration.max(1.0) * 1.03
 }
 
 /// Time-axis grid on clock steps (hours, minutes, seconds) instead of decimal fractions of the duration.
