@@ -133,6 +133,32 @@ fn ludb_reference_p_onset_scatters_more_than_the_goal_allows() {
     assert!(s1 > 15.0 && s2 < s1, "earliest {s1:.1}, second {s2:.1}");
 }
 
+#[test]
+fn ludb_p_onset_against_the_second_earliest_lead() -> Result<(), String> {
+    // The same P onsets as in `ludb_global_boundaries`, scored against the second-earliest of the 12 per-lead
+    // marks instead of the earliest (one outlying lead's mark left out; on LUDB 5 one beat's earliest mark is
+    // V6's, 84–114 ms before the eleven other leads'). Against this reference the P onset goal holds (measured
+    // −3.1 ± 13.6 ms, 308 beats); against the earliest mark it does not (+6.9 ± 22.9). Source: LUDB per-lead
+    // annotations (Kalyakulina et al., IEEE Access 2020;8:186181-90); goal from the measurement-engine issue.
+    let mut pooled = BoundaryErrors::default();
+    for n in 1..=50 {
+        let Ok(mut reference) = read_reference_csv(&data(&format!("ludb/{n}.global.csv"))) else { continue };
+        let (recording, beats) = beats_of(&data(&format!("ludb/{n}.hea")))?;
+        let second = second_earliest_p_onsets(n, &reference);
+        for (b, (p, _)) in reference.iter_mut().zip(second) {
+            // Only beats the experts gave a P wave keep one.
+            b.marks[0] = b.marks[0].and(p);
+        }
+        let det: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
+        pooled.add(&score_boundaries(&reference, &det, recording.sample_rate.hz()));
+    }
+    let (m, s) = pooled.mean_sd(0).ok_or("no P onset errors")?;
+    println!("LUDB P onset vs the second-earliest lead: {m:+.1} ± {s:.1} ms (n {})", pooled.errors[0].len());
+    assert!(m.abs() <= GOALS[0].0 && s <= GOALS[0].1, "P onset {m:+.1} ± {s:.1} ms");
+    assert!(pooled.found(0) >= 0.95, "P onset found for {:.1} %", 100.0 * pooled.found(0));
+    Ok(())
+}
+
 /// For each beat of `reference` (LUDB record `n`): the second-earliest P onset over the 12 per-lead annotation
 /// files and the global QRS onset, samples.
 fn second_earliest_p_onsets(n: usize, reference: &[BeatMarks]) -> Vec<(Option<f64>, Option<f64>)> {
