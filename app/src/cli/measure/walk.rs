@@ -71,7 +71,8 @@ fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
             (e.path(), is_dir)
         })
         .collect();
-    paths.sort();
+    // Numbered records in their numbers' order (2 before 10), as a reader lists them.
+    paths.sort_by(|(a, _), (b, _)| alphanumeric_sort::compare_path(a, b));
     for (path, is_dir) in paths {
         if is_dir {
             walk_dir(&path, depth + 1, found);
@@ -82,8 +83,8 @@ fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
 }
 
 /// Expands the command-line paths: a file is taken as given (whatever its extension); a folder is walked for
-/// `.hea` and `.edf` files and `.csv` files whose header row starts with `time_s` (sorted by path); a path that
-/// does not exist is an error.
+/// `.hea` and `.edf` files and `.csv` files whose header row starts with `time_s` (sorted by path, numbers by
+/// value: `2.hea` before `10.hea`); a path that does not exist is an error.
 #[must_use]
 pub fn find_recordings(inputs: &[PathBuf]) -> Found {
     let mut found = Found::default();
@@ -126,6 +127,19 @@ mod tests {
         // A file named on the command line is always attempted, whatever it holds.
         let labels = dir.path().join("labels.csv");
         assert_eq!(find_recordings(std::slice::from_ref(&labels)).files, [labels]);
+        Ok(())
+    }
+
+    #[test]
+    fn numbered_records_come_in_numeric_order() -> std::io::Result<()> {
+        let dir = tempfile::tempdir()?;
+        for name in ["10.hea", "2.hea", "1.hea", "bed-12.edf", "bed-9.edf"] {
+            std::fs::write(dir.path().join(name), b"x")?;
+        }
+        let found = find_recordings(&[dir.path().to_path_buf()]);
+        let names: Vec<String> =
+            found.files.iter().filter_map(|p| p.file_name()).map(|n| n.to_string_lossy().into_owned()).collect();
+        assert_eq!(names, ["1.hea", "2.hea", "10.hea", "bed-9.edf", "bed-12.edf"]);
         Ok(())
     }
 
