@@ -210,8 +210,9 @@ pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
     note(
         "axis_qrs_deg",
         format!(
-            "QRS axis {deg:.0}° — outside the usual range of −30° to +90°, {side} \
-        ({SOURCE_TEXTBOOK})"
+            "QRS axis {}° — outside the usual range of −30° to +90°, {side} \
+        ({SOURCE_TEXTBOOK})",
+            format!("{deg:.0}").replacen('-', "\u{2212}", 1)
         ),
         SOURCE_TEXTBOOK,
     )
@@ -302,6 +303,8 @@ mod tests {
         assert!(heart_rate(55.0).is_some() && heart_rate(75.0).is_none() && heart_rate(110.0).is_some());
         assert!(qrs_axis(-45.0).is_some() && qrs_axis(60.0).is_none() && qrs_axis(120.0).is_some());
         assert!(qrs_axis(-30.0).is_none() && qrs_axis(-150.0).is_some());
+        // A negative axis is printed with the minus sign the range uses.
+        assert!(qrs_axis(-45.0).is_some_and(|n| n.text.starts_with("QRS axis \u{2212}45° —")));
         assert!(rr_variation(0.04).is_none() && rr_variation(0.2).is_some());
         assert_eq!(Sex::parse(Some(" F ")), Sex::Female);
         assert_eq!(Sex::parse(Some("male")), Sex::Male);
