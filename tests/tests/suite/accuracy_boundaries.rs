@@ -94,7 +94,7 @@ fn ludb_global_boundaries() -> Result<(), String> {
     println!("pooled LUDB: {}", pooled.summary());
     // Source: goals of the measurement-engine issue. Not all are met yet on LUDB's global (12-lead extreme)
     // boundaries: P onset SD. These bounds sit just above what the method achieves today (measured: P on
-    // +6.8 ± 22.9, QRS on +8.2 ± 9.5, QRS end −9.0 ± 11.5, T end −4.5 ± 28.9 ms), so a regression fails.
+    // +6.8 ± 22.9, QRS on +8.2 ± 9.5, QRS end −9.0 ± 11.6, T end −4.5 ± 28.9 ms), so a regression fails.
     check(&pooled, [(9.5, 23.5), (8.7, 10.0), (9.5, 11.9), (5.0, 29.5)], 0.95);
     Ok(())
 }

@@ -8,6 +8,7 @@ mod review_support;
 mod accuracy_boundaries;
 mod accuracy_detection;
 mod accuracy_intervals;
+mod accuracy_noise;
 mod accuracy_rhythm;
 mod accuracy_typing;
 mod accuracy_windowed;

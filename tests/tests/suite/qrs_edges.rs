@@ -81,7 +81,7 @@ fn clean_scenarios_qrs_edges_match_the_truth() {
 #[test]
 #[ignore = "with noise (muscle 25 µV RMS, 50 Hz 40 µV, wander 150 µV; 6 seeds) the low-pass spread is not \
             corrected (the unfiltered leads do not resolve the threshold): representative onset 2-5 samples \
-            early, end 0-2 late, QRS 96-100 ms on 90 ms, 140-146 on 140"]
+            early, end 0-2 late, QRS 98-102 ms on 90 ms, 142-146 on 140"]
 fn noisy_scenarios_qrs_edges_match_the_truth() {
     let noise = Scenario::Noisy.spec().noise;
     let mut bad = Vec::new();

@@ -1,0 +1,122 @@
+//! Beat detection and wave boundaries on the real records with noise added: band-limited muscle noise and a
+//! 0.3 Hz baseline wander (the demo generator's noise, `isoline_core::synth::noise`) in every lead, each at a
+//! set signal-to-noise ratio. Run with `--nocapture` to see every record's figures.
+//!
+//! SNR as in the MIT-BIH Noise Stress Test Database: signal power = (median QRS peak-to-peak amplitude)² / 8,
+//! noise power = mean square of the added noise, per lead. Source: Moody, Muldrow & Mark, Computers in Cardiology
+//! 1984;11:381-4 (from memory: the peak-to-peak² / 8 signal power). Annotations: Moody & Mark 2001 (MIT-BIH);
+//! Laguna et al., Computers in Cardiology 1997;24:673-6 (QT Database, cardiologist 1); scored as ANSI/AAMI EC57
+//! does (150 ms window).
+
+use isoline_core::Recording;
+use isoline_core::synth::noise::{self, NoiseSpec};
+use isoline_core::{delineate, detect, filter, io};
+use isoline_tests::data;
+use isoline_tests::score::{
+    BeatMarks, BoundaryErrors, Detection, KEYS, read_reference_csv, score_boundaries, score_detection,
+};
+
+const RECORDS: [&str; 7] =
+    ["mitdb-100/100", "qtdb/sel100", "qtdb/sel117", "qtdb/sel16265", "qtdb/sel803", "qtdb/sele0104", "qtdb/sel14046"];
+
+/// Muscle noise and wander of equal RMS added to every lead of `rec` at `snr_db` against that lead's median QRS
+/// peak-to-peak amplitude around the reference beats `refs` (samples). Seeded: the same every run.
+fn with_noise(rec: &mut Recording, refs: &[f64], snr_db: f64) {
+    let fs = rec.sample_rate.hz();
+    let half = (0.060 * fs) as usize;
+    for (i, lead) in rec.leads.iter_mut().enumerate() {
+        let x = &lead.samples;
+        let mut p2p: Vec<f32> = refs
+            .iter()
+            .map(|&r| r as usize)
+            .filter(|&r| r > half && r + half < x.len())
+            .map(|r| {
+                let w = &x[r - half..r + half];
+                w.iter().copied().fold(f32::MIN, f32::max) - w.iter().copied().fold(f32::MAX, f32::min)
+            })
+            .collect();
+        if p2p.is_empty() {
+            continue;
+        }
+        let mid = p2p.len() / 2;
+        let amplitude = f64::from(*p2p.select_nth_unstable_by(mid, f32::total_cmp).1);
+        let rms = amplitude / 8f64.sqrt() / 10f64.powf(snr_db / 20.0);
+        // Wander: a sinusoid of peak √2 × RMS; muscle noise: RMS as given. Each carries the noise power once, so
+        // together they hold twice the power of one at this SNR (3 dB more noise than the SNR says).
+        let spec = NoiseSpec {
+            baseline_uv: rms * 2f64.sqrt(),
+            baseline_hz: 0.3,
+            mains_uv: 0.0,
+            mains_hz: 50.0,
+            muscle_uv: rms,
+        };
+        noise::add(&mut lead.samples, fs, &spec, 7, i as u64);
+    }
+}
+
+/// Detection and boundary errors of every record at `snr_db`, printed per record.
+fn run(snr_db: f64) -> Result<(Detection, BoundaryErrors), String> {
+    let (mut detection, mut bounds) = (Detection::default(), BoundaryErrors::default());
+    for rec in RECORDS {
+        let mut recording =
+            io::open(&data(&format!("{rec}.hea")), &io::OpenOptions::default()).map_err(|e| e.to_string())?.recording;
+        let fs = recording.sample_rate.hz();
+        let refs: Vec<f64> = read_reference_csv(&data(&format!("{rec}.beats.csv")))?.iter().map(|b| b.r).collect();
+        with_noise(&mut recording, &refs, snr_db);
+        let filtered = filter::apply(&recording, &filter::FilterSettings::default());
+        let mut beats = detect::detect_beats(&filtered.recording);
+        delineate::delineate_beats(&filtered.recording, &mut beats);
+        let d = score_detection(&refs, &beats.iter().map(|b| b.r as f64).collect::<Vec<_>>(), fs);
+        let mut line = format!("{snr_db:>4} dB {rec}: Se {:.2} % +P {:.2} %", d.se(), d.ppv());
+        detection.add(d);
+        let q1c = data(&format!("{rec}.q1c.csv"));
+        if q1c.exists() {
+            let marks: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
+            let e = score_boundaries(&read_reference_csv(&q1c)?, &marks, fs);
+            for k in 0..4 {
+                if let Some((m, s)) = e.mean_sd(k) {
+                    line.push_str(&format!("  {} {m:+.1}±{s:.1}", KEYS[k]));
+                }
+            }
+            bounds.add(&e);
+        }
+        println!("{line}");
+    }
+    println!(
+        "{snr_db:>4} dB pooled: Se {:.3} % +P {:.3} %; boundaries vs cardiologist 1: {}",
+        detection.se(),
+        detection.ppv(),
+        bounds.summary()
+    );
+    Ok((detection, bounds))
+}
+
+#[test]
+fn detection_holds_in_noise() -> Result<(), String> {
+    // Goal of the measurement-engine issue (≥ 99.5 % pooled) held down to 6 dB. Measured: 100 % / 100 % at
+    // 12 dB, 99.99 % / 99.99 % at 6 dB (one beat of sel14046 missed and one extra).
+    for snr in [12.0, 6.0] {
+        let (d, _) = run(snr)?;
+        assert!(d.se() >= 99.5 && d.ppv() >= 99.5, "{snr} dB: Se {:.3} +P {:.3}", d.se(), d.ppv());
+    }
+    Ok(())
+}
+
+#[test]
+fn boundaries_hold_in_moderate_noise() -> Result<(), String> {
+    // At 18 dB every boundary goal of the measurement-engine issue still holds (measured: P on −4.7 ± 12.4,
+    // QRS on +5.9 ± 8.9, J +8.4 ± 11.7, T end +0.2 ± 26.5 ms). At 12 dB the J point stays within its goal
+    // (measured +4.7 ± 14.7 ms; +25.0 ± 24.1 before the QRS end had a noise floor), while P and QRS onset do not
+    // (P on −13.4 ± 19.6, QRS on +11.9 ± 10.9): regression bounds just above today's figures.
+    let goals = [(10.0, 15.0), (10.0, 10.0), (10.0, 12.0), (25.0, 30.0)];
+    let (_, b) = run(18.0)?;
+    for (k, (mean, sd)) in goals.iter().enumerate() {
+        let (m, s) = b.mean_sd(k).ok_or("no errors")?;
+        assert!(m.abs() <= *mean && s <= *sd, "18 dB {}: {m:+.1} ± {s:.1} ms", KEYS[k]);
+        assert!(b.found(k) >= 0.95, "18 dB {}: found for {:.1} %", KEYS[k], 100.0 * b.found(k));
+    }
+    let (_, b) = run(12.0)?;
+    let (m, s) = b.mean_sd(2).ok_or("no J errors")?;
+    assert!(m.abs() <= 6.0 && s <= 15.5, "12 dB J point {m:+.1} ± {s:.1} ms");
+    Ok(())
+}
