@@ -73,9 +73,9 @@ fn run(snr_db: f64) -> Result<(Detection, BoundaryErrors), String> {
         if q1c.exists() {
             let marks: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
             let e = score_boundaries(&read_reference_csv(&q1c)?, &marks, fs);
-            for k in 0..4 {
+            for (k, key) in KEYS.iter().enumerate() {
                 if let Some((m, s)) = e.mean_sd(k) {
-                    line.push_str(&format!("  {} {m:+.1}±{s:.1}", KEYS[k]));
+                    line.push_str(&format!("  {key} {m:+.1}±{s:.1}"));
                 }
             }
             bounds.add(&e);
