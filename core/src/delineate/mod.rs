@@ -16,6 +16,18 @@ pub use median::{RepresentativeBeat, representative_beat, representative_beat_wi
 pub use pwave::PModel;
 pub use signals::Signals;
 
+/// Each voting lead's QRS onset and end around R peak `r` (lead index, onset, end), for analysis tools.
+#[doc(hidden)]
+#[must_use]
+pub fn qrs_lead_edges(
+    sig: &Signals,
+    r: usize,
+    min_start: usize,
+    max_end: usize,
+) -> Vec<(usize, Option<usize>, Option<usize>)> {
+    qrs::lead_edges(sig, r, min_start, max_end)
+}
+
 use crate::beat::{Beat, BeatKind, Boundaries};
 use crate::recording::Recording;
 

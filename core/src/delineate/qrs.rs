@@ -69,9 +69,26 @@ const END_REACH_S: f64 = 0.120;
 /// QRS onset and J point around R peak `r`, as sample indices. `None` where no lead gives a clear edge.
 #[must_use]
 pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> (Option<usize>, Option<usize>) {
+    let edges = lead_edges(sig, r, min_start, max_end);
+    let mut onsets: Vec<usize> = edges.iter().filter_map(|e| e.1).collect();
+    let mut ends: Vec<usize> = edges.iter().filter_map(|e| e.2).collect();
+    onsets.sort_unstable();
+    ends.sort_unstable_by(|a, b| b.cmp(a));
+    (agreed_first(&onsets, sig.samples(AGREE_S)), agreed_first(&ends, sig.samples(AGREE_S)))
+}
+
+/// Each voting lead's QRS onset and end around R peak `r`, as (lead index, onset, end); [`qrs_bounds`] combines
+/// them. Empty where no lead gives a clear QRS.
+#[must_use]
+pub fn lead_edges(
+    sig: &Signals,
+    r: usize,
+    min_start: usize,
+    max_end: usize,
+) -> Vec<(usize, Option<usize>, Option<usize>)> {
     let n = sig.len();
     if n == 0 || r >= n {
-        return (None, None);
+        return Vec::new();
     }
     let lo = r.saturating_sub(sig.samples(0.120)).max(min_start);
     // After a pacing spike between the search start and R, the QRS can only start once the artefact is over.
@@ -83,14 +100,14 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
     };
     let hi = (r + sig.samples(0.150)).min(n - 1).min(max_end);
     if lo >= hi {
-        return (None, None);
+        return Vec::new();
     }
     let near = (r.saturating_sub(sig.samples(0.060)).max(lo), (r + sig.samples(0.060)).min(hi));
     // Steep part from the multi-lead envelope: the first and last samples at ≥ STEEP of its peak near R.
     let g = &sig.env;
     let g_peak = (near.0..=near.1).map(|k| g[k]).fold(0.0f32, f32::max);
     if g_peak <= 0.0 {
-        return (None, None);
+        return Vec::new();
     }
     let first = (lo..=r).find(|&k| g[k] >= STEEP * g_peak).unwrap_or(r);
     let last = (r..=hi).rev().find(|&k| g[k] >= STEEP * g_peak).unwrap_or(r);
@@ -115,19 +132,17 @@ pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> 
         .collect();
     let top = envs.iter().map(|(_, p)| *p).fold(0.0f32, f32::max);
     if top <= 0.0 {
-        return (None, None);
+        return Vec::new();
     }
-    let mut onsets = Vec::new();
-    let mut ends = Vec::new();
-    for (i, (e, peak)) in envs.iter().enumerate().filter(|(_, (_, p))| *p >= CLEAR_LEAD * top) {
-        let lead = Lead { x: &sig.wide[i], q: &sig.qrs[i] };
-        let noise = win.noise_before(e, first, sig);
-        onsets.extend(noise.and_then(|n| win.onset(e, lead, *peak, n, first, sig)));
-        ends.extend(win.end(e, lead, *peak, noise, last, sig));
-    }
-    onsets.sort_unstable();
-    ends.sort_unstable_by(|a, b| b.cmp(a));
-    (agreed_first(&onsets, sig.samples(AGREE_S)), agreed_first(&ends, sig.samples(AGREE_S)))
+    envs.iter()
+        .enumerate()
+        .filter(|(_, (_, p))| *p >= CLEAR_LEAD * top)
+        .map(|(i, (e, peak))| {
+            let lead = Lead { x: &sig.wide[i], q: &sig.qrs[i] };
+            let noise = win.noise_before(e, first, sig);
+            (i, noise.and_then(|n| win.onset(e, lead, *peak, n, first, sig)), win.end(e, lead, *peak, noise, last, sig))
+        })
+        .collect()
 }
 
 /// The first entry of `v` (ascending onsets or descending ends) that the next one follows within `agree` samples;

@@ -22,6 +22,7 @@ mod measure_synth;
 mod measure_synth_long_pr;
 mod measure_synth_p;
 mod qrs_edges;
+mod qrs_leads;
 mod render_geometry;
 mod render_privacy;
 mod render_snapshot;
