@@ -5,6 +5,7 @@ use super::RenderInput;
 use super::canvas::Canvas;
 use super::text::{Align, Fonts, Style};
 use crate::paper::{Palette, margins};
+use crate::timescale::clock;
 
 /// Header text: the first line's title and paper settings, then lines of fields.
 pub(super) struct Header {
@@ -38,7 +39,10 @@ pub(super) fn header(input: &RenderInput) -> Header {
     for (k, v) in &input.header {
         fields.push(format!("{k}: {v}"));
     }
-    fields.push(format!("Window: {:.2}\u{2013}{:.2} s", spec.start_s, spec.start_s + spec.seconds));
+    let (a, b) = (spec.start_s, spec.start_s + spec.seconds);
+    // In a recording of an hour or more, the elapsed clock time too: 43200 s is hard to place in a Holter day.
+    let clock = if rec.duration_s() >= 3600.0 { format!(" ({}\u{2013}{})", clock(a), clock(b)) } else { String::new() };
+    fields.push(format!("Window: {a:.2}\u{2013}{b:.2} s{clock}"));
     fields.push(format!("Layout: {} ({})", spec.layout, spec.order.as_str()));
     fields.push(format!("{} Hz", rec.sample_rate.hz()));
     let meta = if input.identify { rec.meta.clone() } else { rec.meta.deidentified() };
@@ -119,5 +123,35 @@ pub(super) fn draw_footer(canvas: &mut Canvas, fonts: &Fonts, lines: &[String], 
     for l in lines {
         fonts.draw(canvas, l, margins::LEFT_MM, y, st, Align::Left);
         y += Fonts::line_mm(st);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::paper::PageSpec;
+    use crate::recording::{Lead, LeadName, Meta, Recording};
+    use crate::units::Hertz;
+
+    fn recording(seconds: usize) -> Recording {
+        Recording {
+            leads: vec![Lead { name: LeadName::parse("II"), samples: vec![0.0; seconds * 10] }],
+            sample_rate: Hertz::from_hz(10.0).unwrap_or_else(|_| unreachable!()),
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn a_long_recordings_window_also_reads_as_clock_time() {
+        let spec = PageSpec { start_s: 43_200.0, seconds: 10.0, ..PageSpec::default() };
+        let day = recording(86_400);
+        let line = header_lines(&RenderInput::new(&day, spec, 100.0))[1].clone();
+        assert!(line.contains("Window: 43200.00\u{2013}43210.00 s (12:00:00\u{2013}12:00:10)"), "{line}");
+        let spec = PageSpec { start_s: 0.0, seconds: 10.0, ..PageSpec::default() };
+        let short = recording(10);
+        let line = header_lines(&RenderInput::new(&short, spec, 100.0))[1].clone();
+        assert!(line.contains("Window: 0.00\u{2013}10.00 s   "), "{line}");
     }
 }
