@@ -6,7 +6,8 @@
 //! noisy lead stops where the QRS rises out of (sinks into) its noise. Leads with a clear QRS vote: the global
 //! onset is the earliest lead onset that another lead confirms within [`AGREE_S`], and the J point the latest
 //! end that another lead confirms (the usual 12-lead global QRS runs from the first lead to start to the last
-//! to finish; one lead alone is more often noise). A pacing spike before the QRS bounds the onset search: the QRS starts after the stimulus artefact.
+//! to finish; one lead alone is more often noise). A pacing spike before the QRS bounds the onset search: the
+//! QRS starts after the stimulus artefact.
 //!
 //! The zero-phase low-pass and the smoothing spread an abrupt start (end) of a deflection a few samples outward,
 //! so the smoothed slope crosses the threshold 1–3 samples before the lead leaves (after it regains) its level.
