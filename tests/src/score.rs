@@ -281,12 +281,18 @@ pub fn group_wave_annotations(anns: &[Annotation], fs: f64) -> Vec<BeatMarks> {
 /// # Errors
 /// The reader's message.
 pub fn beats_of(path: &Path) -> Result<(isoline_core::Recording, Vec<Beat>), String> {
-    use isoline_core::{delineate, detect, filter, io};
-    let opened = io::open(path, &io::OpenOptions::default()).map_err(|e| e.to_string())?;
-    let filtered = filter::apply(&opened.recording, &filter::FilterSettings::default());
+    let opened = isoline_core::io::open(path, &isoline_core::io::OpenOptions::default()).map_err(|e| e.to_string())?;
+    Ok(beats_of_recording(&opened.recording))
+}
+
+/// [`beats_of`] on a recording already in memory (for one changed on the way, e.g. with noise added).
+#[must_use]
+pub fn beats_of_recording(recording: &isoline_core::Recording) -> (isoline_core::Recording, Vec<Beat>) {
+    use isoline_core::{delineate, detect, filter};
+    let filtered = filter::apply(recording, &filter::FilterSettings::default());
     let mut beats = detect::detect_beats(&filtered.recording);
     delineate::delineate_beats(&filtered.recording, &mut beats);
-    Ok((filtered.recording, beats))
+    (filtered.recording, beats)
 }
 
 #[cfg(test)]

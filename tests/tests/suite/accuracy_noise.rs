@@ -9,11 +9,12 @@
 //! does (150 ms window).
 
 use isoline_core::Recording;
+use isoline_core::io;
 use isoline_core::synth::noise::{self, NoiseSpec};
-use isoline_core::{delineate, detect, filter, io};
 use isoline_tests::data;
 use isoline_tests::score::{
-    BeatMarks, BoundaryErrors, Detection, KEYS, read_reference_csv, score_boundaries, score_detection,
+    BeatMarks, BoundaryErrors, Detection, KEYS, beats_of_recording, read_reference_csv, score_boundaries,
+    score_detection,
 };
 
 const RECORDS: [&str; 7] =
@@ -63,9 +64,7 @@ fn run(snr_db: f64) -> Result<(Detection, BoundaryErrors), String> {
         let fs = recording.sample_rate.hz();
         let refs: Vec<f64> = read_reference_csv(&data(&format!("{rec}.beats.csv")))?.iter().map(|b| b.r).collect();
         with_noise(&mut recording, &refs, snr_db);
-        let filtered = filter::apply(&recording, &filter::FilterSettings::default());
-        let mut beats = detect::detect_beats(&filtered.recording);
-        delineate::delineate_beats(&filtered.recording, &mut beats);
+        let (_, beats) = beats_of_recording(&recording);
         let d = score_detection(&refs, &beats.iter().map(|b| b.r as f64).collect::<Vec<_>>(), fs);
         let mut line = format!("{snr_db:>4} dB {rec}: Se {:.2} % +P {:.2} %", d.se(), d.ppv());
         detection.add(d);
