@@ -180,18 +180,18 @@ pub fn condensed(notes: &[RangeNote]) -> Vec<String> {
             format!("QTc {:.0} ms by {} — {}", q.ms, listed(&names), q.finding)
         } else {
             let each: Vec<String> = same.iter().map(|x| format!("{} {:.0} ms", x.formula, x.ms)).collect();
-            format!("QTc by {} — {}", listed(&each.iter().map(String::as_str).collect::<Vec<_>>()), q.finding)
+            format!("QTc by {} — {}", listed(&each), q.finding)
         });
     }
     out
 }
 
 /// `a`, `a and b`, `a, b and c`.
-fn listed(items: &[&str]) -> String {
+fn listed<S: std::borrow::Borrow<str>>(items: &[S]) -> String {
     match items {
         [] => String::new(),
-        [one] => (*one).to_string(),
-        [head @ .., last] => format!("{} and {last}", head.join(", ")),
+        [one] => one.borrow().to_string(),
+        [head @ .., last] => format!("{} and {}", head.join(", "), last.borrow()),
     }
 }
 
