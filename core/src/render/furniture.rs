@@ -4,6 +4,7 @@
 use super::RenderInput;
 use super::canvas::Canvas;
 use super::text::{Align, Fonts, Style};
+use crate::analysis::LONG_RECORDING_S;
 use crate::paper::{Palette, margins};
 use crate::timescale::clock;
 
@@ -40,8 +41,12 @@ pub(super) fn header(input: &RenderInput) -> Header {
         fields.push(format!("{k}: {v}"));
     }
     let (a, b) = (spec.start_s, spec.start_s + spec.seconds);
-    // In a recording of an hour or more, the elapsed clock time too: 43200 s is hard to place in a Holter day.
-    let clock = if rec.duration_s() >= 3600.0 { format!(" ({}\u{2013}{})", clock(a), clock(b)) } else { String::new() };
+    // In a long recording (an hour or more), the elapsed clock time too: 43200 s is hard to place in a Holter day.
+    let clock = if rec.duration_s() >= LONG_RECORDING_S {
+        format!(" ({}\u{2013}{})", clock(a), clock(b))
+    } else {
+        String::new()
+    };
     fields.push(format!("Window: {a:.2}\u{2013}{b:.2} s{clock}"));
     fields.push(format!("Layout: {} ({})", spec.layout, spec.order.as_str()));
     fields.push(format!("{} Hz", rec.sample_rate.hz()));
