@@ -84,7 +84,6 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     // The page shows what was measured: the filtered recording, with the filters named in the header.
     let analysis = analysis::analyze(raw, &filter::FilterSettings::default());
-    let filtered = &analysis.filtered;
     let spec = PageSpec {
         layout,
         order,
@@ -92,15 +91,17 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         start_s: args.start,
         seconds: args.seconds,
     };
+    let (a, b) = spec.sample_range(raw.sample_rate.hz());
+    let span = analysis.filtered_span(raw, a, b);
     let title = args.file.file_name().map_or_else(|| file.to_string(), |n| n.to_string_lossy().into_owned());
     let mut input = RenderInput {
         scheme,
         title,
         identify: args.identify,
-        filter_text: Some(filtered.description.clone()),
+        filter_text: Some(analysis.filters.description.clone()),
         ledger: render::ledger_lines(&analysis.measurements, review.as_ref()),
         notes: render::ledger_notes(&analysis.measurements, review.as_ref()),
-        ..RenderInput::new(&filtered.recording, spec, args.dpi)
+        ..RenderInput::of_span(&span, raw.duration_s(), spec, args.dpi)
     };
     if let Some(r) = &review {
         input.header = render::header_fields(Some(&r.reader), r.stage);

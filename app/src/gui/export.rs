@@ -4,6 +4,7 @@
 use std::path::Path;
 
 use anyhow::Context as _;
+use isoline_core::analysis::Span;
 use isoline_core::measure::{RangeNote, ranges};
 use isoline_core::paper::PageSpec;
 use isoline_core::render::{self, LedgerLine, LedgerValue, RenderInput};
@@ -32,13 +33,17 @@ impl IsolineApp {
             start_s: self.start_s,
             seconds: self.window_s,
         };
-        let mut input = RenderInput::new(loaded.shown(view.filters), spec, EXPORT_DPI);
+        let recording_s = loaded.recording.duration_s();
+        // The window's samples, filtered as on the Sheet (a span: a long recording is never filtered whole).
+        let (lo, hi) = spec.sample_range(loaded.recording.sample_rate.hz());
+        let (span, filter_text) = match (&loaded.analysis, view.filters) {
+            (Some(a), true) => (a.filtered_span(&loaded.recording, lo, hi), Some(a.filters.description.clone())),
+            _ => (Span::cut(&loaded.recording, lo, hi), None),
+        };
+        let mut input = RenderInput::of_span(&span, recording_s, spec, EXPORT_DPI);
         input.scheme = view.scheme;
         input.title = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
-        input.filter_text = match (&loaded.analysis, view.filters) {
-            (Some(a), true) => Some(a.filtered.description.clone()),
-            _ => None,
-        };
+        input.filter_text = filter_text;
         input.header = render::header_fields(self.settings.reader.as_deref(), self.review.stage);
         input.calipers = self.doc.calipers.clone();
         input.ledger = export_ledger(&rows);

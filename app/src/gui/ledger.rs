@@ -56,7 +56,7 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
         Some(rep) if !doc.marks.is_empty() => {
             let bounds = doc.effective_marks(&rep.bounds);
             let t = Template { leads: &rep.leads, sample_rate: rep.sample_rate, bounds };
-            measure::measure(&an.filtered.recording, &an.beats, Some(&t)).values()
+            measure::measure(&loaded.recording, &an.beats, Some(&t)).values()
         }
         _ => auto.clone(),
     };

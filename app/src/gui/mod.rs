@@ -71,7 +71,7 @@ pub struct IsolineApp {
     /// Ledger rows as of the last change (derived data, dropped whenever the review or the analysis changes).
     ledger_cache: Option<Vec<ledger::LedgerRow>>,
     /// Analysis running in the background for the open recording.
-    pending: Option<std::sync::mpsc::Receiver<isoline_core::analysis::Analysis>>,
+    pending: Option<std::sync::mpsc::Receiver<state::Analysed>>,
 }
 
 impl IsolineApp {
@@ -264,14 +264,15 @@ impl IsolineApp {
         match load(path) {
             Ok(mut loaded) => {
                 let rec = Arc::clone(&loaded.recording);
+                let tape_lead = loaded.tape.lead;
                 if rec.len() * rec.leads.len() <= BACKGROUND_ANALYSIS_SAMPLES {
-                    loaded.attach(analyze(&rec));
+                    loaded.attach(state::Analysed::of(&rec, tape_lead));
                     self.pending = None;
                 } else {
                     let (tx, rx) = std::sync::mpsc::channel();
                     std::thread::spawn(move || {
                         // The receiver may be gone if another file was opened meanwhile: nothing to do then.
-                        let _ = tx.send(analyze(&rec));
+                        let _ = tx.send(state::Analysed::of(&rec, tape_lead));
                     });
                     self.pending = Some(rx);
                 }
@@ -327,6 +328,7 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
         beats_source,
         trend: Vec::new(),
         median_rr_ms: None,
+        shown_span: None,
     };
     loaded.derive_rates();
     Ok(loaded)

@@ -105,7 +105,8 @@ pub fn draw_page(
     points_per_mm: f32,
     header: &str,
 ) -> SheetGeometry {
-    let rec: &Recording = loaded.shown(view.filters);
+    let shown = loaded.shown(view.filters);
+    let rec: &Recording = shown.recording;
     let page = spec.page(rec);
     let geo = SheetGeometry { origin, points_per_mm, page };
     let pal = view.scheme.palette();
@@ -129,7 +130,7 @@ pub fn draw_page(
         painter.add(Shape::line(pulse, trace));
         for cell in &row.cells {
             let Some(lead) = rec.leads.get(cell.lead) else { continue };
-            let pts = trace_points(&geo, row, cell, &lead.samples, rec.sample_rate.hz(), ppp);
+            let pts = trace_points(&geo, row, cell, (&lead.samples, shown.first), rec.sample_rate.hz(), ppp);
             if pts.len() > 1 {
                 painter.add(Shape::line(pts, trace));
             }
@@ -194,34 +195,37 @@ fn draw_grid(painter: &egui::Painter, geo: &SheetGeometry, pal: &Palette, page_r
 
 /// Screen points of one cell's trace: every sample when there are at most two per pixel column, otherwise the
 /// minimum and maximum of each pixel column ([`decimate_min_max`], as on the exported page), the one nearer the
-/// column's first sample first.
+/// column's first sample first. `held` is the lead's samples from sample `held.1` of the recording on (a span of
+/// a long recording's filtered signal, or the whole lead from 0).
 #[must_use]
 pub fn trace_points(
     geo: &SheetGeometry,
     row: &isoline_core::paper::Row,
     cell: &Cell,
-    samples: &[f32],
+    held: (&[f32], usize),
     rate_hz: f64,
     pixels_per_point: f32,
 ) -> Vec<Pos2> {
     let paper = geo.page.paper;
-    let n = samples.len();
-    let first = (cell.t0_s * rate_hz).floor().max(0.0) as usize;
-    let last = ((cell.t1_s * rate_hz).ceil() as usize).min(n.saturating_sub(1));
-    if n == 0 || first >= last {
+    let (samples, from) = held;
+    let end = from + samples.len();
+    let first = ((cell.t0_s * rate_hz).floor().max(0.0) as usize).max(from);
+    let last = ((cell.t1_s * rate_hz).ceil() as usize).min(end.saturating_sub(1));
+    if end == from || first >= last {
         return Vec::new();
     }
+    let sample = |k: usize| samples[k - from];
     let y = |uv: f32| geo.screen_from_paper(0.0, row.y_from_uv(&paper, f64::from(uv), cell.inverted)).y;
     let x_of = |k: usize| geo.x_of_time(cell, k as f64 / rate_hz);
     let px_per_s = paper.speed_mm_per_s as f32 * geo.points_per_mm * pixels_per_point;
     let samples_per_px = rate_hz as f32 / px_per_s.max(1e-3);
     if samples_per_px <= 2.0 {
-        return (first..=last).filter(|&k| samples[k].is_finite()).map(|k| Pos2::new(x_of(k), y(samples[k]))).collect();
+        return (first..=last).filter(|&k| sample(k).is_finite()).map(|k| Pos2::new(x_of(k), y(sample(k)))).collect();
     }
     // Same min/max column decimation as the exported page, in physical pixels.
     let x0_px = f64::from(x_of(first) * pixels_per_point);
     let px_per_sample = f64::from(px_per_s) / rate_hz;
-    let columns = decimate_min_max(&samples[first..=last], x0_px, px_per_sample);
+    let columns = decimate_min_max(&samples[first - from..=last - from], x0_px, px_per_sample);
     let mut pts = Vec::with_capacity(columns.len() * 2);
     for c in columns {
         let x = c.x as f32 / pixels_per_point;

@@ -102,7 +102,7 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
 }
 
 fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
-    let Some(loaded) = &app.loaded else {
+    let Some(duration_s) = app.loaded.as_ref().map(|l| l.recording.duration_s()) else {
         ui.centered_and_justified(|ui| {
             ui.heading("Open a recording (Ctrl+O) or drop a .hea, .edf or .csv file here.");
         });
@@ -112,7 +112,7 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
     let view = &app.settings.view;
     let ppmm = app.settings.points_per_mm(ui.ctx().pixels_per_point());
     let available_mm = f64::from((ui.available_width() - 12.0) / ppmm);
-    app.window_s = sheet::window_seconds(view, available_mm, loaded.recording.duration_s());
+    app.window_s = sheet::window_seconds(view, available_mm, duration_s);
     let spec = PageSpec {
         layout: view.layout.clone(),
         order: view.order,
@@ -120,7 +120,12 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
         start_s: app.start_s,
         seconds: app.window_s,
     };
-    let page = spec.page(loaded.shown(view.filters));
+    let Some(loaded) = app.loaded.as_mut() else { return };
+    if view.filters {
+        loaded.prepare_shown(&spec);
+    }
+    let loaded = &*loaded;
+    let page = spec.page(loaded.shown(view.filters).recording);
     let size = Vec2::new(page.width_mm as f32, page.height_mm as f32) * ppmm;
     let name = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
     let header = format!(
@@ -144,7 +149,7 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
 /// What the filter setting means for the signal on screen.
 fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
     match (&loaded.analysis, on) {
-        (Some(a), true) => a.filtered.description.clone(),
+        (Some(a), true) => a.filters.description.clone(),
         (None, true) => "analysis running, signal as recorded".to_string(),
         (_, false) => "off (signal as recorded)".to_string(),
     }

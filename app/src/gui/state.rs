@@ -13,10 +13,10 @@ use std::sync::Arc;
 use isoline_core::beat::{Beat, Boundaries, MarkKind};
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::io::Format;
-use isoline_core::paper::{Layout, LeadOrder, Paper, Scheme};
+use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
 use isoline_core::recording::Recording;
 
-use isoline_core::analysis::Analysis;
+use isoline_core::analysis::{Analysis, Span};
 use isoline_core::delineate::RepresentativeBeat;
 
 use super::derived::TapeEnvelope;
@@ -159,12 +159,48 @@ pub struct Loaded {
     pub trend: Vec<[f64; 2]>,
     /// Median RR of consecutive dominant beats, ms.
     pub median_rr_ms: Option<f64>,
+    /// The filtered samples around the Sheet's window of a long recording, whose analysis keeps no whole
+    /// filtered copy (see [`Loaded::prepare_shown`]).
+    pub shown_span: Option<Span>,
+}
+
+/// A finished analysis with the Tape envelope of its filtered signal, both computed off the UI thread for a
+/// long recording.
+#[derive(Debug, Clone)]
+pub struct Analysed {
+    /// Filters, beats, representative beat and automatic measurements.
+    pub analysis: Analysis,
+    /// The Tape lead's envelope, filtered.
+    pub tape: TapeEnvelope,
+}
+
+impl Analysed {
+    /// Analyses `recording` ([`super::analyze`]) and takes the envelope of its lead `tape_lead`, filtered.
+    #[must_use]
+    pub fn of(recording: &Recording, tape_lead: usize) -> Self {
+        let analysis = super::analyze(recording);
+        let tape = match &analysis.filtered {
+            Some(whole) => TapeEnvelope::new(whole, tape_lead),
+            None => TapeEnvelope::from_spans(recording, tape_lead, |a, b| analysis.filtered_span(recording, a, b)),
+        };
+        Self { analysis, tape }
+    }
+}
+
+/// The samples the Sheet draws: `recording` holds the whole recording's samples from sample `first` on.
+#[derive(Debug, Clone, Copy)]
+pub struct Shown<'a> {
+    /// The samples (the whole recording, or a span of it).
+    pub recording: &'a Recording,
+    /// Sample of the whole recording where `recording` starts.
+    pub first: usize,
 }
 
 impl Loaded {
     /// Uses a finished analysis: detected beats (the file's annotated beats stay when none were detected), the
     /// Tape envelope of the filtered signal, the rate trend.
-    pub fn attach(&mut self, analysis: Analysis) {
+    pub fn attach(&mut self, analysed: Analysed) {
+        let Analysed { analysis, tape } = analysed;
         if !analysis.beats.is_empty() {
             self.beats.clone_from(&analysis.beats);
             self.beats_source = format!("{} beats detected", analysis.beats.len());
@@ -173,7 +209,8 @@ impl Loaded {
         } else {
             self.beats_source = format!("{} annotated beats (none detected)", self.beats.len());
         }
-        self.tape = TapeEnvelope::new(&analysis.filtered.recording, self.tape.lead);
+        self.tape = tape;
+        self.shown_span = None;
         self.analysis = Some(analysis);
         self.derive_rates();
     }
@@ -197,12 +234,33 @@ impl Loaded {
         self.representative().map(|r| r.bounds).unwrap_or_default()
     }
 
-    /// The signal the Sheet shows: filtered or as read.
+    /// Makes sure the filtered samples of the window `spec` shows are at hand for [`Loaded::shown`]: a long
+    /// recording's are filtered around the window, with a window's length to spare on each side so that
+    /// scrolling filters again only now and then.
+    pub fn prepare_shown(&mut self, spec: &PageSpec) {
+        let Some(analysis) = self.analysis.as_ref().filter(|a| a.filtered.is_none()) else { return };
+        let (a, b) = spec.sample_range(self.recording.sample_rate.hz());
+        let b = b.min(self.recording.len());
+        let held = |s: &Span| s.first <= a && b <= s.first + s.recording.len();
+        if self.shown_span.as_ref().is_some_and(held) {
+            return;
+        }
+        let spare = b.saturating_sub(a);
+        self.shown_span = Some(analysis.filtered_span(&self.recording, a.saturating_sub(spare), b + spare));
+    }
+
+    /// The signal the Sheet shows: filtered or as read. A long recording's filtered signal is the span
+    /// [`Loaded::prepare_shown`] made (the recording as read until it has run).
     #[must_use]
-    pub fn shown(&self, filters: bool) -> &Recording {
+    pub fn shown(&self, filters: bool) -> Shown<'_> {
+        let whole = |recording| Shown { recording, first: 0 };
         match (&self.analysis, filters) {
-            (Some(a), true) => &a.filtered.recording,
-            _ => &self.recording,
+            (Some(a), true) => match (&a.filtered, &self.shown_span) {
+                (Some(filtered), _) => whole(filtered),
+                (None, Some(span)) => Shown { recording: &span.recording, first: span.first },
+                (None, None) => whole(&self.recording),
+            },
+            _ => whole(&self.recording),
         }
     }
 }

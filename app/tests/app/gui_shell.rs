@@ -210,8 +210,8 @@ fn filters_switch_between_filtered_and_recorded_signal() {
     let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
     assert!(h.state().settings.view.filters, "filters on by default");
     let loaded = h.state().loaded.as_ref().unwrap();
-    let filtered = loaded.shown(true).leads[0].samples[5000];
-    let raw = loaded.shown(false).leads[0].samples[5000];
+    let filtered = loaded.shown(true).recording.leads[0].samples[5000];
+    let raw = loaded.shown(false).recording.leads[0].samples[5000];
     assert_ne!(filtered, raw, "the baseline filter changes the signal");
     h.get_by_label_contains("0.5–").hover();
     h.get_by_label("Filters").click();
@@ -265,4 +265,38 @@ fn the_status_bar_rate_is_the_ledger_heart_rate() {
     let loaded = h.state().loaded.as_ref().expect("recording open");
     let hr = loaded.analysis.as_ref().expect("analysis done").measurements.rr.heart_rate_bpm.expect("heart rate");
     h.get_by_label_contains(&format!("   rate {hr:.0} bpm   "));
+}
+
+#[test]
+fn a_long_recording_is_shown_filtered_span_by_span() {
+    // Over an hour (70 min of the demo Holter: 3 leads, 250 Hz) the analysis keeps no filtered copy: the Sheet
+    // filters the samples around its window, the Tape envelope was filtered span by span, and the exported
+    // page is the filtered window too.
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ward9-long.edf");
+    let spec = isoline_core::synth::SynthSpec { seconds: 4200.0, ..isoline_core::synth::Scenario::Holter.spec() };
+    let syn = isoline_core::synth::generate(&spec).unwrap();
+    isoline_core::io::edf::write(&path, &syn.recording, &Default::default()).unwrap();
+    let app = IsolineApp::new(Some(path));
+    let mut h = egui_kittest::Harness::builder()
+        .with_size(egui::Vec2::new(1600.0, 1000.0))
+        .build_ui_state(|ui, app: &mut IsolineApp| app.ui(ui), app);
+    h.state_mut().poll_analysis(true);
+    h.state_mut().run_cmd(isoline::gui::command::Command::SetStart(2000.0));
+    settle(&mut h);
+    let loaded = h.state().loaded.as_ref().expect("opened");
+    let analysis = loaded.analysis.as_ref().expect("analysed");
+    assert!(analysis.filtered.is_none(), "no whole filtered copy of a long recording");
+    let shown = loaded.shown(true);
+    let (a, b) = (2000 * 250, (2000.0 + h.state().window_s) as usize * 250);
+    assert!(shown.first <= a && b <= shown.first + shown.recording.len(), "the span holds the window");
+    let again = analysis.filtered_span(&loaded.recording, a, b);
+    let k = a - shown.first;
+    assert_eq!(&shown.recording.leads[1].samples[k..k + (b - a)], &again.recording.leads[1].samples[..]);
+    assert_ne!(again.recording.leads[1].samples, loaded.recording.leads[1].samples[a..b], "filtered, not raw");
+    let tape = &loaded.tape;
+    assert!(tape.min.len() > 1000 && tape.min.iter().zip(&tape.max).all(|(lo, hi)| lo <= hi));
+    let png = dir.path().join("page.png");
+    h.state_mut().export_png(&png).unwrap();
+    assert!(std::fs::metadata(&png).unwrap().len() > 10_000);
 }

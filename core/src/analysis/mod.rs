@@ -4,19 +4,48 @@
 use crate::beat::Beat;
 use crate::delineate::{self, RepresentativeBeat};
 use crate::detect;
-use crate::filter::{self, FilterSettings, Filtered};
+use crate::filter::{self, FilterSettings};
 use crate::measure::{self, Measurements, Template};
-use crate::recording::Recording;
+use crate::recording::{Lead, Recording};
 
 mod windowed;
 
 pub use windowed::{LONG_RECORDING_S, WINDOW_S, analyze_in_windows, beats_in_windows};
 
+/// Filtered and analysed beyond each end of a span filtered on its own, s (see [`Analysis::filtered_span`]).
+// Common practice, no source: the 0.5 Hz zero-phase high-pass settles within a few seconds, the detector's
+// thresholds within a few beats; 20 s holds both with room to spare.
+pub const MARGIN_S: f64 = 20.0;
+
+/// The filters an analysis ran on: their settings, with an automatic notch decided once for the whole
+/// recording, and their description.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AppliedFilters {
+    /// The settings, the notch decided (never [`filter::Mains::Auto`]), so any span filtered again matches.
+    pub settings: FilterSettings,
+    /// The filter set as text, e.g. `0.5–150 Hz, 50 Hz notch`.
+    pub description: String,
+}
+
+/// Samples `first..first + len` of every lead of a recording, as a recording of their own (same leads, rate
+/// and metadata).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Span {
+    /// Sample of the whole recording where the span starts.
+    pub first: usize,
+    /// The span's samples.
+    pub recording: Recording,
+}
+
 /// Everything derived from a recording for review.
 #[derive(Debug, Clone)]
 pub struct Analysis {
-    /// The filtered copy the rest was computed on, with the filters' description.
-    pub filtered: Filtered,
+    /// The filters the rest was computed with.
+    pub filters: AppliedFilters,
+    /// The filtered copy of the whole recording, for one of up to [`LONG_RECORDING_S`]. A longer one is
+    /// filtered span by span when a span is needed ([`Analysis::filtered_span`]), so its analysis holds no
+    /// second copy of it.
+    pub filtered: Option<Recording>,
     /// Detected beats with their boundaries (sample indices of the recording).
     pub beats: Vec<Beat>,
     /// Median beat of the dominant beats, with its global boundaries.
@@ -38,21 +67,62 @@ pub fn analyze(recording: &Recording, settings: &FilterSettings) -> Analysis {
     if recording.duration_s() > LONG_RECORDING_S {
         return analyze_in_windows(recording, settings, WINDOW_S);
     }
-    let filtered = filter::apply(recording, settings);
+    let settings = settings.with_mains_decided(recording);
+    let filtered = filter::apply(recording, &settings);
     let rec = &filtered.recording;
     let mut beats = detect::detect_beats(rec);
     let p_model = delineate::delineate_beats(rec, &mut beats);
     let representative = delineate::representative_beat_with(rec, &beats, p_model.as_ref());
     let measurements = measure::measure(rec, &beats, representative.as_ref().map(template_of).as_ref());
-    Analysis { filtered, beats, representative, measurements }
+    Analysis {
+        filters: AppliedFilters { settings, description: filtered.description },
+        filtered: Some(filtered.recording),
+        beats,
+        representative,
+        measurements,
+    }
 }
 
 impl Analysis {
-    /// Measures again after the representative beat's boundaries changed (a Beat lens handle was dragged):
-    /// intervals, QTc, axes, ST and notes follow; beats and RR statistics are unchanged.
-    pub fn remeasure(&mut self) {
-        let rec = &self.filtered.recording;
-        self.measurements = measure::measure(rec, &self.beats, self.representative.as_ref().map(template_of).as_ref());
+    /// The filtered samples `a..b` of `recording` (the recording analysed), as [`Span::cut`] gives them: cut
+    /// from the whole filtered copy, or for a long recording filtered with [`MARGIN_S`] on each side, as its
+    /// windows were.
+    #[must_use]
+    pub fn filtered_span(&self, recording: &Recording, a: usize, b: usize) -> Span {
+        let Some(whole) = &self.filtered else {
+            let margin = (MARGIN_S * recording.sample_rate.hz()) as usize;
+            let b = b.min(recording.len());
+            let from = a.min(b).saturating_sub(margin);
+            let part = windowed::part(recording, from, (b + margin).min(recording.len()));
+            let mut filtered = filter::apply(&part, &self.filters.settings).recording;
+            (filtered.start, filtered.meta) = (recording.start, recording.meta.clone());
+            let span = Span::cut(&filtered, a.min(b) - from, b - from);
+            return Span { first: span.first + from, ..span };
+        };
+        Span::cut(whole, a, b)
+    }
+}
+
+impl Span {
+    /// Samples `a..b` of `recording` (`b` clamped to its length), with its lead names, rate, start and
+    /// metadata but not its annotations (their sample numbers are the whole recording's).
+    #[must_use]
+    pub fn cut(recording: &Recording, a: usize, b: usize) -> Self {
+        let b = b.min(recording.len());
+        let a = a.min(b);
+        let leads = recording
+            .leads
+            .iter()
+            .map(|l| Lead { name: l.name.clone(), samples: l.samples[a..b].to_vec() })
+            .collect();
+        let recording = Recording {
+            leads,
+            sample_rate: recording.sample_rate,
+            start: recording.start,
+            meta: recording.meta.clone(),
+            annotations: Vec::new(),
+        };
+        Self { first: a, recording }
     }
 }
 

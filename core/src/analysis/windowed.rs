@@ -8,15 +8,16 @@
 //! it comes at least the detector's refractory period after the last beat kept, so a beat both windows see
 //! counts once, and one the earlier window missed just before the seam is still found.
 //!
-//! The whole analysis ([`analyze_in_windows`]) also keeps each window's own part of the filtered copy (one
-//! copy of the recording in all), and builds the representative beat from the dominant beats of the whole
-//! recording on that copy, with the P model of the window whose beats matched their P wave best.
+//! The whole analysis ([`analyze_in_windows`]) keeps no filtered copy of the recording: it builds the
+//! representative beat from up to [`delineate::STACK_BEATS`] dominant beats taken evenly from every window
+//! ([`delineate::BeatStack`]), with the P model of the window whose beats matched their P wave best, and any
+//! span of the filtered signal is filtered again when needed ([`Analysis::filtered_span`]).
 
-use super::{Analysis, template_of};
+use super::{Analysis, AppliedFilters, MARGIN_S, template_of};
 use crate::beat::{Beat, Boundaries};
-use crate::delineate::{self, PModel};
+use crate::delineate::{self, BeatStack, PModel};
 use crate::detect;
-use crate::filter::{self, FilterSettings, Filtered};
+use crate::filter::{self, FilterSettings};
 use crate::measure;
 use crate::recording::{Lead, Meta, Recording};
 
@@ -27,10 +28,6 @@ pub const LONG_RECORDING_S: f64 = 3600.0;
 // Common practice, no source: five minutes hold hundreds of beats for the detector's and delineator's
 // per-record statistics while a window's working copies stay a few MB.
 pub const WINDOW_S: f64 = 300.0;
-/// Margin filtered and analysed on each side of a window, s.
-// Common practice, no source: the 0.5 Hz zero-phase high-pass settles within a few seconds, the detector's
-// thresholds within a few beats; 20 s holds both with room to spare.
-const MARGIN_S: f64 = 20.0;
 /// How far before its window's own part a beat the previous window missed may lie to be taken from the margin, s.
 const SEAM_S: f64 = 1.0;
 /// Two beats closer than this are one beat seen by two windows, s (the detector's refractory period).
@@ -40,9 +37,10 @@ const REFRACTORY_S: f64 = 0.200;
 struct Pass {
     beats: Vec<Beat>,
     description: String,
-    mains_hz: Option<f64>,
-    /// Each lead filtered, when asked for (each window's own part of its filtered copy).
-    filtered: Option<Vec<Vec<f32>>>,
+    /// The settings every window was filtered with (the notch decided once).
+    settings: FilterSettings,
+    /// Dominant beats gathered for the representative beat, when asked for.
+    stack: Option<BeatStack>,
     /// The P model of the window whose beats matched it best.
     p_model: Option<PModel>,
 }
@@ -56,42 +54,33 @@ pub fn beats_in_windows(recording: &Recording, settings: &FilterSettings, window
 }
 
 /// The whole pipeline of [`super::analyze`] window by window (windows of `window_s` seconds): the same
-/// [`Analysis`], with the working memory of one window beside the recording and its filtered copy.
+/// [`Analysis`] but for its filtered copy, which it does not hold ([`Analysis::filtered`] is `None`), with the
+/// working memory of one window beside the recording.
 #[must_use]
 pub fn analyze_in_windows(recording: &Recording, settings: &FilterSettings, window_s: f64) -> Analysis {
     let pass = windows(recording, settings, window_s, true);
-    let leads = recording
-        .leads
-        .iter()
-        .zip(pass.filtered.unwrap_or_default())
-        .map(|(l, samples)| Lead { name: l.name.clone(), samples })
-        .collect();
-    let rec = Recording {
-        leads,
-        sample_rate: recording.sample_rate,
-        start: recording.start,
-        meta: recording.meta.clone(),
-        annotations: recording.annotations.clone(),
-    };
-    let filtered = Filtered { recording: rec, description: pass.description, mains_hz: pass.mains_hz };
     let beats = pass.beats;
-    let rec = &filtered.recording;
-    let representative = delineate::representative_beat_with(rec, &beats, pass.p_model.as_ref());
-    let measurements = measure::measure(rec, &beats, representative.as_ref().map(template_of).as_ref());
-    Analysis { filtered, beats, representative, measurements }
+    let representative = pass.stack.and_then(|s| s.representative(&beats, pass.p_model.as_ref()));
+    let measurements = measure::measure(recording, &beats, representative.as_ref().map(template_of).as_ref());
+    Analysis {
+        filters: AppliedFilters { settings: pass.settings, description: pass.description },
+        filtered: None,
+        beats,
+        representative,
+        measurements,
+    }
 }
 
-/// Filters, detects and delineates `recording` window by window; keeps each window's filtered part when
-/// `keep_filtered`.
-fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, keep_filtered: bool) -> Pass {
+/// Filters, detects and delineates `recording` window by window; gathers beats for the representative beat
+/// when `stack`.
+fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, stack: bool) -> Pass {
     let fs = recording.sample_rate.hz();
     let n = recording.len();
     let settings = settings.with_mains_decided(recording);
     let window = ((window_s.max(1.0) * fs) as usize).max(1);
     let (margin, seam, refractory) =
         ((MARGIN_S * fs) as usize, (SEAM_S * fs) as usize, ((REFRACTORY_S * fs) as usize).max(1));
-    let mut filtered: Option<Vec<Vec<f32>>> =
-        keep_filtered.then(|| recording.leads.iter().map(|_| Vec::with_capacity(n)).collect());
+    let mut stack = stack.then(|| BeatStack::new(recording.sample_rate, n.div_ceil(window)));
     let mut beats: Vec<Beat> = Vec::new();
     let mut p_model: Option<PModel> = None;
     let mut description = None;
@@ -100,12 +89,15 @@ fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, keep
         let end = (start + window).min(n);
         let a = start.saturating_sub(margin);
         let part_filtered = filter::apply(&part(recording, a, (end + margin).min(n)), &settings);
-        description = Some((part_filtered.description, part_filtered.mains_hz));
+        description = Some(part_filtered.description);
         let rec = part_filtered.recording;
         let mut found = detect::detect_beats(&rec);
         let model = delineate::delineate_beats(&rec, &mut found);
         if let Some(m) = model.filter(|m| p_model.as_ref().is_none_or(|best| m.consistency > best.consistency)) {
             p_model = Some(m);
+        }
+        if let Some(s) = stack.as_mut() {
+            s.gather(&rec, &found, start - a..end - a);
         }
         for b in found {
             let r = b.r + a;
@@ -114,22 +106,14 @@ fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, keep
                 beats.push(shifted(&b, a));
             }
         }
-        if let Some(f) = filtered.as_mut() {
-            for (whole, lead) in f.iter_mut().zip(&rec.leads) {
-                whole.extend_from_slice(&lead.samples[start - a..end - a]);
-            }
-        }
         start = end;
     }
-    let (description, mains_hz) = description.unwrap_or_else(|| {
-        let f = filter::apply(&part(recording, 0, 0), &settings);
-        (f.description, f.mains_hz)
-    });
-    Pass { beats, description, mains_hz, filtered, p_model }
+    let description = description.unwrap_or_else(|| filter::apply(&part(recording, 0, 0), &settings).description);
+    Pass { beats, description, settings, stack, p_model }
 }
 
-/// Samples `a..b` of every lead, as a recording of its own.
-fn part(recording: &Recording, a: usize, b: usize) -> Recording {
+/// Samples `a..b` of every lead, as a recording of its own (no metadata or annotations).
+pub(super) fn part(recording: &Recording, a: usize, b: usize) -> Recording {
     Recording {
         leads: recording
             .leads
@@ -203,7 +187,12 @@ mod tests {
             }
             let a = analyze_in_windows(&recording, &FilterSettings::default(), window_s);
             prop_assert_eq!(a.beats.len(), beats.len());
-            prop_assert!(a.filtered.recording.leads.iter().all(|l| l.samples.len() == len));
+            prop_assert!(a.filtered.is_none());
+            // Any span of the filtered signal, filtered on its own, has the samples asked for.
+            let (from, to) = (len / 3, len / 3 + len / 2 + 1);
+            let span = a.filtered_span(&recording, from, to);
+            prop_assert_eq!(span.first, from.min(len));
+            prop_assert!(span.recording.leads.iter().all(|l| l.samples.len() == to.min(len) - from.min(len)));
         }
     }
 }

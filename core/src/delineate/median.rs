@@ -52,12 +52,8 @@ pub fn representative_beat_with(
     let n = recording.len();
     let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
     let rr = median_rr(&rs)?;
-    let before = ((BEFORE_S * fs) as usize).min(rr * 6 / 10);
-    let after = ((AFTER_S * fs) as usize).min(rr);
-    let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
-    let chosen: Vec<usize> = beats
-        .iter()
-        .filter(|b| !any_dominant || b.kind == BeatKind::Dominant)
+    let (before, after) = span(fs, rr);
+    let chosen: Vec<usize> = median_beats(beats)
         .map(|b| b.r)
         .filter(|&r| r >= before && r + after < n)
         .filter(|&r| recording.leads.iter().all(|l| l.samples[r - before..r + after].iter().all(|v| v.is_finite())))
@@ -65,34 +61,152 @@ pub fn representative_beat_with(
     if chosen.len() < 3 {
         return None;
     }
-    let mut col = Vec::with_capacity(chosen.len());
-    let leads: Vec<Vec<f32>> = recording
-        .leads
-        .iter()
-        .map(|l| {
-            (0..before + after)
+    let leads = median_leads(recording.leads.len(), before + after, chosen.len(), |lead, k, b| {
+        recording.leads[lead].samples[chosen[b] - before + k]
+    });
+    Some(delineated(leads, recording.sample_rate, before, rr, p_model, chosen.len()))
+}
+
+/// Samples before and after R in the representative beat of a record with median RR `rr` (samples).
+fn span(fs: f64, rr: usize) -> (usize, usize) {
+    (((BEFORE_S * fs) as usize).min(rr * 6 / 10), ((AFTER_S * fs) as usize).min(rr))
+}
+
+/// The beats the median is taken over: the dominant ones, or all when none is dominant.
+fn median_beats(beats: &[Beat]) -> impl Iterator<Item = &Beat> {
+    let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
+    beats.iter().filter(move |b| !any_dominant || b.kind == BeatKind::Dominant)
+}
+
+/// Per lead, the sample-by-sample median over `count` beats of `len` samples, `value(lead, k, beat)` giving
+/// sample `k` of a beat.
+fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, usize, usize) -> f32) -> Vec<Vec<f32>> {
+    let mut col = Vec::with_capacity(count);
+    (0..n_leads)
+        .map(|lead| {
+            (0..len)
                 .map(|k| {
                     col.clear();
-                    col.extend(chosen.iter().map(|&r| l.samples[r - before + k]));
+                    col.extend((0..count).map(|b| value(lead, k, b)));
                     let mid = col.len() / 2;
                     *col.select_nth_unstable_by(mid, f32::total_cmp).1
                 })
                 .collect()
         })
-        .collect();
+        .collect()
+}
+
+/// The median beat `leads` (R at sample `before`) delineated as one beat of a record with median RR `rr`.
+fn delineated(
+    leads: Vec<Vec<f32>>,
+    sample_rate: Hertz,
+    before: usize,
+    rr: usize,
+    p_model: Option<&PModel>,
+    n_beats: usize,
+) -> RepresentativeBeat {
+    let len = leads.first().map_or(0, Vec::len);
     let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
-    let sig = Signals::new(&refs, fs);
-    let (on, end) = qrs::qrs_bounds(&sig, before, 0, before + after);
-    let t_end = beat_t_waves(&sig, before, on, end, rr, before + after).and_then(|t| twave::global_end(&sig, &t));
+    let sig = Signals::new(&refs, sample_rate.hz());
+    let (on, end) = qrs::qrs_bounds(&sig, before, 0, len);
+    let t_end = beat_t_waves(&sig, before, on, end, rr, len).and_then(|t| twave::global_end(&sig, &t));
     let (p_on, p_end) = match (p_model, on) {
         (Some(m), Some(q)) => m.for_beat(&sig, q, 0).map_or((None, None), |(a, b)| (Some(a), Some(b))),
         _ => (None, None),
     };
-    Some(RepresentativeBeat {
+    drop(sig);
+    RepresentativeBeat {
         leads,
-        sample_rate: recording.sample_rate,
+        sample_rate,
         r_index: before,
         bounds: Boundaries { p_on, p_end, qrs_on: on, qrs_end: end, t_end },
-        n_beats: chosen.len(),
-    })
+        n_beats,
+    }
+}
+
+/// How many beats a [`BeatStack`] keeps, about (each window gives an equal share, rounded up): the median of
+/// this many beats spread over the recording is as steady as that of all of them, and their samples stay a few
+/// MB.
+// Common practice, no source: the median's noise falls as 1/√n; beyond a few hundred beats it is far below
+// the quantisation step of the recording.
+pub const STACK_BEATS: usize = 1000;
+
+/// Beats gathered window by window for the representative beat of a long recording (see
+/// `analysis::analyze_in_windows`), whose filtered copy is never held whole: about [`STACK_BEATS`] of the beats
+/// the median is taken over, spread evenly over the windows, each kept over the longest span a representative
+/// beat can have.
+#[derive(Debug, Clone)]
+pub struct BeatStack {
+    sample_rate: Hertz,
+    /// Samples kept before and after each R peak.
+    before: usize,
+    after: usize,
+    /// Beats the stack takes from each window.
+    quota: usize,
+    /// Per kept beat, per lead: samples R − `before` .. R + `after`.
+    beats: Vec<Vec<Vec<f32>>>,
+}
+
+impl BeatStack {
+    /// An empty stack for a recording at `sample_rate` analysed in `windows` windows.
+    #[must_use]
+    pub fn new(sample_rate: Hertz, windows: usize) -> Self {
+        let fs = sample_rate.hz();
+        Self {
+            sample_rate,
+            before: (BEFORE_S * fs) as usize,
+            after: (AFTER_S * fs) as usize,
+            quota: STACK_BEATS.div_ceil(windows.max(1)),
+            beats: Vec::new(),
+        }
+    }
+
+    /// Keeps up to the stack's quota of `beats` (found in `part`, a window with its margins), evenly spaced
+    /// among those the median is taken over whose R peak lies in `own` (the window's own samples of `part`) and
+    /// whose span lies in `part` with every sample valid.
+    pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
+        let n = part.len();
+        let (before, after) = (self.before, self.after);
+        let usable: Vec<usize> = median_beats(beats)
+            .map(|b| b.r)
+            .filter(|r| own.contains(r) && *r >= before && r + after < n)
+            .filter(|&r| part.leads.iter().all(|l| l.samples[r - before..r + after].iter().all(|v| v.is_finite())))
+            .collect();
+        let take = usable.len().min(self.quota);
+        for i in 0..take {
+            let r = usable[i * usable.len() / take];
+            self.beats.push(part.leads.iter().map(|l| l.samples[r - before..r + after].to_vec()).collect());
+        }
+    }
+
+    /// Number of beats kept.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.beats.len()
+    }
+
+    /// True when no beat was kept.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.beats.is_empty()
+    }
+
+    /// The representative beat of the kept beats, for a recording whose beats (all of them, in time order) are
+    /// `beats` and whose P model is `p_model`, as [`representative_beat_with`] gives it. `None` with fewer than
+    /// 3 beats kept.
+    #[must_use]
+    pub fn representative(&self, beats: &[Beat], p_model: Option<&PModel>) -> Option<RepresentativeBeat> {
+        let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+        let rr = median_rr(&rs)?;
+        if self.beats.len() < 3 {
+            return None;
+        }
+        // The kept spans are the longest; the record's RR may shorten them.
+        let (before, after) = span(self.sample_rate.hz(), rr);
+        let skip = self.before - before;
+        let leads = median_leads(self.beats[0].len(), before + after, self.beats.len(), |lead, k, b| {
+            self.beats[b][lead][skip + k]
+        });
+        Some(delineated(leads, self.sample_rate, before, rr, p_model, self.beats.len()))
+    }
 }

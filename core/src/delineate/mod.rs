@@ -12,7 +12,7 @@ mod qrs;
 mod signals;
 mod twave;
 
-pub use median::{RepresentativeBeat, representative_beat, representative_beat_with};
+pub use median::{BeatStack, RepresentativeBeat, STACK_BEATS, representative_beat, representative_beat_with};
 pub use pwave::PModel;
 pub use signals::Signals;
 

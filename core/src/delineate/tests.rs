@@ -135,6 +135,41 @@ fn boundaries_of_clean_synthetic_beats() {
 }
 
 #[test]
+fn beat_stack_keeping_every_beat_gives_the_representative_beat_of_the_recording() {
+    // One window holding the whole recording and a quota above its beat count: the stack keeps every beat, so
+    // its median beat and boundaries are those of `representative_beat_with` sample for sample. Beats whose
+    // longest span (0.45 s before R, 0.70 s after) leaves the recording are left out of both: the first R lies
+    // 0.6 s in, the last 1.05 s before the end.
+    let rs: Vec<f64> = (0..12).map(|i| 0.6 + 0.85 * i as f64).collect();
+    let (rec, _) = synth(&rs, 11.0, true, false);
+    let mut beats = detect_beats(&rec);
+    let p_model = delineate_beats(&rec, &mut beats);
+    let whole = representative_beat_with(&rec, &beats, p_model.as_ref());
+    let mut stack = BeatStack::new(rec.sample_rate, 1);
+    stack.gather(&rec, &beats, 0..rec.len());
+    assert_eq!(stack.len(), beats.len());
+    assert_eq!(stack.representative(&beats, p_model.as_ref()), whole);
+    assert!(whole.is_some_and(|w| w.bounds.p_on.is_some() && w.bounds.t_end.is_some()));
+}
+
+#[test]
+fn beat_stack_takes_an_even_share_of_each_window() {
+    // Four windows: each gives at most STACK_BEATS / 4 (rounded up) of its beats, and only beats whose R lies
+    // in the window's own samples.
+    let rs: Vec<f64> = (0..12).map(|i| 0.6 + 0.85 * i as f64).collect();
+    let (rec, _) = synth(&rs, 11.0, true, false);
+    let mut beats = detect_beats(&rec);
+    delineate_beats(&rec, &mut beats);
+    let mut stack = BeatStack::new(rec.sample_rate, STACK_BEATS);
+    stack.gather(&rec, &beats, 0..rec.len());
+    assert_eq!(stack.len(), 1, "a quota of one beat per window");
+    let mut stack = BeatStack::new(rec.sample_rate, 4);
+    stack.gather(&rec, &beats, 0..(2.0 * FS) as usize);
+    assert_eq!(stack.len(), 2, "the R peaks at 0.6 and 1.45 s");
+    assert!(stack.representative(&beats, None).is_none(), "fewer than 3 beats");
+}
+
+#[test]
 fn no_p_wave_in_irregular_rhythm_with_fibrillatory_waves() {
     // Irregular RR (0.55–1.1 s) and continuous atrial activity, no P waves.
     let gaps = [0.62, 0.95, 0.71, 1.08, 0.58, 0.83, 0.99, 0.66, 0.77, 1.04, 0.6, 0.9];

@@ -113,6 +113,15 @@ pub fn ordered_leads(recording: &Recording, order: LeadOrder) -> Vec<(usize, Str
 }
 
 impl PageSpec {
+    /// The samples the window shows at `fs` Hz, `a..b` (one more at each end, so a trace can start and end
+    /// on the window's edges).
+    #[must_use]
+    pub fn sample_range(&self, fs: f64) -> (usize, usize) {
+        let a = (self.start_s * fs).floor().max(0.0) as usize;
+        let b = ((self.start_s + self.seconds) * fs).ceil().max(0.0) as usize;
+        (a.saturating_sub(1), b.saturating_add(2))
+    }
+
     /// Lays out the page for a recording. Leads missing from the recording leave their cells out; a rhythm or
     /// strip lead that is missing falls back to the first lead in file order (`recording.leads[0]`), shown upright.
     #[must_use]

@@ -42,7 +42,7 @@ pub(super) fn header(input: &RenderInput) -> Header {
     }
     let (a, b) = (spec.start_s, spec.start_s + spec.seconds);
     // In a long recording (an hour or more), the elapsed clock time too: 43200 s is hard to place in a Holter day.
-    let clock = if rec.duration_s() >= LONG_RECORDING_S {
+    let clock = if input.recording_s >= LONG_RECORDING_S {
         format!(" ({}\u{2013}{})", clock(a), clock(b))
     } else {
         String::new()

@@ -37,6 +37,7 @@ mod trace;
 
 use thiserror::Error;
 
+use crate::analysis::Span;
 use crate::beat::MarkKind;
 use crate::caliper::Caliper;
 use crate::paper::{PageSpec, Scheme};
@@ -68,8 +69,13 @@ pub struct LedgerLine {
 /// Everything one page shows. Independent of the review model: callers translate a review into this.
 #[derive(Debug, Clone)]
 pub struct RenderInput<'a> {
-    /// The recording to draw.
+    /// The recording to draw: a whole recording, or a span of one (see [`RenderInput::of_span`]).
     pub recording: &'a Recording,
+    /// Sample of the whole recording where `recording` starts (0 for a whole recording); the window's times
+    /// stay those of the whole recording.
+    pub first_sample: usize,
+    /// Length of the whole recording, s: a long one gets the window's clock time in the header.
+    pub recording_s: f64,
     /// Layout, lead order, speed, gain and time window.
     pub spec: PageSpec,
     /// Paper colours.
@@ -101,6 +107,8 @@ impl<'a> RenderInput<'a> {
     pub fn new(recording: &'a Recording, spec: PageSpec, dpi: f64) -> Self {
         Self {
             recording,
+            first_sample: 0,
+            recording_s: recording.duration_s(),
             spec,
             scheme: Scheme::Rose,
             dpi,
@@ -113,6 +121,13 @@ impl<'a> RenderInput<'a> {
             notes: Vec::new(),
             identify: false,
         }
+    }
+
+    /// A plain page of a span of a recording `recording_s` seconds long (e.g. the filtered samples around the
+    /// window, [`crate::analysis::Analysis::filtered_span`]), so a long recording is never filtered whole.
+    #[must_use]
+    pub fn of_span(span: &'a Span, recording_s: f64, spec: PageSpec, dpi: f64) -> Self {
+        Self { first_sample: span.first, recording_s, ..Self::new(&span.recording, spec, dpi) }
     }
 }
 

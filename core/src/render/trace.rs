@@ -48,10 +48,13 @@ pub fn decimate_min_max(samples: &[f32], x0_px: f64, px_per_sample: f64) -> Vec<
     out
 }
 
-/// Draws the part of `cell`'s lead inside its window, clamped vertically to `[y_min_mm, y_max_mm]`.
+/// Draws the part of `cell`'s lead inside its window, clamped vertically to `[y_min_mm, y_max_mm]`; `recording`
+/// starts at sample `first` of the whole recording the cell's times refer to.
+#[allow(clippy::too_many_arguments)] // one cell's drawing inputs, each of its own kind
 pub(super) fn draw_cell(
     canvas: &mut Canvas,
     recording: &Recording,
+    first: usize,
     paper: &Paper,
     row: &Row,
     cell: &Cell,
@@ -60,13 +63,14 @@ pub(super) fn draw_cell(
 ) {
     let Some(lead) = recording.leads.get(cell.lead) else { return };
     let fs = recording.sample_rate.hz();
-    let n = lead.samples.len();
-    let i0 = (cell.t0_s * fs).ceil().max(0.0) as usize;
-    let i1 = ((cell.t1_s * fs).floor() as usize).min(n.saturating_sub(1));
-    if n == 0 || i0 > i1 || i0 >= n {
+    // Samples i0..=i1 of the whole recording, held from `first` on.
+    let end = first + lead.samples.len();
+    let i0 = ((cell.t0_s * fs).ceil().max(0.0) as usize).max(first);
+    let i1 = ((cell.t1_s * fs).floor() as usize).min(end.saturating_sub(1));
+    if end == first || i0 > i1 || i0 >= end {
         return;
     }
-    let samples = &lead.samples[i0..=i1];
+    let samples = &lead.samples[i0 - first..=i1 - first];
     let ppm = canvas.ppm;
     let y_px = |uv: f32| -> f32 {
         let mm = row.y_from_uv(paper, f64::from(uv), cell.inverted).clamp(y_min_mm, y_max_mm);

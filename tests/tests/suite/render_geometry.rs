@@ -9,7 +9,8 @@ use crate::render_common::{Image, Res, centre, ptb, render_png, runs};
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::paper::{Layout, PageSpec, Paper, Scheme};
 use isoline_core::recording::StandardLead;
-use isoline_core::render::RenderInput;
+use isoline_core::analysis::Span;
+use isoline_core::render::{RenderInput, render_page};
 
 const DPI: f64 = 300.0;
 /// Pixels per mm at 300 dpi. Source: 1 inch = 25.4 mm exactly.
@@ -191,5 +192,25 @@ fn mark_is_drawn_on_every_row_showing_its_time() -> Res {
         assert_eq!(lines.len(), 1, "row at {} mm: mark lines {lines:?}", row.top_mm);
         assert!((lines[0] - expect).abs() <= 1.5, "mark at {} px, expected {expect:.2}", lines[0]);
     }
+    Ok(())
+}
+
+#[test]
+fn a_span_of_the_recording_draws_the_page_the_whole_recording_does() -> Res {
+    // A long recording's page is drawn from the samples around its window only (its filtered signal is never
+    // held whole): the same window from a span and from the whole recording gives the same pixels, with the
+    // window's times those of the whole recording.
+    let rec = ptb()?;
+    let spec = PageSpec { start_s: 12.0, seconds: 10.0, ..PageSpec::default() };
+    let (a, b) = spec.sample_range(rec.sample_rate.hz());
+    let span = Span::cut(&rec, a, b);
+    assert!(span.first == 11_999 && span.recording.len() == 10_003, "{} + {}", span.first, span.recording.len());
+    let whole = render_page(&RenderInput::new(&rec, spec.clone(), 100.0))?;
+    let part = render_page(&RenderInput::of_span(&span, rec.duration_s(), spec.clone(), 100.0))?;
+    assert!(whole.data() == part.data(), "the span's page differs from the whole recording's");
+    // A span that misses the window's end leaves that part of the page blank, not shifted.
+    let short = Span::cut(&rec, a, a + 5_000);
+    let cut = render_page(&RenderInput::of_span(&short, rec.duration_s(), spec, 100.0))?;
+    assert!(cut.data() != whole.data());
     Ok(())
 }
