@@ -39,6 +39,17 @@ const MIN_BEAT_CORR: f64 = 0.30;
 // Common practice, no source. 0.10 rather than 0.12: global 12-lead P onsets are the earliest onset over the
 // leads, which lies before the foot of the multi-lead envelope (LUDB mean error +10.0 → +8.6 ms).
 const EDGE_FRACTION: f32 = 0.10;
+/// Walking out from the P wave's steepest slope, an edge is also where the envelope stops falling (a local
+/// minimum) once it lies below this fraction of the way from its quiet level to the slope's peak: on a flat
+/// baseline the sum of twelve leads' |slope| keeps a noise floor with bumps of its own, and a threshold a tenth
+/// of the way up can lie inside it, so the walk ran on through the baseline to the reach limit or to a bump
+/// before the wave (LUDB 11: P onset 44 ms before the experts').
+// Source: Martínez et al., IEEE Trans Biomed Eng 2004;51:570-81 (from memory): wave edges where the wavelet
+// modulus falls below a threshold or reaches a local minimum. The fraction is ours (common practice, no source):
+// below it a minimum is taken as the baseline, above it as a dip within the limb. Measured (LUDB 1-50, P onset
+// against the second-earliest lead's mark): −3.1 ± 13.6 ms without the minimum rule, −0.6 ± 10.5 with it at
+// 0.15–0.20, −0.2 ± 9.9 at 0.25, +1.4 ± 12.8 at 0.40; QT Database P onset unchanged (−2.3 ± 13.9).
+const DIP_FRACTION: f32 = 0.20;
 /// Farthest a P edge lies from the P wave's steepest slope, s.
 // Common practice, no source: a P wave's limbs last ≈ 40–60 ms each; 120 ms P waves are already wide.
 const EDGE_REACH_S: f64 = 0.080;
@@ -221,8 +232,17 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     // Walk out from the steepest up- and downslope at most EDGE_REACH_S; where the envelope never falls to the
     // threshold (noise between P and T), the quietest sample within reach is the edge.
     let quietest = |r: std::ops::RangeInclusive<usize>| r.min_by(|&a, &b| env[a].total_cmp(&env[b]));
-    let on = (on_from..=up).rev().find(|&k| env[k] <= on_level).or_else(|| quietest(on_from..=up))?;
-    let end = (down..=end_to).find(|&k| env[k] <= end_level).or_else(|| quietest(down..=end_to))?;
+    // The walk also stops where the envelope stops falling (a local minimum) low enough that it is not a dip
+    // within the limb: on a flat baseline the threshold may lie inside the noise of the summed envelope.
+    let on_dip = quiet_before + DIP_FRACTION * (env[up] - quiet_before);
+    let end_dip = quiet_after + DIP_FRACTION * (env[down] - quiet_after);
+    let on = (on_from..=up)
+        .rev()
+        .find(|&k| env[k] <= on_level || (k > on_from && k < up && env[k] <= on_dip && env[k - 1] > env[k]))
+        .or_else(|| quietest(on_from..=up))?;
+    let end = (down..=end_to)
+        .find(|&k| env[k] <= end_level || (k > down && k < end_to && env[k] <= end_dip && env[k + 1] > env[k]))
+        .or_else(|| quietest(down..=end_to))?;
     let (on, end) = refine(sig, onsets, w, &fine, (start, stop), (on, up, on_level), (end, down, end_level));
     let cut = on <= start + sig.samples(CUT_S);
     let mut m = PModel {
