@@ -71,9 +71,11 @@ fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
     Some(RangeNote { key: key.to_string(), text, source, qtc: None })
 }
 
-/// Heart rate outside 60–100 bpm (references.md §4: textbook resting range).
+/// Heart rate outside 60–100 bpm (references.md §4: textbook resting range). Like every note here, it judges the
+/// value as printed (to whole units), so a rate shown as 60 bpm is never called below 60.
 #[must_use]
 pub fn heart_rate(bpm: f64) -> Option<RangeNote> {
+    let bpm = bpm.round();
     let side = if bpm < 60.0 {
         "below"
     } else if bpm > 100.0 {
@@ -94,6 +96,7 @@ pub fn heart_rate(bpm: f64) -> Option<RangeNote> {
 /// PR outside 120–200 ms (references.md §4: textbook range).
 #[must_use]
 pub fn pr(ms: f64) -> Option<RangeNote> {
+    let ms = ms.round();
     let text = if ms > 200.0 {
         format!("PR {ms:.0} ms — above the usual upper limit of 200 ms ({SOURCE_TEXTBOOK})")
     } else if ms < 120.0 {
@@ -107,6 +110,7 @@ pub fn pr(ms: f64) -> Option<RangeNote> {
 /// QRS above 110 ms (adults); 120 ms named separately (Surawicz et al. 2009, references.md §4).
 #[must_use]
 pub fn qrs(ms: f64) -> Option<RangeNote> {
+    let ms = ms.round();
     let text = if ms >= 120.0 {
         format!(
             "QRS {ms:.0} ms — at or above 120 ms, beyond the usual adult upper limit of 110 ms (Surawicz et al. 2009)"
@@ -123,6 +127,7 @@ pub fn qrs(ms: f64) -> Option<RangeNote> {
 /// al. 2009 — from memory), > 500 ms (Johnson & Ackerman 2009).
 #[must_use]
 pub fn qtc(key: &str, formula: &str, ms: f64, sex: Sex) -> Option<RangeNote> {
+    let ms = ms.round();
     let (finding, source) = qtc_finding(ms, sex)?;
     Some(RangeNote {
         key: key.to_string(),
@@ -198,6 +203,7 @@ fn listed<S: std::borrow::Borrow<str>>(items: &[S]) -> String {
 /// QRS axis outside −30° to +90° (references.md §4: textbook frontal axis ranges).
 #[must_use]
 pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
+    let deg = deg.round();
     let side = if (-90.0..-30.0).contains(&deg) {
         "to the left"
     } else if deg > 90.0 {
@@ -267,6 +273,18 @@ mod tests {
         assert!(qtc("k", "Bazett", 420.0, Sex::Unknown).is_none());
         assert!(qtc("k", "Bazett", 385.0, Sex::Male).is_some());
         assert_eq!(qtc("k", "Bazett", 520.0, Sex::Female).map(|n| n.source), Some(SOURCE_QTC_500));
+    }
+
+    #[test]
+    fn notes_judge_the_value_as_printed() {
+        // A value printed as the limit itself is not outside it: 59.7 bpm reads "60 bpm", which is in 60–100.
+        assert!(heart_rate(59.7).is_none() && heart_rate(100.4).is_none());
+        assert_eq!(heart_rate(59.4).map(|n| n.text.starts_with("Heart rate 59 bpm — below")), Some(true));
+        assert!(pr(200.3).is_none() && pr(119.6).is_none() && pr(200.6).is_some());
+        assert!(qrs(110.4).is_none() && qrs(119.6).is_some_and(|n| n.text.contains("at or above 120 ms")));
+        assert!(qtc("k", "Bazett", 449.6, Sex::Male).is_some() && qtc("k", "Bazett", 500.4, Sex::Male).is_some());
+        assert_eq!(qtc("k", "Bazett", 500.4, Sex::Male).map(|n| n.source), Some(SOURCE_QTC));
+        assert!(qrs_axis(-30.4).is_none() && qrs_axis(90.4).is_none() && qrs_axis(-30.6).is_some());
     }
 
     #[test]
