@@ -75,7 +75,7 @@ pub fn beat_lens_ui(
     let auto = loaded.auto_marks();
     let marks = doc.effective_marks(&auto);
     ui.horizontal_wrapped(|ui| {
-        ui.label(format!("Beat lens ({} beats)", rep.n_beats));
+        ui.label(format!("Beat lens (median of {} beats)", rep.n_beats));
         let current = state
             .lens_lead
             .and_then(|i| loaded.recording.leads.get(i))
