@@ -1,9 +1,9 @@
 //! Data derived from the open recording for the views: the Tape envelope, the heart-rate trend, and beats from
 //! the recording's own annotations (used only when the detector finds none).
 
+use isoline_core::analysis::Span;
 use isoline_core::beat::{Beat, BeatKind};
 use isoline_core::io::wfdb_annotations::is_beat;
-use isoline_core::analysis::Span;
 use isoline_core::recording::{Annotation, Recording};
 
 /// Whole-recording min/max envelope of one lead, in equal time buckets.

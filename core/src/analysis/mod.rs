@@ -110,11 +110,8 @@ impl Span {
     pub fn cut(recording: &Recording, a: usize, b: usize) -> Self {
         let b = b.min(recording.len());
         let a = a.min(b);
-        let leads = recording
-            .leads
-            .iter()
-            .map(|l| Lead { name: l.name.clone(), samples: l.samples[a..b].to_vec() })
-            .collect();
+        let leads =
+            recording.leads.iter().map(|l| Lead { name: l.name.clone(), samples: l.samples[a..b].to_vec() }).collect();
         let recording = Recording {
             leads,
             sample_rate: recording.sample_rate,

@@ -104,7 +104,15 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
     for row in &page.rows {
         trace::draw_calibration(canvas, &paper, row, pal.trace);
         for (j, cell) in row.cells.iter().enumerate() {
-            trace::draw_cell(canvas, input.recording, input.first_sample, &paper, row, cell, (area.y0, area.y1), pal.trace);
+            trace::draw_cell(
+                canvas,
+                (input.recording, input.first_sample),
+                &paper,
+                row,
+                cell,
+                (area.y0, area.y1),
+                pal.trace,
+            );
             if j > 0 {
                 // A short bar where one column's window ends and the next begins.
                 canvas.segment(

@@ -48,19 +48,18 @@ pub fn decimate_min_max(samples: &[f32], x0_px: f64, px_per_sample: f64) -> Vec<
     out
 }
 
-/// Draws the part of `cell`'s lead inside its window, clamped vertically to `[y_min_mm, y_max_mm]`; `recording`
-/// starts at sample `first` of the whole recording the cell's times refer to.
-#[allow(clippy::too_many_arguments)] // one cell's drawing inputs, each of its own kind
+/// Draws the part of `cell`'s lead inside its window, clamped vertically to `[y_min_mm, y_max_mm]`. `held` is
+/// the recording drawn and the sample of the whole recording (the one the cell's times refer to) where it starts.
 pub(super) fn draw_cell(
     canvas: &mut Canvas,
-    recording: &Recording,
-    first: usize,
+    held: (&Recording, usize),
     paper: &Paper,
     row: &Row,
     cell: &Cell,
     (y_min_mm, y_max_mm): (f64, f64),
     color: Rgba,
 ) {
+    let (recording, first) = held;
     let Some(lead) = recording.leads.get(cell.lead) else { return };
     let fs = recording.sample_rate.hz();
     // Samples i0..=i1 of the whole recording, held from `first` on.

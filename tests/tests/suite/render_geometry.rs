@@ -6,10 +6,10 @@
 //! 1 inch = 25.4 mm exactly (international yard and pound agreement, 1959), so 1 mm = dpi / 25.4 px.
 
 use crate::render_common::{Image, Res, centre, ptb, render_png, runs};
+use isoline_core::analysis::Span;
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::paper::{Layout, PageSpec, Paper, Scheme};
 use isoline_core::recording::StandardLead;
-use isoline_core::analysis::Span;
 use isoline_core::render::{RenderInput, render_page};
 
 const DPI: f64 = 300.0;
