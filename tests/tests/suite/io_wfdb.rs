@@ -88,6 +88,22 @@ fn hea_path_and_bare_record_path_agree() -> TestResult {
 }
 
 #[test]
+fn age_and_sex_come_from_the_header_comments() -> TestResult {
+    // MIT-BIH style: the first comment line starts with age and sex (`# 69 M 1085 1629 x1` in 100.hea, copied into
+    // sel100.hea); LUDB style: `<age>: 51` and `<sex>: F` lines. A record with neither keeps them unknown.
+    for (rec, age, sex) in [("mitdb-100/100.hea", Some(69.0), Some("M")), ("qtdb/sel117.hea", Some(69.0), Some("M"))]
+        .into_iter()
+        .chain([("qtdb/sel14046.hea", None, None)])
+    {
+        let meta = wfdb::read_record(&data(rec))?.recording.meta;
+        assert_eq!((meta.age_years, meta.sex.as_deref()), (age, sex), "{rec}");
+    }
+    let ludb = wfdb::read_record(&data("ludb/1.hea"))?.recording.meta;
+    assert!(ludb.age_years.is_some() && ludb.sex.is_some());
+    Ok(())
+}
+
+#[test]
 fn multi_file_record_reads_both_files() -> TestResult {
     // ptb-s0010/s0010_re: 12 leads in .dat and 3 Frank leads in .xyz (header in tests/data).
     let o = wfdb::read_record(&data("ptb-s0010/s0010_re"))?;

@@ -197,9 +197,24 @@ fn uv_per_unit(units: &str) -> Option<f64> {
     }
 }
 
-/// Picks age and sex from comment lines such as `<age>: 51`, `age: 81`, `sex: female`.
+/// Picks age and sex from comment lines such as `<age>: 51`, `age: 81`, `sex: female`, or else from a line that
+/// starts with the age and `M` or `F`, as the MIT-BIH records (and the QT Database records drawn from them) give
+/// them: `# 69 M 1085 1629 x1`.
+// Source: MIT-BIH Arrhythmia Database Directory (Moody & Mark), header comments: the first comment line holds the
+// subject's age and sex, then details of the original recording (from memory).
 fn parse_comment_fields(comments: &[String], meta: &mut Meta) {
     for c in comments {
+        let mut words = c.split_whitespace();
+        if let (Some(age), Some(sex @ ("M" | "F"))) = (words.next(), words.next())
+            && let Ok(age) = age.parse::<u16>()
+            && age <= 130
+            && meta.age_years.is_none()
+            && meta.sex.is_none()
+        {
+            meta.age_years = Some(f64::from(age));
+            meta.sex = Some(sex.into());
+            continue;
+        }
         let lower = c.to_ascii_lowercase();
         let lower = lower.replace(['<', '>'], "");
         if let Some(v) = lower.strip_prefix("age:") {
