@@ -36,6 +36,11 @@ use isoline_tests::score::{mean_sd, median};
 const LEADS: [&str; 12] = ["i", "ii", "iii", "avr", "avl", "avf", "v1", "v2", "v3", "v4", "v5", "v6"];
 
 /// Expert QRS (onset, end) of one lead: `(` `N` `)` triples.
+/// One lead's QRS edges as `qrs_lead_edges` gives them: (lead, onset, end).
+type Edges = (usize, Option<usize>, Option<usize>);
+/// Where an extreme is counted: per-lead counts and the errors.
+type Which<'a> = (&'a mut [usize; 12], &'a mut Vec<f64>);
+
 fn expert_qrs(n: usize, lead: &str) -> Vec<(usize, usize)> {
     let Ok(a) = wfdb_annotations::read(&data(&format!("ludb/{n}.{lead}"))) else { return Vec::new() };
     a.windows(3)
@@ -133,26 +138,16 @@ fn ludb_qrs_edges_per_lead() {
         // Expert global extreme on the rep beat, and our edge in that lead.
         let lo = (0..12).filter_map(|l| exp_on[l].map(|v| (l, v))).min_by(|a, b| a.1.total_cmp(&b.1));
         let hi = (0..12).filter_map(|l| exp_end[l].map(|v| (l, v))).max_by(|a, b| a.1.total_cmp(&b.1));
-        if let Some((l, v)) = lo {
-            ext_on_lead[l] += 1;
-            let o = redges.iter().find(|x| x.0 == l).and_then(|x| x.1);
-            line.push_str(&format!(
-                "  | ext on {}:{}",
-                LEADS[l],
-                o.map_or("nv".into(), |o| format!("{:+.0}", (o as f64 - ri - v) * to_ms))
-            ));
-            ext_on.extend(o.map(|o| (o as f64 - ri - v) * to_ms));
-        }
-        if let Some((l, v)) = hi {
-            ext_end_lead[l] += 1;
-            let o = redges.iter().find(|x| x.0 == l).and_then(|x| x.2);
-            line.push_str(&format!(
-                " end {}:{}",
-                LEADS[l],
-                o.map_or("nv".into(), |o| format!("{:+.0}", (o as f64 - ri - v) * to_ms))
-            ));
-            ext_end.extend(o.map(|o| (o as f64 - ri - v) * to_ms));
-        }
+        // Our rep-beat edge (`pick`: onset or end) in the lead holding the expert extreme `(lead, offset from R)`.
+        let mut extreme = |label: &str, at: Option<(usize, f64)>, pick: fn(&Edges) -> Option<usize>, w: Which<'_>| {
+            let Some((l, v)) = at else { return };
+            w.0[l] += 1;
+            let err = redges.iter().find(|x| x.0 == l).and_then(pick).map(|o| (o as f64 - ri - v) * to_ms);
+            line.push_str(&format!("{label}{}:{}", LEADS[l], err.map_or("nv".into(), |e| format!("{e:+.0}"))));
+            w.1.extend(err);
+        };
+        extreme("  | ext on ", lo, |x| x.1, (&mut ext_on_lead, &mut ext_on));
+        extreme(" end ", hi, |x| x.2, (&mut ext_end_lead, &mut ext_end));
         if let (Some(on), Some(end), Some((_, lo)), Some((_, hi))) = (rep.bounds.qrs_on, rep.bounds.qrs_end, lo, hi) {
             let g_on = (on as f64 - ri - lo) * to_ms;
             let g_end = (end as f64 - ri - hi) * to_ms;
