@@ -30,29 +30,40 @@ pub struct RrStats {
     pub sdnn_ms: Option<f64>,
     /// RMSSD, ms (successive differences only between adjacent NN intervals).
     pub rmssd_ms: Option<f64>,
-    /// Rhythm regularity over all RR intervals (any beat kind).
+    /// Regularity of the underlying rhythm (NN intervals), with the count of other beats.
     pub rhythm: Rhythm,
 }
 
-/// Regularity of the RR intervals between consecutive beats of any kind: a measurement, not a diagnosis.
+/// Regularity of the underlying rhythm: of the NN intervals (between consecutive dominant beats), so that a
+/// premature beat and the pause after it do not make a steady rhythm irregular; of all RR intervals when no
+/// beat is dominant. A measurement, not a diagnosis.
 #[derive(Debug, Clone, Copy, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Rhythm {
-    /// Number of RR intervals.
+    /// Number of intervals the regularity is judged on.
     pub rr_count: usize,
-    /// Coefficient of variation of RR (SD / mean, a fraction: 0.05 = 5 %).
+    /// Coefficient of variation of those intervals (SD / mean, a fraction: 0.05 = 5 %).
     pub rr_cv: Option<f64>,
     /// `Some(true)` regular, `Some(false)` irregular, `None` with too few intervals.
     pub regular: Option<bool>,
+    /// Beats typed other (premature, wide or unlike the dominant beats), left out of the regularity.
+    #[serde(default)]
+    pub other_beats: usize,
 }
 
 impl Rhythm {
-    /// `regular`, `irregular` or `not enough beats`.
+    /// `regular`, `irregular` or `not enough beats`, followed by the number of other beats when there are any
+    /// ("regular, 2 other beats").
     #[must_use]
-    pub fn describe(&self) -> &'static str {
-        match self.regular {
+    pub fn describe(&self) -> String {
+        let call = match self.regular {
             Some(true) => "regular",
             Some(false) => "irregular",
             None => "not enough beats",
+        };
+        match self.other_beats {
+            0 => call.to_string(),
+            1 => format!("{call}, 1 other beat"),
+            n => format!("{call}, {n} other beats"),
         }
     }
 }
@@ -94,17 +105,21 @@ pub fn rmssd_runs(runs: &[Vec<f64>]) -> Option<f64> {
     mean(&sq).map(f64::sqrt)
 }
 
-/// Regularity of all RR intervals between consecutive beats.
+/// Regularity of the underlying rhythm (see [`Rhythm`]).
 #[must_use]
 pub fn rhythm(beats: &[Beat], fs: Hertz) -> Rhythm {
-    let rr: Vec<f64> =
-        beats.windows(2).filter(|w| w[1].r > w[0].r).map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64)).collect();
+    let other_beats = beats.iter().filter(|b| b.kind != BeatKind::Dominant).count();
+    let rr: Vec<f64> = if other_beats < beats.len() {
+        nn_runs(beats, fs).into_iter().flatten().collect()
+    } else {
+        beats.windows(2).filter(|w| w[1].r > w[0].r).map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64)).collect()
+    };
     let rr_cv = match (mean(&rr), sample_sd(&rr)) {
         (Some(m), Some(sd)) if m > 0.0 => Some(sd / m),
         _ => None,
     };
     let regular = rr_cv.filter(|_| rr.len() >= MIN_RR_FOR_REGULARITY).map(|cv| cv < IRREGULAR_CV);
-    Rhythm { rr_count: rr.len(), rr_cv, regular }
+    Rhythm { rr_count: rr.len(), rr_cv, regular, other_beats }
 }
 
 /// All RR statistics of a beat list at rate `fs`.
@@ -145,8 +160,42 @@ mod tests {
         assert_eq!(s.rr_ms, Some(800.0));
         assert_eq!(s.heart_rate_bpm, Some(75.0));
         assert_eq!(s.rmssd_ms, Some(0.0));
-        assert_eq!(s.rhythm.rr_count, 5);
-        assert_eq!(s.rhythm.regular, Some(false));
+        // The premature beat and its pause leave the underlying rhythm regular.
+        assert_eq!(s.rhythm.rr_count, 3);
+        assert_eq!(s.rhythm.rr_cv, Some(0.0));
+        assert_eq!(s.rhythm.regular, None);
+        assert_eq!(s.rhythm.other_beats, 1);
+        assert_eq!(s.rhythm.describe(), "not enough beats, 1 other beat");
+    }
+
+    #[test]
+    fn other_beats_do_not_make_a_steady_rhythm_irregular() {
+        use BeatKind::{Dominant as D, Other as O};
+        // 800 ms sinus rhythm, a premature beat at 500 ms with a compensatory pause, twice.
+        let mut b = Vec::new();
+        let mut t = 0;
+        for k in 0..14 {
+            b.push((t, D));
+            t += 800;
+            if k == 4 || k == 9 {
+                b.push((t - 300, O));
+            }
+        }
+        let r = rhythm(&beats(&b), fs());
+        assert_eq!((r.regular, r.other_beats, r.rr_count), (Some(true), 2, 11));
+        assert_eq!(r.describe(), "regular, 2 other beats");
+        // With no dominant beat, all RR intervals are judged.
+        let all_other: Vec<Beat> = beats(&b).into_iter().map(|x| Beat::at(x.r, O)).collect();
+        assert_eq!(rhythm(&all_other, fs()).regular, Some(false));
+    }
+
+    #[test]
+    fn irregular_dominant_beats_stay_irregular() {
+        // RR alternating 600 and 1000 ms, every beat dominant (as in atrial fibrillation with narrow QRS).
+        let b: Vec<Beat> = (0..12).map(|k| Beat::at(k * 800 + (k % 2) * 200, BeatKind::Dominant)).collect();
+        let r = rhythm(&b, fs());
+        assert_eq!((r.regular, r.other_beats), (Some(false), 0));
+        assert_eq!(r.describe(), "irregular");
     }
 
     #[test]

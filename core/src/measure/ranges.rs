@@ -238,14 +238,15 @@ pub fn limb_gain_mismatch(pct: f64) -> Option<RangeNote> {
     )
 }
 
-/// RR intervals irregular (coefficient of variation ≥ the threshold in [`super::hrv::IRREGULAR_CV`]).
+/// The underlying rhythm's RR intervals irregular (coefficient of variation of the NN intervals ≥ the threshold
+/// in [`super::hrv::IRREGULAR_CV`]; see [`super::hrv::Rhythm`]).
 #[must_use]
 pub fn rr_variation(cv: f64) -> Option<RangeNote> {
     let limit = super::hrv::IRREGULAR_CV;
     (cv >= limit).then(|| RangeNote {
         key: "rr_cv_pct".into(),
         text: format!(
-            "RR intervals irregular: variation {:.0} % (regular below {:.0} %, {SOURCE_COMMON})",
+            "RR intervals between dominant beats irregular: variation {:.0} % (regular below {:.0} %, {SOURCE_COMMON})",
             cv * 100.0,
             limit * 100.0
         ),

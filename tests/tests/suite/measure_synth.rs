@@ -142,3 +142,19 @@ fn full_analysis_intervals_match_the_truth_with_noise() {
     // Goal (issue 3): the same, also with noise switched on.
     check(&noisy_specs().iter().map(run).collect::<Vec<_>>());
 }
+
+#[test]
+fn ectopic_beats_leave_the_underlying_rhythm_regular() {
+    // The ectopics scenario: steady sinus rhythm with premature wide beats and full compensatory pauses (30 s).
+    // Every ectopic beat is typed other, and the rhythm of the dominant beats is regular; the irregular
+    // scenario stays irregular.
+    let spec = SynthSpec { seconds: 30.0, ..Scenario::Ectopics.spec() };
+    let s = synth::generate(&spec).unwrap_or_else(|e| panic!("{e}"));
+    let rhythm = analyze(&s.recording, &FilterSettings::default()).measurements.rr.rhythm;
+    assert!(s.truth.ectopic_beats >= 4, "{} ectopic beats", s.truth.ectopic_beats);
+    assert_eq!(rhythm.other_beats, s.truth.ectopic_beats, "{rhythm:?}");
+    assert_eq!(rhythm.regular, Some(true), "{rhythm:?}");
+    let irregular = synth::generate(&Scenario::Irregular.spec()).unwrap_or_else(|e| panic!("{e}"));
+    let rhythm = analyze(&irregular.recording, &FilterSettings::default()).measurements.rr.rhythm;
+    assert_eq!(rhythm.regular, Some(false), "{rhythm:?}");
+}
