@@ -1,8 +1,10 @@
 //! P waves. A P wave is only reported when the record has a consistent one: the median of the PR windows of
 //! the dominant beats (aligned on QRS onset) shows a P wave, and the individual beats resemble that median
 //! (an irregular rhythm with fibrillatory waves gives a flat median and low resemblance, so no P).
-//! Boundaries are found on the median with a multi-lead slope envelope, and carried to each beat at the lag
-//! where the beat best matches the median. As for the QRS edges, where the unfiltered median leads resolve it
+//! Boundaries are found with a multi-lead slope envelope (each lead in units of its own P slope) on the median
+//! of the PR windows, each beat's moved to where its P wave best matches a first model (a median aligned on QRS
+//! onset is blurred by the beat-to-beat scatter of the PR interval and of the QRS onsets), and carried to each
+//! beat at the lag where the beat best matches the median. As for the QRS edges, where the unfiltered median leads resolve it
 //! the edges are then moved inward over the few samples the low-pass and smoothing spread the wave's abrupt start
 //! and end (see [`SPREAD_S`]). The PR window is [`WINDOW_S`], reaching back towards the previous T end (at most
 //! [`LONG_WINDOW_S`]) when the P wave runs into its start: a long PR (first-degree AV block) is measured whole.
@@ -59,6 +61,13 @@ const EDGE_REACH_S: f64 = 0.080;
 // records: 35 Hz keeps QTDB P onset unchanged (−0.8 ± 13.4 ms), moves LUDB from +8.6 ± 21.5 to +7.9 ± 21.4 and
 // halves the PR error's spread with noise; 25–30 Hz blur the edges outwards (QTDB −2.8 to −3.4 ms).
 const P_LP_HZ: f64 = 35.0;
+/// Most a lead's P slope is raised relative to the lead with the steepest P when the leads are equalised for
+/// the slope envelope.
+// Common practice, no source: as for the QRS envelope (`signals::MAX_GAIN`); a lead with a tiny P wave mostly
+// shows noise. Measured (P onset, ms): QT Database −1.6 ± 14.0 summed in µV → −1.0 ± 13.2 equalised (also with
+// at most 2×); LUDB against the second-earliest lead +0.3 ± 10.1 → +0.2 ± 10.1; the largest lead's slope alone
+// (at most 2× or 4×) scattered LUDB to ± 16–18.
+const MAX_GAIN: f32 = 4.0;
 /// Largest lag tried when matching a beat to the median P, s.
 const MAX_LAG_S: f64 = 0.024;
 /// How far the P-band and 40 Hz zero-phase low-passes and the 16 ms envelope smoothing spread an abrupt start
@@ -194,13 +203,44 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     if best_amp < MIN_P_UV || peak <= start || peak >= stop {
         return None;
     }
+    // Edges on the median of the PR windows aligned on QRS onset; then again with each beat moved to the lag
+    // where its P wave best matches that first model: the PR interval varies a little from beat to beat and the
+    // QRS onsets jitter, and a median of misaligned P waves starts earlier and ends later than any of them.
+    let at_qrs: Vec<(usize, isize)> = onsets.iter().map(|&(q, _)| (q, 0)).collect();
+    let (on, end) = edges(sig, &at_qrs, w, (start, peak, stop))?;
+    let first = PModel {
+        on_rel: on as isize - w as isize,
+        end_rel: end as isize - w as isize,
+        ..PModel::of(template, sig.samples(0.020))
+    };
+    let need = w - on + first.margin;
+    let aligned: Vec<(usize, isize)> =
+        onsets.iter().map(|&(q, _)| (q, first.best_lag(sig, q, need).map_or(0, |(lag, _)| lag))).collect();
+    let (on, end) = edges(sig, &aligned, w, (start, peak, stop)).unwrap_or((on, end));
+    let cut = on <= start + sig.samples(CUT_S);
+    let mut m = PModel { on_rel: on as isize - w as isize, end_rel: end as isize - w as isize, ..first };
+    let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
+    m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
+    (m.consistency >= MIN_CONSISTENCY).then_some((m, cut))
+}
+
+/// P onset and end, as indices into a PR window of `w` samples, on the median over the beats (`beats`: QRS
+/// onset and the lag each PR window is moved by) of their PR windows: where the multi-lead slope envelope, walked
+/// out from its steepest up- and downslope around the P peak `peak`, falls to its threshold within the search
+/// region `start..=stop`, then refined over the low-pass spread ([`refine`]).
+fn edges(
+    sig: &Signals,
+    beats: &[(usize, isize)],
+    w: usize,
+    (start, peak, stop): (usize, usize, usize),
+) -> Option<(usize, usize)> {
     // Slope envelope over the leads of the median of the beats' PR windows, each low-passed to the P band (P_LP_HZ
     // on top of the 40 Hz leads): muscle noise above the P wave's band would otherwise add a rectified floor and
     // bumps to the envelope that move the edges outwards.
     let lp = [Biquad::lowpass(P_LP_HZ.min(sig.fs * 0.45), sig.fs)];
-    let fine_segs: Vec<Vec<Vec<f32>>> = onsets
+    let fine_segs: Vec<Vec<Vec<f32>>> = beats
         .iter()
-        .filter_map(|&(on, _)| segment_of(sig, &sig.qrs, on, 0, w, w))
+        .filter_map(|&(on, lag)| segment_of(sig, &sig.qrs, on, lag, w, w))
         .map(|seg| {
             seg.iter()
                 .map(|t| {
@@ -211,12 +251,20 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
         })
         .collect();
     let fine = median_of(&fine_segs.iter().collect::<Vec<_>>(), w);
+    // Each lead's slope in units of its own steepest P slope in the search region (a lead with a small P wave
+    // raised at most MAX_GAIN times relative to the lead with the steepest), so the leads' P waves count alike
+    // and the biggest one does not alone set the edges.
+    let slope = |t: &[f32], k: usize| ((t[k + 1] - t[k - 1]) * 0.5).abs();
+    let peaks: Vec<f32> =
+        fine.iter().map(|t| (start.max(1)..stop.min(w - 1)).map(|k| slope(t, k)).fold(0.0, f32::max)).collect();
+    let top = peaks.iter().copied().fold(0.0f32, f32::max);
+    let scales: Vec<f32> = peaks.iter().map(|&p| p.max(top / MAX_GAIN).max(f32::MIN_POSITIVE)).collect();
     let raw_env: Vec<f32> = (0..w)
         .map(|k| {
             if k == 0 || k + 1 >= w {
                 return 0.0;
             }
-            fine.iter().map(|t| ((t[k + 1] - t[k - 1]) * 0.5).abs()).sum()
+            fine.iter().zip(&scales).map(|(t, s)| slope(t, k) / s).sum()
         })
         .collect();
     let env = smooth(&raw_env, (sig.samples(0.016).max(1)) | 1);
@@ -243,18 +291,7 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     let end = (down..=end_to)
         .find(|&k| env[k] <= end_level || (k > down && k < end_to && env[k] <= end_dip && env[k + 1] > env[k]))
         .or_else(|| quietest(down..=end_to))?;
-    let (on, end) = refine(sig, onsets, w, &fine, (start, stop), (on, up, on_level), (end, down, end_level));
-    let cut = on <= start + sig.samples(CUT_S);
-    let mut m = PModel {
-        on_rel: on as isize - w as isize,
-        end_rel: end as isize - w as isize,
-        template,
-        margin: sig.samples(0.020),
-        consistency: 0.0,
-    };
-    let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
-    m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
-    (m.consistency >= MIN_CONSISTENCY).then_some((m, cut))
+    Some(refine(sig, beats, w, &fine, (start, stop), (on, up, on_level), (end, down, end_level)))
 }
 
 /// Moves the P edges found on the envelope inward over the low-pass spread: the onset `on` (steepest upslope
@@ -264,7 +301,7 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
 /// is below the same level, so noisy or coarsely quantised records keep the envelope's edges.
 fn refine(
     sig: &Signals,
-    onsets: &[(usize, usize)],
+    beats: &[(usize, isize)],
     w: usize,
     fine: &[Vec<f32>],
     (start, stop): (usize, usize),
@@ -272,7 +309,7 @@ fn refine(
     (end, down, end_level): (usize, usize, f32),
 ) -> (usize, usize) {
     let wide_segs: Vec<Vec<Vec<f32>>> =
-        onsets.iter().filter_map(|&(q, _)| segment_of(sig, &sig.wide, q, 0, w, w)).collect();
+        beats.iter().filter_map(|&(q, lag)| segment_of(sig, &sig.wide, q, lag, w, w)).collect();
     if wide_segs.is_empty() {
         return (on, end);
     }
@@ -341,15 +378,18 @@ impl PModel {
         correlation(&flat(seg), &flat(&self.template))
     }
 
-    /// P onset and end of the beat with this QRS onset: the template's boundaries at the lag (±24 ms) where
-    /// the beat matches it best; `None` when the beat does not resemble the record's P wave or the P wave would
-    /// start before `earliest`.
-    #[must_use]
-    pub fn for_beat(&self, sig: &Signals, qrs_on: usize, earliest: usize) -> Option<(usize, usize)> {
+    /// A model of the median PR window `template` with no edges yet, compared with beats over the P wave and
+    /// `margin` samples either side.
+    fn of(template: Vec<Vec<f32>>, margin: usize) -> Self {
+        Self { on_rel: 0, end_rel: 0, template, margin, consistency: 0.0 }
+    }
+
+    /// The lag (within ± [`MAX_LAG_S`]) at which the PR window of the beat with QRS onset `qrs_on` matches the
+    /// template best, with that correlation; only the last `need` samples of the window must lie inside the
+    /// recording. `None` when no lag does.
+    fn best_lag(&self, sig: &Signals, qrs_on: usize, need: usize) -> Option<(isize, f64)> {
         let max_lag = sig.samples(MAX_LAG_S) as isize;
         let w = self.template.first().map_or(0, Vec::len);
-        // Only the P wave and its margins are compared: a beat (the representative one) may start inside the window.
-        let need = (-self.on_rel).max(0) as usize + self.margin;
         let step = if sig.fs > 300.0 { 2 } else { 1 };
         let mut best: Option<(isize, f64)> = None;
         let mut lag = -max_lag;
@@ -362,7 +402,17 @@ impl PModel {
             }
             lag += step;
         }
-        let (lag, c) = best?;
+        best
+    }
+
+    /// P onset and end of the beat with this QRS onset: the template's boundaries at the lag (±24 ms) where
+    /// the beat matches it best; `None` when the beat does not resemble the record's P wave or the P wave would
+    /// start before `earliest`.
+    #[must_use]
+    pub fn for_beat(&self, sig: &Signals, qrs_on: usize, earliest: usize) -> Option<(usize, usize)> {
+        // Only the P wave and its margins are compared: a beat (the representative one) may start inside the window.
+        let need = (-self.on_rel).max(0) as usize + self.margin;
+        let (lag, c) = self.best_lag(sig, qrs_on, need)?;
         if c < MIN_BEAT_CORR {
             return None;
         }

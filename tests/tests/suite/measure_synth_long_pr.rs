@@ -12,6 +12,8 @@ use isoline_core::synth::{self, NoiseSpec, Scenario, SynthSpec};
 const CLEAN_MS: f64 = 4.0;
 /// Allowed PR error with the `noisy` scenario's noise, ms (as in `measure_synth_p`).
 const NOISY_MS: f64 = 8.0;
+/// The truth is a sum of float times: a PR exactly on the tolerance may read a few 1e-14 ms over it.
+const ROUNDING_MS: f64 = 1e-6;
 
 /// Measured and true PR, ms, and how many of the true sinus beats got a P onset.
 fn pr_of(spec: &SynthSpec) -> (Option<f64>, f64, usize, usize) {
@@ -56,7 +58,7 @@ fn long_pr_is_measured_whole() {
                 "{case:<30} {label:<13} PR {} / {want:.1}  ({err:+.1} ms)  P found {with_p}/{sinus}",
                 got.map_or("—".into(), |g| format!("{g:.1}"))
             );
-            if err.abs() > tol || with_p < sinus {
+            if err.abs() > tol + ROUNDING_MS || with_p < sinus {
                 bad.push(format!("{case} {label}: PR {got:?} vs {want}, P in {with_p}/{sinus} beats"));
             }
         }
@@ -79,7 +81,7 @@ fn fast_rate_p_search_stays_clear_of_t_waves() {
         let (got, want, with_p, sinus) = pr_of(&spec);
         println!("{:<30} PR {got:?} / {want:.1}  P found {with_p}/{sinus}", spec.scenario);
         let err = got.map_or(f64::INFINITY, |g| g - want);
-        assert!(err.abs() <= CLEAN_MS, "{}: PR {got:?} vs {want}", spec.scenario);
+        assert!(err.abs() <= CLEAN_MS + ROUNDING_MS, "{}: PR {got:?} vs {want}", spec.scenario);
         assert_eq!(with_p, sinus, "{}: sinus beats without a P wave", spec.scenario);
     }
 }

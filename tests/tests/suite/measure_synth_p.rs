@@ -2,8 +2,9 @@
 //! P onset and end, against the generator's truth over several noise seeds (McSharry et al., IEEE Trans Biomed
 //! Eng 2003;50:289-94, as implemented by `isoline_core::synth`). Prints the errors per scenario (columns: clean,
 //! then seeds 1–8 with the `noisy` scenario's noise) and guards against regression: with noise the PR stays within
-//! 8 ms (4 samples) and every beat's P onset within 10 ms of the truth. Measured: PR −4..+6 ms, beat P onset
-//! within 8 ms (before the P-band low-pass: PR −6..+12, beat P onset up to 16 ms off).
+//! 8 ms (4 samples) and every beat's P onset within 10 ms of the truth. Measured: PR −8..+4 ms (mean −1.2, SD
+//! 3.1 over 48 runs), beat P onset within 10 ms (before the P-band low-pass: PR −6..+12, beat P onset up to 16 ms
+//! off; before the beats' P waves were aligned for their median: PR SD 2.4, beat P onset within 8 ms).
 
 use isoline_core::analysis::analyze;
 use isoline_core::filter::FilterSettings;
@@ -117,7 +118,8 @@ fn p_boundaries_with_noise_over_seeds() {
     let sd = (all_pr.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1.0)).sqrt();
     println!("PR error with noise over all: mean {mean:+.1} SD {sd:.1}");
     println!("with noise: worst |PR error| {worst_pr:.1} ms, worst beat P onset {worst_beat:.1} ms");
-    assert!(worst_pr <= 8.0, "PR off by {worst_pr} ms with noise");
+    // The truth is a sum of float times: a PR exactly 4 samples off may read a few 1e-13 ms over 8.
+    assert!(worst_pr <= 8.0 + 1e-6, "PR off by {worst_pr} ms with noise");
     assert_eq!(missing, 0, "sinus beats without a P onset");
     assert!(worst_beat <= 10.0, "a beat's P onset off by {worst_beat} ms with noise");
 }
