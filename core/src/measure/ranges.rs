@@ -64,8 +64,8 @@ pub const SOURCE_QTC_500: &str = "Johnson & Ackerman 2009, Br J Sports Med";
 pub const SOURCE_TEXTBOOK: &str = "usual textbook range";
 /// Source of the limb-lead relations (references.md §5).
 pub const SOURCE_EINTHOVEN: &str = "Einthoven's law; Goldberger 1942, Am Heart J 23:483";
-/// Source of the regularity threshold.
-pub const SOURCE_COMMON: &str = "common practice";
+/// Source of the beat-to-beat irregularity threshold.
+pub const SOURCE_RR_IRREGULAR: &str = "Dash et al. 2009, Ann Biomed Eng 37:1701-9";
 
 fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
     Some(RangeNote { key: key.to_string(), text, source, qtc: None })
@@ -238,19 +238,22 @@ pub fn limb_gain_mismatch(pct: f64) -> Option<RangeNote> {
     )
 }
 
-/// The underlying rhythm's RR intervals irregular (coefficient of variation of the NN intervals ≥ the threshold
-/// in [`super::hrv::IRREGULAR_CV`]; see [`super::hrv::Rhythm`]).
+/// The underlying rhythm irregular: beat-to-beat variation of the NN intervals at or above
+/// [`super::hrv::IRREGULAR_SUCCESSIVE`] (see [`super::hrv::Rhythm`]). `variation` is a fraction.
 #[must_use]
-pub fn rr_variation(cv: f64) -> Option<RangeNote> {
-    let limit = super::hrv::IRREGULAR_CV;
-    (cv >= limit).then(|| RangeNote {
-        key: "rr_cv_pct".into(),
+pub fn rr_irregular(variation: f64) -> Option<RangeNote> {
+    let limit = super::hrv::IRREGULAR_SUCCESSIVE;
+    // Judged as printed, in whole percent.
+    let variation = (variation * 100.0).round() / 100.0;
+    (variation >= limit).then(|| RangeNote {
+        key: "rr_successive_pct".into(),
         text: format!(
-            "RR intervals between dominant beats irregular: variation {:.0} % (regular below {:.0} %, {SOURCE_COMMON})",
-            cv * 100.0,
+            "RR intervals between dominant beats irregular: beat-to-beat variation {:.0} % of the mean RR (regular \
+             below {:.0} %, {SOURCE_RR_IRREGULAR})",
+            variation * 100.0,
             limit * 100.0
         ),
-        source: SOURCE_COMMON,
+        source: SOURCE_RR_IRREGULAR,
         qtc: None,
     })
 }
@@ -324,7 +327,9 @@ mod tests {
         assert!(qrs_axis(-30.0).is_none() && qrs_axis(-150.0).is_some());
         // A negative axis is printed with the minus sign the range uses.
         assert!(qrs_axis(-45.0).is_some_and(|n| n.text.starts_with("QRS axis \u{2212}45° —")));
-        assert!(rr_variation(0.04).is_none() && rr_variation(0.2).is_some());
+        assert!(rr_irregular(0.04).is_none() && rr_irregular(0.2).is_some());
+        // As printed: 9.6 % reads "10 %", at the limit; 9.4 % reads "9 %".
+        assert!(rr_irregular(0.096).is_some() && rr_irregular(0.094).is_none());
         assert_eq!(Sex::parse(Some(" F ")), Sex::Female);
         assert_eq!(Sex::parse(Some("male")), Sex::Male);
         assert_eq!(Sex::parse(None), Sex::Unknown);

@@ -24,12 +24,13 @@ pub struct MeasuredValue {
 }
 
 /// Every key [`Measurements::values`] can produce, in order (ST keys repeat once per lead).
-pub const KEYS: [&str; 19] = [
+pub const KEYS: [&str; 20] = [
     "heart_rate_bpm",
     "rr_ms",
     "rr_sdnn_ms",
     "rr_rmssd_ms",
     "rr_cv_pct",
+    "rr_successive_pct",
     "p_duration_ms",
     "pr_ms",
     "qrs_ms",
@@ -68,10 +69,12 @@ impl Measurements {
             v("rr_ms", "RR", self.rr.rr_ms, "ms"),
             v("rr_sdnn_ms", "SDNN", self.rr.sdnn_ms, "ms"),
             v("rr_rmssd_ms", "RMSSD", self.rr.rmssd_ms, "ms"),
-            with_note(v("rr_cv_pct", "RR variation", self.rr.rhythm.rr_cv.map(|c| c * 100.0), "%"), |p| {
+            v("rr_cv_pct", "RR variation", self.rr.rhythm.rr_cv.map(|c| c * 100.0), "%"),
+            with_note(
+                v("rr_successive_pct", "RR beat-to-beat variation", self.rr.rhythm.successive.map(|c| c * 100.0), "%"),
                 // Only a regularity call with enough intervals makes a note.
-                self.rr.rhythm.regular.and_then(|_| ranges::rr_variation(p / 100.0))
-            }),
+                |p| self.rr.rhythm.regular.and_then(|_| ranges::rr_irregular(p / 100.0)),
+            ),
             v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
             with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr),
             with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs),

@@ -94,11 +94,11 @@ fn ludb_global_boundaries() -> Result<(), String> {
     println!("pooled LUDB: {}", pooled.summary());
     // Source: goals of the measurement-engine issue. Not all are met yet on LUDB's global (12-lead extreme)
     // boundaries: P onset mean (by 0.2 ms) and SD. These bounds sit just above what the method achieves today
-    // (measured: P on +10.2 ± 21.9, QRS on +8.2 ± 9.5, QRS end −9.0 ± 11.6, T end −4.5 ± 28.9 ms), so a
+    // (measured: P on +10.3 ± 22.0, QRS on +8.2 ± 9.5, QRS end −9.0 ± 11.6, T end −4.7 ± 29.1 ms), so a
     // regression fails. The P onset lies 10 ms after LUDB's earliest-of-12 mark but on the second-earliest
-    // lead's (+0.2 ± 10.1, `ludb_p_onset_against_the_second_earliest_lead`); aligning the beats' P waves before
-    // their median (+9.3 → +10.2 here) brought the QT Database P onset from −2.3 ± 13.9 to −1.0 ± 13.2 and, with
-    // muscle noise at 12 dB, from −12.1 ± 17.3 to −4.4 ± 11.7.
+    // lead's (+0.4 ± 10.1, `ludb_p_onset_against_the_second_earliest_lead`); aligning the beats' P waves before
+    // their median (+9.3 → +10.3 here) brought the QT Database P onset from −2.3 ± 13.9 to −1.0 ± 13.2 and, with
+    // muscle noise at 12 dB, from −12.1 ± 17.3 to −3.9 ± 13.2.
     check(&pooled, [(10.5, 22.2), (8.7, 10.0), (9.5, 11.9), (5.0, 29.5)], 0.95);
     Ok(())
 }
@@ -142,7 +142,7 @@ fn ludb_p_onset_against_the_second_earliest_lead() -> Result<(), String> {
     // The same P onsets as in `ludb_global_boundaries`, scored against the second-earliest of the 12 per-lead
     // marks instead of the earliest (one outlying lead's mark left out; on LUDB 5 one beat's earliest mark is
     // V6's, 84–114 ms before the eleven other leads'). Against this reference the P onset goal holds (measured
-    // +0.2 ± 10.1 ms, 308 beats); against the earliest mark it does not (+10.2 ± 21.9). Source: LUDB per-lead
+    // +0.4 ± 10.1 ms, 307 beats); against the earliest mark it does not (+10.3 ± 22.0). Source: LUDB per-lead
     // annotations (Kalyakulina et al., IEEE Access 2020;8:186181-90); goal from the measurement-engine issue.
     let mut pooled = BoundaryErrors::default();
     for n in 1..=50 {

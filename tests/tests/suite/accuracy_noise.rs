@@ -103,9 +103,9 @@ fn detection_holds_in_noise() -> Result<(), String> {
 
 #[test]
 fn boundaries_hold_in_moderate_noise() -> Result<(), String> {
-    // At 18 dB every boundary goal of the measurement-engine issue still holds (measured: P on −1.7 ± 12.0,
+    // At 18 dB every boundary goal of the measurement-engine issue still holds (measured: P on −1.1 ± 12.5,
     // QRS on +5.9 ± 8.9, J +8.4 ± 11.7, T end +0.2 ± 26.5 ms). At 12 dB the P onset and J point stay within
-    // their goals (measured P on −4.4 ± 11.7 ms, −12.1 ± 17.3 before the beats' P waves were aligned for their
+    // their goals (measured P on −3.9 ± 13.2 ms, −12.1 ± 17.3 before the beats' P waves were aligned for their
     // median; J +4.7 ± 14.7, +25.0 ± 24.1 before the QRS end had a noise floor), while the QRS onset does not
     // (+11.9 ± 10.9).
     let goals = [(10.0, 15.0), (10.0, 10.0), (10.0, 12.0), (25.0, 30.0)];
