@@ -176,7 +176,6 @@ mod tests {
         assert_eq!(s.rr_ms, Some(800.0));
         assert_eq!(s.heart_rate_bpm, Some(75.0));
         assert_eq!(s.rmssd_ms, Some(0.0));
-        // The premature beat and its pause leave the underlying rhythm regular.
         // Three NN intervals are too few for a call: all five RR intervals are judged.
         assert_eq!(s.rhythm.rr_count, 5);
         assert_eq!(s.rhythm.regular, Some(false));

@@ -4,23 +4,13 @@
 //! Source: ANSI/AAMI EC57 practice (150 ms match window, Se and +P); Moody & Mark, IEEE Eng Med Biol
 //! 2001;20(3):45-50 (MIT-BIH); Laguna et al., Computers in Cardiology 1997;24:673-6 (QT Database).
 
-use isoline_tests::data;
 use isoline_tests::score::{Detection, beats_of, read_reference_csv, score_detection};
-
-const RECORDS: [(&str, &str); 7] = [
-    ("mitdb-100/100.hea", "mitdb-100/100.beats.csv"),
-    ("qtdb/sel100.hea", "qtdb/sel100.beats.csv"),
-    ("qtdb/sel117.hea", "qtdb/sel117.beats.csv"),
-    ("qtdb/sel16265.hea", "qtdb/sel16265.beats.csv"),
-    ("qtdb/sel803.hea", "qtdb/sel803.beats.csv"),
-    ("qtdb/sele0104.hea", "qtdb/sele0104.beats.csv"),
-    ("qtdb/sel14046.hea", "qtdb/sel14046.beats.csv"),
-];
+use isoline_tests::{BEAT_RECORDS, data};
 
 #[test]
 fn detection_se_and_ppv_at_least_99_5_percent_pooled() -> Result<(), String> {
     let mut pooled = Detection::default();
-    for (rec, refs) in RECORDS {
+    for (rec, refs) in BEAT_RECORDS {
         let (recording, beats) = beats_of(&data(rec))?;
         let reference: Vec<f64> = read_reference_csv(&data(refs))?.iter().map(|b| b.r).collect();
         let detected: Vec<f64> = beats.iter().map(|b| b.r as f64).collect();

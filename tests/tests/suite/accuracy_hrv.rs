@@ -9,18 +9,8 @@
 
 use isoline_core::beat::{Beat, BeatKind};
 use isoline_core::measure::hrv;
-use isoline_tests::data;
 use isoline_tests::score::beats_of;
-
-const RECORDS: [(&str, &str); 7] = [
-    ("mitdb-100/100.hea", "mitdb-100/100.beats.csv"),
-    ("qtdb/sel100.hea", "qtdb/sel100.beats.csv"),
-    ("qtdb/sel117.hea", "qtdb/sel117.beats.csv"),
-    ("qtdb/sel16265.hea", "qtdb/sel16265.beats.csv"),
-    ("qtdb/sel803.hea", "qtdb/sel803.beats.csv"),
-    ("qtdb/sele0104.hea", "qtdb/sele0104.beats.csv"),
-    ("qtdb/sel14046.hea", "qtdb/sel14046.beats.csv"),
-];
+use isoline_tests::{BEAT_RECORDS, data};
 
 /// The reference beats of a `sample,symbol` file: `N` dominant, any other label other.
 fn reference_beats(path: &std::path::Path) -> Result<Vec<Beat>, String> {
@@ -39,7 +29,7 @@ fn reference_beats(path: &std::path::Path) -> Result<Vec<Beat>, String> {
 #[test]
 fn rate_and_variability_match_the_reference_beats() -> Result<(), String> {
     let mut bad: Vec<String> = Vec::new();
-    for (rec, refs) in RECORDS {
+    for (rec, refs) in BEAT_RECORDS {
         let (recording, beats) = beats_of(&data(rec))?;
         let fs = recording.sample_rate;
         let ours = hrv::rr_stats(&beats, fs);
