@@ -3,6 +3,7 @@
 
 use super::{PModel, Signals, beat_t_waves, delineate_with, median_rr, qrs, twave};
 use crate::beat::{Beat, BeatKind, Boundaries};
+use crate::detect::{ALIGN_S, MIN_CORR, WIN_S, correlation};
 use crate::recording::Recording;
 use crate::units::Hertz;
 
@@ -53,23 +54,78 @@ pub fn representative_beat_with(
     let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
     let rr = median_rr(&rs)?;
     let (before, after) = span(fs, rr);
+    let reach = align_reach(fs);
     let chosen: Vec<usize> = median_beats(beats)
         .map(|b| b.r)
-        .filter(|&r| r >= before && r + after < n)
-        .filter(|&r| recording.leads.iter().all(|l| l.samples[r - before..r + after].iter().all(|v| v.is_finite())))
+        .filter(|&r| r >= before + reach && r + after + reach < n)
+        .filter(|&r| {
+            let span = r - before - reach..r + after + reach;
+            recording.leads.iter().all(|l| l.samples[span.clone()].iter().all(|v| v.is_finite()))
+        })
         .collect();
     if chosen.len() < 3 {
         return None;
     }
-    let leads = median_leads(recording.leads.len(), before + after, chosen.len(), |lead, k, b| {
-        recording.leads[lead].samples[chosen[b] - before + k]
-    });
+    // Sample `k` (from R − before − reach) of beat `b` in `lead`.
+    let value = |lead: usize, b: usize, k: usize| recording.leads[lead].samples[chosen[b] - before - reach + k];
+    let leads = aligned_median(recording.leads.len(), (before, after), reach, chosen.len(), fs, value);
     Some(delineated(leads, recording.sample_rate, before, rr, p_model, chosen.len()))
 }
 
 /// Samples before and after R in the representative beat of a record with median RR `rr` (samples).
 fn span(fs: f64, rr: usize) -> (usize, usize) {
     (((BEFORE_S * fs) as usize).min(rr * 6 / 10), ((AFTER_S * fs) as usize).min(rr))
+}
+
+/// How far a beat may be moved to line its QRS up with the others' ([`aligned_median`]), samples.
+fn align_reach(fs: f64) -> usize {
+    (ALIGN_S * fs).round() as usize
+}
+
+/// Per lead, the median of `count` beats, each lined up with the others first. A beat whose QRS window (as in
+/// beat typing) matches the median of the beats as detected stays where it is; one that does not is moved to
+/// the shift within ± `reach` samples where it matches best, when it matches there: beat typing calls a beat
+/// dominant whose R peak sat on its S wave rather than its R wave (see `detect::typing::ALIGN_S`), and left
+/// where it was it would pull the median towards its own shape wherever the beats differ.
+// Measured (reported QRS against the experts, ms): QT Database +4.3 ± 10.0 as placed, +5.0 ± 9.4 lined up;
+// LUDB −18.2 ± 13.6 / −18.3 ± 13.5. `value(lead, b, k)` is sample `k` of beat `b` counted from
+/// R − `before` − `reach`; the result has R at sample `before` and `before + after` samples.
+fn aligned_median(
+    n_leads: usize,
+    (before, after): (usize, usize),
+    reach: usize,
+    count: usize,
+    fs: f64,
+    value: impl Fn(usize, usize, usize) -> f32,
+) -> Vec<Vec<f32>> {
+    let len = before + after;
+    let template = median_leads(n_leads, len, count, |lead, k, b| value(lead, b, reach + k));
+    let (wa, wb) = (((WIN_S.0 * fs) as usize).min(before), ((WIN_S.1 * fs) as usize).min(after.saturating_sub(1)));
+    // Each lead's window with its own mean removed, leads joined, as beat typing compares them.
+    let joined = |sample: &dyn Fn(usize, usize) -> f32| -> Vec<f32> {
+        (0..n_leads)
+            .flat_map(|lead| {
+                let w: Vec<f32> = (before - wa..=before + wb).map(|k| sample(lead, k)).collect();
+                let m = w.iter().sum::<f32>() / w.len() as f32;
+                w.into_iter().map(move |v| v - m)
+            })
+            .collect()
+    };
+    let t = joined(&|lead, k| template[lead][k]);
+    let shifts: Vec<usize> = (0..count)
+        .map(|b| {
+            let at = |s: usize| correlation(&joined(&|lead, k| value(lead, b, s + k)), &t);
+            if at(reach) >= MIN_CORR {
+                return reach;
+            }
+            (0..=2 * reach)
+                .map(|s| (s, at(s)))
+                .filter(|&(_, c)| c >= MIN_CORR)
+                .max_by(|x, y| x.1.total_cmp(&y.1))
+                .map_or(reach, |(s, _)| s)
+        })
+        .collect();
+    median_leads(n_leads, len, count, |lead, k, b| value(lead, b, shifts[b] + k))
 }
 
 /// The beats the median is taken over: the dominant ones, or all when none is dominant.
@@ -138,7 +194,8 @@ pub const STACK_BEATS: usize = 1000;
 #[derive(Debug, Clone)]
 pub struct BeatStack {
     sample_rate: Hertz,
-    /// Samples kept before and after each R peak.
+    /// Samples kept before and after each R peak: the longest span a representative beat can have and the
+    /// reach of the alignment on either side.
     before: usize,
     after: usize,
     /// Beats the stack takes from each window.
@@ -154,8 +211,8 @@ impl BeatStack {
         let fs = sample_rate.hz();
         Self {
             sample_rate,
-            before: (BEFORE_S * fs) as usize,
-            after: (AFTER_S * fs) as usize,
+            before: (BEFORE_S * fs) as usize + align_reach(fs),
+            after: (AFTER_S * fs) as usize + align_reach(fs),
             quota: STACK_BEATS.div_ceil(windows.max(1)),
             beats: Vec::new(),
         }
@@ -202,11 +259,42 @@ impl BeatStack {
             return None;
         }
         // The kept spans are the longest; the record's RR may shorten them.
-        let (before, after) = span(self.sample_rate.hz(), rr);
-        let skip = self.before - before;
-        let leads = median_leads(self.beats[0].len(), before + after, self.beats.len(), |lead, k, b| {
-            self.beats[b][lead][skip + k]
-        });
+        let fs = self.sample_rate.hz();
+        let (before, after) = span(fs, rr);
+        let reach = align_reach(fs);
+        let skip = self.before - before - reach;
+        let value = |lead: usize, b: usize, k: usize| self.beats[b][lead][skip + k];
+        let leads = aligned_median(self.beats[0].len(), (before, after), reach, self.beats.len(), fs, value);
         Some(delineated(leads, self.sample_rate, before, rr, p_model, self.beats.len()))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn beats_whose_r_peak_sat_on_the_s_wave_are_lined_up_before_the_median() {
+        // 250 Hz, one lead: R (+900 µV) and S (−850 µV) 32 ms apart, with ±10 µV of noise. Of nine beats, five
+        // have their R peak on the R wave and four on the S wave (8 samples late). The median of the beats as
+        // placed leans towards the four at every sample; lined up, all nine count.
+        let fs = 250.0;
+        let (before, after, reach) = (50, 75, align_reach(fs));
+        let wave = |k: f32| -> f32 {
+            [(0.0, 900.0f32), (8.0, -850.0)].iter().map(|&(at, amp)| amp * (-((k - at) / 3.0).powi(2)).exp()).sum()
+        };
+        let noise = |b: usize, k: usize| ((b * 7919 + k * 104_729) % 21) as f32 - 10.0;
+        let placed = [0usize, 8, 0, 8, 0, 8, 0, 8, 0];
+        // Sample k (from R − before − reach) of beat b, whose R peak was placed `placed[b]` samples after its R.
+        let value = |_: usize, b: usize, k: usize| {
+            wave(k as f32 - (before + reach + placed[b]) as f32) + noise(b, k + placed[b])
+        };
+        let lined_up = aligned_median(1, (before, after), reach, placed.len(), fs, value);
+        let as_placed = median_leads(1, before + after, placed.len(), |_, k, b| value(0, b, reach + k));
+        let worst = |m: &[f32]| {
+            m.iter().enumerate().map(|(k, &v)| (v - wave(k as f32 - before as f32)).abs()).fold(0.0f32, f32::max)
+        };
+        let (a, b) = (worst(&lined_up[0]), worst(&as_placed[0]));
+        assert!(a < 8.0 && b > 2.0 * a, "worst error lined up {a} µV, as placed {b} µV");
     }
 }

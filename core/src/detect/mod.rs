@@ -6,6 +6,7 @@ mod peaks;
 mod typing;
 
 pub use typing::correlation;
+pub(crate) use typing::{ALIGN_S, MIN_CORR, WIN_S};
 
 use crate::beat::{Beat, BeatKind};
 use crate::recording::Recording;

@@ -2,10 +2,10 @@
 //! QRS energy width and prematurity.
 
 /// Window around the R peak compared with the template, s (before, after).
-const WIN_S: (f64, f64) = (0.080, 0.100);
+pub(crate) const WIN_S: (f64, f64) = (0.080, 0.100);
 /// Correlation below which a beat's shape differs from the dominant one.
 // Common practice, no source: template-matching classifiers use correlation thresholds near 0.9.
-const MIN_CORR: f64 = 0.90;
+pub(crate) const MIN_CORR: f64 = 0.90;
 /// An RR below this fraction of the local median RR is premature.
 // Common practice, no source: 15 % prematurity is a usual cut for supraventricular ectopy.
 const PREMATURE: f64 = 0.85;
@@ -27,11 +27,12 @@ const TEMPLATE_BEATS: usize = 301;
 // (beats typed other, against the reference beat labels): QT Database sel117 84 of 766 normal beats at lag 0
 // only (its R peaks jump 32–36 ms between R and S), 0 with 30–40 ms; sel100 22 → 20 (19 atrial premature),
 // sel14046 38 → 28 (27 ventricular), sel803 77 → 74 (74 ventricular), MIT-BIH 100 42 → 39 (34 premature).
-// The beats typed dominant this way enter the representative beat aligned on their R peak as placed: LUDB
-// reported QRS −18.0 ± 12.4 → −18.2 ± 13.6 ms (LUDB 35, atrial flutter, −22 → −50). Placing R on the same wave
+// The beats typed dominant this way are lined up again for the representative beat (`delineate::median`);
+// LUDB reported QRS −18.0 ± 12.4 → −18.3 ± 13.5 ms (LUDB 35, atrial flutter, −22 → −48: three beats after
+// longer RRs joined its median). Placing R on the same wave
 // in every beat instead moved ventricular beats' R peaks away from the reference (3 missed, 3 extra on
 // sel14046) and widened the LUDB QRS end scatter (SD 11.6 → 15.8 ms).
-const ALIGN_S: f64 = 0.040;
+pub(crate) const ALIGN_S: f64 = 0.040;
 
 /// Types each beat: `true` = dominant. `leads` are the samples (µV, NaN = invalid), `weights` the leads'
 /// detection weights (leads of weight 0 are not compared).

@@ -81,7 +81,7 @@ fn reported_intervals_against_ludb_experts() {
             compare(&format!("ludb {n}"), &csv, &format!("ludb/{n}.hea"), &mut errors);
         }
     }
-    // Measured today: PR +2.4 ± 12.8, QRS −18.2 ± 13.6, QT −12.9 ± 22.2 ms. The reported QRS is shorter than the
+    // Measured today: PR +2.3 ± 12.7, QRS −18.3 ± 13.5, QT −12.7 ± 22.1 ms. The reported QRS is shorter than the
     // earliest-to-latest span over 12 hand-marked leads (per beat: onset +8, end −9 ms, see accuracy_boundaries).
     check("LUDB", &errors, [(5.0, 14.0), (19.5, 14.0), (15.0, 24.0)]);
 }
@@ -92,7 +92,7 @@ fn reported_intervals_against_qtdb_cardiologist_1() {
     for r in ["sel100", "sel117", "sel16265", "sel803", "sele0104", "sel14046"] {
         compare(r, &format!("qtdb/{r}.q1c.csv"), &format!("qtdb/{r}.hea"), &mut errors);
     }
-    // Measured today: PR +0.0 ± 7.2, QRS +4.3 ± 10.0, QT −11.0 ± 37.8 ms (sele0104: QT 352 vs 438 ms, the low T
+    // Measured today: PR +0.0 ± 7.2, QRS +5.0 ± 9.4, QT −11.0 ± 37.8 ms (sele0104: QT 352 vs 438 ms, the low T
     // waves on a wandering baseline, see accuracy_boundaries).
     check("QTDB", &errors, [(2.5, 9.0), (6.0, 10.5), (12.5, 40.0)]);
 }
