@@ -135,9 +135,9 @@ fn full_analysis_intervals_match_the_truth_without_noise() {
 #[test]
 #[ignore = "with noise (25 uV muscle, 40 uV mains, 150 uV wander; 500 Hz; ms, seed 1): QRS +8..+12 on the 90 ms \
             QRS (onset 2-5 samples early, J point 0-2 late: the unfiltered leads are too noisy to refine the \
-            low-pass spread), +6 on 140 ms; QT +6..+8 (from the early QRS onset), long-qt -6 (the trapezium \
-            end on a 52 ms-sigma T stands short of the knee the noise hides); PR -4..+4 (within 2 samples; \
-            -8..+4 over 48 runs, measure_synth_p); RR within 0.4"]
+            low-pass spread), +6 on 140 ms; QT +6..+8 (from the early QRS onset; long-qt -4, where the \
+            trapezium end on a 52 ms-sigma T stands short of the knee the noise hides); PR -4..+4 (within 2 \
+            samples; -8..+4 over 48 runs, measure_synth_p); RR within 0.4"]
 fn full_analysis_intervals_match_the_truth_with_noise() {
     // Goal (issue 3): the same, also with noise switched on.
     check(&noisy_specs().iter().map(run).collect::<Vec<_>>());
