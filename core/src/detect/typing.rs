@@ -24,9 +24,10 @@ const TEMPLATE_BEATS: usize = 301;
 /// high (an R and an S wave 20–40 ms apart), noise tips one over the other and the R peak jumps from beat to beat
 /// although the shape is the same.
 // Common practice, no source: template matching searches the best alignment within a few tens of ms. Measured
-// (beats typed other, against the reference beat labels): QT Database sel117 84 of 766 normal beats at lag 0
-// only (its R peaks jump 32–36 ms between R and S), 0 with 30–40 ms; sel100 22 → 20 (19 atrial premature),
-// sel14046 38 → 28 (27 ventricular), sel803 77 → 74 (74 ventricular), MIT-BIH 100 42 → 39 (34 premature).
+// (beats typed other, against the reference beat labels, tests/suite/accuracy_hrv.rs): QT Database sel117 88
+// of 766 normal beats at lag 0 only (its R peaks jump 32–36 ms between R and S), 0 with 30–40 ms; sel100
+// 22 → 20 (19 atrial premature), sel14046 33 → 28 (27 ventricular), sel803 74 (74 ventricular), MIT-BIH 100
+// 42 → 39 (34 premature).
 // The beats typed dominant this way are lined up again for the representative beat (`delineate::median`);
 // LUDB reported QRS −18.0 ± 12.4 → −18.3 ± 13.5 ms (LUDB 35, atrial flutter, −22 → −48: three beats after
 // longer RRs joined its median). Placing R on the same wave
