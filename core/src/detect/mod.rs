@@ -6,7 +6,7 @@ mod peaks;
 mod typing;
 
 pub use typing::correlation;
-pub(crate) use typing::{ALIGN_S, MIN_CORR, WIN_S};
+pub(crate) use typing::{ALIGN_S, WIN_S, matching_shift, push_levelled};
 
 use crate::beat::{Beat, BeatKind};
 use crate::recording::Recording;

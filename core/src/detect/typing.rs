@@ -5,7 +5,7 @@
 pub(crate) const WIN_S: (f64, f64) = (0.080, 0.100);
 /// Correlation below which a beat's shape differs from the dominant one.
 // Common practice, no source: template-matching classifiers use correlation thresholds near 0.9.
-pub(crate) const MIN_CORR: f64 = 0.90;
+const MIN_CORR: f64 = 0.90;
 /// An RR below this fraction of the local median RR is premature.
 // Common practice, no source: 15 % prematurity is a usual cut for supraventricular ectopy.
 const PREMATURE: f64 = 0.85;
@@ -56,8 +56,7 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> V
             if !w.iter().all(|v| v.is_finite()) {
                 return None;
             }
-            let mean = w.iter().sum::<f32>() / w.len() as f32;
-            s.extend(w.iter().map(|v| v - mean));
+            push_levelled(&mut s, w);
         }
         Some(s)
     };
@@ -72,23 +71,43 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> V
         template = median_template(&close, len);
     }
     let premature = premature_beats(r);
-    // A beat whose window does not match is compared again at the other alignments within reach.
-    let lined_up = |p: usize| {
-        (1..=reach)
-            .flat_map(|d| [p.checked_sub(d), Some(p + d)])
-            .flatten()
-            .filter_map(snippet)
-            .any(|s| correlation(&s, &template) >= MIN_CORR)
-    };
     snippets
         .iter()
         .zip(r)
         .zip(premature)
         .map(|((s, &p), premature)| {
-            let shape_ok = s.as_ref().is_none_or(|s| correlation(s, &template) >= MIN_CORR) || lined_up(p);
+            // A window that does not match where it is is compared again at the other alignments within reach.
+            let corr = |d: isize| {
+                let moved = if d == 0 { s.clone() } else { p.checked_add_signed(d).and_then(snippet) };
+                moved.map(|m| correlation(&m, &template))
+            };
+            let shape_ok = s.is_none() || matching_shift(reach, corr).is_some();
             shape_ok && !premature
         })
         .collect()
+}
+
+/// Appends `window` less its own mean to `out`: a beat's window as typing compares it, one lead after another,
+/// so that baseline offsets do not count as shape.
+pub(crate) fn push_levelled(out: &mut Vec<f32>, window: &[f32]) {
+    let mean = window.iter().sum::<f32>() / window.len() as f32;
+    out.extend(window.iter().map(|v| v - mean));
+}
+
+/// The shift, within ± `reach` samples, at which a beat's window matches the template (correlation at least
+/// [`MIN_CORR`]): 0 when it matches where it is, else the shift where it matches best; `None` when it matches
+/// nowhere. `corr(d)` is the window's correlation with the template when moved by `d` samples (`None` where
+/// the moved window is not available).
+pub(crate) fn matching_shift(reach: usize, corr: impl Fn(isize) -> Option<f64>) -> Option<isize> {
+    if corr(0).is_some_and(|c| c >= MIN_CORR) {
+        return Some(0);
+    }
+    let reach = reach as isize;
+    (-reach..=reach)
+        .filter(|&d| d != 0)
+        .filter_map(|d| corr(d).filter(|&c| c >= MIN_CORR).map(|c| (d, c)))
+        .max_by(|x, y| x.1.total_cmp(&y.1))
+        .map(|(d, _)| d)
 }
 
 fn median_template(pool: &[&Vec<f32>], len: usize) -> Vec<f32> {
@@ -188,6 +207,14 @@ mod tests {
         assert_eq!(correlation(&x, &[0.0; 20]), 0.0);
     }
 
+    /// Adds a Gaussian wave of `amp` µV and width `width` samples peaking at sample `at`, over `at ± half`.
+    fn add_gaussian(lead: &mut [f32], at: usize, amp: f32, width: f32, half: usize) {
+        for k in at - half..at + half {
+            let d = (k as f32 - at as f32) / width;
+            lead[k] += amp * (-d * d).exp();
+        }
+    }
+
     #[test]
     fn premature_wide_beat_is_other() {
         let fs = 250.0;
@@ -201,11 +228,7 @@ mod tests {
         }
         r[10] -= 70; // premature
         for (i, &p) in r.iter().enumerate() {
-            let w = if i == 10 { 12.0 } else { 4.0 };
-            for k in p - 25..p + 25 {
-                let d = (k as f32 - p as f32) / w;
-                lead[k] += 1000.0 * (-d * d).exp();
-            }
+            add_gaussian(&mut lead, p, 1000.0, if i == 10 { 12.0 } else { 4.0 }, 25);
         }
         let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs);
         assert!(!dom[10]);
@@ -223,12 +246,8 @@ mod tests {
         let mut t = 300;
         let mut k = 0;
         while t + 300 < n {
-            for (at, amp) in [(t, 900.0f32), (t + 8, -850.0)] {
-                for i in at - 10..at + 10 {
-                    let d = (i as f32 - at as f32) / 3.0;
-                    lead[i] += amp * (-d * d).exp();
-                }
-            }
+            add_gaussian(&mut lead, t, 900.0, 3.0, 10);
+            add_gaussian(&mut lead, t + 8, -850.0, 3.0, 10);
             r.push(if k % 3 == 2 { t + 8 } else { t });
             t += 220 + (k % 2) * 4;
             k += 1;
