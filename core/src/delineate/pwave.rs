@@ -1,13 +1,13 @@
 //! P waves. A P wave is only reported when the record has a consistent one: the median of the PR windows of
 //! the dominant beats (aligned on QRS onset) shows a P wave, and the individual beats resemble that median
 //! (an irregular rhythm with fibrillatory waves gives a flat median and low resemblance, so no P).
-//! Boundaries are found with a multi-lead slope envelope (each lead in units of its own P slope) on the median
-//! of the PR windows, each beat's moved to where its P wave best matches a first model (a median aligned on QRS
-//! onset is blurred by the beat-to-beat scatter of the PR interval and of the QRS onsets), and carried to each
-//! beat at the lag where the beat best matches the median. As for the QRS edges, where the unfiltered median leads resolve it
-//! the edges are then moved inward over the few samples the low-pass and smoothing spread the wave's abrupt start
-//! and end (see [`SPREAD_S`]). The PR window is [`WINDOW_S`], reaching back towards the previous T end (at most
-//! [`LONG_WINDOW_S`]) when the P wave runs into its start: a long PR (first-degree AV block) is measured whole.
+//! Boundaries are found with a multi-lead slope envelope (each lead in units of its own P slope) on the median of the
+//! PR windows, each beat's moved to where its P wave best matches a first model (a median aligned on QRS onset is
+//! blurred by the beat-to-beat scatter of the PR interval and of the QRS onsets), and carried to each beat at the lag
+//! where the beat best matches the median. As for the QRS edges, where the unfiltered median leads resolve it the edges
+//! are then moved inward over the few samples the low-pass and smoothing spread the wave's abrupt start and end (see
+//! [`SPREAD_S`]). The PR window is [`WINDOW_S`], reaching back towards the previous T end (at most [`LONG_WINDOW_S`])
+//! when the P wave runs into its start: a long PR (first-degree AV block) is measured whole.
 //!
 //! Accuracy limit (measured on the 43 LUDB records with P waves): LUDB's global P onset is the earliest of twelve
 //! leads annotated one by one, so a single lead's early mark moves it; relative to any fixed point of the beat it
@@ -224,7 +224,7 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
         end_rel: end as isize - w as isize,
         ..PModel::of(template, sig.samples(0.020))
     };
-    let need = w - on + first.margin;
+    let need = first.compared_tail();
     let matched: Vec<(usize, isize, f64)> =
         onsets.iter().filter_map(|&(q, _)| first.best_lag(sig, q, need).map(|(lag, c)| (q, lag, c))).collect();
     let mut cs: Vec<f64> = matched.iter().map(|m| m.2).collect();
@@ -400,6 +400,13 @@ impl PModel {
         Self { on_rel: 0, end_rel: 0, template, margin, consistency: 0.0 }
     }
 
+    /// How many samples at the end of the PR window a beat must hold to be compared: only the P wave from its
+    /// onset and the margin before it are compared, so a beat (the representative one) may start inside the
+    /// window.
+    fn compared_tail(&self) -> usize {
+        (-self.on_rel).max(0) as usize + self.margin
+    }
+
     /// The lag (within ± [`MAX_LAG_S`]) at which the PR window of the beat with QRS onset `qrs_on` matches the
     /// template best, with that correlation; only the last `need` samples of the window must lie inside the
     /// recording. `None` when no lag does.
@@ -426,9 +433,7 @@ impl PModel {
     /// start before `earliest`.
     #[must_use]
     pub fn for_beat(&self, sig: &Signals, qrs_on: usize, earliest: usize) -> Option<(usize, usize)> {
-        // Only the P wave and its margins are compared: a beat (the representative one) may start inside the window.
-        let need = (-self.on_rel).max(0) as usize + self.margin;
-        let (lag, c) = self.best_lag(sig, qrs_on, need)?;
+        let (lag, c) = self.best_lag(sig, qrs_on, self.compared_tail())?;
         if c < MIN_BEAT_CORR {
             return None;
         }
