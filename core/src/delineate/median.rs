@@ -55,20 +55,23 @@ pub fn representative_beat_with(
     let rr = median_rr(&rs)?;
     let (before, after) = span(fs, rr);
     let reach = align_reach(fs);
-    let chosen: Vec<usize> = median_beats(beats)
+    // Each beat whose span fits the recording, with the room it has to be moved by on either side.
+    let chosen: Vec<(usize, Room)> = median_beats(beats)
         .map(|b| b.r)
-        .filter(|&r| r >= before + reach && r + after + reach < n)
-        .filter(|&r| {
-            let span = r - before - reach..r + after + reach;
+        .filter(|&r| r >= before && r + after <= n)
+        .map(|r| (r, (reach.min(r - before), reach.min(n - r - after))))
+        .filter(|&(r, (left, right))| {
+            let span = r - before - left..r + after + right;
             recording.leads.iter().all(|l| l.samples[span.clone()].iter().all(|v| v.is_finite()))
         })
         .collect();
     if chosen.len() < 3 {
         return None;
     }
-    // Sample `k` (from R − before − reach) of beat `b` in `lead`.
-    let value = |lead: usize, b: usize, k: usize| recording.leads[lead].samples[chosen[b] - before - reach + k];
-    let leads = aligned_median(recording.leads.len(), (before, after), reach, chosen.len(), fs, value);
+    // Sample `k` (from R − before − reach) of beat `b` in `lead`; read only within the beat's room.
+    let value = |lead: usize, b: usize, k: usize| recording.leads[lead].samples[chosen[b].0 + k - before - reach];
+    let room = |b: usize| chosen[b].1;
+    let leads = aligned_median(recording.leads.len(), (before, after), reach, chosen.len(), fs, room, value);
     Some(delineated(leads, recording.sample_rate, before, rr, p_model, chosen.len()))
 }
 
@@ -77,6 +80,10 @@ fn span(fs: f64, rr: usize) -> (usize, usize) {
     (((BEFORE_S * fs) as usize).min(rr * 6 / 10), ((AFTER_S * fs) as usize).min(rr))
 }
 
+/// How far a beat may be moved earlier and later ([`aligned_median`]), samples: the alignment's reach, less
+/// where the recording ends first.
+type Room = (usize, usize);
+
 /// How far a beat may be moved to line its QRS up with the others' ([`aligned_median`]), samples.
 fn align_reach(fs: f64) -> usize {
     (ALIGN_S * fs).round() as usize
@@ -84,11 +91,11 @@ fn align_reach(fs: f64) -> usize {
 
 /// Per lead, the median of `count` beats, each lined up with the others first. A beat whose QRS window (as in
 /// beat typing) matches the median of the beats as detected stays where it is; one that does not is moved to
-/// the shift within ± `reach` samples where it matches best, when it matches there: beat typing calls a beat
-/// dominant whose R peak sat on its S wave rather than its R wave (see `detect::typing::ALIGN_S`), and left
-/// where it was it would pull the median towards its own shape wherever the beats differ. `value(lead, b, k)` is
-/// sample `k` of beat `b` counted from R − `before` − `reach`; the result has R at sample `before` and
-/// `before + after` samples.
+/// the shift within ± `reach` samples (within `room(b)`, where the recording ends sooner) where it matches
+/// best, when it matches there: beat typing calls a beat dominant whose R peak sat on its S wave rather than its
+/// R wave (see `detect::typing::ALIGN_S`), and left where it was it would pull the median towards its own shape
+/// wherever the beats differ. `value(lead, b, k)` is sample `k` of beat `b` counted from R − `before` − `reach`,
+/// read only within the beat's room; the result has R at sample `before` and `before + after` samples.
 // Measured (reported QRS against the experts, ms): QT Database +4.3 ± 10.0 as placed, +5.0 ± 9.4 lined up;
 // LUDB −18.2 ± 13.6 / −18.3 ± 13.5.
 fn aligned_median(
@@ -97,6 +104,7 @@ fn aligned_median(
     reach: usize,
     count: usize,
     fs: f64,
+    room: impl Fn(usize) -> Room,
     value: impl Fn(usize, usize, usize) -> f32,
 ) -> Vec<Vec<f32>> {
     let len = before + after;
@@ -115,8 +123,9 @@ fn aligned_median(
     let shifts: Vec<usize> = (0..count)
         .map(|b| {
             // Offset `reach` is the beat as placed.
+            let (left, right) = room(b);
             let corr = |d: isize| {
-                let s = reach.checked_add_signed(d)?;
+                let s = reach.checked_add_signed(d).filter(|s| (reach - left..=reach + right).contains(s))?;
                 Some(correlation(&joined(&|lead, k| value(lead, b, s + k)), &t))
             };
             matching_shift(reach, corr).map_or(reach, |d| reach.saturating_add_signed(d))
@@ -261,7 +270,8 @@ impl BeatStack {
         let reach = align_reach(fs);
         let skip = self.before - before - reach;
         let value = |lead: usize, b: usize, k: usize| self.beats[b][lead][skip + k];
-        let leads = aligned_median(self.beats[0].len(), (before, after), reach, self.beats.len(), fs, value);
+        let room = |_| (reach, reach);
+        let leads = aligned_median(self.beats[0].len(), (before, after), reach, self.beats.len(), fs, room, value);
         Some(delineated(leads, self.sample_rate, before, rr, p_model, self.beats.len()))
     }
 }
@@ -286,12 +296,21 @@ mod tests {
         let value = |_: usize, b: usize, k: usize| {
             wave(k as f32 - (before + reach + placed[b]) as f32) + noise(b, k + placed[b])
         };
-        let lined_up = aligned_median(1, (before, after), reach, placed.len(), fs, value);
+        let lined_up = aligned_median(1, (before, after), reach, placed.len(), fs, |_| (reach, reach), value);
         let as_placed = median_leads(1, before + after, placed.len(), |_, k, b| value(0, b, reach + k));
         let worst = |m: &[f32]| {
             m.iter().enumerate().map(|(k, &v)| (v - wave(k as f32 - before as f32)).abs()).fold(0.0f32, f32::max)
         };
         let (a, b) = (worst(&lined_up[0]), worst(&as_placed[0]));
         assert!(a < 8.0 && b > 2.0 * a, "worst error lined up {a} µV, as placed {b} µV");
+        // A beat at the recording's edge has no room to be moved: it is never read outside its own span, and it
+        // still counts where it is.
+        let edge = |_: usize, b: usize, k: usize| {
+            assert!(b != 1 || (reach..reach + before + after).contains(&k), "beat 1 read at {k}");
+            value(0, b, k)
+        };
+        let room = |b: usize| if b == 1 { (0, 0) } else { (reach, reach) };
+        let with_edge = aligned_median(1, (before, after), reach, placed.len(), fs, room, edge);
+        assert!(worst(&with_edge[0]) < 2.0 * a.max(4.0), "worst error with the edge beat {}", worst(&with_edge[0]));
     }
 }
