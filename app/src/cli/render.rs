@@ -108,6 +108,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         input.calipers.clone_from(&r.calipers);
         input.marks = marks(r);
     }
+    input.header.extend(render::rhythm_field(&analysis.measurements));
     let pixmap = render::render_page(&input).with_context(|| format!("{file}: cannot draw the page"))?;
     let bytes = render::encode_png(&pixmap, args.dpi).with_context(|| format!("{file}: cannot encode PNG"))?;
     render::write_png_atomic(&args.out, &bytes)?;

@@ -45,6 +45,7 @@ impl IsolineApp {
         input.title = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
         input.filter_text = filter_text;
         input.header = render::header_fields(self.settings.reader.as_deref(), self.review.stage);
+        input.header.extend(loaded.analysis.as_ref().and_then(|a| render::rhythm_field(&a.measurements)));
         input.calipers = self.doc.calipers.clone();
         input.ledger = export_ledger(&rows);
         // The Ledger's range notes, which follow the reader's values.

@@ -102,6 +102,14 @@ pub fn header_fields(reader: Option<&str>, stage: Stage) -> Vec<(String, String)
     reader.into_iter().chain([("Stage".to_owned(), stage.as_str().to_owned())]).collect()
 }
 
+/// Header field stating the automatic rhythm call, `Rhythm (automatic): regular, 2 other beats`; `None` when
+/// too few beats were found for a call. A reader's own rhythm statement belongs in the review, not here.
+#[must_use]
+pub fn rhythm_field(measurements: &Measurements) -> Option<(String, String)> {
+    let rhythm = measurements.rr.rhythm;
+    rhythm.regular.map(|_| ("Rhythm (automatic)".to_owned(), rhythm.describe()))
+}
+
 fn line(v: &LedgerValue<'_>) -> LedgerLine {
     LedgerLine {
         label: v.label.to_owned(),
@@ -188,6 +196,21 @@ mod tests {
     fn percent_keeps_one_decimal() {
         assert_eq!(format_value(12.34, "%"), "12.3");
         assert_eq!(format_value(-0.04, "%"), "0.0");
+    }
+
+    #[test]
+    fn rhythm_field_states_the_automatic_call() {
+        use crate::measure::hrv::Rhythm;
+        use crate::measure::{Measurements, RrStats};
+        let with =
+            |rhythm: Rhythm| Measurements { rr: RrStats { rhythm, ..RrStats::default() }, ..Measurements::default() };
+        let steady = Rhythm { rr_count: 8, regular: Some(true), other_beats: 2, ..Rhythm::default() };
+        let field = rhythm_field(&with(steady));
+        assert_eq!(field, Some(("Rhythm (automatic)".to_owned(), "regular, 2 other beats".to_owned())));
+        let unsteady = Rhythm { rr_count: 8, regular: Some(false), ..Rhythm::default() };
+        assert_eq!(rhythm_field(&with(unsteady)).map(|f| f.1), Some("irregular".to_owned()));
+        // Too few beats for a call: no field, rather than "not enough beats" on a page.
+        assert_eq!(rhythm_field(&with(Rhythm::default())), None);
     }
 
     #[test]

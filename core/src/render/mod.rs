@@ -44,7 +44,9 @@ use crate::paper::{PageSpec, Scheme};
 use crate::recording::Recording;
 
 pub use self::furniture::header_lines;
-pub use self::ledger_lines::{LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes};
+pub use self::ledger_lines::{
+    LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field,
+};
 pub use self::png::{encode_png, write_png_atomic};
 pub use self::trace::{Column, decimate_min_max};
 
