@@ -9,6 +9,7 @@ mod accuracy_boundaries;
 mod accuracy_detection;
 mod accuracy_hrv;
 mod accuracy_intervals;
+mod accuracy_invariance;
 mod accuracy_noise;
 mod accuracy_rhythm;
 mod accuracy_typing;
