@@ -107,19 +107,27 @@ pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Bea
     beats
 }
 
-/// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats.
+/// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats, in
+/// runs: a run breaks where another beat (or a gap in detection) interrupts the dominant beats, so the trend is
+/// not drawn across a premature beat and its pause as if a rate had been measured there.
 ///
 /// Source: references.md §10 (HR = 60 / RR in s).
 #[must_use]
-pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<[f64; 2]> {
-    beats
-        .windows(2)
-        .filter(|w| w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant)
-        .filter_map(|w| {
-            let rr_ms = (w[1].r - w[0].r) as f64 * 1000.0 / rate_hz;
-            (rr_ms > 0.0).then(|| [w[1].r as f64 / rate_hz, 60_000.0 / rr_ms])
-        })
-        .collect()
+pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<Vec<[f64; 2]>> {
+    let mut runs: Vec<Vec<[f64; 2]>> = Vec::new();
+    let mut run = Vec::new();
+    for w in beats.windows(2) {
+        let rr_ms = w[1].r.saturating_sub(w[0].r) as f64 * 1000.0 / rate_hz;
+        if w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant && rr_ms > 0.0 {
+            run.push([w[1].r as f64 / rate_hz, 60_000.0 / rr_ms]);
+        } else if !run.is_empty() {
+            runs.push(std::mem::take(&mut run));
+        }
+    }
+    if !run.is_empty() {
+        runs.push(run);
+    }
+    runs
 }
 
 /// Median RR of consecutive dominant beats, ms.
@@ -187,7 +195,20 @@ mod tests {
         let t = rate_trend(&beats, 500.0);
         // 400 samples at 500 Hz = 800 ms -> 75 bpm (references.md §10).
         assert_eq!(t.len(), 1);
-        assert!((t[0][1] - 75.0).abs() < 1e-9);
+        assert_eq!(t[0].len(), 1);
+        assert!((t[0][0][1] - 75.0).abs() < 1e-9);
         assert_eq!(median_rr_ms(&beats, 500.0), Some(800.0));
+    }
+
+    #[test]
+    fn rate_trend_breaks_at_other_beats() {
+        // Dominant every 400 samples with one premature other beat between the third and fourth: two runs, the
+        // second starting after the beat that follows the premature one.
+        let kinds = [(0, true), (400, true), (800, true), (1000, false), (1600, true), (2000, true), (2400, true)];
+        let beats: Vec<Beat> =
+            kinds.iter().map(|&(r, d)| Beat::at(r, if d { BeatKind::Dominant } else { BeatKind::Other })).collect();
+        let t = rate_trend(&beats, 500.0);
+        let times: Vec<Vec<f64>> = t.iter().map(|run| run.iter().map(|p| p[0]).collect()).collect();
+        assert_eq!(times, [vec![0.8, 1.6], vec![4.0, 4.8]]);
     }
 }

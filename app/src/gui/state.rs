@@ -155,8 +155,8 @@ pub struct Loaded {
     pub beats: Vec<Beat>,
     /// Where the beats came from, for the status bar.
     pub beats_source: String,
-    /// Heart-rate trend points `(s, bpm)` from `beats`.
-    pub trend: Vec<[f64; 2]>,
+    /// Heart-rate trend points `(s, bpm)` from `beats`, in runs of consecutive dominant beats.
+    pub trend: Vec<Vec<[f64; 2]>>,
     /// Median RR of consecutive dominant beats, ms.
     pub median_rr_ms: Option<f64>,
     /// The filtered samples around the Sheet's window of a long recording, whose analysis keeps no whole

@@ -2,7 +2,7 @@
 //! the Sheet there; the Sheet's window is outlined. Drawing cost follows the Tape's width in pixels: the stored
 //! envelope (at most 4096 buckets) is merged down to one bucket per pixel column.
 
-use egui_plot::{FilledArea, GridInput, GridMark, Line, Plot, PlotPoints, Polygon};
+use egui_plot::{FilledArea, GridInput, GridMark, Line, Plot, PlotPoints, Points, Polygon};
 use isoline_core::timescale::clock;
 
 use super::command::Command;
@@ -67,7 +67,7 @@ pub fn tape_ui(
         ui.weak("Heart-rate trend: appears when beats are found (analysis may still be running).");
     } else {
         let (r_lo, r_hi) =
-            trend.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p[1]), b.max(p[1])));
+            trend.iter().flatten().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p[1]), b.max(p[1])));
         let (r_lo, r_hi) = ((r_lo - 10.0).max(0.0), r_hi + 10.0);
         let hr = Plot::new("tape_rate")
             .height(60.0)
@@ -84,8 +84,14 @@ pub fn tape_ui(
             .include_y(r_lo)
             .include_y(r_hi)
             .show(ui, |p| {
-                let pts = thin(trend, columns);
-                p.add(Line::new("heart rate", PlotPoints::new(pts)).color(egui::Color32::from_rgb(200, 60, 60)));
+                // Each beat's dot where the beats lie a few columns apart or more (a run of one has no line).
+                let sparse = trend.iter().map(Vec::len).sum::<usize>() * 4 <= columns;
+                for pts in trend_lines(trend, columns) {
+                    if sparse {
+                        p.add(Points::new("heart rate", PlotPoints::new(pts.clone())).radius(2.0).color(RATE));
+                    }
+                    p.add(Line::new("heart rate", PlotPoints::new(pts)).color(RATE));
+                }
                 p.add(window(r_lo, r_hi));
             });
         out.extend(jump(&hr.response, &hr.transform, window_s, duration));
@@ -121,6 +127,21 @@ pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>
         hi.push(f64::from(b.iter().copied().fold(f32::NEG_INFINITY, f32::max)) / 1000.0);
     }
     (xs, lo, hi)
+}
+
+/// Colour of the heart-rate trend.
+const RATE: egui::Color32 = egui::Color32::from_rgb(200, 60, 60);
+
+/// The lines the trend is drawn as, about `2 × columns` points in all: one per run of dominant beats, so no line
+/// bridges a premature beat; where the runs outnumber the columns (a long recording, where a break would not
+/// show) one line through all of them.
+fn trend_lines(runs: &[Vec<[f64; 2]>], columns: usize) -> Vec<Vec<[f64; 2]>> {
+    if runs.len() > columns {
+        let all: Vec<[f64; 2]> = runs.iter().flatten().copied().collect();
+        return vec![thin(&all, columns)];
+    }
+    let total: usize = runs.iter().map(Vec::len).sum();
+    runs.iter().map(|run| thin(run, (columns * run.len()).div_ceil(total.max(1)))).collect()
 }
 
 /// Keeps at most about `2 × columns` points of a trend (every k-th point).
