@@ -158,6 +158,21 @@ impl Measurements {
         {
             notes.push(gain);
         }
+        // An interval with a range note of its own still gets the note that the single beats disagree.
+        if self.intervals_source == IntervalSource::Representative {
+            let (i, b) = (&self.intervals, &self.beat_medians);
+            for (key, label, a, b) in [
+                ("pr_ms", "PR", i.pr_ms, b.pr_ms),
+                ("qrs_ms", "QRS", i.qrs_ms, b.qrs_ms),
+                ("qt_ms", "QT", i.qt_ms, b.qt_ms),
+            ] {
+                if let Some(n) = a.zip(b).and_then(|(a, b)| ranges::beats_disagree(key, label, a, b))
+                    && !notes.contains(&n)
+                {
+                    notes.push(n);
+                }
+            }
+        }
         notes
     }
 }

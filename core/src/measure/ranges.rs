@@ -67,6 +67,37 @@ pub const SOURCE_EINTHOVEN: &str = "Einthoven's law; Goldberger 1942, Am Heart J
 /// Source of the beat-to-beat irregularity threshold.
 pub const SOURCE_RR_IRREGULAR: &str = "Dash et al. 2009, Ann Biomed Eng 37:1701-9";
 
+/// Source of the tolerance two estimates of one interval may differ by ([`beats_disagree`]).
+// From memory (references.md §6 marks the IEC allowances as recalled, not confirmed in a retrieved text).
+pub const SOURCE_IEC_INTERVALS: &str = "twice the mean error IEC 60601-2-25 allows";
+
+/// Largest difference, ms, between an interval on the representative beat and the median of the dominant beats'
+/// own before [`beats_disagree`] speaks: twice the mean difference from the reference that IEC 60601-2-25 allows a
+/// program's global PR, QRS and QT (10, 10 and 25 ms; references.md §6, from memory). The two estimates come
+/// from the same beats; where they part by more than a program may be off on average, the boundary is ambiguous
+/// on this recording (a biphasic or flat T, a notched QRS, a P merging into the T) and wants a look.
+// Measured (|representative − beats' median|, ms): LUDB 1–50 PR ≤ 12, QRS ≤ 18, QT ≤ 21; QT Database and MIT-BIH
+// 100 PR ≤ 4, QRS ≤ 8, QT ≤ 4 except sele0104 (biphasic low T: 352 against 404).
+pub const BEATS_DISAGREE_MS: [(&str, f64); 3] = [("pr_ms", 20.0), ("qrs_ms", 20.0), ("qt_ms", 50.0)];
+
+/// The interval `key` (`pr_ms`, `qrs_ms` or `qt_ms`, read `label`) measures `representative` ms on the
+/// representative beat and `beats` ms as the median of the dominant beats' own, and the two (as printed) differ
+/// by more than [`BEATS_DISAGREE_MS`].
+#[must_use]
+pub fn beats_disagree(key: &str, label: &str, representative: f64, beats: f64) -> Option<RangeNote> {
+    let (_, limit) = BEATS_DISAGREE_MS.iter().find(|(k, _)| *k == key)?;
+    let (a, b) = (representative.round(), beats.round());
+    ((a - b).abs() > *limit).then(|| RangeNote {
+        key: key.to_string(),
+        text: format!(
+            "{label} {a:.0} ms on the representative beat but {b:.0} ms as the median of the single beats: more \
+             than {limit:.0} ms apart ({SOURCE_IEC_INTERVALS}), check the boundaries on single beats"
+        ),
+        source: SOURCE_IEC_INTERVALS,
+        qtc: None,
+    })
+}
+
 fn note(key: &str, text: String, source: &'static str) -> Option<RangeNote> {
     Some(RangeNote { key: key.to_string(), text, source, qtc: None })
 }
@@ -328,6 +359,17 @@ mod tests {
         // A negative axis is printed with the minus sign the range uses.
         assert!(qrs_axis(-45.0).is_some_and(|n| n.text.starts_with("QRS axis \u{2212}45° —")));
         assert!(rr_irregular(0.04).is_none() && rr_irregular(0.2).is_some());
+        // Two estimates of one interval: twice the IEC 60601-2-25 mean allowance (references.md §6, from memory).
+        assert!(beats_disagree("qt_ms", "QT", 352.0, 404.0).is_some_and(|n| n.text.starts_with("QT 352 ms on the")));
+        assert!(
+            beats_disagree("qt_ms", "QT", 400.0, 450.0).is_none()
+                && beats_disagree("qt_ms", "QT", 400.0, 450.6).is_some()
+        );
+        assert!(
+            beats_disagree("qrs_ms", "QRS", 90.0, 110.0).is_none()
+                && beats_disagree("pr_ms", "PR", 140.0, 161.0).is_some()
+        );
+        assert!(beats_disagree("rr_ms", "RR", 800.0, 1000.0).is_none());
         // As printed: 9.6 % reads "10 %", at the limit; 9.4 % reads "9 %".
         assert!(rr_irregular(0.096).is_some() && rr_irregular(0.094).is_none());
         assert_eq!(Sex::parse(Some(" F ")), Sex::Female);

@@ -57,6 +57,18 @@ fn with_note(mut m: MeasuredValue, f: impl Fn(f64) -> Option<RangeNote>) -> Meas
 }
 
 impl Measurements {
+    /// `m` (an interval measured on the representative beat) with the note that the single beats' median
+    /// `beats` disagrees with it ([`ranges::beats_disagree`]), unless `m` already carries a range note.
+    fn or_beats_disagree(&self, mut m: MeasuredValue, beats: Option<f64>) -> MeasuredValue {
+        if m.note.is_none()
+            && self.intervals_source == super::IntervalSource::Representative
+            && let (Some(a), Some(b)) = (m.value, beats)
+        {
+            m.note = ranges::beats_disagree(m.key, &m.label, a, b);
+        }
+        m
+    }
+
     /// The values in a fixed order: rate, RR statistics, intervals, QTc ×5, axes, then ST at J and J+60 ms
     /// for each lead. Keys are listed in [`KEYS`].
     #[must_use]
@@ -76,9 +88,12 @@ impl Measurements {
                 |p| self.rr.rhythm.regular.and_then(|_| ranges::rr_irregular(p / 100.0)),
             ),
             v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
-            with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr),
-            with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs),
-            v("qt_ms", "QT", i.qt_ms, "ms"),
+            self.or_beats_disagree(with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr), self.beat_medians.pr_ms),
+            self.or_beats_disagree(
+                with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs),
+                self.beat_medians.qrs_ms,
+            ),
+            self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms"), self.beat_medians.qt_ms),
         ];
         let formulas: [(&'static str, &str, Option<f64>); 5] = [
             ("qtc_bazett_ms", "Bazett", q.map(|q| q.bazett)),
@@ -122,5 +137,25 @@ mod tests {
         let keys: Vec<&str> = m.values().iter().map(|v| v.key).collect();
         assert_eq!(keys, KEYS.to_vec());
         assert!(m.values().iter().all(|v| v.value.is_none() && v.note.is_none()));
+    }
+
+    #[test]
+    fn single_beats_that_disagree_are_noted_on_the_interval() {
+        use super::super::{IntervalSource, Intervals};
+        let m = Measurements {
+            intervals: Intervals { qt_ms: Some(352.0), qrs_ms: Some(130.0), ..Intervals::default() },
+            beat_medians: Intervals { qt_ms: Some(404.0), qrs_ms: Some(100.0), ..Intervals::default() },
+            intervals_source: IntervalSource::Representative,
+            ..Measurements::default()
+        };
+        let note = |key: &str| m.values().into_iter().find(|v| v.key == key).and_then(|v| v.note);
+        assert_eq!(note("qt_ms").map(|n| n.source), Some(ranges::SOURCE_IEC_INTERVALS));
+        // The QRS row keeps its range note; the list of notes has both.
+        assert_eq!(note("qrs_ms").map(|n| n.source), Some(ranges::SOURCE_QRS));
+        let keys: Vec<(String, &str)> = m.notes().into_iter().map(|n| (n.key, n.source)).collect();
+        assert!(keys.contains(&("qrs_ms".to_owned(), ranges::SOURCE_IEC_INTERVALS)), "{keys:?}");
+        // Intervals that are the beats' medians themselves are not compared with themselves.
+        let own = Measurements { intervals_source: IntervalSource::BeatMedians, ..m };
+        assert!(own.notes().iter().all(|n| n.source != ranges::SOURCE_IEC_INTERVALS));
     }
 }
