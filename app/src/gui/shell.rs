@@ -286,19 +286,21 @@ fn toolbar_ui(app: &IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command>) {
             }
         }
         if let (Some(loaded), Layout::ThreeByFourPlusOne { .. } | Layout::Strip(_)) = (&app.loaded, &v.layout) {
-            egui::ComboBox::new("layout_lead", "strip lead").selected_text(lead_of_layout.to_string()).show_ui(
-                ui,
-                |ui| {
-                    for lead in &loaded.recording.leads {
-                        if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
-                            out.push(Command::SetLayout(match v.layout {
-                                Layout::Strip(_) => Layout::Strip(lead.name.clone()),
-                                _ => Layout::ThreeByFourPlusOne { rhythm: lead.name.clone() },
-                            }));
-                        }
+            // The lead drawn: a strip lead the file lacks falls back to its first lead (see `PageSpec::page`).
+            let drawn = match (loaded.recording.lead_index(&lead_of_layout), loaded.recording.leads.first()) {
+                (None, Some(first)) => format!("{} (no {lead_of_layout} in the file)", first.name),
+                _ => lead_of_layout.to_string(),
+            };
+            egui::ComboBox::new("layout_lead", "strip lead").selected_text(drawn).show_ui(ui, |ui| {
+                for lead in &loaded.recording.leads {
+                    if ui.selectable_label(lead.name == lead_of_layout, lead.name.to_string()).clicked() {
+                        out.push(Command::SetLayout(match v.layout {
+                            Layout::Strip(_) => Layout::Strip(lead.name.clone()),
+                            _ => Layout::ThreeByFourPlusOne { rhythm: lead.name.clone() },
+                        }));
                     }
-                },
-            );
+                }
+            });
         }
         ui.separator();
         for s in SPEEDS_MM_PER_S {
