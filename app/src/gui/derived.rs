@@ -108,8 +108,8 @@ pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Bea
 }
 
 /// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats, in
-/// runs: a run breaks where another beat (or a gap in detection) interrupts the dominant beats, so the trend is
-/// not drawn across a premature beat and its pause as if a rate had been measured there.
+/// runs: a run breaks where another beat interrupts the dominant beats, so the trend is not drawn across a
+/// premature beat and its pause as if a rate had been measured there.
 ///
 /// Source: references.md §10 (HR = 60 / RR in s).
 #[must_use]

@@ -49,7 +49,7 @@ impl IsolineApp {
         input.calipers = self.doc.calipers.clone();
         input.ledger = export_ledger(&rows);
         // The Ledger's range notes, which follow the reader's values.
-        let notes: Vec<RangeNote> = rows.iter().filter_map(|r| r.note.clone()).collect();
+        let notes: Vec<RangeNote> = rows.iter().flat_map(|r| r.notes.iter().cloned()).collect();
         input.notes = ranges::condensed(&notes);
         let pixmap = render::render_page(&input)?;
         let bytes = render::encode_png(&pixmap, EXPORT_DPI)?;
@@ -80,7 +80,7 @@ mod tests {
 
     fn row(key: &'static str, unit: &'static str, auto: f64, reviewed: f64, origin: Origin) -> LedgerRow {
         let (auto, reviewed, origin) = (Some(auto), Some(reviewed), Some(origin));
-        LedgerRow { key, label: key.to_owned(), unit, auto, reviewed, origin, note: None }
+        LedgerRow { key, label: key.to_owned(), unit, auto, reviewed, origin, notes: Vec::new() }
     }
 
     #[test]

@@ -23,8 +23,9 @@ pub struct LedgerRow {
     pub reviewed: Option<f64>,
     /// Where the reviewed value came from.
     pub origin: Option<Origin>,
-    /// Range note with its source, when the reviewed value is outside the usual range.
-    pub note: Option<RangeNote>,
+    /// Notes with their sources: the range note when the reviewed value is outside the usual range, and, on an
+    /// automatic value, the note that the single beats disagree with it (`ranges::beats_disagree`).
+    pub notes: Vec<RangeNote>,
 }
 
 impl LedgerRow {
@@ -61,20 +62,42 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
         _ => auto.clone(),
     };
     apply_overrides(&mut rev, doc, an.measurements.sex);
+    let all_notes = an.measurements.notes();
     auto.iter()
         .zip(&rev)
         // ST at J is in the review and exports; the Ledger shows J+60 ms to stay short.
         .filter(|(a, _)| a.key != "st_j_uv")
-        .map(|(a, r)| LedgerRow {
-            key: a.key,
-            label: a.label.clone(),
-            unit: a.unit,
-            auto: a.value,
-            reviewed: r.value,
-            origin: origin(a.value, r.value),
-            note: r.note.clone(),
+        .map(|(a, r)| {
+            let origin = origin(a.value, r.value);
+            LedgerRow {
+                key: a.key,
+                label: a.label.clone(),
+                unit: a.unit,
+                auto: a.value,
+                reviewed: r.value,
+                origin,
+                notes: row_notes(a.key, r.note.as_ref(), origin, &all_notes),
+            }
         })
         .collect()
+}
+
+/// The notes of a row whose reviewed value carries `own` (its range note, or the disagreement note of a value
+/// measured again on moved marks): a disagreement between the representative beat and the single beats speaks
+/// of the automatic boundaries only, so it stays while the value is automatic (`origin` auto), then taken from
+/// the automatic measurement's notes `all` also where the row's own note is a range note.
+fn row_notes(key: &str, own: Option<&RangeNote>, origin: Option<Origin>, all: &[RangeNote]) -> Vec<RangeNote> {
+    let automatic = origin == Some(Origin::Auto);
+    let mut notes: Vec<RangeNote> =
+        own.filter(|n| automatic || n.source != ranges::SOURCE_CONSISTENCY).cloned().into_iter().collect();
+    if automatic {
+        for n in all.iter().filter(|n| n.key == key && n.source == ranges::SOURCE_CONSISTENCY) {
+            if !notes.contains(n) {
+                notes.push(n.clone());
+            }
+        }
+    }
+    notes
 }
 
 /// Puts typed and caliper values in place and recomputes what depends on them (rate from RR, QTc from QT and RR).
@@ -192,11 +215,13 @@ pub fn ledger_ui(
             ui.label(r.difference().map_or_else(|| "—".to_string(), |d| format!("{d:+.0}")));
             ui.label(r.origin.map_or("—", Origin::as_str));
             ui.label(r.unit);
-            match &r.note {
-                // The whole note (with its source) on hover: a narrow panel shows only its start.
-                Some(n) => ui.colored_label(ui.visuals().warn_fg_color, &n.text).on_hover_text(n.text.as_str()),
-                None => ui.label(""),
-            };
+            if r.notes.is_empty() {
+                ui.label("");
+            } else {
+                // The whole notes (with their sources) on hover: a narrow panel shows only their start.
+                let texts: Vec<&str> = r.notes.iter().map(|n| n.text.as_str()).collect();
+                ui.colored_label(ui.visuals().warn_fg_color, texts.join(" · ")).on_hover_text(texts.join("\n"));
+            }
             ui.end_row();
         }
     });
@@ -216,5 +241,19 @@ mod tests {
         assert_eq!(origin(Some(400.0), Some(420.0)), Some(Origin::Moved));
         assert_eq!(origin(None, Some(420.0)), Some(Origin::Placed));
         assert_eq!(origin(Some(400.0), None), None);
+    }
+
+    #[test]
+    #[allow(clippy::expect_used)] // a test fails by panicking
+    fn disagreement_notes_follow_automatic_values_only() {
+        let disagree = ranges::beats_disagree("qrs_ms", "QRS", 130.0, 100.0).expect("noted");
+        let wide = ranges::qrs(130.0).expect("noted");
+        let all = [wide.clone(), disagree.clone()];
+        // An automatic QRS with its range note gets both notes.
+        assert_eq!(row_notes("qrs_ms", Some(&wide), Some(Origin::Auto), &all), [wide.clone(), disagree.clone()]);
+        // Measured again on moved marks: the new value's range note stays, no disagreement note.
+        assert_eq!(row_notes("qrs_ms", Some(&wide), Some(Origin::Moved), &all), [wide]);
+        assert!(row_notes("qrs_ms", Some(&disagree), Some(Origin::Moved), &all).is_empty());
+        assert!(row_notes("qt_ms", None, Some(Origin::Auto), &all).is_empty());
     }
 }

@@ -84,10 +84,11 @@ pub fn tape_ui(
             .include_y(r_lo)
             .include_y(r_hi)
             .show(ui, |p| {
-                // Each beat's dot where the beats lie a few columns apart or more (a run of one has no line).
+                // Each beat's dot where the beats lie a few columns apart or more, and a run of one (which has no
+                // line) always.
                 let sparse = trend.iter().map(Vec::len).sum::<usize>() * 4 <= columns;
                 for pts in trend_lines(trend, columns) {
-                    if sparse {
+                    if sparse || pts.len() == 1 {
                         p.add(Points::new("heart rate", PlotPoints::new(pts.clone())).radius(2.0).color(RATE));
                     }
                     p.add(Line::new("heart rate", PlotPoints::new(pts)).color(RATE));
@@ -132,9 +133,9 @@ pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>
 /// Colour of the heart-rate trend.
 const RATE: egui::Color32 = egui::Color32::from_rgb(200, 60, 60);
 
-/// The lines the trend is drawn as, about `2 × columns` points in all: one per run of dominant beats, so no line
-/// bridges a premature beat; where the runs outnumber the columns (a long recording, where a break would not
-/// show) one line through all of them.
+/// The lines the trend is drawn as, at most about `2 × columns` points and one more per run: one line per run of
+/// dominant beats, so no line bridges a premature beat; where the runs outnumber the columns (a long recording,
+/// where a break would not show) one line through all of them.
 fn trend_lines(runs: &[Vec<[f64; 2]>], columns: usize) -> Vec<Vec<[f64; 2]>> {
     if runs.len() > columns {
         let all: Vec<[f64; 2]> = runs.iter().flatten().copied().collect();

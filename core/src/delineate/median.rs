@@ -55,7 +55,9 @@ pub fn representative_beat_with(
     let rr = median_rr(&rs)?;
     let (before, after) = span(fs, rr);
     let reach = align_reach(fs);
-    // Each beat whose span fits the recording, with the room it has to be moved by on either side.
+    // Each beat whose span fits the recording, with the room it has to be moved by on either side. A beat at an
+    // edge with no room joins as placed, even if it would match better moved: one beat among the rest bends the
+    // median little. (Long recordings gather their beats with the full room, `BeatStack::gather`.)
     let chosen: Vec<(usize, Room)> = median_beats(beats)
         .map(|b| b.r)
         .filter(|&r| r >= before && r + after <= n)

@@ -147,9 +147,10 @@ impl Measurements {
         self.st.iter().find(|s| &s.lead == lead).and_then(|s| s.j60_uv)
     }
 
-    /// Every range note, in the order of [`Measurements::values`], and the limb-lead gain note when the axes
-    /// were computed after rescaling ([`ranges::limb_gain_mismatch`]): on the QRS axis row when that row has no
-    /// range note of its own, otherwise last.
+    /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
+    /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
+    /// its own; then the note that a PR or QRS of the representative beat disagrees with the single beats
+    /// ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();

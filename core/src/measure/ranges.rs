@@ -67,17 +67,17 @@ pub const SOURCE_EINTHOVEN: &str = "Einthoven's law; Goldberger 1942, Am Heart J
 /// Source of the beat-to-beat irregularity threshold.
 pub const SOURCE_RR_IRREGULAR: &str = "Dash et al. 2009, Ann Biomed Eng 37:1701-9";
 
-/// Source of the tolerance two estimates of one interval may differ by ([`beats_disagree`]).
-// From memory (references.md §6 marks the IEC allowances as recalled, not confirmed in a retrieved text).
-pub const SOURCE_IEC_INTERVALS: &str = "twice the mean error IEC 60601-2-25 allows";
+/// Source of the note that two estimates of one interval disagree ([`beats_disagree`]): Isoline's own check.
+pub const SOURCE_CONSISTENCY: &str = "representative beat against single beats";
 
 /// Largest difference, ms, between an interval on the representative beat and the median of the dominant beats'
-/// own before [`beats_disagree`] speaks: twice the mean difference from the reference that IEC 60601-2-25 allows a
-/// program's global PR, QRS and QT (10, 10 and 25 ms; references.md §6, from memory). The two estimates come
-/// from the same beats; where they part by more than a program may be off on average, the boundary is ambiguous
-/// on this recording (a biphasic or flat T, a notched QRS, a P merging into the T) and wants a look.
-// Measured (|representative − beats' median|, ms): LUDB 1–50 PR ≤ 12, QRS ≤ 18, QT ≤ 21; QT Database and MIT-BIH
-// 100 PR ≤ 4, QRS ≤ 8, QT ≤ 4 except sele0104 (biphasic low T: 352 against 404).
+/// own before [`beats_disagree`] speaks. The two estimates come from the same beats; where they part by more than
+/// a measuring program may be off on average, the boundary is ambiguous on this recording (a biphasic or flat T,
+/// a notched QRS, a P merging into the T) and wants a look.
+// From memory, not confirmed: twice the mean difference IEC 60601-2-25 allows a program's global PR, QRS and QT
+// (10, 10 and 25 ms as recalled in references.md §6). Measured (|representative − beats' median|, ms): LUDB 1–50
+// PR ≤ 12, QRS ≤ 18, QT ≤ 21; QT Database and MIT-BIH 100 PR ≤ 4, QRS ≤ 8, QT ≤ 4 except sele0104 (biphasic low
+// T: 352 against 404).
 pub const BEATS_DISAGREE_MS: [(&str, f64); 3] = [("pr_ms", 20.0), ("qrs_ms", 20.0), ("qt_ms", 50.0)];
 
 /// The interval `key` (`pr_ms`, `qrs_ms` or `qt_ms`, read `label`) measures `representative` ms on the
@@ -90,10 +90,10 @@ pub fn beats_disagree(key: &str, label: &str, representative: f64, beats: f64) -
     ((a - b).abs() > *limit).then(|| RangeNote {
         key: key.to_string(),
         text: format!(
-            "{label} {a:.0} ms on the representative beat but {b:.0} ms as the median of the single beats: more \
-             than {limit:.0} ms apart ({SOURCE_IEC_INTERVALS}), check the boundaries on single beats"
+            "{label} {a:.0} ms on the representative beat but {b:.0} ms as the median of the individual beats \
+             (more than {limit:.0} ms apart): check the boundaries on individual beats"
         ),
-        source: SOURCE_IEC_INTERVALS,
+        source: SOURCE_CONSISTENCY,
         qtc: None,
     })
 }

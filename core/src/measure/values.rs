@@ -149,13 +149,13 @@ mod tests {
             ..Measurements::default()
         };
         let note = |key: &str| m.values().into_iter().find(|v| v.key == key).and_then(|v| v.note);
-        assert_eq!(note("qt_ms").map(|n| n.source), Some(ranges::SOURCE_IEC_INTERVALS));
+        assert_eq!(note("qt_ms").map(|n| n.source), Some(ranges::SOURCE_CONSISTENCY));
         // The QRS row keeps its range note; the list of notes has both.
         assert_eq!(note("qrs_ms").map(|n| n.source), Some(ranges::SOURCE_QRS));
         let keys: Vec<(String, &str)> = m.notes().into_iter().map(|n| (n.key, n.source)).collect();
-        assert!(keys.contains(&("qrs_ms".to_owned(), ranges::SOURCE_IEC_INTERVALS)), "{keys:?}");
+        assert!(keys.contains(&("qrs_ms".to_owned(), ranges::SOURCE_CONSISTENCY)), "{keys:?}");
         // Intervals that are the beats' medians themselves are not compared with themselves.
         let own = Measurements { intervals_source: IntervalSource::BeatMedians, ..m };
-        assert!(own.notes().iter().all(|n| n.source != ranges::SOURCE_IEC_INTERVALS));
+        assert!(own.notes().iter().all(|n| n.source != ranges::SOURCE_CONSISTENCY));
     }
 }

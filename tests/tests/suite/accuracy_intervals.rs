@@ -51,13 +51,8 @@ fn compare(name: &str, reference_csv: &str, record: &str, errors: &mut [Vec<f64>
         };
         line.push_str(&format!("   {cell:<22}"));
     }
-    let flagged: Vec<String> = a
-        .measurements
-        .notes()
-        .into_iter()
-        .filter(|n| n.source == ranges::SOURCE_IEC_INTERVALS)
-        .map(|n| n.key)
-        .collect();
+    let flagged: Vec<String> =
+        a.measurements.notes().into_iter().filter(|n| n.source == ranges::SOURCE_CONSISTENCY).map(|n| n.key).collect();
     if !flagged.is_empty() {
         line.push_str(&format!("   noted: {}", flagged.join(", ")));
     }

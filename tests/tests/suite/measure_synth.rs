@@ -154,11 +154,13 @@ fn ectopic_beats_leave_the_underlying_rhythm_regular() {
     let a = analyze(&s.recording, &FilterSettings::default());
     let rhythm = a.measurements.rr.rhythm;
     assert!(s.truth.ectopic_beats >= 4, "{} ectopic beats", s.truth.ectopic_beats);
-    // Every dominant beat whose span (0.45 s before R, at most 0.70 s after) lies in the recording joins the
-    // representative beat, also the first and last, which have no room to be lined up.
+    // Every dominant beat whose span (0.45 s but at most 0.6 RR before R, 0.70 s but at most one RR after) lies in
+    // the recording joins the representative beat, also the first and last, which have no room to be lined up.
     let rep = a.representative.as_ref().map_or(0, |r| r.n_beats);
-    let n = s.recording.len();
-    let fits = a.beats.iter().filter(|b| b.kind == BeatKind::Dominant && b.r >= 225 && b.r + 350 <= n).count();
+    let (n, fs) = (s.recording.len(), spec.rate_hz);
+    let rr = s.truth.rr_ms.unwrap_or(f64::NAN) * fs / 1000.0;
+    let (before, after) = ((0.45 * fs).min(0.6 * rr) as usize, (0.70 * fs).min(rr) as usize);
+    let fits = a.beats.iter().filter(|b| b.kind == BeatKind::Dominant && b.r >= before && b.r + after <= n).count();
     assert_eq!(rep, fits, "beats in the representative beat");
     assert_eq!(rhythm.other_beats, s.truth.ectopic_beats, "{rhythm:?}");
     assert_eq!(rhythm.regular, Some(true), "{rhythm:?}");
