@@ -147,6 +147,21 @@ impl Measurements {
         self.st.iter().find(|s| &s.lead == lead).and_then(|s| s.j60_uv)
     }
 
+    /// The note that the interval `key` (`pr_ms`, `qrs_ms` or `qt_ms`) of the representative beat disagrees with
+    /// the median of the dominant beats' own ([`ranges::beats_disagree`]); `None` where they agree, or where the
+    /// intervals are not the representative beat's.
+    fn beats_disagree(&self, key: &str) -> Option<RangeNote> {
+        let (i, b) = (&self.intervals, &self.beat_medians);
+        let (label, a, b) = match key {
+            "pr_ms" => ("PR", i.pr_ms, b.pr_ms),
+            "qrs_ms" => ("QRS", i.qrs_ms, b.qrs_ms),
+            "qt_ms" => ("QT", i.qt_ms, b.qt_ms),
+            _ => return None,
+        };
+        let (a, b) = a.zip(b).filter(|_| self.intervals_source == IntervalSource::Representative)?;
+        ranges::beats_disagree(key, label, a, b)
+    }
+
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
     /// its own; then the note that a PR or QRS of the representative beat disagrees with the single beats
@@ -160,18 +175,9 @@ impl Measurements {
             notes.push(gain);
         }
         // An interval with a range note of its own still gets the note that the single beats disagree.
-        if self.intervals_source == IntervalSource::Representative {
-            let (i, b) = (&self.intervals, &self.beat_medians);
-            for (key, label, a, b) in [
-                ("pr_ms", "PR", i.pr_ms, b.pr_ms),
-                ("qrs_ms", "QRS", i.qrs_ms, b.qrs_ms),
-                ("qt_ms", "QT", i.qt_ms, b.qt_ms),
-            ] {
-                if let Some(n) = a.zip(b).and_then(|(a, b)| ranges::beats_disagree(key, label, a, b))
-                    && !notes.contains(&n)
-                {
-                    notes.push(n);
-                }
+        for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
+            if !notes.contains(&n) {
+                notes.push(n);
             }
         }
         notes

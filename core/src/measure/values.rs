@@ -57,14 +57,11 @@ fn with_note(mut m: MeasuredValue, f: impl Fn(f64) -> Option<RangeNote>) -> Meas
 }
 
 impl Measurements {
-    /// `m` (an interval measured on the representative beat) with the note that the single beats' median
-    /// `beats` disagrees with it ([`ranges::beats_disagree`]), unless `m` already carries a range note.
-    fn or_beats_disagree(&self, mut m: MeasuredValue, beats: Option<f64>) -> MeasuredValue {
-        if m.note.is_none()
-            && self.intervals_source == super::IntervalSource::Representative
-            && let (Some(a), Some(b)) = (m.value, beats)
-        {
-            m.note = ranges::beats_disagree(m.key, &m.label, a, b);
+    /// `m` (an interval measured on the representative beat) with the note that the single beats disagree with
+    /// it, unless `m` already carries a range note.
+    fn or_beats_disagree(&self, mut m: MeasuredValue) -> MeasuredValue {
+        if m.note.is_none() {
+            m.note = self.beats_disagree(m.key);
         }
         m
     }
@@ -88,12 +85,9 @@ impl Measurements {
                 |p| self.rr.rhythm.regular.and_then(|_| ranges::rr_irregular(p / 100.0)),
             ),
             v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
-            self.or_beats_disagree(with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr), self.beat_medians.pr_ms),
-            self.or_beats_disagree(
-                with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs),
-                self.beat_medians.qrs_ms,
-            ),
-            self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms"), self.beat_medians.qt_ms),
+            self.or_beats_disagree(with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr)),
+            self.or_beats_disagree(with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs)),
+            self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms")),
         ];
         let formulas: [(&'static str, &str, Option<f64>); 5] = [
             ("qtc_bazett_ms", "Bazett", q.map(|q| q.bazett)),
