@@ -4,6 +4,7 @@
 use isoline_core::analysis::Span;
 use isoline_core::beat::{Beat, BeatKind};
 use isoline_core::io::wfdb_annotations::is_beat;
+use isoline_core::measure::hrv;
 use isoline_core::recording::{Annotation, Recording};
 
 /// Whole-recording min/max envelope of one lead, in equal time buckets.
@@ -114,20 +115,12 @@ pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Bea
 /// Source: references.md §10 (HR = 60 / RR in s).
 #[must_use]
 pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<Vec<[f64; 2]>> {
-    let mut runs: Vec<Vec<[f64; 2]>> = Vec::new();
-    let mut run = Vec::new();
-    for w in beats.windows(2) {
-        let rr_ms = w[1].r.saturating_sub(w[0].r) as f64 * 1000.0 / rate_hz;
-        if w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant && rr_ms > 0.0 {
-            run.push([w[1].r as f64 / rate_hz, 60_000.0 / rr_ms]);
-        } else if !run.is_empty() {
-            runs.push(std::mem::take(&mut run));
-        }
-    }
-    if !run.is_empty() {
-        runs.push(run);
-    }
-    runs
+    hrv::nn_pairs(beats)
+        .into_iter()
+        .map(|run| {
+            run.into_iter().map(|(a, b)| [b as f64 / rate_hz, 60_000.0 / ((b - a) as f64 * 1000.0 / rate_hz)]).collect()
+        })
+        .collect()
 }
 
 /// Median RR of consecutive dominant beats, ms.

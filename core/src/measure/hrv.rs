@@ -80,11 +80,20 @@ impl Rhythm {
 /// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts.
 #[must_use]
 pub fn nn_runs(beats: &[Beat], fs: Hertz) -> Vec<Vec<f64>> {
-    let mut runs: Vec<Vec<f64>> = Vec::new();
+    nn_pairs(beats)
+        .into_iter()
+        .map(|run| run.into_iter().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect())
+        .collect()
+}
+
+/// The NN intervals of [`nn_runs`] as the R peaks (samples) that bound them, first and second, in the same runs.
+#[must_use]
+pub fn nn_pairs(beats: &[Beat]) -> Vec<Vec<(usize, usize)>> {
+    let mut runs: Vec<Vec<(usize, usize)>> = Vec::new();
     let mut current = Vec::new();
     for w in beats.windows(2) {
         if w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant && w[1].r > w[0].r {
-            current.push(fs.ms_from_samples((w[1].r - w[0].r) as f64));
+            current.push((w[0].r, w[1].r));
         } else if !current.is_empty() {
             runs.push(std::mem::take(&mut current));
         }
