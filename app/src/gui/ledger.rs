@@ -62,7 +62,6 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
         _ => auto.clone(),
     };
     apply_overrides(&mut rev, doc, an.measurements.sex);
-    let all_notes = an.measurements.notes();
     auto.iter()
         .zip(&rev)
         // ST at J is in the review and exports; the Ledger shows J+60 ms to stay short.
@@ -76,7 +75,7 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
                 auto: a.value,
                 reviewed: r.value,
                 origin,
-                notes: row_notes(a.key, r.note.as_ref(), origin, &all_notes),
+                notes: row_notes(r.note.as_ref(), origin, an.measurements.beats_disagree(a.key)),
             }
         })
         .collect()
@@ -84,18 +83,14 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
 
 /// The notes of a row whose reviewed value carries `own` (its range note, or the disagreement note of a value
 /// measured again on moved marks): a disagreement between the representative beat and the single beats speaks
-/// of the automatic boundaries only, so it stays while the value is automatic (`origin` auto), then taken from
-/// the automatic measurement's notes `all` also where the row's own note is a range note.
-fn row_notes(key: &str, own: Option<&RangeNote>, origin: Option<Origin>, all: &[RangeNote]) -> Vec<RangeNote> {
+/// of the automatic boundaries only, so it stays while the value is automatic (`origin` auto), then the
+/// automatic measurement's `disagree` note is added also where the row's own note is a range note.
+fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<RangeNote>) -> Vec<RangeNote> {
     let automatic = origin == Some(Origin::Auto);
     let mut notes: Vec<RangeNote> =
         own.filter(|n| automatic || n.source != ranges::SOURCE_CONSISTENCY).cloned().into_iter().collect();
-    if automatic {
-        for n in all.iter().filter(|n| n.key == key && n.source == ranges::SOURCE_CONSISTENCY) {
-            if !notes.contains(n) {
-                notes.push(n.clone());
-            }
-        }
+    if let Some(n) = disagree.filter(|n| automatic && !notes.contains(n)) {
+        notes.push(n);
     }
     notes
 }
@@ -248,12 +243,13 @@ mod tests {
     fn disagreement_notes_follow_automatic_values_only() {
         let disagree = ranges::beats_disagree("qrs_ms", "QRS", 130.0, 100.0).expect("noted");
         let wide = ranges::qrs(130.0).expect("noted");
-        let all = [wide.clone(), disagree.clone()];
-        // An automatic QRS with its range note gets both notes.
-        assert_eq!(row_notes("qrs_ms", Some(&wide), Some(Origin::Auto), &all), [wide.clone(), disagree.clone()]);
+        let noted = Some(disagree.clone());
+        // An automatic QRS with its range note gets both notes; the disagreement once.
+        assert_eq!(row_notes(Some(&wide), Some(Origin::Auto), noted.clone()), [wide.clone(), disagree.clone()]);
+        assert_eq!(row_notes(Some(&disagree), Some(Origin::Auto), noted.clone()), std::slice::from_ref(&disagree));
         // Measured again on moved marks: the new value's range note stays, no disagreement note.
-        assert_eq!(row_notes("qrs_ms", Some(&wide), Some(Origin::Moved), &all), [wide]);
-        assert!(row_notes("qrs_ms", Some(&disagree), Some(Origin::Moved), &all).is_empty());
-        assert!(row_notes("qt_ms", None, Some(Origin::Auto), &all).is_empty());
+        assert_eq!(row_notes(Some(&wide), Some(Origin::Moved), noted.clone()), [wide]);
+        assert!(row_notes(Some(&disagree), Some(Origin::Moved), noted).is_empty());
+        assert!(row_notes(None, Some(Origin::Auto), None).is_empty());
     }
 }

@@ -150,7 +150,8 @@ impl Measurements {
     /// The note that the interval `key` (`pr_ms`, `qrs_ms` or `qt_ms`) of the representative beat disagrees with
     /// the median of the dominant beats' own ([`ranges::beats_disagree`]); `None` where they agree, or where the
     /// intervals are not the representative beat's.
-    fn beats_disagree(&self, key: &str) -> Option<RangeNote> {
+    #[must_use]
+    pub fn beats_disagree(&self, key: &str) -> Option<RangeNote> {
         let (i, b) = (&self.intervals, &self.beat_medians);
         let (label, a, b) = match key {
             "pr_ms" => ("PR", i.pr_ms, b.pr_ms),
