@@ -295,6 +295,56 @@ pub fn beats_of_recording(recording: &isoline_core::Recording) -> (isoline_core:
     (filtered.recording, beats)
 }
 
+/// Detection on every record of [`crate::BEAT_RECORDS`] and boundaries against cardiologist 1 on those with a
+/// `.q1c.csv`, each recording first changed by `change`: given the stored recording and its reference beats (R
+/// samples), it returns the recording to analyse and the factor from stored to changed sample indices (2 at twice
+/// the rate), by which the references are scaled. Prints one line per record and a pooled line, headed `tag`.
+///
+/// # Errors
+/// A record or reference that cannot be read.
+pub fn score_changed_records(
+    tag: &str,
+    change: impl Fn(&isoline_core::Recording, &[f64]) -> (isoline_core::Recording, f64),
+) -> Result<(Detection, BoundaryErrors), String> {
+    let (mut detection, mut bounds) = (Detection::default(), BoundaryErrors::default());
+    for (header, beats_csv) in crate::BEAT_RECORDS {
+        let opened = isoline_core::io::open(&crate::data(header), &isoline_core::io::OpenOptions::default())
+            .map_err(|e| e.to_string())?;
+        let stored_refs: Vec<f64> = read_reference_csv(&crate::data(beats_csv))?.iter().map(|b| b.r).collect();
+        let (recording, factor) = change(&opened.recording, &stored_refs);
+        let fs = recording.sample_rate.hz();
+        let refs: Vec<f64> = stored_refs.iter().map(|r| r * factor).collect();
+        let (_, beats) = beats_of_recording(&recording);
+        let d = score_detection(&refs, &beats.iter().map(|b| b.r as f64).collect::<Vec<_>>(), fs);
+        let rec = header.trim_end_matches(".hea");
+        let mut line = format!("{tag} {rec}: Se {:.2} % +P {:.2} %", d.se(), d.ppv());
+        detection.add(d);
+        let q1c = crate::data(&format!("{rec}.q1c.csv"));
+        if q1c.exists() {
+            let reference: Vec<BeatMarks> = read_reference_csv(&q1c)?
+                .into_iter()
+                .map(|b| BeatMarks { r: b.r * factor, marks: b.marks.map(|m| m.map(|v| v * factor)) })
+                .collect();
+            let marks: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
+            let e = score_boundaries(&reference, &marks, fs);
+            for (k, key) in KEYS.iter().enumerate() {
+                if let Some((m, s)) = e.mean_sd(k) {
+                    line.push_str(&format!("  {key} {m:+.1}±{s:.1}"));
+                }
+            }
+            bounds.add(&e);
+        }
+        println!("{line}");
+    }
+    println!(
+        "{tag} pooled: Se {:.3} % +P {:.3} %; boundaries vs cardiologist 1: {}",
+        detection.se(),
+        detection.ppv(),
+        bounds.summary()
+    );
+    Ok((detection, bounds))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -2,24 +2,16 @@
 //! way round), every lead at half and at three times its size, and the 250 Hz QT Database records at 500 Hz
 //! (band-limited interpolation). Detection and the boundaries against cardiologist 1 must still meet the
 //! measurement-engine goals, and stay close to the figures on the records as stored (mean within 3 ms, SD no
-//! more than 2 ms wider). Held-back records differ
-//! from ours in exactly these ways (polarity, amplitude, sampling rate), so a method that leans on one of them
-//! shows here. Run with `--nocapture` to see every variant's figures.
+//! more than 2 ms wider). Held-back records differ from ours in exactly these ways (polarity, amplitude,
+//! sampling rate), so a method that leans on one of them shows here. Run with `--nocapture` to see every
+//! variant's figures.
 //!
 //! Annotations: Laguna et al., Computers in Cardiology 1997;24:673-6 (QT Database, cardiologist 1); Moody & Mark
 //! 2001 (MIT-BIH record 100); scored as ANSI/AAMI EC57 does (150 ms window).
 
 use isoline_core::Recording;
-use isoline_core::io;
 use isoline_core::units::Hertz;
-use isoline_tests::data;
-use isoline_tests::score::{
-    BeatMarks, BoundaryErrors, Detection, KEYS, beats_of_recording, read_reference_csv, score_boundaries,
-    score_detection,
-};
-
-const RECORDS: [&str; 7] =
-    ["mitdb-100/100", "qtdb/sel100", "qtdb/sel117", "qtdb/sel16265", "qtdb/sel803", "qtdb/sele0104", "qtdb/sel14046"];
+use isoline_tests::score::{BoundaryErrors, Detection, KEYS, score_changed_records};
 
 /// Goal per boundary key (measurement-engine issue): (|mean| limit, SD limit), ms.
 const GOALS: [(f64, f64); 4] = [(10.0, 15.0), (10.0, 10.0), (10.0, 12.0), (25.0, 30.0)];
@@ -78,37 +70,7 @@ fn doubled(x: &[f32]) -> Vec<f32> {
 
 /// Detection over every record and boundaries over the QT Database records with `change`, printed per record.
 fn run(change: Change) -> Result<(Detection, BoundaryErrors), String> {
-    let (mut detection, mut bounds) = (Detection::default(), BoundaryErrors::default());
-    for rec in RECORDS {
-        let stored =
-            io::open(&data(&format!("{rec}.hea")), &io::OpenOptions::default()).map_err(|e| e.to_string())?.recording;
-        let (recording, factor) = change.apply(&stored);
-        let fs = recording.sample_rate.hz();
-        let refs: Vec<f64> =
-            read_reference_csv(&data(&format!("{rec}.beats.csv")))?.iter().map(|b| b.r * factor).collect();
-        let (_, beats) = beats_of_recording(&recording);
-        let d = score_detection(&refs, &beats.iter().map(|b| b.r as f64).collect::<Vec<_>>(), fs);
-        let mut line = format!("{change:?} {rec}: Se {:.2} % +P {:.2} %", d.se(), d.ppv());
-        detection.add(d);
-        let q1c = data(&format!("{rec}.q1c.csv"));
-        if q1c.exists() {
-            let reference: Vec<BeatMarks> = read_reference_csv(&q1c)?
-                .into_iter()
-                .map(|b| BeatMarks { r: b.r * factor, marks: b.marks.map(|m| m.map(|v| v * factor)) })
-                .collect();
-            let marks: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
-            let e = score_boundaries(&reference, &marks, fs);
-            for (k, key) in KEYS.iter().enumerate() {
-                if let Some((m, s)) = e.mean_sd(k) {
-                    line.push_str(&format!("  {key} {m:+.1}±{s:.1}"));
-                }
-            }
-            bounds.add(&e);
-        }
-        println!("{line}");
-    }
-    println!("{change:?} pooled: Se {:.3} % +P {:.3} %; {}", detection.se(), detection.ppv(), bounds.summary());
-    Ok((detection, bounds))
+    score_changed_records(&format!("{change:?}"), |stored, _| change.apply(stored))
 }
 
 #[test]

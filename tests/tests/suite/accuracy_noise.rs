@@ -9,16 +9,8 @@
 //! does (150 ms window).
 
 use isoline_core::Recording;
-use isoline_core::io;
 use isoline_core::synth::noise::{self, NoiseSpec};
-use isoline_tests::data;
-use isoline_tests::score::{
-    BeatMarks, BoundaryErrors, Detection, KEYS, beats_of_recording, read_reference_csv, score_boundaries,
-    score_detection,
-};
-
-const RECORDS: [&str; 7] =
-    ["mitdb-100/100", "qtdb/sel100", "qtdb/sel117", "qtdb/sel16265", "qtdb/sel803", "qtdb/sele0104", "qtdb/sel14046"];
+use isoline_tests::score::{BoundaryErrors, Detection, KEYS, score_changed_records};
 
 /// Muscle noise and wander of equal RMS added to every lead of `rec` at `snr_db` against that lead's median QRS
 /// peak-to-peak amplitude around the reference beats `refs` (samples). Seeded: the same every run.
@@ -57,37 +49,11 @@ fn with_noise(rec: &mut Recording, refs: &[f64], snr_db: f64) {
 
 /// Detection and boundary errors of every record at `snr_db`, printed per record.
 fn run(snr_db: f64) -> Result<(Detection, BoundaryErrors), String> {
-    let (mut detection, mut bounds) = (Detection::default(), BoundaryErrors::default());
-    for rec in RECORDS {
-        let mut recording =
-            io::open(&data(&format!("{rec}.hea")), &io::OpenOptions::default()).map_err(|e| e.to_string())?.recording;
-        let fs = recording.sample_rate.hz();
-        let refs: Vec<f64> = read_reference_csv(&data(&format!("{rec}.beats.csv")))?.iter().map(|b| b.r).collect();
-        with_noise(&mut recording, &refs, snr_db);
-        let (_, beats) = beats_of_recording(&recording);
-        let d = score_detection(&refs, &beats.iter().map(|b| b.r as f64).collect::<Vec<_>>(), fs);
-        let mut line = format!("{snr_db:>4} dB {rec}: Se {:.2} % +P {:.2} %", d.se(), d.ppv());
-        detection.add(d);
-        let q1c = data(&format!("{rec}.q1c.csv"));
-        if q1c.exists() {
-            let marks: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
-            let e = score_boundaries(&read_reference_csv(&q1c)?, &marks, fs);
-            for (k, key) in KEYS.iter().enumerate() {
-                if let Some((m, s)) = e.mean_sd(k) {
-                    line.push_str(&format!("  {key} {m:+.1}±{s:.1}"));
-                }
-            }
-            bounds.add(&e);
-        }
-        println!("{line}");
-    }
-    println!(
-        "{snr_db:>4} dB pooled: Se {:.3} % +P {:.3} %; boundaries vs cardiologist 1: {}",
-        detection.se(),
-        detection.ppv(),
-        bounds.summary()
-    );
-    Ok((detection, bounds))
+    score_changed_records(&format!("{snr_db:>4} dB"), |stored, refs| {
+        let mut recording = stored.clone();
+        with_noise(&mut recording, refs, snr_db);
+        (recording, 1.0)
+    })
 }
 
 #[test]
