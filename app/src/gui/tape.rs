@@ -9,8 +9,9 @@ use super::command::Command;
 use super::derived::TapeEnvelope;
 use super::state::Loaded;
 
-/// Width kept for the y-axis labels of both Tape plots, points, so their time axes line up.
-const AXIS_WIDTH: f32 = 40.0;
+/// Width kept for the y-axis labels of both Tape plots, points, so their time axes line up (room for a
+/// three-digit rate and the axis name).
+const AXIS_WIDTH: f32 = 52.0;
 
 /// Draws the Tape; returns a command to move the Sheet when clicked or dragged.
 ///
@@ -68,7 +69,8 @@ pub fn tape_ui(
     } else {
         let (r_lo, r_hi) =
             trend.iter().flatten().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| (a.min(p[1]), b.max(p[1])));
-        let (r_lo, r_hi) = ((r_lo - 10.0).max(0.0), r_hi + 10.0);
+        let marks = rate_marks(r_lo, r_hi);
+        let (r_lo, r_hi) = ((r_lo - RATE_MARGIN_BPM).max(0.0), r_hi + RATE_MARGIN_BPM);
         let hr = Plot::new("tape_rate")
             .height(60.0)
             .allow_drag(false)
@@ -78,6 +80,8 @@ pub fn tape_ui(
             .allow_double_click_reset(false)
             .y_axis_label("bpm")
             .y_axis_min_width(AXIS_WIDTH)
+            .y_axis_formatter(|m, _| format!("{:.0}", m.value))
+            .y_grid_spacer(move |_| marks.iter().map(|&(value, step_size)| GridMark { value, step_size }).collect())
             .x_axis_formatter(|m, _| clock(m.value))
             .x_grid_spacer(clock_marks)
             .default_x_bounds(0.0, x_end(duration))
@@ -130,6 +134,26 @@ pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>
     (xs, lo, hi)
 }
 
+/// Room above the fastest and below the slowest rate on the trend, bpm.
+const RATE_MARGIN_BPM: f64 = 10.0;
+
+/// The rate trend's labelled marks, (bpm, step size): the slowest and fastest rate (rounded) where they stand
+/// far enough apart on the short plot for both labels to show, else one mark between them. The default marks
+/// fall on multiples of 10 or 50 bpm, which on a plot a few dozen points high are too close to be labelled or
+/// miss the trend's range, so the axis showed no number at all. The step size tells the plot how far apart the
+/// labels stand (it hides labels closer than about 20 points).
+fn rate_marks(slowest: f64, fastest: f64) -> Vec<(f64, f64)> {
+    let (lo, hi) = (slowest.round(), fastest.round());
+    let span = hi - lo;
+    // Both labels show when they are at least about 60 % of the plotted range apart (the range adds the margins).
+    if span >= 0.6 * (span + 2.0 * RATE_MARGIN_BPM) {
+        vec![(lo, span), (hi, span)]
+    } else {
+        // One label: its step size is the whole plotted range, so it always shows.
+        vec![(((lo + hi) / 2.0).round(), span + 2.0 * RATE_MARGIN_BPM)]
+    }
+}
+
 /// Colour of the heart-rate trend.
 const RATE: egui::Color32 = egui::Color32::from_rgb(200, 60, 60);
 
@@ -169,6 +193,16 @@ fn clock_marks(input: GridInput) -> Vec<GridMark> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn rate_marks_label_the_trend_range() {
+        // A steady rate: one label between slowest and fastest.
+        assert_eq!(rate_marks(78.4, 86.2), vec![(82.0, 28.0)]);
+        // A wide swing: slowest and fastest both labelled.
+        assert_eq!(rate_marks(55.0, 120.0), vec![(55.0, 65.0), (120.0, 65.0)]);
+        // One beat-to-beat rate only.
+        assert_eq!(rate_marks(60.0, 60.0), vec![(60.0, 20.0)]);
+    }
 
     #[test]
     fn merged_columns_keep_extremes() {
