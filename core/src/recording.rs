@@ -160,9 +160,15 @@ pub struct Meta {
     pub device: Option<String>,
 }
 
+/// In a de-identified copy, an age at or above this is written as this age ("90 or older").
+// Source: HIPAA Privacy Rule, 45 CFR 164.514(b)(2)(i)(C) (from memory): ages over 89 are aggregated into a
+// single category of 90 or older.
+pub const OLDEST_AGE_SHOWN: f64 = 90.0;
+
 impl Meta {
-    /// A copy with every field that may identify a person removed (id, name, birth date, free-text comments).
-    /// Sex and age are kept: they decide the usual ranges and do not identify on their own.
+    /// A copy with every field that may identify a person removed (id, name, birth date, free-text comments,
+    /// and the equipment, which files also use for the site's name). Sex and age are kept: they decide the usual
+    /// ranges and do not identify on their own, except a great age, which is written as [`OLDEST_AGE_SHOWN`].
     #[must_use]
     pub fn deidentified(&self) -> Self {
         Self {
@@ -170,9 +176,9 @@ impl Meta {
             patient_name: None,
             sex: self.sex.clone(),
             birth_date: None,
-            age_years: self.age_years,
+            age_years: self.age_years.map(|a| a.min(OLDEST_AGE_SHOWN)),
             recording_info: None,
-            device: self.device.clone(),
+            device: None,
         }
     }
 }
@@ -334,11 +340,14 @@ mod tests {
             birth_date: Some("01-JAN-1970".into()),
             age_years: Some(56.0),
             recording_info: Some("bed 4".into()),
-            device: None,
+            device: Some("Ward 3 cart".into()),
         };
         let d = m.deidentified();
         assert!(d.patient_id.is_none() && d.patient_name.is_none() && d.birth_date.is_none());
-        assert!(d.recording_info.is_none());
+        assert!(d.recording_info.is_none() && d.device.is_none());
         assert_eq!(d.sex.as_deref(), Some("F"));
+        assert_eq!(d.age_years, Some(56.0));
+        let old = Meta { age_years: Some(97.0), ..m }.deidentified();
+        assert_eq!(old.age_years, Some(OLDEST_AGE_SHOWN));
     }
 }

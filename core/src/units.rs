@@ -12,7 +12,24 @@ pub enum UnitError {
     /// A sampling rate that is not a finite positive number.
     #[error("sampling rate must be a finite number above 0 Hz, got {0}")]
     SampleRate(f64),
+    /// A sampling rate outside the range an ECG is read and analysed at ([`ECG_RATES_HZ`]).
+    #[error("sampling rate {} Hz is outside the {min} to {max} Hz an ECG is read at", readable(*.0), min = ECG_RATES_HZ.start(), max = ECG_RATES_HZ.end())]
+    EcgRate(f64),
 }
+
+/// `hz` as written in an error: plain where it has a few digits, else in scientific notation (1e300, not
+/// three hundred digits).
+fn readable(hz: f64) -> String {
+    if (0.01..1e6).contains(&hz.abs()) { format!("{}", (hz * 1000.0).round() / 1000.0) } else { format!("{hz:.3e}") }
+}
+
+/// Sampling rates Isoline reads recordings at and analyses, Hz. Below 50 Hz a QRS complex spans a sample or
+/// two; above 20 kHz the analysis windows and filters would be sized for no ECG recorder in use (and a wrong
+/// header field, such as a record duration in the wrong unit, gives rates of 10⁹ Hz or 1 Hz). The demo generator
+/// uses the same range.
+// Common practice, no source: diagnostic ECG recorders sample at 250–1000 Hz (up to a few kHz for pacing
+// detection), ambulatory ones at 125–250 Hz, older databases at 100–128 Hz.
+pub const ECG_RATES_HZ: std::ops::RangeInclusive<f64> = 50.0..=20_000.0;
 
 /// A sampling rate in hertz: finite and strictly positive.
 #[derive(Debug, Clone, Copy, PartialEq, PartialOrd, serde::Serialize, serde::Deserialize)]
@@ -26,6 +43,16 @@ impl Hertz {
     /// [`UnitError::SampleRate`] for zero, negative, NaN or infinite values.
     pub fn from_hz(hz: f64) -> Result<Self, UnitError> {
         if hz.is_finite() && hz > 0.0 { Ok(Self(hz)) } else { Err(UnitError::SampleRate(hz)) }
+    }
+
+    /// Builds the sampling rate of a recording to be read and analysed: within [`ECG_RATES_HZ`].
+    ///
+    /// # Errors
+    /// [`UnitError::SampleRate`] for zero, negative, NaN or infinite values; [`UnitError::EcgRate`] for a rate
+    /// outside [`ECG_RATES_HZ`].
+    pub fn for_ecg(hz: f64) -> Result<Self, UnitError> {
+        let rate = Self::from_hz(hz)?;
+        if ECG_RATES_HZ.contains(&hz) { Ok(rate) } else { Err(UnitError::EcgRate(hz)) }
     }
 
     /// The rate in hertz.
@@ -94,6 +121,23 @@ mod tests {
         assert!(Hertz::from_hz(f64::NAN).is_err());
         assert!(Hertz::from_hz(f64::INFINITY).is_err());
         assert_eq!(Hertz::from_hz(500.0).map(Hertz::hz), Ok(500.0));
+    }
+
+    #[test]
+    fn ecg_rate_is_within_the_recorders_range() {
+        assert_eq!(Hertz::for_ecg(50.0).map(Hertz::hz), Ok(50.0));
+        assert_eq!(Hertz::for_ecg(20_000.0).map(Hertz::hz), Ok(20_000.0));
+        assert_eq!(Hertz::for_ecg(0.5), Err(UnitError::EcgRate(0.5)));
+        assert_eq!(
+            UnitError::EcgRate(0.5).to_string(),
+            "sampling rate 0.5 Hz is outside the 50 to 20000 Hz an ECG is read at"
+        );
+        assert_eq!(Hertz::for_ecg(1e12), Err(UnitError::EcgRate(1e12)));
+        assert_eq!(Hertz::for_ecg(f64::NAN).map_err(|e| matches!(e, UnitError::SampleRate(_))), Err(true));
+        assert_eq!(
+            UnitError::EcgRate(1e12).to_string(),
+            "sampling rate 1.000e12 Hz is outside the 50 to 20000 Hz an ECG is read at"
+        );
     }
 
     #[test]

@@ -197,7 +197,7 @@ fn read_inner(
             ));
         }
     };
-    let sample_rate = Hertz::from_hz(fs).map_err(|e| ReadError::invalid(path, format!("sampling rate: {e}")))?;
+    let sample_rate = Hertz::for_ecg(fs).map_err(|e| ReadError::invalid(path, e.to_string()))?;
     for s in &mut samples {
         s.shrink_to_fit();
     }

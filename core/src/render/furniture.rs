@@ -6,6 +6,7 @@ use super::canvas::Canvas;
 use super::text::{Align, Fonts, Style};
 use crate::analysis::LONG_RECORDING_S;
 use crate::paper::{Palette, margins};
+use crate::recording::OLDEST_AGE_SHOWN;
 use crate::timescale::clock;
 
 /// Header text: the first line's title and paper settings, then lines of fields.
@@ -65,7 +66,8 @@ pub(super) fn header(input: &RenderInput) -> Header {
         patient.push(format!("Sex: {v}"));
     }
     if let Some(v) = meta.age_years {
-        patient.push(format!("Age: {v:.0}"));
+        let or_older = if !input.identify && v >= OLDEST_AGE_SHOWN { " or older" } else { "" };
+        patient.push(format!("Age: {v:.0}{or_older}"));
     }
     if let Some(v) = &meta.recording_info {
         patient.push(format!("Note: {v}"));

@@ -24,7 +24,7 @@
 use thiserror::Error;
 
 use crate::recording::{Lead, Meta, Recording};
-use crate::units::Hertz;
+use crate::units::{ECG_RATES_HZ, Hertz};
 
 pub mod leads;
 pub mod model;
@@ -145,7 +145,7 @@ impl SynthSpec {
     /// [`SynthError::OutOfRange`] naming the first bad parameter.
     pub fn validate(&self) -> Result<(), SynthError> {
         check("seconds", self.seconds, 1.0, 7.0 * 86_400.0, "1 s to 7 days")?;
-        check("rate_hz", self.rate_hz, 50.0, 20_000.0, "50 to 20000 Hz")?;
+        check("rate_hz", self.rate_hz, *ECG_RATES_HZ.start(), *ECG_RATES_HZ.end(), "50 to 20000 Hz")?;
         check("heart_rate_bpm", self.heart_rate_bpm, 20.0, 220.0, "20 to 220 bpm")?;
         check("heart_rate_swing_bpm", self.heart_rate_swing_bpm, 0.0, self.heart_rate_bpm - 20.0, "0 to rate − 20")?;
         check("rr_variation", self.rr_variation, 0.0, 0.5, "0 to 0.5")?;

@@ -89,12 +89,13 @@ fn header_fields_follow_edf_plus() -> TestResult {
     assert_eq!(field(&b, 256 + 3 * 16, 16), "EDF Annotations");
     assert_eq!(field(&b, 256, 16), "ECG I");
     assert_eq!(field(&b, 256 + 16, 16), "ECG aVR");
-    // De-identified by default: patient "X F X X" (code sex birthdate name), recording "Startdate X …",
-    // start date 01.01.85.
+    // De-identified by default: patient "X F X X" (code sex birthdate name), recording "Startdate X X X X" (date,
+    // admin code, technician, equipment),
+    // start date and time withheld (01.01.85 00.00.00, the fields' value when unknown).
     assert_eq!(field(&b, 8, 80), "X F X X");
-    assert!(field(&b, 88, 80).starts_with("Startdate X "));
+    assert_eq!(field(&b, 88, 80), "Startdate X X X X");
     assert_eq!(field(&b, 168, 8), "01.01.85");
-    assert_eq!(field(&b, 176, 8), "08.30.15");
+    assert_eq!(field(&b, 176, 8), "00.00.00");
     let n_records: usize = field(&b, 236, 8).parse()?;
     assert_eq!(n_records, 3);
     assert_eq!(field(&b, 244, 8), "1");
@@ -205,8 +206,8 @@ fn tal_bytes(text: &[u8], len: usize) -> Vec<u8> {
 #[test]
 fn hand_made_edf_plus_with_annotations() -> TestResult {
     let dir = tempfile::tempdir()?;
-    // Two 0.5-s records: ECG II at 8 Hz (4 samples per record, mV), ECG V1 at 8 Hz (uV), a respiration signal
-    // at 2 Hz, and an annotation signal of 40 bytes.
+    // Two 5-ms records: ECG II at 800 Hz (4 samples per record, mV), ECG V1 at 800 Hz (uV), a respiration
+    // signal at 200 Hz, and an annotation signal of 40 bytes.
     let signals = [
         ("ECG II", "mV", "-3.2768", "3.2767", "-32768", "32767", "4"),
         ("ECG V1", "uV", "-1000", "1000", "-1000", "1000", "4"),
@@ -217,18 +218,18 @@ fn hand_made_edf_plus_with_annotations() -> TestResult {
     data.extend(i16s(&[0, 1000, -1000, 32767]));
     data.extend(i16s(&[5, -5, 0, 1000]));
     data.extend(i16s(&[50]));
-    data.extend(tal_bytes(b"+0\x14\x14\x00+0.25\x150.1\x14Pace\x14\x00", 40));
+    data.extend(tal_bytes(b"+0\x14\x14\x00+0.0025\x150.001\x14Pace\x14\x00", 40));
     data.extend(i16s(&[1, 2, 3, 4]));
     data.extend(i16s(&[-1000, 0, 0, 0]));
     data.extend(i16s(&[60]));
-    data.extend(tal_bytes(b"+0.5\x14\x14\x00+0.875\x14Tilt up\x14Cough\x14\x00", 40));
-    let bytes = hand_edf("EDF+C", "2", "0.5", &signals, &data);
+    data.extend(tal_bytes(b"+0.005\x14\x14\x00+0.00875\x14Tilt up\x14Cough\x14\x00", 40));
+    let bytes = hand_edf("EDF+C", "2", "0.005", &signals, &data);
     let path = dir.path().join("hand.edf");
     std::fs::write(&path, &bytes)?;
     let o = io::open(&path, &io::OpenOptions::default())?;
     let r = &o.recording;
     assert_eq!(o.format, Format::EdfPlus);
-    assert_eq!(r.sample_rate.hz(), 8.0);
+    assert_eq!(r.sample_rate.hz(), 800.0);
     assert_eq!(r.leads.len(), 2, "respiration is not a lead");
     assert!(o.warnings.iter().any(|w| w.contains("Resp")), "skipped signal named: {:?}", o.warnings);
     assert_eq!(r.leads[0].name, LeadName::Standard(StandardLead::II));
@@ -239,19 +240,19 @@ fn hand_made_edf_plus_with_annotations() -> TestResult {
     assert!((r.leads[1].samples[3] - 1000.0).abs() < 1e-3);
     let anns: Vec<(u64, &str, Option<f64>)> =
         r.annotations.iter().map(|a| (a.sample, a.label.as_str(), a.duration_s)).collect();
-    // Onsets × 8 Hz: 0.25 s → 2, 0.875 s → 7.
-    assert_eq!(anns, vec![(2, "Pace", Some(0.1)), (7, "Tilt up", None), (7, "Cough", None)]);
+    // Onsets × 800 Hz: 2.5 ms → 2, 8.75 ms → 7.
+    assert_eq!(anns, vec![(2, "Pace", Some(0.001)), (7, "Tilt up", None), (7, "Cough", None)]);
     assert!(o.warnings.iter().all(|w| !w.contains("start at a time")), "{:?}", o.warnings);
 
-    // The same file starting 0.125 s after the header's start time (Kemp & Olivan 2003: the first record's
+    // The same file starting 1.25 ms after the header's start time (Kemp & Olivan 2003: the first record's
     // time-keeping TAL gives its start): onsets count from the header time, samples from the first record.
     let mut shifted = bytes.clone();
     let base = bytes.len() - data.len();
-    for (rec_start, tal_at) in [(b"+0.125\x14\x14\x00".to_vec(), 0usize), (b"+0.625\x14\x14\x00".to_vec(), 1)] {
+    for (rec_start, tal_at) in [(b"+0.00125\x14\x14\x00".to_vec(), 0usize), (b"+0.00625\x14\x14\x00".to_vec(), 1)] {
         let at = base + tal_at * (data.len() / 2) + 2 * (4 + 4 + 1);
         let mut t = rec_start.clone();
         let rest: &[u8] =
-            if tal_at == 0 { b"+0.375\x150.1\x14Pace\x14\x00" } else { b"+1\x14Tilt up\x14Cough\x14\x00" };
+            if tal_at == 0 { b"+0.00375\x150.001\x14Pace\x14\x00" } else { b"+0.01\x14Tilt up\x14Cough\x14\x00" };
         t.extend(rest);
         t.resize(40, 0);
         shifted[at..at + 40].copy_from_slice(&t);
@@ -281,7 +282,7 @@ fn open_err(dir: &Path, name: &str, bytes: &[u8]) -> String {
 fn bad_headers_name_field_and_offset() -> TestResult {
     let dir = tempfile::tempdir()?;
     let ecg = [("ECG I", "uV", "-100", "100", "-100", "100", "2")];
-    let good = hand_edf("", "1", "1", &ecg, &i16s(&[1, 2]));
+    let good = hand_edf("", "1", "0.01", &ecg, &i16s(&[1, 2]));
     assert!(
         io::open(
             &{
@@ -310,7 +311,7 @@ fn bad_headers_name_field_and_offset() -> TestResult {
     let e = open_err(
         dir.path(),
         "dig.edf",
-        &hand_edf("", "1", "1", &[("ECG I", "uV", "-100", "100", "100", "-100", "2")], &i16s(&[1, 2])),
+        &hand_edf("", "1", "0.01", &[("ECG I", "uV", "-100", "100", "100", "-100", "2")], &i16s(&[1, 2])),
     );
     // Digital maximum block: 256 + 16 + 80 + 4 × 8 = byte 384 for one signal.
     assert!(e.contains("digital maximum of signal 1") && e.contains("byte 384"), "{e}");
@@ -318,6 +319,12 @@ fn bad_headers_name_field_and_offset() -> TestResult {
     assert!(e.contains("number of data records"), "{e}");
     let e = open_err(dir.path(), "dur.edf", &hand_edf("", "1", "0", &ecg, &i16s(&[1, 2])));
     assert!(e.contains("byte 244"), "{e}");
+    // A record duration in the wrong unit gives a rate no ECG is recorded at (2 samples per ns: 2 GHz; per
+    // second: 2 Hz), refused before any analysis sizes its windows by it.
+    for (name, duration, rate) in [("ghz.edf", "1e-9", "2.000e9 Hz"), ("slow.edf", "1", "2 Hz")] {
+        let e = open_err(dir.path(), name, &hand_edf("", "1", duration, &ecg, &i16s(&[1, 2])));
+        assert!(e.contains("byte 244") && e.contains(rate) && e.contains("outside the 50 to 20000 Hz"), "{e}");
+    }
     Ok(())
 }
 
@@ -346,7 +353,7 @@ fn converts_a_real_record_to_edf_and_back() -> TestResult {
 #[test]
 fn only_ecg_signals_at_the_highest_rate_are_leads() -> TestResult {
     let dir = tempfile::tempdir()?;
-    // ECG I at 4 Hz, ECG II at 2 Hz (lower rate), an EEG at 8 Hz (not an ECG), all in volts or microvolts.
+    // ECG I at 400 Hz, ECG II at 200 Hz (lower rate), an EEG at 800 Hz (not an ECG), in volts or microvolts.
     let signals = [
         ("ECG I", "V", "-1", "1", "-1000", "1000", "4"),
         ("ECG II", "uV", "-1000", "1000", "-1000", "1000", "2"),
@@ -356,14 +363,14 @@ fn only_ecg_signals_at_the_highest_rate_are_leads() -> TestResult {
     data.extend(i16s(&[5, 6]));
     data.extend(i16s(&[0; 8]));
     let path = dir.path().join("rates.edf");
-    std::fs::write(&path, hand_edf("", "1", "1", &signals, &data))?;
+    std::fs::write(&path, hand_edf("", "1", "0.01", &signals, &data))?;
     let o = io::open(&path, &io::OpenOptions::default())?;
     assert_eq!(o.recording.leads.len(), 1);
-    assert_eq!(o.recording.sample_rate.hz(), 4.0);
+    assert_eq!(o.recording.sample_rate.hz(), 400.0);
     // V → µV: digital 1 of ±1000 over ±1 V is 1 mV = 1000 µV.
     assert!((o.recording.leads[0].samples[0] - 1000.0).abs() < 1e-3);
     let w = o.warnings.join("\n");
-    assert!(w.contains("ECG II") && w.contains("2 Hz"), "{w}");
+    assert!(w.contains("ECG II") && w.contains("200 Hz"), "{w}");
     assert!(w.contains("EEG Fpz-Cz") && w.contains("not an ECG"), "{w}");
     Ok(())
 }

@@ -158,7 +158,7 @@ pub fn read(path: &Path) -> Result<Opened, ReadError> {
     if n_samples.saturating_mul(lead_idx.len() as u64) > MAX_TOTAL_SAMPLES {
         return Err(ReadError::invalid(path, format!("{n_samples} samples × {} leads is too many", lead_idx.len())));
     }
-    let sample_rate = Hertz::from_hz(spr as f64 / fixed.record_duration_s)
+    let sample_rate = Hertz::for_ecg(spr as f64 / fixed.record_duration_s)
         .map_err(|e| ReadError::invalid(path, format!("byte 244 (duration of a data record): {e}")))?;
 
     let data = Data {

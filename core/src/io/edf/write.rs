@@ -17,7 +17,7 @@ use crate::recording::{LeadName, Recording};
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct EdfWriteOptions {
     /// Write the patient's identifiers, name, birth date and the recording date. Off by default: the file is
-    /// de-identified ([`crate::recording::Meta::deidentified`], start date 01.01.85, start time kept).
+    /// de-identified ([`crate::recording::Meta::deidentified`], start date and time withheld: 01.01.85 00.00.00).
     pub identify: bool,
 }
 
@@ -125,11 +125,9 @@ pub fn write(path: &Path, rec: &Recording, opts: &EdfWriteOptions) -> Result<(),
     };
 
     let meta = if opts.identify { rec.meta.clone() } else { rec.meta.deidentified() };
-    let (mut date, time) = meta::start_fields(rec.start);
+    // De-identified: the date and the time of day withheld (01.01.85 00.00.00, the fields' value when unknown).
     let start_for_field = if opts.identify { rec.start } else { None };
-    if !opts.identify {
-        date = "01.01.85".into();
-    }
+    let (date, time) = meta::start_fields(start_for_field);
     let ns = leads.len() + usize::from(ann_spr > 0);
     let mut h = Vec::with_capacity(256 * (ns + 1));
     field(&mut h, "0", 8);

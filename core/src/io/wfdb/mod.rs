@@ -52,7 +52,7 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
         return Err(ReadError::invalid(&hea, "record line: the record has no signals"));
     }
     let sample_rate =
-        Hertz::from_hz(header.record.fs_hz).map_err(|e| ReadError::invalid(&hea, format!("record line: {e}")))?;
+        Hertz::for_ecg(header.record.fs_hz).map_err(|e| ReadError::invalid(&hea, format!("record line: {e}")))?;
     let mut warnings = Vec::new();
 
     // Which signals are voltages, and their scale to µV.
