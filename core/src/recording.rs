@@ -210,6 +210,18 @@ impl Annotation {
     }
 }
 
+/// `n` as an English ordinal: 1st, 2nd, 3rd, 4th, 11th, 21st…
+fn ordinal(n: usize) -> String {
+    let suffix = match (n % 10, n % 100) {
+        (_, 11..=13) => "th",
+        (1, _) => "st",
+        (2, _) => "nd",
+        (3, _) => "rd",
+        _ => "th",
+    };
+    format!("{n}{suffix}")
+}
+
 /// A whole recording: every lead sampled at one rate.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Recording {
@@ -226,6 +238,36 @@ pub struct Recording {
 }
 
 impl Recording {
+    /// Gives every lead a name of its own, so a lead name finds one lead: an unlabelled lead becomes `lead N`
+    /// (its position), and a lead labelled like an earlier one becomes `NAME (2)`, `NAME (3)`…, an other lead
+    /// (not the standard lead of that name, which stays the first). Returns one line per renamed lead. CSV
+    /// files refuse such headers; EDF and WFDB headers allow them, and without this a second `I` silently
+    /// replaced the first in the axis, and a converted file could not be read back.
+    pub fn name_leads_uniquely(&mut self) -> Vec<String> {
+        let mut notes = Vec::new();
+        let mut seen: Vec<LeadName> = Vec::with_capacity(self.leads.len());
+        for (i, lead) in self.leads.iter_mut().enumerate() {
+            let written = lead.name.to_string();
+            let name = if written.trim().is_empty() {
+                let name = LeadName::Other(format!("lead {}", i + 1));
+                notes.push(format!("a lead without a label (the {} read) is read as \"{name}\"", ordinal(i + 1)));
+                name
+            } else if seen.contains(&lead.name) {
+                let name = (2..)
+                    .map(|k| LeadName::Other(format!("{written} ({k})")))
+                    .find(|n| !seen.contains(n))
+                    .unwrap_or_else(|| LeadName::Other(format!("lead {}", i + 1)));
+                notes.push(format!("another lead labelled {written} is read as \"{name}\""));
+                name
+            } else {
+                lead.name.clone()
+            };
+            lead.name = name.clone();
+            seen.push(name);
+        }
+        notes
+    }
+
     /// Number of samples per lead (0 for a recording without leads).
     #[must_use]
     pub fn len(&self) -> usize {
@@ -329,6 +371,29 @@ mod tests {
             assert!((avr[k] + avl[k] + avf[k]).abs() < 1e-3);
             assert!((avr[k] + (i[k] + ii[k]) / 2.0).abs() < 1e-3);
         }
+    }
+
+    #[test]
+    fn every_lead_gets_a_name_of_its_own() -> Result<(), crate::units::UnitError> {
+        let lead = |name: &str| Lead { name: LeadName::parse(name), samples: vec![0.0; 4] };
+        let mut rec = Recording {
+            leads: vec![lead("I"), lead("ii"), lead(" "), lead("I"), lead("I")],
+            sample_rate: Hertz::from_hz(500.0)?,
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        };
+        let notes = rec.name_leads_uniquely();
+        let names: Vec<String> = rec.leads.iter().map(|l| l.name.to_string()).collect();
+        assert_eq!(names, ["I", "II", "lead 3", "I (2)", "I (3)"]);
+        assert_eq!(rec.leads[0].name, LeadName::Standard(StandardLead::I));
+        assert_eq!(rec.leads[3].name, LeadName::Other("I (2)".into()));
+        assert_eq!(notes.len(), 3);
+        assert_eq!(notes[0], "a lead without a label (the 3rd read) is read as \"lead 3\"");
+        assert_eq!(notes[1], "another lead labelled I is read as \"I (2)\"");
+        // Nothing to change: no note.
+        assert!(rec.name_leads_uniquely().is_empty());
+        Ok(())
     }
 
     #[test]

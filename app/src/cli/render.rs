@@ -26,19 +26,20 @@ pub struct Args {
     #[arg(long, default_value = "3x4+1")]
     pub layout: String,
     /// Paper speed, mm/s.
-    #[arg(long, default_value_t = 25.0)]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 25.0)]
     pub speed: f64,
     /// Gain, mm/mV.
-    #[arg(long, default_value_t = 10.0)]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 10.0)]
     pub gain: f64,
-    /// Resolution, dots per inch (at most 1200).
-    #[arg(long, default_value_t = 300.0)]
+    /// Resolution, dots per inch (at most 1200, and at most 100 million pixels on the page: the default 10-s
+    /// page up to about 1150 dpi).
+    #[arg(long, allow_negative_numbers = true, default_value_t = 300.0)]
     pub dpi: f64,
     /// Start of the window, s from the start of the recording.
-    #[arg(long, default_value_t = 0.0)]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 0.0)]
     pub start: f64,
     /// Length of the window, s.
-    #[arg(long, default_value_t = 10.0)]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 10.0)]
     pub seconds: f64,
     /// Print the patient fields (the page is de-identified otherwise).
     #[arg(long)]
@@ -93,6 +94,15 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     };
     let (a, b) = spec.sample_range(raw.sample_rate.hz());
     let span = analysis.filtered_span(raw, a, b);
+    // A lead the reader named in --layout must be there: the page would otherwise show the first lead under a
+    // header that names the one asked for. (The default rhythm lead II falls back to the first lead, labelled.)
+    if args.layout.contains(':')
+        && let Layout::Strip(lead) | Layout::ThreeByFourPlusOne { rhythm: lead } = &spec.layout
+        && span.recording.lead_index(lead).is_none()
+    {
+        let have: Vec<String> = span.recording.leads.iter().map(|l| l.name.to_string()).collect();
+        bail!("{file}: --layout {}: the recording has no lead {lead} (it has {})", args.layout, have.join(", "));
+    }
     let title = args.file.file_name().map_or_else(|| file.to_string(), |n| n.to_string_lossy().into_owned());
     let mut input = RenderInput {
         scheme,

@@ -51,9 +51,14 @@ fn renders_a_png() -> Res {
 fn errors_leave_no_file() -> Res {
     let dir = tempfile::tempdir()?;
     let out = dir.path().join("page.png");
-    let cases: [&[&str]; 5] = [
+    let cases: [&[&str]; 8] = [
         &["--dpi", "5000"],
+        // A negative number reaches the check that names it (not clap's "unexpected argument '-1'").
+        &["--gain", "-10"],
         &["--layout", "4x3"],
+        // A lead named in the layout that the recording does not have (it has I … V6 and the Frank leads).
+        &["--layout", "strip:XYZ"],
+        &["--layout", "3x4+1:MLII"],
         &["--start", "9999"],
         &["--speed", "0"],
         &["--review", "/nonexistent/missing.review.ron"],

@@ -124,6 +124,14 @@ pub struct OpenOptions {
 /// # Errors
 /// [`ReadError`] naming the file and the problem.
 pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
+    let mut opened = open_as_written(path, options)?;
+    let renamed = opened.recording.name_leads_uniquely();
+    opened.warnings.extend(renamed.into_iter().map(|r| format!("{}: {r}", path.display())));
+    Ok(opened)
+}
+
+/// [`open`] with the leads named as the file names them.
+fn open_as_written(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
     let ext = path.extension().and_then(|e| e.to_str()).map(str::to_ascii_lowercase);
     match ext.as_deref() {
         Some("hea") => wfdb::read_record(path),

@@ -10,6 +10,7 @@ use super::ReviewError;
 use super::identity::signal_sha256;
 use super::model::{FORMAT_VERSION, Review};
 use super::v1::ReviewV1;
+use crate::caliper::CaliperKind;
 
 /// Largest review file read, bytes (a review is a few kB; this guards against opening the wrong file).
 pub const MAX_REVIEW_BYTES: u64 = 64 << 20;
@@ -49,6 +50,9 @@ pub fn load(path: &Path) -> Result<Review, ReviewError> {
 /// # Errors
 /// As [`load`].
 pub fn from_ron(path: &Path, text: &str) -> Result<Review, ReviewError> {
+    if text.trim().is_empty() {
+        return Err(parse_error(path, 1, 1, None, "the file is empty (no review in it)".to_owned()));
+    }
     let version: VersionOnly = ron::from_str(text).map_err(|e| ron_error(path, &e))?;
     let review = match version.format_version {
         None => Err(parse_error(path, 1, 1, Some("format_version"), "missing field `format_version`".to_owned())),
@@ -76,6 +80,28 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
     let fs = review.recording.sample_rate_hz;
     if !(fs.is_finite() && fs > 0.0) {
         return at("sample_rate_hz", format!("`sample_rate_hz` must be a positive number, found {fs}"));
+    }
+    // RON reads NaN and inf as numbers; no value in a review can be one (a hand-edited file gave a negative heart
+    // rate and an agreement bias of NaN).
+    for m in &review.measurements {
+        for (field, v) in [("auto_value", m.auto_value), ("reviewed_value", m.reviewed_value)] {
+            if let Some(v) = v.filter(|v| !v.is_finite()) {
+                return at(field, format!("`{field}` of `{}` must be a finite number, found {v}", m.key));
+            }
+        }
+    }
+    if let Some(m) = review.marks.iter().find(|m| !m.time_s.is_finite()) {
+        return at("time_s", format!("`time_s` of a mark must be a finite number, found {}", m.time_s));
+    }
+    for c in &review.calipers {
+        let values: &[(&str, f64)] = match c.kind {
+            CaliperKind::Time { t1_s, t2_s } => &[("t1_s", t1_s), ("t2_s", t2_s)],
+            CaliperKind::Voltage { t_s, uv1, uv2 } => &[("t_s", t_s), ("uv1", uv1), ("uv2", uv2)],
+            CaliperKind::Plumb { t_s } => &[("t_s", t_s)],
+        };
+        if let Some((field, v)) = values.iter().find(|(_, v)| !v.is_finite()) {
+            return at(field, format!("`{field}` of caliper {} must be a finite number, found {v}", c.id));
+        }
     }
     Ok(())
 }
@@ -115,7 +141,8 @@ fn ron_error(path: &Path, e: &ron::error::SpannedError) -> ReviewError {
             (Some(*field), format!("field `{field}` given twice{}", within(outer.as_deref())))
         }
         E::Eof => (None, "the file ends early (cut short?)".to_owned()),
-        other => (None, other.to_string()),
+        // The first pass reads the version alone, into a struct of our own: name the review, not that struct.
+        other => (None, other.to_string().replace("struct `VersionOnly`", "the review")),
     };
     parse_error(path, pos.line, pos.col, field, message)
 }

@@ -279,6 +279,26 @@ fn open_err(dir: &Path, name: &str, bytes: &[u8]) -> String {
 }
 
 #[test]
+fn a_lead_label_given_twice_names_two_leads() -> TestResult {
+    // EDF headers may repeat a label (CSV headers may not): each lead still gets a name of its own, the standard
+    // lead of that name stays the first, and the file says what was renamed.
+    let dir = tempfile::tempdir()?;
+    let signals =
+        [("ECG I", "uV", "-100", "100", "-100", "100", "2"), ("ECG I", "uV", "-100", "100", "-100", "100", "2")];
+    let mut data = i16s(&[1, 2]);
+    data.extend(i16s(&[3, 4]));
+    let path = dir.path().join("twice.edf");
+    std::fs::write(&path, hand_edf("", "1", "0.01", &signals, &data))?;
+    let o = io::open(&path, &io::OpenOptions::default())?;
+    let names: Vec<String> = o.recording.leads.iter().map(|l| l.name.to_string()).collect();
+    assert_eq!(names, ["I", "I (2)"]);
+    assert_eq!(o.recording.standard_lead(StandardLead::I).map(|l| l.samples[0]), Some(1.0));
+    let w = o.warnings.join("\n");
+    assert!(w.contains("twice.edf: another lead labelled I is read as \"I (2)\""), "{w}");
+    Ok(())
+}
+
+#[test]
 fn bad_headers_name_field_and_offset() -> TestResult {
     let dir = tempfile::tempdir()?;
     let ecg = [("ECG I", "uV", "-100", "100", "-100", "100", "2")];

@@ -214,6 +214,16 @@ fn q1c_boundaries_equal_the_reference() -> TestResult {
 }
 
 #[test]
+fn a_missing_signal_file_is_named_with_its_header() -> TestResult {
+    let dir = tempfile::tempdir()?;
+    let hea = dir.path().join("lone.hea");
+    std::fs::write(&hea, "lone 1 250 10\ngone.dat 16 200 16 0 0 0 0 II\n")?;
+    let e = wfdb::read_record(&hea).err().ok_or("accepted")?.to_string();
+    assert!(e.contains("lone.hea") && e.contains("gone.dat does not exist"), "{e}");
+    Ok(())
+}
+
+#[test]
 fn lying_header_is_rejected_before_allocation() -> TestResult {
     let dir = tempfile::tempdir()?;
     let hea = dir.path().join("big.hea");

@@ -150,4 +150,29 @@ fn impossible_values_are_named() {
     assert_eq!(line, 1 + text.lines().position(|l| l.contains("sha256:")).unwrap());
     let p = write(dir.path(), &text.replacen("sample_rate_hz: 500.0", "sample_rate_hz: -1.0", 1));
     assert_eq!(parse_err(&p).2.as_deref(), Some("sample_rate_hz"));
+    // RON reads NaN and inf as numbers: a value, a mark's time or a caliper's position cannot be one.
+    for (field, before, bad) in
+        [("auto_value", "auto_value: Some(", "NaN"), ("time_s", "time_s: ", "inf"), ("t1_s", "t1_s: ", "-inf")]
+    {
+        let p = write(dir.path(), &with_number(&text, before, bad));
+        let (_, _, named, msg) = parse_err(&p);
+        assert_eq!(named.as_deref(), Some(field), "{msg}");
+        assert!(msg.contains("finite number"), "{msg}");
+    }
+}
+
+#[test]
+fn empty_or_non_review_file_is_named_as_such() {
+    let dir = tempfile::tempdir().unwrap();
+    let (line, _, _, msg) = parse_err(&write(dir.path(), "  \n"));
+    assert!(msg.contains("the file is empty") && line == 1, "{msg}");
+    let (_, _, _, msg) = parse_err(&write(dir.path(), "42"));
+    assert!(!msg.contains("VersionOnly"), "{msg}");
+}
+
+/// `text` with the number after the first `field` replaced by `bad`.
+fn with_number(text: &str, field: &str, bad: &str) -> String {
+    let at = text.find(field).unwrap_or_else(|| panic!("{field} not in the sample review")) + field.len();
+    let len = text[at..].find(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-')).unwrap_or(0);
+    format!("{}{bad}{}", &text[..at], &text[at + len..])
 }

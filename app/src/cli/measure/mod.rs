@@ -119,8 +119,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     for (path, result) in results {
         match result {
             Ok((row, warnings)) => {
+                // Each warning names its file already (the header or the signal file it is about).
                 for w in warnings {
-                    eprintln!("isoline: warning: {}: {w}", path.display());
+                    eprintln!("isoline: warning: {w}");
                 }
                 rows.push(row);
             }

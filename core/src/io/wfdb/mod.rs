@@ -181,6 +181,10 @@ fn plan_files(hea: &Path, dir: &Path, header: &Header) -> Result<Vec<FilePlan>, 
         let fb = signal::frame_bytes(p.format, p.signals.len()).ok_or_else(|| {
             ReadError::unsupported(hea, format!("signal format {} (supported: 16, 61, 80, 212)", p.format))
         })?;
+        // A signal file that is not there: say which header names it.
+        if !p.path.exists() {
+            return Err(ReadError::invalid(hea, format!("its signal file {} does not exist", p.path.display())));
+        }
         let len = file_len(&p.path)?;
         p.frames_avail = (len.saturating_sub(p.offset) as f64 / fb).floor() as u64;
     }
