@@ -210,6 +210,25 @@ impl Annotation {
     }
 }
 
+/// Spans (µV) of the largest lead outside which [`Recording::amplitude_doubt`] speaks: a QRS complex spans about
+/// 0.5–3 mV on most leads; a lead spanning under 20 µV or over 50 mV holds no ECG at the scale stated.
+// Common practice, no source: limits set an order of magnitude beyond the usual amplitudes either way.
+const ECG_SPAN_UV: std::ops::Range<f64> = 20.0..50_000.0;
+
+/// The span of `x` from its 0.5th to its 99.5th percentile (valid samples; at most about 100 000 of them, evenly
+/// spread, so a 24-hour recording costs no more than a short one). `None` without a valid sample.
+fn robust_span(x: &[f32]) -> Option<f32> {
+    let step = (x.len() / 100_000).max(1);
+    let mut v: Vec<f32> = x.iter().step_by(step).copied().filter(|v| v.is_finite()).collect();
+    if v.is_empty() {
+        return None;
+    }
+    let (lo, hi) = (v.len() / 200, (v.len() - 1) - v.len() / 200);
+    let low = *v.select_nth_unstable_by(lo, f32::total_cmp).1;
+    let high = *v.select_nth_unstable_by(hi, f32::total_cmp).1;
+    Some(high - low)
+}
+
 /// `n` as an English ordinal: 1st, 2nd, 3rd, 4th, 11th, 21st…
 fn ordinal(n: usize) -> String {
     let suffix = match (n % 10, n % 100) {
@@ -266,6 +285,32 @@ impl Recording {
             seen.push(name);
         }
         notes
+    }
+
+    /// A doubt about the recording's amplitude, said once when it is opened: every lead flat, or the largest
+    /// lead's span (0.5th to 99.5th percentile of its samples, so a few spikes do not count) far outside what an
+    /// ECG spans. Either usually means a wrong unit or gain in the header, or a file that holds no ECG; the
+    /// analysis then finds no beat or measures levels a thousand times off, so the reader is told why.
+    #[must_use]
+    pub fn amplitude_doubt(&self) -> Option<String> {
+        let spans: Vec<f32> = self.leads.iter().filter_map(|l| robust_span(&l.samples)).collect();
+        let largest = spans.iter().copied().fold(0.0f32, f32::max);
+        if spans.is_empty() {
+            None
+        } else if largest == 0.0 {
+            Some("every lead is flat: no signal to measure".to_string())
+        } else if f64::from(largest) > ECG_SPAN_UV.end {
+            Some(format!(
+                "the largest lead spans {:.0} mV, far more than an ECG's few mV: are the units or gains in the header right?",
+                largest / 1000.0
+            ))
+        } else if f64::from(largest) < ECG_SPAN_UV.start {
+            Some(format!(
+                "the largest lead spans only {largest:.1} µV, far less than an ECG's QRS: are the units or gains in the header right?"
+            ))
+        } else {
+            None
+        }
     }
 
     /// Number of samples per lead (0 for a recording without leads).
@@ -393,6 +438,38 @@ mod tests {
         assert_eq!(notes[1], "another lead labelled I is read as \"I (2)\"");
         // Nothing to change: no note.
         assert!(rec.name_leads_uniquely().is_empty());
+        Ok(())
+    }
+
+    #[test]
+    fn amplitude_far_from_an_ecgs_is_doubted() -> Result<(), crate::units::UnitError> {
+        let fs = Hertz::from_hz(500.0)?;
+        let rec = |scale: f32| Recording {
+            // A 1 mV square wave with a single 40 mV spike, scaled.
+            leads: vec![Lead {
+                name: LeadName::parse("II"),
+                samples: (0..5000)
+                    .map(|k| {
+                        scale
+                            * if k == 2500 {
+                                40_000.0
+                            } else if (k / 250) % 2 == 0 {
+                                1000.0
+                            } else {
+                                0.0
+                            }
+                    })
+                    .collect(),
+            }],
+            sample_rate: fs,
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        };
+        assert_eq!(rec(1.0).amplitude_doubt(), None, "one spike does not count");
+        assert!(rec(1000.0).amplitude_doubt().is_some_and(|d| d.contains("1000 mV")));
+        assert!(rec(0.001).amplitude_doubt().is_some_and(|d| d.contains("1.0 µV")));
+        assert!(rec(0.0).amplitude_doubt().is_some_and(|d| d.contains("flat")));
         Ok(())
     }
 

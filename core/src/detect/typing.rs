@@ -35,6 +35,13 @@ const TEMPLATE_BEATS: usize = 301;
 // sel14046) and widened the LUDB QRS end scatter (SD 11.6 → 15.8 ms).
 pub(crate) const ALIGN_S: f64 = 0.040;
 
+/// Below this sampling rate a beat's window is also compared half a sample on (see [`dominant`]): at 100 Hz a
+/// 90 ms QRS spans nine samples, and identical beats whose R peaks fall at different points between two samples
+/// correlated below [`MIN_CORR`] (a third of the beats of a steady 100 Hz demo recording were typed other); at
+/// 250 Hz and above they do not.
+// Common practice, no source: a sample period above 5 ms is coarse against a QRS slope.
+const COARSE_HZ: f64 = 200.0;
+
 /// Types each beat: `true` = dominant. `leads` are the samples (µV, NaN = invalid), `weights` the leads'
 /// detection weights (leads of weight 0 are not compared).
 pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> Vec<bool> {
@@ -81,7 +88,17 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> V
                 let moved = if d == 0 { s.clone() } else { p.checked_add_signed(d).and_then(snippet) };
                 moved.map(|m| correlation(&m, &template))
             };
-            let shape_ok = s.is_none() || matching_shift(reach, corr).is_some();
+            // At coarse sampling the R peak lies anywhere within a sample, and a narrow QRS sampled half a sample
+            // later is a different sequence of values: the window is also tried half a sample on (the mean of
+            // its neighbouring windows), within the same reach.
+            let half = |d: isize| {
+                let at = p.checked_add_signed(d)?;
+                let (x, y) = (snippet(at)?, snippet(at + 1)?);
+                Some(correlation(&x.iter().zip(&y).map(|(u, v)| 0.5 * (u + v)).collect::<Vec<f32>>(), &template))
+            };
+            let shape_ok = s.is_none()
+                || matching_shift(reach, corr).is_some()
+                || (fs < COARSE_HZ && matching_shift(reach, half).is_some());
             shape_ok && !premature
         })
         .collect()

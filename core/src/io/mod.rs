@@ -126,7 +126,8 @@ pub struct OpenOptions {
 pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
     let mut opened = open_as_written(path, options)?;
     let renamed = opened.recording.name_leads_uniquely();
-    opened.warnings.extend(renamed.into_iter().map(|r| format!("{}: {r}", path.display())));
+    let doubt = opened.recording.amplitude_doubt();
+    opened.warnings.extend(renamed.into_iter().chain(doubt).map(|r| format!("{}: {r}", path.display())));
     Ok(opened)
 }
 

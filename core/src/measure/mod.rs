@@ -170,6 +170,9 @@ impl Measurements {
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
+        if self.beats == 0 && self.rr.rr_ms.is_none() {
+            notes.extend(ranges::no_beats());
+        }
         if let Some(gain) = self.limb_gain_mismatch_pct.and_then(ranges::limb_gain_mismatch)
             && !notes.contains(&gain)
         {
@@ -232,5 +235,22 @@ mod tests {
                 prop_assert!(x > 0.0);
             }
         }
+    }
+
+    #[test]
+    fn no_beat_is_said_once_and_only_then() -> Result<(), crate::units::UnitError> {
+        let rec = Recording {
+            leads: vec![Lead { name: LeadName::parse("II"), samples: vec![0.0; 5000] }],
+            sample_rate: crate::units::Hertz::from_hz(500.0)?,
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        };
+        let none = measure(&rec, &[], None).notes();
+        assert_eq!(none.iter().filter(|n| n.source == ranges::SOURCE_NO_BEATS).count(), 1, "{none:?}");
+        let beats: Vec<Beat> =
+            [500, 1000, 1500].map(|r| Beat { r, kind: BeatKind::Dominant, bounds: Boundaries::default() }).to_vec();
+        assert!(measure(&rec, &beats, None).notes().iter().all(|n| n.source != ranges::SOURCE_NO_BEATS));
+        Ok(())
     }
 }

@@ -69,6 +69,8 @@ pub const SOURCE_RR_IRREGULAR: &str = "Dash et al. 2009, Ann Biomed Eng 37:1701-
 
 /// Source of the note that two estimates of one interval disagree ([`beats_disagree`]): Isoline's own check.
 pub const SOURCE_CONSISTENCY: &str = "representative beat against single beats";
+/// Source of the no-beat note: the detector itself.
+pub const SOURCE_NO_BEATS: &str = "beat detection";
 
 /// Largest difference, ms, between an interval on the representative beat and the median of the dominant beats'
 /// own before [`beats_disagree`] speaks. The two estimates come from the same beats; where they part by more than
@@ -252,6 +254,16 @@ pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
             format!("{deg:.0}").replacen('-', "\u{2212}", 1)
         ),
         SOURCE_TEXTBOOK,
+    )
+}
+
+/// No beat was found, so every value is absent: said once, so an empty table is not read as a normal one.
+#[must_use]
+pub fn no_beats() -> Option<RangeNote> {
+    note(
+        "heart_rate_bpm",
+        "No heartbeat found: every measurement is absent (a flat or noise-only recording, or not an ECG?)".to_string(),
+        SOURCE_NO_BEATS,
     )
 }
 

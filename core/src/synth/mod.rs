@@ -145,7 +145,7 @@ impl SynthSpec {
     /// [`SynthError::OutOfRange`] naming the first bad parameter.
     pub fn validate(&self) -> Result<(), SynthError> {
         check("seconds", self.seconds, 1.0, 7.0 * 86_400.0, "1 s to 7 days")?;
-        check("rate_hz", self.rate_hz, *ECG_RATES_HZ.start(), *ECG_RATES_HZ.end(), "50 to 20000 Hz")?;
+        check("rate_hz", self.rate_hz, *ECG_RATES_HZ.start(), *ECG_RATES_HZ.end(), "100 to 20000 Hz")?;
         check("heart_rate_bpm", self.heart_rate_bpm, 20.0, 220.0, "20 to 220 bpm")?;
         check("heart_rate_swing_bpm", self.heart_rate_swing_bpm, 0.0, self.heart_rate_bpm - 20.0, "0 to rate − 20")?;
         check("rr_variation", self.rr_variation, 0.0, 0.5, "0 to 0.5")?;
@@ -166,7 +166,10 @@ impl SynthSpec {
         check("noise.baseline_uv", n.baseline_uv, 0.0, 10_000.0, "0 to 10000 µV")?;
         check("noise.baseline_hz", n.baseline_hz, 0.01, 5.0, "0.01 to 5 Hz")?;
         check("noise.mains_uv", n.mains_uv, 0.0, 10_000.0, "0 to 10000 µV")?;
-        check("noise.mains_hz", n.mains_hz, 1.0, self.rate_hz / 2.0, "1 Hz to half the sampling rate")?;
+        // The hum's frequency matters only when there is hum (a clean 50 Hz recording is fine with 50 Hz mains).
+        if n.mains_uv > 0.0 {
+            check("noise.mains_hz", n.mains_hz, 1.0, self.rate_hz / 2.0, "1 Hz to half the sampling rate")?;
+        }
         check("noise.muscle_uv", n.muscle_uv, 0.0, 10_000.0, "0 to 10000 µV")?;
         let total = self.seconds * self.rate_hz * self.leads.count() as f64;
         if total > crate::io::MAX_TOTAL_SAMPLES as f64 {

@@ -343,7 +343,7 @@ fn bad_headers_name_field_and_offset() -> TestResult {
     // second: 2 Hz), refused before any analysis sizes its windows by it.
     for (name, duration, rate) in [("ghz.edf", "1e-9", "2.000e9 Hz"), ("slow.edf", "1", "2 Hz")] {
         let e = open_err(dir.path(), name, &hand_edf("", "1", duration, &ecg, &i16s(&[1, 2])));
-        assert!(e.contains("byte 244") && e.contains(rate) && e.contains("outside the 50 to 20000 Hz"), "{e}");
+        assert!(e.contains("byte 244") && e.contains(rate) && e.contains("outside the 100 to 20000 Hz"), "{e}");
     }
     Ok(())
 }

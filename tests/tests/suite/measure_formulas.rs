@@ -215,6 +215,9 @@ fn nothing_measurable_gives_none() {
     assert_eq!(m.rr.rr_ms, None);
     assert_eq!(m.intervals, measure::Intervals::default());
     assert_eq!(m.qtc, None);
-    assert!(m.notes().is_empty());
+    // The one note says why every value is absent.
+    let notes = m.notes();
+    assert_eq!(notes.len(), 1, "{notes:?}");
+    assert_eq!(notes[0].source, measure::ranges::SOURCE_NO_BEATS);
     assert!(m.values().iter().all(|v| v.value.is_none()));
 }
