@@ -140,8 +140,8 @@ pub struct Lead {
     pub samples: Vec<f32>,
 }
 
-/// Descriptive data about the recording and the person recorded. Everything here except `device` and
-/// `recording_info` may identify a patient; [`Meta::deidentified`] clears it.
+/// Descriptive data about the recording and the person recorded. Any of it may identify a patient;
+/// [`Meta::deidentified`] keeps only sex and age (a great age as [`OLDEST_AGE_SHOWN`]).
 #[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Meta {
     /// Patient code or identifier as stored in the file.
@@ -176,7 +176,7 @@ impl Meta {
             patient_name: None,
             sex: self.sex.clone(),
             birth_date: None,
-            age_years: self.age_years.map(|a| a.min(OLDEST_AGE_SHOWN)),
+            age_years: self.age_years.filter(|a| a.is_finite()).map(|a| a.min(OLDEST_AGE_SHOWN)),
             recording_info: None,
             device: None,
         }
@@ -267,15 +267,18 @@ impl Recording {
         let mut seen: Vec<LeadName> = Vec::with_capacity(self.leads.len());
         for (i, lead) in self.leads.iter_mut().enumerate() {
             let written = lead.name.to_string();
+            let unused = |candidates: &mut dyn Iterator<Item = String>| {
+                candidates.map(LeadName::Other).find(|n| !seen.contains(n)).unwrap_or(LeadName::Other(String::new()))
+            };
             let name = if written.trim().is_empty() {
-                let name = LeadName::Other(format!("lead {}", i + 1));
+                let name = unused(
+                    &mut std::iter::once(format!("lead {}", i + 1))
+                        .chain((2..).map(|k| format!("lead {} ({k})", i + 1))),
+                );
                 notes.push(format!("a lead without a label (the {} read) is read as \"{name}\"", ordinal(i + 1)));
                 name
             } else if seen.contains(&lead.name) {
-                let name = (2..)
-                    .map(|k| LeadName::Other(format!("{written} ({k})")))
-                    .find(|n| !seen.contains(n))
-                    .unwrap_or_else(|| LeadName::Other(format!("lead {}", i + 1)));
+                let name = unused(&mut (2..).map(|k| format!("{written} ({k})")));
                 notes.push(format!("another lead labelled {written} is read as \"{name}\""));
                 name
             } else {
@@ -438,6 +441,11 @@ mod tests {
         assert_eq!(notes[1], "another lead labelled I is read as \"I (2)\"");
         // Nothing to change: no note.
         assert!(rec.name_leads_uniquely().is_empty());
+        // An unlabelled lead's name is not one a labelled lead already has.
+        rec.leads = vec![lead("lead 2"), lead("")];
+        rec.name_leads_uniquely();
+        let names: Vec<String> = rec.leads.iter().map(|l| l.name.to_string()).collect();
+        assert_eq!(names, ["lead 2", "lead 2 (2)"]);
         Ok(())
     }
 

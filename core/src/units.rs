@@ -53,7 +53,10 @@ impl Hertz {
     /// outside [`ECG_RATES_HZ`].
     pub fn for_ecg(hz: f64) -> Result<Self, UnitError> {
         let rate = Self::from_hz(hz)?;
-        if ECG_RATES_HZ.contains(&hz) { Ok(rate) } else { Err(UnitError::EcgRate(hz)) }
+        // A rate computed as samples per record ÷ record duration (EDF) lands a rounding step off a whole
+        // number (7 / 0.07 s = 99.99999999999999 Hz): the ends of the range allow for that.
+        let (lo, hi) = (ECG_RATES_HZ.start() * (1.0 - 1e-9), ECG_RATES_HZ.end() * (1.0 + 1e-9));
+        if (lo..=hi).contains(&hz) { Ok(rate) } else { Err(UnitError::EcgRate(hz)) }
     }
 
     /// The rate in hertz.
@@ -128,6 +131,8 @@ mod tests {
     fn ecg_rate_is_within_the_recorders_range() {
         assert_eq!(Hertz::for_ecg(100.0).map(Hertz::hz), Ok(100.0));
         assert_eq!(Hertz::for_ecg(64.0), Err(UnitError::EcgRate(64.0)));
+        // An EDF rate of 7 samples per 0.07 s is 100 Hz up to rounding.
+        assert!(Hertz::for_ecg(7.0 / 0.07).is_ok() && 7.0 / 0.07 < 100.0);
         assert_eq!(Hertz::for_ecg(20_000.0).map(Hertz::hz), Ok(20_000.0));
         assert_eq!(Hertz::for_ecg(0.5), Err(UnitError::EcgRate(0.5)));
         assert_eq!(

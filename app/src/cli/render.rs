@@ -83,6 +83,15 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if !(args.start.is_finite() && args.start >= 0.0 && args.start < raw.duration_s()) {
         bail!("{file}: --start {} s is outside the recording (0 to {:.3} s)", args.start, raw.duration_s());
     }
+    // A lead the reader named in --layout must be there: the page would otherwise show the first lead under a
+    // header that names the one asked for. (The default rhythm lead II falls back to the first lead, labelled.)
+    if args.layout.contains(':')
+        && let Layout::Strip(lead) | Layout::ThreeByFourPlusOne { rhythm: lead } = &layout
+        && raw.lead_index(lead).is_none()
+    {
+        let have: Vec<String> = raw.leads.iter().map(|l| l.name.to_string()).collect();
+        bail!("{file}: --layout {}: the recording has no lead {lead} (it has {})", args.layout, have.join(", "));
+    }
     // The page shows what was measured: the filtered recording, with the filters named in the header.
     let analysis = analysis::analyze(raw, &filter::FilterSettings::default());
     let spec = PageSpec {
@@ -94,15 +103,6 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     };
     let (a, b) = spec.sample_range(raw.sample_rate.hz());
     let span = analysis.filtered_span(raw, a, b);
-    // A lead the reader named in --layout must be there: the page would otherwise show the first lead under a
-    // header that names the one asked for. (The default rhythm lead II falls back to the first lead, labelled.)
-    if args.layout.contains(':')
-        && let Layout::Strip(lead) | Layout::ThreeByFourPlusOne { rhythm: lead } = &spec.layout
-        && span.recording.lead_index(lead).is_none()
-    {
-        let have: Vec<String> = span.recording.leads.iter().map(|l| l.name.to_string()).collect();
-        bail!("{file}: --layout {}: the recording has no lead {lead} (it has {})", args.layout, have.join(", "));
-    }
     let title = args.file.file_name().map_or_else(|| file.to_string(), |n| n.to_string_lossy().into_owned());
     let mut input = RenderInput {
         scheme,

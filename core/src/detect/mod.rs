@@ -45,9 +45,10 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
     let n = lead.len();
     let h = (R_SEARCH_S * fs) as usize;
     let lag = (feature::lag_s() * fs).round() as usize;
-    // Half-width of the running median: ±4 ms, at least 2 samples, but never over ±8 ms: at 100–200 Hz two
-    // samples either side span 40 ms, wider than a narrow R wave, whose median then fell below the S wave's and
-    // put R on the S wave on some beats (every third beat of a steady 100 Hz demo: RR 800/870 ms for 833).
+    // Half-width of the running median: ±4 ms, at least 2 samples, but 1 sample where 2 would span over ±8 ms
+    // (below 250 Hz): at 100 Hz two samples either side span 40 ms, wider than a narrow R wave, whose median then
+    // fell below the S wave's and put R on the S wave on some beats (every third beat of a steady 100 Hz demo:
+    // RR 800/870 ms for 833). 250 Hz and above are unchanged.
     let hm = ((0.004 * fs).round() as usize).max(2).min(((0.008 * fs) as usize).max(1));
     let mut out: Vec<usize> = Vec::with_capacity(peaks.len());
     for &p in peaks {

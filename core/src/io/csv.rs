@@ -197,7 +197,8 @@ fn read_inner(
             ));
         }
     };
-    let sample_rate = Hertz::for_ecg(fs).map_err(|e| ReadError::invalid(path, e.to_string()))?;
+    let source = if rate_hz.is_some() { "--rate" } else { "time_s column" };
+    let sample_rate = Hertz::for_ecg(fs).map_err(|e| ReadError::invalid(path, format!("{source}: {e}")))?;
     for s in &mut samples {
         s.shrink_to_fit();
     }

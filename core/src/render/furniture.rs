@@ -66,7 +66,7 @@ pub(super) fn header(input: &RenderInput) -> Header {
         patient.push(format!("Sex: {v}"));
     }
     if let Some(v) = meta.age_years {
-        let or_older = if !input.identify && v >= OLDEST_AGE_SHOWN { " or older" } else { "" };
+        let or_older = if !input.identify && v.round() >= OLDEST_AGE_SHOWN { " or older" } else { "" };
         patient.push(format!("Age: {v:.0}{or_older}"));
     }
     if let Some(v) = &meta.recording_info {

@@ -66,13 +66,18 @@ pub fn from_ron(path: &Path, text: &str) -> Result<Review, ReviewError> {
 
 /// Values RON accepts but a review cannot hold.
 fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewError> {
-    let at = |field: &str, message: String| {
-        // Point at the first line that sets the field.
+    // Point at the `nth` line (from 0) that sets the field: the entry at fault, where every entry writes it.
+    let at_nth = |field: &str, nth: usize, message: String| {
         let needle = format!("{field}:");
-        let (line, column) =
-            text.lines().enumerate().find_map(|(i, l)| l.find(&needle).map(|c| (i + 1, c + 1))).unwrap_or((1, 1));
+        let (line, column) = text
+            .lines()
+            .enumerate()
+            .filter_map(|(i, l)| l.find(&needle).map(|c| (i + 1, c + 1)))
+            .nth(nth)
+            .unwrap_or((1, 1));
         Err(parse_error(path, line, column, Some(field), message))
     };
+    let at = |field: &str, message: String| at_nth(field, 0, message);
     let sha = &review.recording.sha256;
     if sha.len() != 64 || !sha.bytes().all(|b| b.is_ascii_hexdigit()) {
         return at("sha256", format!("`sha256` must be 64 hexadecimal digits, found {sha:?}"));
@@ -83,24 +88,30 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
     }
     // RON reads NaN and inf as numbers; no value in a review can be one (a hand-edited file gave a negative heart
     // rate and an agreement bias of NaN).
-    for m in &review.measurements {
+    // Every measurement writes both values and every mark its time, so the entry's index finds its line.
+    for (i, m) in review.measurements.iter().enumerate() {
         for (field, v) in [("auto_value", m.auto_value), ("reviewed_value", m.reviewed_value)] {
             if let Some(v) = v.filter(|v| !v.is_finite()) {
-                return at(field, format!("`{field}` of `{}` must be a finite number, found {v}", m.key));
+                return at_nth(field, i, format!("`{field}` of `{}` must be a finite number, found {v}", m.key));
             }
         }
     }
-    if let Some(m) = review.marks.iter().find(|m| !m.time_s.is_finite()) {
-        return at("time_s", format!("`time_s` of a mark must be a finite number, found {}", m.time_s));
+    if let Some(i) = review.marks.iter().position(|m| !m.time_s.is_finite()) {
+        let v = review.marks[i].time_s;
+        return at_nth("time_s", i, format!("`time_s` of a mark must be a finite number, found {v}"));
     }
-    for c in &review.calipers {
-        let values: &[(&str, f64)] = match c.kind {
-            CaliperKind::Time { t1_s, t2_s } => &[("t1_s", t1_s), ("t2_s", t2_s)],
-            CaliperKind::Voltage { t_s, uv1, uv2 } => &[("t_s", t_s), ("uv1", uv1), ("uv2", uv2)],
-            CaliperKind::Plumb { t_s } => &[("t_s", t_s)],
-        };
-        if let Some((field, v)) = values.iter().find(|(_, v)| !v.is_finite()) {
-            return at(field, format!("`{field}` of caliper {} must be a finite number, found {v}", c.id));
+    // Calipers write only their kind's fields: count the earlier calipers that write the same one.
+    let fields = |k: &CaliperKind| -> Vec<(&'static str, f64)> {
+        match *k {
+            CaliperKind::Time { t1_s, t2_s } => vec![("t1_s", t1_s), ("t2_s", t2_s)],
+            CaliperKind::Voltage { t_s, uv1, uv2 } => vec![("t_s", t_s), ("uv1", uv1), ("uv2", uv2)],
+            CaliperKind::Plumb { t_s } => vec![("t_s", t_s)],
+        }
+    };
+    for (i, c) in review.calipers.iter().enumerate() {
+        if let Some((field, v)) = fields(&c.kind).into_iter().find(|(_, v)| !v.is_finite()) {
+            let nth = review.calipers[..i].iter().filter(|e| fields(&e.kind).iter().any(|(f, _)| *f == field)).count();
+            return at_nth(field, nth, format!("`{field}` of caliper {} must be a finite number, found {v}", c.id));
         }
     }
     Ok(())

@@ -162,6 +162,20 @@ fn impossible_values_are_named() {
 }
 
 #[test]
+fn a_bad_value_in_a_later_entry_is_located_there() {
+    // The second measurement holding an automatic value gets NaN: the message points at its line, not at the
+    // first measurement's.
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text();
+    let needle = "auto_value: Some(";
+    let second = text.match_indices(needle).nth(1).map(|(i, _)| i).unwrap_or_else(|| panic!("two automatic values"));
+    let bad = format!("{}{}", &text[..second], with_number(&text[second..], needle, "NaN"));
+    let (line, _, field, msg) = parse_err(&write(dir.path(), &bad));
+    assert_eq!(field.as_deref(), Some("auto_value"), "{msg}");
+    assert_eq!(line, 1 + text[..second].matches('\n').count(), "{msg}");
+}
+
+#[test]
 fn empty_or_non_review_file_is_named_as_such() {
     let dir = tempfile::tempdir().unwrap();
     let (line, _, _, msg) = parse_err(&write(dir.path(), "  \n"));

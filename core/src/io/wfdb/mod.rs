@@ -182,10 +182,13 @@ fn plan_files(hea: &Path, dir: &Path, header: &Header) -> Result<Vec<FilePlan>, 
             ReadError::unsupported(hea, format!("signal format {} (supported: 16, 61, 80, 212)", p.format))
         })?;
         // A signal file that is not there: say which header names it.
-        if !p.path.exists() {
-            return Err(ReadError::invalid(hea, format!("its signal file {} does not exist", p.path.display())));
-        }
-        let len = file_len(&p.path)?;
+        let len = match std::fs::metadata(&p.path) {
+            Ok(m) => m.len(),
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+                return Err(ReadError::invalid(hea, format!("its signal file {} does not exist", p.path.display())));
+            }
+            Err(e) => return Err(ReadError::io(&p.path, e)),
+        };
         p.frames_avail = (len.saturating_sub(p.offset) as f64 / fb).floor() as u64;
     }
     Ok(plans)
