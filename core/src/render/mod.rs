@@ -48,6 +48,15 @@ pub use self::ledger_lines::{
     LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field,
 };
 pub use self::png::{encode_png, write_png_atomic};
+
+/// The page's first header line for the recording in file `file_name` whose signals hash to `sha256` (see
+/// [`crate::review::signal_sha256`]): the file name when the export may identify the patient, else
+/// `Recording` and the hash's first 8 digits. File names often carry a patient's name or number; the hash
+/// still tells recordings apart and matches the recording's review file, which holds the whole hash.
+#[must_use]
+pub fn page_title(file_name: &str, sha256: &str, identify: bool) -> String {
+    if identify { file_name.to_string() } else { format!("Recording {}", sha256.get(..8).unwrap_or(sha256)) }
+}
 pub use self::trace::{Column, decimate_min_max};
 
 /// Highest resolution accepted, dots per inch.
@@ -84,7 +93,7 @@ pub struct RenderInput<'a> {
     pub scheme: Scheme,
     /// Resolution, dots per inch (1 mm = dpi / 25.4 px).
     pub dpi: f64,
-    /// First header line, usually the recording's file name.
+    /// First header line: the recording's file name, or its de-identified name ([`page_title`]).
     pub title: String,
     /// Extra header fields shown as `name: value` (reader, stage, …).
     pub header: Vec<(String, String)>,

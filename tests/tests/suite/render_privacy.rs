@@ -113,3 +113,12 @@ fn nan_gap_is_left_blank() -> Res {
     assert!(ink_in(2.0, 3.0) > 0);
     Ok(())
 }
+
+#[test]
+fn the_page_title_names_the_file_only_when_identify() {
+    // File names often carry the patient's name: a de-identified page is titled by the signal hash's first 8
+    // digits, which match the recording's review file.
+    let sha = "3fa2c1d9".to_string() + &"0".repeat(56);
+    assert_eq!(isoline_core::render::page_title("Smith_John_2026.edf", &sha, false), "Recording 3fa2c1d9");
+    assert_eq!(isoline_core::render::page_title("Smith_John_2026.edf", &sha, true), "Smith_John_2026.edf");
+}
