@@ -104,11 +104,10 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let (a, b) = spec.sample_range(raw.sample_rate.hz());
     let span = analysis.filtered_span(raw, a, b);
     let name = args.file.file_name().map_or_else(|| file.to_string(), |n| n.to_string_lossy().into_owned());
-    let sha = match &review {
-        Some(r) => r.recording.sha256.clone(),
-        None => review::signal_sha256(&args.file)?,
-    };
-    let title = render::page_title(&name, &sha, args.identify);
+    let title = render::page_title(&name, args.identify, || match &review {
+        Some(r) => Ok(r.recording.sha256.clone()),
+        None => review::signal_sha256(&args.file),
+    })?;
     let mut input = RenderInput {
         scheme,
         title,

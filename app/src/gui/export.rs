@@ -44,12 +44,11 @@ impl IsolineApp {
         input.scheme = view.scheme;
         let name = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
         // The recording's identity: from its review when one is open, else read again from the file.
-        let sha = match self.review.base.as_ref() {
-            Some(r) => r.recording.sha256.clone(),
+        input.title = render::page_title(&name, input.identify, || match self.review.base.as_ref() {
+            Some(r) => Ok(r.recording.sha256.clone()),
             None => isoline_core::review::signal_sha256(&loaded.path)
-                .with_context(|| format!("reading {} for its identity", loaded.path.display()))?,
-        };
-        input.title = render::page_title(&name, &sha, input.identify);
+                .with_context(|| format!("reading {} for its identity", loaded.path.display())),
+        })?;
         input.filter_text = filter_text;
         input.header = render::header_fields(self.settings.reader.as_deref(), self.review.stage);
         input.header.extend(loaded.analysis.as_ref().and_then(|a| render::rhythm_field(&a.measurements)));

@@ -48,16 +48,23 @@ pub use self::ledger_lines::{
     LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field,
 };
 pub use self::png::{encode_png, write_png_atomic};
-
-/// The page's first header line for the recording in file `file_name` whose signals hash to `sha256` (see
-/// [`crate::review::signal_sha256`]): the file name when the export may identify the patient, else
-/// `Recording` and the hash's first 8 digits. File names often carry a patient's name or number; the hash
-/// still tells recordings apart and matches the recording's review file, which holds the whole hash.
-#[must_use]
-pub fn page_title(file_name: &str, sha256: &str, identify: bool) -> String {
-    if identify { file_name.to_string() } else { format!("Recording {}", sha256.get(..8).unwrap_or(sha256)) }
-}
 pub use self::trace::{Column, decimate_min_max};
+
+/// The page's first header line for the recording in file `file_name`: the file name when the export may
+/// identify the patient, else `Recording` and the first 8 digits of its signals' hash, which `sha256` gives
+/// (see [`crate::review::signal_sha256`]; asked for only then, since it may read the whole recording again).
+/// File names often carry a patient's name or number; the hash still tells recordings apart and matches the
+/// recording's review file, which holds the whole hash.
+///
+/// # Errors
+/// Whatever `sha256` returns.
+pub fn page_title<E>(file_name: &str, identify: bool, sha256: impl FnOnce() -> Result<String, E>) -> Result<String, E> {
+    if identify {
+        return Ok(file_name.to_string());
+    }
+    let sha = sha256()?;
+    Ok(format!("Recording {}", sha.get(..8).unwrap_or(&sha)))
+}
 
 /// Highest resolution accepted, dots per inch.
 pub const MAX_DPI: f64 = 1200.0;
