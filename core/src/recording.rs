@@ -267,25 +267,24 @@ impl Recording {
         let mut seen: Vec<LeadName> = Vec::with_capacity(self.leads.len());
         for (i, lead) in self.leads.iter_mut().enumerate() {
             let written = lead.name.to_string();
-            let unused = |candidates: &mut dyn Iterator<Item = String>| {
-                candidates.map(LeadName::Other).find(|n| !seen.contains(n)).unwrap_or(LeadName::Other(String::new()))
-            };
-            let name = if written.trim().is_empty() {
-                let name = unused(
-                    &mut std::iter::once(format!("lead {}", i + 1))
-                        .chain((2..).map(|k| format!("lead {} ({k})", i + 1))),
-                );
-                notes.push(format!("a lead without a label (the {} read) is read as \"{name}\"", ordinal(i + 1)));
-                name
-            } else if seen.contains(&lead.name) {
-                let name = unused(&mut (2..).map(|k| format!("{written} ({k})")));
-                notes.push(format!("another lead labelled {written} is read as \"{name}\""));
-                name
-            } else {
-                lead.name.clone()
-            };
-            lead.name = name.clone();
-            seen.push(name);
+            let blank = written.trim().is_empty();
+            if blank || seen.contains(&lead.name) {
+                // An unlabelled lead tries `lead N` first; then, as for a repeated label, `BASE (2)`, `BASE (3)`….
+                let base = if blank { format!("lead {}", i + 1) } else { written.clone() };
+                let mut candidates = blank
+                    .then(|| base.clone())
+                    .into_iter()
+                    .chain((2..).map(|k| format!("{base} ({k})")))
+                    .map(LeadName::Other);
+                let name = candidates.find(|n| !seen.contains(n)).unwrap_or_else(|| LeadName::Other(base.clone()));
+                notes.push(if blank {
+                    format!("a lead without a label (the {} read) is read as \"{name}\"", ordinal(i + 1))
+                } else {
+                    format!("another lead labelled {written} is read as \"{name}\"")
+                });
+                lead.name = name;
+            }
+            seen.push(lead.name.clone());
         }
         notes
     }
