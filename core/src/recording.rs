@@ -229,6 +229,21 @@ fn robust_span(x: &[f32]) -> Option<f32> {
     Some(high - low)
 }
 
+/// The number of invalid (non-finite) samples in `x` and the length of its longest run of them.
+fn invalid_runs(x: &[f32]) -> (usize, usize) {
+    let (mut total, mut run, mut longest) = (0, 0, 0);
+    for v in x {
+        if v.is_finite() {
+            run = 0;
+        } else {
+            total += 1;
+            run += 1;
+            longest = longest.max(run);
+        }
+    }
+    (total, longest)
+}
+
 /// `n` as an English ordinal: 1st, 2nd, 3rd, 4th, 11th, 21st…
 fn ordinal(n: usize) -> String {
     let suffix = match (n % 10, n % 100) {
@@ -315,6 +330,33 @@ impl Recording {
         }
     }
 
+    /// One note per lead with invalid (missing) samples, said once when the recording is opened: a lead with none
+    /// valid is drawn blank and takes no part in the measurements; a lead with gaps is interpolated across them
+    /// for the analysis, so its beats there are found and measured on the other leads. Either way the reader
+    /// should know part of the record is not there.
+    #[must_use]
+    pub fn invalid_sample_notes(&self) -> Vec<String> {
+        let fs = self.sample_rate.hz();
+        self.leads
+            .iter()
+            .filter_map(|lead| {
+                let (invalid, longest) = invalid_runs(&lead.samples);
+                if invalid == 0 {
+                    None
+                } else if invalid == lead.samples.len() {
+                    Some(format!("lead {} holds no valid sample: it is drawn blank and left out of the measurements", lead.name))
+                } else {
+                    Some(format!(
+                        "lead {} has {invalid} missing samples ({:.1} % of it; the longest gap {:.3} s): the analysis bridges them and measures beats there on the other leads",
+                        lead.name,
+                        100.0 * invalid as f64 / lead.samples.len() as f64,
+                        longest as f64 / fs
+                    ))
+                }
+            })
+            .collect()
+    }
+
     /// Number of samples per lead (0 for a recording without leads).
     #[must_use]
     pub fn len(&self) -> usize {
@@ -386,6 +428,28 @@ mod tests {
             meta: Meta::default(),
             annotations: Vec::new(),
         }
+    }
+
+    #[test]
+    fn missing_samples_are_noted_per_lead() {
+        let mut gappy = vec![1.0f32; 1000];
+        gappy[100..350].fill(f32::NAN);
+        gappy[900] = f32::INFINITY;
+        let r = rec(vec![
+            Lead { name: LeadName::parse("I"), samples: vec![f32::NAN; 1000] },
+            Lead { name: LeadName::parse("II"), samples: gappy },
+            Lead { name: LeadName::parse("V1"), samples: vec![2.0; 1000] },
+        ]);
+        let notes = r.invalid_sample_notes();
+        assert_eq!(notes.len(), 2, "{notes:?}");
+        assert!(notes[0].starts_with("lead I holds no valid sample"), "{}", notes[0]);
+        // 251 of 1000 samples; the longest gap 250 samples at 500 Hz.
+        assert!(
+            notes[1].starts_with("lead II has 251 missing samples (25.1 % of it; the longest gap 0.500 s)"),
+            "{}",
+            notes[1]
+        );
+        assert_eq!(invalid_runs(&[1.0, f32::NAN, f32::NAN, 2.0, f32::NAN]), (3, 2));
     }
 
     #[test]

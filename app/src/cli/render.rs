@@ -61,6 +61,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let layout: Layout = args.layout.parse().with_context(|| format!("{file}: --layout"))?;
     let scheme: Scheme = args.scheme.parse().with_context(|| format!("{file}: --scheme"))?;
     let order: LeadOrder = args.order.parse().with_context(|| format!("{file}: --order"))?;
+    render::check_png_name(&args.out).context("--out")?;
     for (name, v) in [("--speed", args.speed), ("--gain", args.gain), ("--seconds", args.seconds)] {
         if !(v.is_finite() && v > 0.0) {
             bail!("{file}: {name} must be a positive number, got {v}");

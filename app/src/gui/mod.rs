@@ -383,7 +383,11 @@ impl eframe::App for EframeApp {
                 if let Some(n) = name {
                     dialog = dialog.set_file_name(n);
                 }
-                if let Some(p) = dialog.save_file() {
+                if let Some(mut p) = dialog.save_file() {
+                    // A name typed without an extension gets one; another extension is refused by the export.
+                    if p.extension().is_none() {
+                        p.set_extension("png");
+                    }
                     self.app.run_cmd(Command::ExportPng(p));
                 }
             }

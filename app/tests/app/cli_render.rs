@@ -71,6 +71,13 @@ fn errors_leave_no_file() -> Res {
         assert_eq!(err.trim().lines().count(), 1, "{extra:?}: {err}");
         assert_eq!(std::fs::read_dir(dir.path())?.count(), 0, "{extra:?} left a file");
     }
+    // A page named anything but .png would hold PNG bytes under the wrong type: refused, with the name.
+    let jpg = dir.path().join("page.jpg");
+    let st = isoline().arg("render").arg(data("ptb-s0010/s0010_re.hea")).arg("--out").arg(&jpg).output()?;
+    assert_eq!(st.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&st.stderr);
+    assert!(err.contains("page.jpg") && err.contains("PNG"), "{err}");
+    assert!(!jpg.exists());
     let st = isoline().arg("render").arg(data("no/such.hea")).arg("--out").arg(&out).output()?;
     assert_eq!(st.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&st.stderr).contains("such.hea"));

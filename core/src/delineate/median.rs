@@ -55,6 +55,7 @@ pub fn representative_beat_with(
     let rr = median_rr(&rs)?;
     let (before, after) = span(fs, rr);
     let reach = align_reach(fs);
+    let present = present_leads(recording);
     // Each beat whose span fits the recording, with the room it has to be moved by on either side. A beat at an
     // edge with no room joins as placed, even if it would match better moved: one beat among the rest bends the
     // median little. (Long recordings gather their beats with the full room, `BeatStack::gather`.)
@@ -62,10 +63,7 @@ pub fn representative_beat_with(
         .map(|b| b.r)
         .filter(|&r| r >= before && r + after <= n)
         .map(|r| (r, (reach.min(r - before), reach.min(n - r - after))))
-        .filter(|&(r, (left, right))| {
-            let span = r - before - left..r + after + right;
-            recording.leads.iter().all(|l| l.samples[span.clone()].iter().all(|v| v.is_finite()))
-        })
+        .filter(|&(r, (left, right))| all_valid(recording, &present, r - before - left..r + after + right))
         .collect();
     if chosen.len() < 3 {
         return None;
@@ -75,6 +73,22 @@ pub fn representative_beat_with(
     let room = |b: usize| chosen[b].1;
     let leads = aligned_median(recording.leads.len(), (before, after), reach, chosen.len(), fs, room, value);
     Some(delineated(leads, recording.sample_rate, before, rr, p_model, chosen.len()))
+}
+
+/// Which leads hold any valid sample. A lead with none (a channel the file marks invalid throughout) takes no
+/// part: its median beat is invalid throughout, and it does not keep every beat out of the others' median.
+fn present_leads(recording: &Recording) -> Vec<bool> {
+    recording.leads.iter().map(|l| l.samples.iter().any(|v| v.is_finite())).collect()
+}
+
+/// True when every present lead (see [`present_leads`]) is valid over `span`.
+fn all_valid(recording: &Recording, present: &[bool], span: std::ops::Range<usize>) -> bool {
+    recording
+        .leads
+        .iter()
+        .zip(present)
+        .filter(|(_, p)| **p)
+        .all(|(l, _)| l.samples[span.clone()].iter().all(|v| v.is_finite()))
 }
 
 /// Samples before and after R in the representative beat of a record with median RR `rr` (samples).
@@ -112,10 +126,12 @@ fn aligned_median(
     let len = before + after;
     let template = median_leads(n_leads, len, count, |lead, k, b| value(lead, b, reach + k));
     let (wa, wb) = (((WIN_S.0 * fs) as usize).min(before), ((WIN_S.1 * fs) as usize).min(after.saturating_sub(1)));
-    // The QRS window of each lead, levelled and joined as beat typing compares them.
+    // The QRS window of each lead with a valid median, levelled and joined as beat typing compares them.
+    let live: Vec<usize> =
+        (0..n_leads).filter(|&l| template[l][before - wa..=before + wb].iter().all(|v| v.is_finite())).collect();
     let joined = |sample: &dyn Fn(usize, usize) -> f32| -> Vec<f32> {
-        let mut out = Vec::with_capacity(n_leads * (wa + wb + 1));
-        for lead in 0..n_leads {
+        let mut out = Vec::with_capacity(live.len() * (wa + wb + 1));
+        for &lead in &live {
             let w: Vec<f32> = (before - wa..=before + wb).map(|k| sample(lead, k)).collect();
             push_levelled(&mut out, &w);
         }
@@ -143,7 +159,7 @@ fn median_beats(beats: &[Beat]) -> impl Iterator<Item = &Beat> {
 }
 
 /// Per lead, the sample-by-sample median over `count` beats of `len` samples, `value(lead, k, beat)` giving
-/// sample `k` of a beat.
+/// sample `k` of a beat; invalid samples (NaN) are left out, and a sample with no valid value is NaN.
 fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, usize, usize) -> f32) -> Vec<Vec<f32>> {
     let mut col = Vec::with_capacity(count);
     (0..n_leads)
@@ -151,7 +167,10 @@ fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, 
             (0..len)
                 .map(|k| {
                     col.clear();
-                    col.extend((0..count).map(|b| value(lead, k, b)));
+                    col.extend((0..count).map(|b| value(lead, k, b)).filter(|v| v.is_finite()));
+                    if col.is_empty() {
+                        return f32::NAN;
+                    }
                     let mid = col.len() / 2;
                     *col.select_nth_unstable_by(mid, f32::total_cmp).1
                 })
@@ -228,14 +247,15 @@ impl BeatStack {
 
     /// Keeps up to the stack's quota of `beats` (found in `part`, a window with its margins), evenly spaced
     /// among those the median is taken over whose R peak lies in `own` (the window's own samples of `part`) and
-    /// whose span lies in `part` with every sample valid.
+    /// whose span lies in `part` with every sample valid (in each lead with any valid sample in `part`).
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
         let n = part.len();
         let (before, after) = (self.before, self.after);
+        let present = present_leads(part);
         let usable: Vec<usize> = median_beats(beats)
             .map(|b| b.r)
             .filter(|r| own.contains(r) && *r >= before && r + after < n)
-            .filter(|&r| part.leads.iter().all(|l| l.samples[r - before..r + after].iter().all(|v| v.is_finite())))
+            .filter(|&r| all_valid(part, &present, r - before..r + after))
             .collect();
         let take = usable.len().min(self.quota);
         for i in 0..take {

@@ -35,14 +35,16 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
 }
 
-/// Places each R peak on the lead with the clearest QRS: the sample of largest absolute deflection (of a
-/// short running median, which ignores pacing spikes) from the local mean within ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks
-/// strictly increasing.
+/// Places each R peak on the lead with the clearest QRS that is valid around it: the sample of largest absolute
+/// deflection (of a short running median, which ignores pacing spikes) from the local mean within
+/// ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks strictly increasing.
 fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
-    let best =
-        weights.iter().enumerate().max_by(|a, b| a.1.total_cmp(b.1).then_with(|| b.0.cmp(&a.0))).map_or(0, |(i, _)| i);
-    let lead = leads[best];
-    let n = lead.len();
+    // Leads from the clearest QRS down (the first listed wins a tie). A beat is placed on the first lead with no
+    // invalid sample in its search window: on a lead missing there, every beat of the gap would land on the
+    // window's first sample.
+    let mut order: Vec<usize> = (0..leads.len()).collect();
+    order.sort_by(|&a, &b| weights[b].total_cmp(&weights[a]).then(a.cmp(&b)));
+    let n = leads.first().map_or(0, |l| l.len());
     let h = (R_SEARCH_S * fs) as usize;
     let lag = (feature::lag_s() * fs).round() as usize;
     // Half-width of the running median: ±4 ms, at least 2 samples, but 1 sample where 2 would span over ±8 ms
@@ -57,6 +59,8 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
         if a >= b {
             continue;
         }
+        let whole = |&&i: &&usize| leads[i][a..b].iter().all(|v| v.is_finite());
+        let lead = leads[order.iter().find(whole).copied().unwrap_or(order[0])];
         let valid = lead[a..b].iter().filter(|v| v.is_finite());
         let count = valid.clone().count();
         let mean = if count > 0 { valid.sum::<f32>() / count as f32 } else { 0.0 };

@@ -127,7 +127,9 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
     let mut opened = open_as_written(path, options)?;
     let renamed = opened.recording.name_leads_uniquely();
     let doubt = opened.recording.amplitude_doubt();
-    opened.warnings.extend(renamed.into_iter().chain(doubt).map(|r| format!("{}: {r}", path.display())));
+    let missing = opened.recording.invalid_sample_notes();
+    let notes = renamed.into_iter().chain(doubt).chain(missing);
+    opened.warnings.extend(notes.map(|r| format!("{}: {r}", path.display())));
     Ok(opened)
 }
 

@@ -88,13 +88,16 @@ pub fn axis_from_limb_leads(values: &[(StandardLead, f64)]) -> Option<f64> {
     (a != 0.0 || b != 0.0).then(|| normalise_deg(b.atan2(a).to_degrees()))
 }
 
-/// Net deflection of `samples[start..=end]` relative to `reference` (µV·samples for area, µV for amplitude).
+/// Net deflection of `samples[start..=end]` relative to `reference` (µV·samples for area, µV for amplitude);
+/// invalid samples are left out, and `None` when none is valid.
 #[must_use]
 pub fn net_deflection(samples: &[f32], start: usize, end: usize, reference: f64, basis: AxisBasis) -> Option<f64> {
     if start > end || end >= samples.len() {
         return None;
     }
-    let seg = samples[start..=end].iter().map(|&x| f64::from(x) - reference).filter(|x| x.is_finite());
+    let mut seg = samples[start..=end].iter().map(|&x| f64::from(x) - reference).filter(|x| x.is_finite()).peekable();
+    // A lead with no valid sample over the wave (a channel missing from the file) has no deflection, not zero.
+    seg.peek()?;
     match basis {
         AxisBasis::NetArea => Some(seg.sum()),
         AxisBasis::NetAmplitude => {

@@ -47,7 +47,7 @@ pub use self::furniture::header_lines;
 pub use self::ledger_lines::{
     LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field,
 };
-pub use self::png::{encode_png, write_png_atomic};
+pub use self::png::{check_png_name, encode_png, write_png_atomic};
 pub use self::trace::{Column, decimate_min_max};
 
 /// The page's first header line for the recording in file `file_name`: the file name when the export may
@@ -176,6 +176,10 @@ pub enum RenderError {
     /// PNG encoding failed.
     #[error("PNG encoding failed: {0}")]
     Encode(String),
+    /// The output file is not named `.png`: Isoline writes PNG only, and a page under another extension would
+    /// open as the wrong type, or not at all.
+    #[error("{}: a page is written as PNG only; name the file .png", .0.display())]
+    NotPng(std::path::PathBuf),
     /// Writing the file failed.
     #[error("cannot write {path}: {source}")]
     Write {

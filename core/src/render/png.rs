@@ -50,10 +50,23 @@ pub fn encode_png(pixmap: &Pixmap, dpi: f64) -> Result<Vec<u8>, RenderError> {
 /// sync the folder). On error the temporary file is removed and `path` is untouched.
 ///
 /// # Errors
-/// [`RenderError::Write`] naming `path`.
+/// [`RenderError::NotPng`] when `path` is not named `.png` (see [`check_png_name`]), [`RenderError::Write`]
+/// naming `path`.
 pub fn write_png_atomic(path: &Path, bytes: &[u8]) -> Result<(), RenderError> {
+    check_png_name(path)?;
     let write_error = |source| RenderError::Write { path: path.to_path_buf(), source };
     crate::io::atomic::write_bytes(path, bytes).map_err(write_error)
+}
+
+/// Checks that `path` ends in `.png` (any case), so callers can refuse a page under another name before the work of
+/// drawing it.
+///
+/// # Errors
+/// [`RenderError::NotPng`] otherwise: a `.jpg` or `.pdf` file holding PNG bytes opens as the wrong type or not
+/// at all.
+pub fn check_png_name(path: &Path) -> Result<(), RenderError> {
+    let png = path.extension().and_then(|e| e.to_str()).is_some_and(|e| e.eq_ignore_ascii_case("png"));
+    if png { Ok(()) } else { Err(RenderError::NotPng(path.to_path_buf())) }
 }
 
 #[cfg(test)]
@@ -66,6 +79,19 @@ mod tests {
         let p = dir.path().join("no/such/page.png");
         let e = write_png_atomic(&p, b"data").err().ok_or("wrote into a missing folder")?;
         assert!(matches!(&e, RenderError::Write { path, .. } if path == &p), "{e}");
+        Ok(())
+    }
+
+    #[test]
+    fn only_png_names_are_written() -> Result<(), Box<dyn std::error::Error>> {
+        let dir = tempfile::tempdir()?;
+        for name in ["page.jpg", "page", "page.png.tmp"] {
+            let p = dir.path().join(name);
+            let e = write_png_atomic(&p, b"data").err().ok_or("wrote a page under a non-PNG name")?;
+            assert!(matches!(&e, RenderError::NotPng(path) if path == &p), "{e}");
+            assert!(!p.exists(), "{name} was written");
+        }
+        write_png_atomic(&dir.path().join("page.PNG"), b"data")?;
         Ok(())
     }
 

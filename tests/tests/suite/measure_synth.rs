@@ -206,3 +206,38 @@ fn coarse_sampling_keeps_beats_dominant_and_rr_steady() {
         }
     }
 }
+
+#[test]
+fn a_missing_lead_leaves_the_others_measured() {
+    // A lead the file marks invalid throughout (lead I), or over a 4-s gap (each lead in turn), must neither move
+    // the beats nor take the representative beat away from the other leads. Before: with lead I missing the
+    // axis and every lead's ST level were absent; with the gap in the lead R peaks are placed on, the beats inside
+    // it landed 120 ms late.
+    let s = synth::generate(&SynthSpec { seconds: 30.0, ..Scenario::Normal.spec() }).unwrap_or_else(|e| panic!("{e}"));
+    let clean = analyze(&s.recording, &FilterSettings::default());
+    let fs = s.recording.sample_rate.hz();
+    let mut cases = Vec::new();
+    let mut no_i = s.recording.clone();
+    let i = s.recording.lead_index(&isoline_core::recording::LeadName::parse("I"));
+    no_i.leads[i.unwrap_or_else(|| panic!("no lead I"))].samples.fill(f32::NAN);
+    cases.push(("lead I missing".to_string(), no_i, 11));
+    for (k, lead) in s.recording.leads.iter().enumerate() {
+        let mut gap = s.recording.clone();
+        gap.leads[k].samples[(5.0 * fs) as usize..(9.0 * fs) as usize].fill(f32::NAN);
+        cases.push((format!("gap in lead {}", lead.name), gap, 12));
+    }
+    for (name, rec, leads_with_st) in cases {
+        let a = analyze(&rec, &FilterSettings::default());
+        let (m, c) = (&a.measurements, &clean.measurements);
+        assert_eq!(a.beats.len(), clean.beats.len(), "{name}: beats");
+        for (b, cb) in a.beats.iter().zip(&clean.beats) {
+            assert!(b.r.abs_diff(cb.r) <= 1, "{name}: R at {} instead of {}", b.r, cb.r);
+        }
+        let axis = m.axes.qrs_deg.unwrap_or_else(|| panic!("{name}: no QRS axis"));
+        assert!((axis - s.truth.qrs_axis_deg).abs() <= 5.0, "{name}: axis {axis} vs {}", s.truth.qrs_axis_deg);
+        assert_eq!(m.intervals.qrs_ms, c.intervals.qrs_ms, "{name}: QRS");
+        assert_eq!(m.intervals.qt_ms, c.intervals.qt_ms, "{name}: QT");
+        let with_st = m.st.iter().filter(|l| l.j_uv.is_some()).count();
+        assert_eq!(with_st, leads_with_st, "{name}: leads with an ST level");
+    }
+}
