@@ -347,8 +347,9 @@ impl Recording {
                     Some(format!("lead {} holds no valid sample: it is drawn blank and left out of the measurements", lead.name))
                 } else {
                     Some(format!(
-                        "lead {} has {invalid} missing samples ({:.1} % of it; the longest gap {:.3} s): the analysis bridges them and measures beats there on the other leads",
+                        "lead {} has {invalid} missing sample{} ({:.1} % of it; the longest gap {:.3} s): the analysis bridges them and measures beats there on the other leads",
                         lead.name,
+                        if invalid == 1 { "" } else { "s" },
                         100.0 * invalid as f64 / lead.samples.len() as f64,
                         longest as f64 / fs
                     ))

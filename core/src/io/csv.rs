@@ -86,6 +86,17 @@ fn read_inner(
     };
     let header_line = line_no;
     let names: Vec<String> = cells(&header).map(str::to_string).collect();
+    // Spreadsheets set to a decimal comma write semicolons (or tabs) between the columns: one column here.
+    if let [only] = names.as_slice()
+        && let Some(sep) = [(';', "semicolons"), ('\t', "tabs")].iter().find(|(c, _)| only.contains(*c)).map(|s| s.1)
+    {
+        return Err(err(
+            header_line,
+            format!(
+                "the columns are separated by {sep}; Isoline reads comma-separated values with '.' as the decimal point"
+            ),
+        ));
+    }
     let mut time_col = None;
     let mut lead_names: Vec<(usize, LeadName)> = Vec::new();
     for (c, name) in names.iter().enumerate() {
@@ -291,6 +302,11 @@ mod tests {
         assert!(parse("time_s,I\n0,1\n0.004,1\n", Some(500.0)).is_err(), "rates disagree");
         assert!(parse("I,i\n1,2\n", Some(500.0)).is_err(), "duplicate lead");
         assert!(parse("I,II\n1,2,3\n", Some(500.0)).is_err());
+        // A spreadsheet's decimal-comma export: the separator is named, not "'0;0,5' is not a number".
+        for (text, sep) in [("time_s;I;II\n0;0,5;1\n", "semicolons"), ("time_s\tI\n0\t1\n", "tabs")] {
+            let e = parse(text, None).err().map(|e| e.to_string()).unwrap_or_default();
+            assert!(e.contains("line 1") && e.contains(sep) && e.contains("comma-separated"), "{e}");
+        }
     }
 
     #[test]

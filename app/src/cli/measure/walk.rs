@@ -47,8 +47,12 @@ fn csv_looks_like_recording(path: &Path) -> bool {
     read.is_ok() && csv_text_looks_like_recording(&String::from_utf8_lossy(&head))
 }
 
+/// A regular file (or a link to one) named as a recording. Anything else in a folder (a pipe, a socket, a device)
+/// is passed over: reading a named pipe would wait for a writer that never comes.
 fn is_recording(path: &Path) -> bool {
-    has_extension(path, &RECORDING_EXTENSIONS) || (has_extension(path, &["csv"]) && csv_looks_like_recording(path))
+    std::fs::metadata(path).is_ok_and(|m| m.is_file())
+        && (has_extension(path, &RECORDING_EXTENSIONS)
+            || (has_extension(path, &["csv"]) && csv_looks_like_recording(path)))
 }
 
 fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
@@ -127,6 +131,20 @@ mod tests {
         // A file named on the command line is always attempted, whatever it holds.
         let labels = dir.path().join("labels.csv");
         assert_eq!(find_recordings(std::slice::from_ref(&labels)).files, [labels]);
+        Ok(())
+    }
+
+    #[test]
+    #[cfg(unix)]
+    fn a_named_pipe_in_a_folder_is_passed_over() -> std::io::Result<()> {
+        // Before, the walk opened a pipe named like a recording to sniff its header and waited forever.
+        let dir = tempfile::tempdir()?;
+        let pipe = dir.path().join("monitor.csv");
+        let made = std::process::Command::new("mkfifo").arg(&pipe).status()?;
+        assert!(made.success(), "mkfifo failed");
+        std::fs::write(dir.path().join("a.hea"), "")?;
+        let found = find_recordings(&[dir.path().to_path_buf()]);
+        assert_eq!(found.files, vec![dir.path().join("a.hea")]);
         Ok(())
     }
 
