@@ -202,11 +202,29 @@ pub struct Annotation {
     pub duration_s: Option<f64>,
 }
 
+/// The text a de-identified copy writes for an annotation whose own text it withholds (see
+/// [`Annotation::shareable_label`]).
+pub const WITHHELD_LABEL: &str = "annotation";
+
 impl Annotation {
     /// A plain annotation with only a sample and label.
     #[must_use]
     pub fn new(sample: u64, label: impl Into<String>) -> Self {
         Self { sample, label: label.into(), num: 0, chan: 0, subtype: 0, aux: None, duration_s: None }
+    }
+
+    /// The label as a de-identified copy may carry it: a code (a WFDB beat or wave mnemonic of up to three
+    /// characters, or a rhythm code such as `(AFIB`) as it is; free text, which a site may have typed a name or
+    /// a bed into, as [`WITHHELD_LABEL`]. `None` when the text is withheld.
+    #[must_use]
+    pub fn shareable_label(&self) -> Option<&str> {
+        let l = self.label.trim();
+        let code = l.chars().count() <= 3
+            || l.strip_prefix('(').is_some_and(|r| {
+                (1..=10).contains(&r.len())
+                    && r.bytes().all(|b| b.is_ascii_uppercase() || b.is_ascii_digit() || b"+-_".contains(&b))
+            });
+        code.then_some(self.label.as_str())
     }
 }
 
@@ -428,6 +446,16 @@ mod tests {
             start: None,
             meta: Meta::default(),
             annotations: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn only_annotation_codes_are_shareable() {
+        for code in ["N", "V", "(", ")", "p", "~", "+", "(AFIB", "(N", "(SVTA", "(VFL", "(B2", "(T_"] {
+            assert_eq!(Annotation::new(0, code).shareable_label(), Some(code), "{code}");
+        }
+        for text in ["Lights off", "Recording starts", "pt J. Smith moved", "(Smith)", "(SMITHJOHNNY", "Bed 4"] {
+            assert_eq!(Annotation::new(0, text).shareable_label(), None, "{text}");
         }
     }
 

@@ -19,7 +19,8 @@ pub struct Args {
     /// Sampling rate for a CSV input without a time_s column, Hz.
     #[arg(long)]
     pub rate: Option<f64>,
-    /// Keep the patient's identifiers and the recording date in an EDF output (removed by default).
+    /// Keep the patient's identifiers, the recording date and free-text annotations in an EDF output (removed by
+    /// default).
     #[arg(long)]
     pub identify: bool,
 }
@@ -69,7 +70,18 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
             }
         }
         Target::Csv => csv::write(&args.out, rec)?,
-        Target::Edf => edf::write(&args.out, rec, &edf::EdfWriteOptions { identify: args.identify })?,
+        Target::Edf => {
+            edf::write(&args.out, rec, &edf::EdfWriteOptions { identify: args.identify })?;
+            let withheld = rec.annotations.iter().filter(|a| a.shareable_label().is_none()).count();
+            if !args.identify && withheld > 0 {
+                eprintln!(
+                    "isoline: {}: {withheld} free-text annotation{} written as \"annotation\" (free text can name a \
+                     person); --identify keeps the words",
+                    args.out.display(),
+                    if withheld == 1 { "" } else { "s" }
+                );
+            }
+        }
     }
     Ok(ExitCode::SUCCESS)
 }

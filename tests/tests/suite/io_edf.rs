@@ -116,8 +116,13 @@ fn header_fields_follow_edf_plus() -> TestResult {
     let back = io::open(&path, &io::OpenOptions::default())?;
     assert_eq!(back.format, Format::EdfPlus);
     let got: Vec<(u64, &str)> = back.recording.annotations.iter().map(|a| (a.sample, a.label.as_str())).collect();
-    assert_eq!(got, vec![(10, "N"), (260, "V"), (600, "Made-up event")]);
+    // Codes stay; free text, which may name a person, keeps its time but not its words unless asked.
+    assert_eq!(got, vec![(10, "N"), (260, "V"), (600, "annotation")]);
     assert!(back.recording.meta.patient_name.is_none());
+    edf::write(&path, &rec, &edf::EdfWriteOptions { identify: true })?;
+    let back = io::open(&path, &io::OpenOptions::default())?;
+    let got: Vec<(u64, &str)> = back.recording.annotations.iter().map(|a| (a.sample, a.label.as_str())).collect();
+    assert_eq!(got, vec![(10, "N"), (260, "V"), (600, "Made-up event")]);
     Ok(())
 }
 

@@ -11,7 +11,7 @@ use std::path::Path;
 use super::header::bound_field;
 use super::{ANNOTATION_LABEL, meta, tal};
 use crate::io::{ReadError, write_atomic};
-use crate::recording::{LeadName, Recording};
+use crate::recording::{LeadName, Recording, WITHHELD_LABEL};
 
 /// Options for [`write`].
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
@@ -109,9 +109,11 @@ pub fn write(path: &Path, rec: &Recording, opts: &EdfWriteOptions) -> Result<(),
     let mut by_record: Vec<(usize, usize)> =
         rec.annotations.iter().enumerate().map(|(i, a)| (((a.sample as usize) / spr).min(n_records - 1), i)).collect();
     by_record.sort_unstable();
+    // De-identified: free-text annotations keep their time but not their words (see `Annotation::shareable_label`).
     let tal_of = |i: usize| {
         let a = &rec.annotations[i];
-        tal::annotation(a.sample as f64 / fs, a.duration_s, &a.label)
+        let label = if opts.identify { &a.label } else { a.shareable_label().unwrap_or(WITHHELD_LABEL) };
+        tal::annotation(a.sample as f64 / fs, a.duration_s, label)
     };
     let ann_spr = if rec.annotations.is_empty() {
         0
