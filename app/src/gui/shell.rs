@@ -53,6 +53,9 @@ pub fn shell_ui(app: &mut IsolineApp, ui: &mut egui::Ui) -> Vec<Command> {
         });
     }
     egui::Panel::bottom("status").show(ui, |ui| {
+        if let Some(l) = &app.loaded {
+            reading_notes_ui(ui, l);
+        }
         ui.colored_label(ui.visuals().warn_fg_color, CAUTION);
         ui.label(status_text(app));
     });
@@ -147,6 +150,25 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
 }
 
 /// What the filter setting means for the signal on screen.
+/// Most notes from reading the file shown one per line; the rest are behind a hover.
+const NOTES_SHOWN: usize = 3;
+
+/// What the reader noticed in the open file (a lead missing or renamed, gains in doubt, a short signal file),
+/// above the caution for as long as the file is open: each changes what the measurements rest on.
+fn reading_notes_ui(ui: &mut egui::Ui, loaded: &super::state::Loaded) {
+    // The notes name the file; the status bar already does.
+    let prefix = format!("{}: ", loaded.path.display());
+    let notes: Vec<&str> = loaded.warnings.iter().map(|w| w.strip_prefix(&prefix).unwrap_or(w)).collect();
+    let colour = ui.visuals().warn_fg_color;
+    for note in notes.iter().take(NOTES_SHOWN) {
+        ui.colored_label(colour, format!("Read with a warning: {note}"));
+    }
+    if notes.len() > NOTES_SHOWN {
+        ui.colored_label(colour, format!("and {} more warnings (hover to read)", notes.len() - NOTES_SHOWN))
+            .on_hover_text(notes[NOTES_SHOWN..].join("\n"));
+    }
+}
+
 fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
     match (&loaded.analysis, on) {
         (Some(a), true) => a.filters.description.clone(),

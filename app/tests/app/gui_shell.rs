@@ -23,6 +23,29 @@ fn opening_a_sample_shows_its_leads_and_the_caution() {
 }
 
 #[test]
+fn what_the_reader_noticed_is_shown_while_the_file_is_open() {
+    // A lead the file leaves empty: the workstation draws it blank and says so (before, the note reached the
+    // command line only).
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("no-lead-i.csv");
+    let mut text = String::from("time_s,I,II\n");
+    for k in 0..2500 {
+        let t = f64::from(k) / 500.0;
+        text.push_str(&format!("{t:.3},NaN,{:.4}\n", (t * 7.0).sin()));
+    }
+    std::fs::write(&path, text).unwrap();
+    let app = IsolineApp::new(Some(path));
+    let mut h = egui_kittest::Harness::builder()
+        .with_size(egui::Vec2::new(1400.0, 900.0))
+        .build_ui_state(|ui, app: &mut IsolineApp| app.ui(ui), app);
+    settle(&mut h);
+    assert!(h.state().loaded.is_some());
+    h.get_by_label(
+        "Read with a warning: lead I holds no valid sample: it is drawn blank and left out of the measurements",
+    );
+}
+
+#[test]
 fn an_unreadable_file_shows_an_error_instead_of_crashing() {
     let dir = tempfile::tempdir().unwrap();
     let bad = dir.path().join("broken.hea");
