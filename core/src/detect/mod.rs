@@ -187,6 +187,22 @@ mod tests {
     }
 
     #[test]
+    fn a_baseline_step_does_not_hide_the_next_beat() {
+        // A 5 mV step of the baseline on both leads (an electrode moving) 400 ms before a beat. The step clips
+        // every lead's feature into a flat top; the beat after it must not be taken for its T wave. The step
+        // itself may count as one extra detection.
+        let fs = 250.0;
+        let (x, truth) = synthetic(fs, 30.0);
+        let step = (12.1 * fs) as usize;
+        let stepped: Vec<f32> = x.iter().enumerate().map(|(k, &v)| if k >= step { v + 5000.0 } else { v }).collect();
+        let beats = detect_beats(&rec(vec![stepped.clone(), stepped], fs));
+        for t in &truth {
+            assert!(beats.iter().any(|b| b.r.abs_diff(*t) <= 2), "beat at {:.2} s missed", *t as f64 / fs);
+        }
+        assert!(beats.len() <= truth.len() + 1, "{} detections for {} beats", beats.len(), truth.len());
+    }
+
+    #[test]
     fn paced_beats_are_detected_once() {
         // Pacing spike (2 ms, 4 mV) 30 ms before a wide QRS, every 0.9 s, at 500 Hz.
         let fs = 500.0;

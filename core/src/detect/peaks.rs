@@ -30,7 +30,11 @@ fn candidates(x: &[f32], fs: f64) -> Vec<usize> {
             dq.pop_front();
         }
         if dq.front() == Some(&k) && x[k] > 0.0 && out.last().is_none_or(|&l: &usize| k - l > r / 2) {
-            out.push(k);
+            // On a flat top (every lead clipped at once: a very large deflection, or a step of the baseline) the
+            // peak is the middle of the top, not its last sample: from the last, a beat soon after an artefact
+            // fell within the T-wave test of the plateau's end and was lost.
+            let first = (k.saturating_sub(r)..k).rev().take_while(|&j| x[j] == x[k]).last().unwrap_or(k);
+            out.push((first + k) / 2);
         }
     }
     out
