@@ -137,7 +137,7 @@ pub fn draw_page(
             painter.text(
                 geo.screen_from_paper(cell.x_mm + 1.0, row.top_mm + 1.0),
                 egui::Align2::LEFT_TOP,
-                &cell.label,
+                cell.label_over(&lead.samples, shown.first, rec.sample_rate.hz()),
                 text_font.clone(),
                 color(pal.text),
             );

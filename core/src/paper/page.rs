@@ -225,7 +225,27 @@ impl Cell {
     pub fn contains_time(&self, t_s: f64) -> bool {
         t_s >= self.t0_s && t_s <= self.t1_s
     }
+
+    /// The label the cell shows over its lead's `samples` (held from sample `first` of a recording at `rate_hz`):
+    /// its own, followed by [`NO_SIGNAL`] when the lead has samples in the cell's window but none valid (a lead
+    /// missing from the file there), so a blank cell is not read as a flat line. A window past the end of the
+    /// recording keeps the plain label.
+    #[must_use]
+    pub fn label_over(&self, samples: &[f32], first: usize, rate_hz: f64) -> String {
+        let end = first + samples.len();
+        let a = ((self.t0_s * rate_hz).floor().max(0.0) as usize).clamp(first, end);
+        let b = ((self.t1_s * rate_hz).ceil().max(0.0) as usize).saturating_add(1).clamp(a, end);
+        let held = &samples[a - first..b - first];
+        if !held.is_empty() && !held.iter().any(|v| v.is_finite()) {
+            format!("{} {NO_SIGNAL}", self.label)
+        } else {
+            self.label.clone()
+        }
+    }
 }
+
+/// Shown after a lead's label where the lead has no valid sample in the window.
+pub const NO_SIGNAL: &str = "(no signal)";
 
 impl Row {
     /// Paper y (mm) of a voltage in µV on this row (inverted cells flip the sign).

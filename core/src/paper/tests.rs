@@ -129,3 +129,29 @@ fn cell_time_mapping_round_trips() {
     assert!((cell.time_from_x(&page.paper, x) - 4.2).abs() < 1e-12);
     assert!((x - cell.x_mm - 30.0).abs() < 1e-9);
 }
+
+#[test]
+fn a_cell_without_valid_samples_says_so() {
+    // 3x4+1 over 10 s: lead I (first cell of the first row) spans 0–2.5 s.
+    let mut rec = twelve_lead();
+    rec.leads[0].samples[..1000].fill(f32::NAN);
+    let page = PageSpec {
+        layout: Layout::default(),
+        order: LeadOrder::Standard,
+        paper: Paper::STANDARD,
+        start_s: 0.0,
+        seconds: 10.0,
+    }
+    .page(&rec);
+    let cell = &page.rows[0].cells[0];
+    assert_eq!(cell.label, "I");
+    // Half the window missing: the trace shows the rest.
+    assert_eq!(cell.label_over(&rec.leads[0].samples, 0, 500.0), "I");
+    rec.leads[0].samples[..1300].fill(f32::NAN);
+    assert_eq!(cell.label_over(&rec.leads[0].samples, 0, 500.0), format!("I {NO_SIGNAL}"));
+    // Held from sample 2000 on (a span of a long recording): the window's samples before it are not held, and
+    // the held ones are valid.
+    assert_eq!(cell.label_over(&rec.leads[0].samples[2000..], 2000, 500.0), "I");
+    // A window wholly past the end of what is held keeps the plain label.
+    assert_eq!(cell.label_over(&[], 0, 500.0), "I");
+}

@@ -126,10 +126,16 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
         }
     }
     // Labels last, so no trace covers them.
+    let fs = input.recording.sample_rate.hz();
     for row in &page.rows {
         for cell in &row.cells {
+            let text = input
+                .recording
+                .leads
+                .get(cell.lead)
+                .map_or_else(|| cell.label.clone(), |l| cell.label_over(&l.samples, input.first_sample, fs));
             let (x, y) = (cell.x_mm + 1.0, row.top_mm + 1.0 + Fonts::cap_mm(label));
-            let w = fonts.width_mm(&cell.label, label, canvas.ppm);
+            let w = fonts.width_mm(&text, label, canvas.ppm);
             canvas.fill_rect_mm(
                 x - 0.4,
                 row.top_mm + 0.5,
@@ -137,7 +143,7 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
                 Fonts::cap_mm(label) + 1.2,
                 [pal.background[0], pal.background[1], pal.background[2], 220],
             );
-            fonts.draw(canvas, &cell.label, x, y, label, Align::Left);
+            fonts.draw(canvas, &text, x, y, label, Align::Left);
         }
     }
 }
