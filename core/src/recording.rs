@@ -213,18 +213,13 @@ impl Annotation {
         Self { sample, label: label.into(), num: 0, chan: 0, subtype: 0, aux: None, duration_s: None }
     }
 
-    /// The label as a de-identified copy may carry it: a code (a WFDB beat or wave mnemonic of up to three
-    /// characters, or a rhythm code such as `(AFIB`) as it is; free text, which a site may have typed a name or
-    /// a bed into, as [`WITHHELD_LABEL`]. `None` when the text is withheld.
+    /// The label as a de-identified copy may carry it: a fixed code (a WFDB beat or wave mnemonic such as `N` or
+    /// `V`, or a rhythm code such as `(AFIB`, see [`crate::io::wfdb_annotations::is_code`]) as it is. Anything
+    /// else is text someone typed, which may hold a name, initials or a bed, however short; `None` then (written
+    /// as [`WITHHELD_LABEL`]).
     #[must_use]
     pub fn shareable_label(&self) -> Option<&str> {
-        let l = self.label.trim();
-        let code = l.chars().count() <= 3
-            || l.strip_prefix('(').is_some_and(|r| {
-                (1..=10).contains(&r.len())
-                    && r.bytes().all(|b| b.is_ascii_uppercase() || b.is_ascii_digit() || b"+-_".contains(&b))
-            });
-        code.then_some(self.label.as_str())
+        crate::io::wfdb_annotations::is_code(&self.label).then_some(self.label.as_str())
     }
 }
 
@@ -368,7 +363,8 @@ impl Recording {
                         "lead {} has {invalid} missing sample{} ({:.1} % of it; the longest gap {:.3} s): the analysis bridges them and measures beats there on the other leads",
                         lead.name,
                         if invalid == 1 { "" } else { "s" },
-                        100.0 * invalid as f64 / lead.samples.len() as f64,
+                        // Rounded down: a lead with one valid sample is not "100.0 %" missing.
+                        (1000.0 * invalid as f64 / lead.samples.len() as f64).floor() / 10.0,
                         longest as f64 / fs
                     ))
                 }
@@ -451,10 +447,13 @@ mod tests {
 
     #[test]
     fn only_annotation_codes_are_shareable() {
-        for code in ["N", "V", "(", ")", "p", "~", "+", "(AFIB", "(N", "(SVTA", "(VFL", "(B2", "(T_"] {
+        for code in ["N", "V", "(", ")", "p", "~", "+", "\"", "(AFIB", "(N", "(SVTA", "(VFL", "(BII"] {
             assert_eq!(Annotation::new(0, code).shareable_label(), Some(code), "{code}");
         }
-        for text in ["Lights off", "Recording starts", "pt J. Smith moved", "(Smith)", "(SMITHJOHNNY", "Bed 4"] {
+        // Short free text is still free text: initials, a short name, a bed.
+        let texts =
+            ["Lights off", "pt J. Smith moved", "Bob", "JS", "Ann", "(SMITH", "(BED4", "(Smith)", "", "N ", "n1"];
+        for text in texts {
             assert_eq!(Annotation::new(0, text).shareable_label(), None, "{text}");
         }
     }
@@ -479,6 +478,11 @@ mod tests {
             notes[1]
         );
         assert_eq!(invalid_runs(&[1.0, f32::NAN, f32::NAN, 2.0, f32::NAN]), (3, 2));
+        let mut one_left = vec![f32::NAN; 15_000];
+        one_left[7] = 0.0;
+        let r = rec(vec![Lead { name: LeadName::parse("I"), samples: one_left }]);
+        let notes = r.invalid_sample_notes();
+        assert!(notes[0].starts_with("lead I has 14999 missing samples (99.9 % of it"), "{}", notes[0]);
     }
 
     #[test]

@@ -23,6 +23,8 @@ impl IsolineApp {
     /// # Errors
     /// No recording open, or rendering or writing failed.
     pub fn export_png(&mut self, path: &Path) -> anyhow::Result<()> {
+        // A name that is not .png is refused before the page is drawn, as on the command line.
+        render::check_png_name(path)?;
         let rows = self.cached_ledger_rows();
         let loaded = self.loaded.as_ref().context("no recording is open")?;
         let view = &self.settings.view;

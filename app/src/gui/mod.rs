@@ -383,11 +383,9 @@ impl eframe::App for EframeApp {
                 if let Some(n) = name {
                     dialog = dialog.set_file_name(n);
                 }
-                if let Some(mut p) = dialog.save_file() {
-                    // A name typed without an extension gets one; another extension is refused by the export.
-                    if p.extension().is_none() {
-                        p.set_extension("png");
-                    }
+                // The name offered ends in .png; a name changed to another ending is refused by the export (the
+                // dialog has already asked about replacing the file it names, so no other name is written).
+                if let Some(p) = dialog.save_file() {
                     self.app.run_cmd(Command::ExportPng(p));
                 }
             }

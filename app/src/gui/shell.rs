@@ -149,7 +149,6 @@ fn sheet_panel_ui(app: &mut IsolineApp, ui: &mut egui::Ui, out: &mut Vec<Command
     });
 }
 
-/// What the filter setting means for the signal on screen.
 /// Most notes from reading the file shown one per line; the rest are behind a hover.
 const NOTES_SHOWN: usize = 3;
 
@@ -169,6 +168,7 @@ fn reading_notes_ui(ui: &mut egui::Ui, loaded: &super::state::Loaded) {
     }
 }
 
+/// What the filter setting means for the signal on screen.
 fn filter_text(loaded: &super::state::Loaded, on: bool) -> String {
     match (&loaded.analysis, on) {
         (Some(a), true) => a.filters.description.clone(),

@@ -274,6 +274,12 @@ fn exporting_the_page_writes_a_png() {
     let page = h.state().ui_state.sheet.as_ref().unwrap().page.width_mm;
     let width = u32::from_be_bytes([bytes[16], bytes[17], bytes[18], bytes[19]]);
     assert!((f64::from(width) - page * 300.0 / 25.4).abs() < 2.0, "{width} px for {page} mm");
+    // A name not ending in .png is refused with the reason, and nothing is written.
+    let jpg = dir.path().join("ECG v1.2");
+    h.state_mut().run_cmd(isoline::gui::command::Command::ExportPng(jpg.clone()));
+    let err = h.state().ui_state.error.clone().unwrap_or_default();
+    assert!(err.contains("PNG only"), "{err}");
+    assert!(!jpg.exists());
     // Exporting with no recording shows an error instead of crashing.
     let mut empty = harness(None);
     empty.state_mut().run_cmd(isoline::gui::command::Command::ExportPng(dir.path().join("none.png")));

@@ -55,7 +55,6 @@ pub fn representative_beat_with(
     let rr = median_rr(&rs)?;
     let (before, after) = span(fs, rr);
     let reach = align_reach(fs);
-    let present = present_leads(recording);
     // Each beat whose span fits the recording, with the room it has to be moved by on either side. A beat at an
     // edge with no room joins as placed, even if it would match better moved: one beat among the rest bends the
     // median little. (Long recordings gather their beats with the full room, `BeatStack::gather`.)
@@ -63,9 +62,9 @@ pub fn representative_beat_with(
         .map(|b| b.r)
         .filter(|&r| r >= before && r + after <= n)
         .map(|r| (r, (reach.min(r - before), reach.min(n - r - after))))
-        .filter(|&(r, (left, right))| all_valid(recording, &present, r - before - left..r + after + right))
+        .filter(|&(r, (left, right))| has_signal(recording, r - before - left..r + after + right))
         .collect();
-    if chosen.len() < 3 {
+    if chosen.len() < MIN_BEATS {
         return None;
     }
     // Sample `k` (from R − before − reach) of beat `b` in `lead`; read only within the beat's room.
@@ -75,20 +74,14 @@ pub fn representative_beat_with(
     Some(delineated(leads, recording.sample_rate, before, rr, p_model, chosen.len()))
 }
 
-/// Which leads hold any valid sample. A lead with none (a channel the file marks invalid throughout) takes no
-/// part: its median beat is invalid throughout, and it does not keep every beat out of the others' median.
-fn present_leads(recording: &Recording) -> Vec<bool> {
-    recording.leads.iter().map(|l| l.samples.iter().any(|v| v.is_finite())).collect()
-}
+/// Fewest beats a representative beat is made of, and fewest valid values a sample of it is the median of.
+const MIN_BEATS: usize = 3;
 
-/// True when every present lead (see [`present_leads`]) is valid over `span`.
-fn all_valid(recording: &Recording, present: &[bool], span: std::ops::Range<usize>) -> bool {
-    recording
-        .leads
-        .iter()
-        .zip(present)
-        .filter(|(_, p)| **p)
-        .all(|(l, _)| l.samples[span.clone()].iter().all(|v| v.is_finite()))
+/// True when at least one lead is valid over the whole `span`: a beat with a signal to join the median. A lead
+/// missing over part of it (a gap, a lead absent from the file) leaves those samples out of that lead's median
+/// only ([`median_leads`]).
+fn has_signal(recording: &Recording, span: std::ops::Range<usize>) -> bool {
+    recording.leads.iter().any(|l| l.samples[span.clone()].iter().all(|v| v.is_finite()))
 }
 
 /// Samples before and after R in the representative beat of a record with median RR `rr` (samples).
@@ -126,25 +119,29 @@ fn aligned_median(
     let len = before + after;
     let template = median_leads(n_leads, len, count, |lead, k, b| value(lead, b, reach + k));
     let (wa, wb) = (((WIN_S.0 * fs) as usize).min(before), ((WIN_S.1 * fs) as usize).min(after.saturating_sub(1)));
-    // The QRS window of each lead with a valid median, levelled and joined as beat typing compares them.
-    let live: Vec<usize> =
-        (0..n_leads).filter(|&l| template[l][before - wa..=before + wb].iter().all(|v| v.is_finite())).collect();
-    let joined = |sample: &dyn Fn(usize, usize) -> f32| -> Vec<f32> {
-        let mut out = Vec::with_capacity(live.len() * (wa + wb + 1));
-        for &lead in &live {
-            let w: Vec<f32> = (before - wa..=before + wb).map(|k| sample(lead, k)).collect();
+    let window = before - wa..=before + wb;
+    // The QRS window of each of `leads`, levelled and joined as beat typing compares them.
+    let joined = |leads: &[usize], sample: &dyn Fn(usize, usize) -> f32| -> Vec<f32> {
+        let mut out = Vec::with_capacity(leads.len() * (wa + wb + 1));
+        for &lead in leads {
+            let w: Vec<f32> = window.clone().map(|k| sample(lead, k)).collect();
             push_levelled(&mut out, &w);
         }
         out
     };
-    let t = joined(&|lead, k| template[lead][k]);
+    // Leads whose median is valid over the window; each beat is compared on those it is valid on at every shift.
+    let live: Vec<usize> = (0..n_leads).filter(|&l| window.clone().all(|k| template[l][k].is_finite())).collect();
     let shifts: Vec<usize> = (0..count)
         .map(|b| {
             // Offset `reach` is the beat as placed.
             let (left, right) = room(b);
+            let reads = reach - left + before - wa..=reach + right + before + wb;
+            let leads: Vec<usize> =
+                live.iter().copied().filter(|&l| reads.clone().all(|k| value(l, b, k).is_finite())).collect();
+            let t = joined(&leads, &|lead, k| template[lead][k]);
             let corr = |d: isize| {
                 let s = reach.checked_add_signed(d).filter(|s| (reach - left..=reach + right).contains(s))?;
-                Some(correlation(&joined(&|lead, k| value(lead, b, s + k)), &t))
+                Some(correlation(&joined(&leads, &|lead, k| value(lead, b, s + k)), &t))
             };
             matching_shift(reach, corr).map_or(reach, |d| reach.saturating_add_signed(d))
         })
@@ -159,7 +156,8 @@ fn median_beats(beats: &[Beat]) -> impl Iterator<Item = &Beat> {
 }
 
 /// Per lead, the sample-by-sample median over `count` beats of `len` samples, `value(lead, k, beat)` giving
-/// sample `k` of a beat; invalid samples (NaN) are left out, and a sample with no valid value is NaN.
+/// sample `k` of a beat; invalid samples (NaN) are left out, and a sample with fewer than [`MIN_BEATS`] valid
+/// values is NaN.
 fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, usize, usize) -> f32) -> Vec<Vec<f32>> {
     let mut col = Vec::with_capacity(count);
     (0..n_leads)
@@ -168,7 +166,7 @@ fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, 
                 .map(|k| {
                     col.clear();
                     col.extend((0..count).map(|b| value(lead, k, b)).filter(|v| v.is_finite()));
-                    if col.is_empty() {
+                    if col.len() < MIN_BEATS {
                         return f32::NAN;
                     }
                     let mid = col.len() / 2;
@@ -247,15 +245,14 @@ impl BeatStack {
 
     /// Keeps up to the stack's quota of `beats` (found in `part`, a window with its margins), evenly spaced
     /// among those the median is taken over whose R peak lies in `own` (the window's own samples of `part`) and
-    /// whose span lies in `part` with every sample valid (in each lead with any valid sample in `part`).
+    /// whose span lies in `part` with at least one lead valid throughout (see [`has_signal`]).
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
         let n = part.len();
         let (before, after) = (self.before, self.after);
-        let present = present_leads(part);
         let usable: Vec<usize> = median_beats(beats)
             .map(|b| b.r)
             .filter(|r| own.contains(r) && *r >= before && r + after < n)
-            .filter(|&r| all_valid(part, &present, r - before..r + after))
+            .filter(|&r| has_signal(part, r - before..r + after))
             .collect();
         let take = usable.len().min(self.quota);
         for i in 0..take {
@@ -283,7 +280,7 @@ impl BeatStack {
     pub fn representative(&self, beats: &[Beat], p_model: Option<&PModel>) -> Option<RepresentativeBeat> {
         let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
         let rr = median_rr(&rs)?;
-        if self.beats.len() < 3 {
+        if self.beats.len() < MIN_BEATS {
             return None;
         }
         // The kept spans are the longest; the record's RR may shorten them.

@@ -39,11 +39,12 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
 /// deflection (of a short running median, which ignores pacing spikes) from the local mean within
 /// ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks strictly increasing.
 fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
-    // Leads from the clearest QRS down (the first listed wins a tie). A beat is placed on the first lead with no
-    // invalid sample in its search window: on a lead missing there, every beat of the gap would land on the
-    // window's first sample.
-    let mut order: Vec<usize> = (0..leads.len()).collect();
+    // Leads with a QRS (weight above 0) from the clearest down (the first listed wins a tie). A beat is placed on
+    // the first with no invalid sample in its search window: on a lead missing there, every beat of the gap would
+    // land on the window's first sample. With none whole there, the clearest lead's valid samples are used.
+    let mut order: Vec<usize> = (0..leads.len()).filter(|&i| weights[i] > 0.0).collect();
     order.sort_by(|&a, &b| weights[b].total_cmp(&weights[a]).then(a.cmp(&b)));
+    let Some(&best) = order.first() else { return Vec::new() };
     let n = leads.first().map_or(0, |l| l.len());
     let h = (R_SEARCH_S * fs) as usize;
     let lag = (feature::lag_s() * fs).round() as usize;
@@ -60,7 +61,7 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
             continue;
         }
         let whole = |&&i: &&usize| leads[i][a..b].iter().all(|v| v.is_finite());
-        let lead = leads[order.iter().find(whole).copied().unwrap_or(order[0])];
+        let lead = leads[order.iter().find(whole).copied().unwrap_or(best)];
         let valid = lead[a..b].iter().filter(|v| v.is_finite());
         let count = valid.clone().count();
         let mean = if count > 0 { valid.sum::<f32>() / count as f32 } else { 0.0 };
@@ -184,6 +185,27 @@ mod tests {
         // Inside the burst at most a few extra detections, not a flood (4 true beats there).
         let inside = beats.len() - found;
         assert!(inside <= 8, "{inside} detections in a 4-s burst");
+    }
+
+    #[test]
+    fn beats_in_a_dropout_are_placed_on_a_lead_with_a_qrs() {
+        // The clearest lead drops out for 12 ms around one beat. With a weaker copy whole there, the beat is placed
+        // on the copy; with only a flat lead (no QRS, weight 0) whole there, on the clearest lead's valid samples,
+        // not on the flat lead, where every sample is alike and R would land at the window's end.
+        let fs = 250.0;
+        let (x, truth) = synthetic(fs, 30.0);
+        let mut strong = x.clone();
+        let r = truth[10];
+        strong[r - 1..r + 2].fill(f32::NAN);
+        let weak: Vec<f32> = x.iter().map(|v| 0.5 * v).collect();
+        let flat = vec![0.0f32; x.len()];
+        for leads in [vec![flat.clone(), strong.clone(), weak], vec![flat, strong]] {
+            let beats = detect_beats(&rec(leads, fs));
+            assert_eq!(beats.len(), truth.len());
+            for (b, t) in beats.iter().zip(&truth) {
+                assert!(b.r.abs_diff(*t) <= 2, "{} vs {t}", b.r);
+            }
+        }
     }
 
     #[test]

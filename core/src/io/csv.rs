@@ -86,9 +86,10 @@ fn read_inner(
     };
     let header_line = line_no;
     let names: Vec<String> = cells(&header).map(str::to_string).collect();
-    // Spreadsheets set to a decimal comma write semicolons (or tabs) between the columns: one column here.
-    if let [only] = names.as_slice()
-        && let Some(sep) = [(';', "semicolons"), ('\t', "tabs")].iter().find(|(c, _)| only.contains(*c)).map(|s| s.1)
+    // Spreadsheets set to a decimal comma write semicolons (or tabs) between the columns, and commas inside the
+    // numbers; no lead name holds either.
+    if let Some(sep) =
+        [(';', "semicolons"), ('\t', "tabs")].iter().find(|(c, _)| names.iter().any(|n| n.contains(*c))).map(|s| s.1)
     {
         return Err(err(
             header_line,
@@ -303,7 +304,13 @@ mod tests {
         assert!(parse("I,i\n1,2\n", Some(500.0)).is_err(), "duplicate lead");
         assert!(parse("I,II\n1,2,3\n", Some(500.0)).is_err());
         // A spreadsheet's decimal-comma export: the separator is named, not "'0;0,5' is not a number".
-        for (text, sep) in [("time_s;I;II\n0;0,5;1\n", "semicolons"), ("time_s\tI\n0\t1\n", "tabs")] {
+        let cases = [
+            ("time_s;I;II\n0;0,5;1\n", "semicolons"),
+            ("time_s\tI\n0\t1\n", "tabs"),
+            // No header row at all: its first line of numbers has commas as decimal points.
+            ("0;0,5;1\n0,002;0,6;1\n", "semicolons"),
+        ];
+        for (text, sep) in cases {
             let e = parse(text, None).err().map(|e| e.to_string()).unwrap_or_default();
             assert!(e.contains("line 1") && e.contains(sep) && e.contains("comma-separated"), "{e}");
         }

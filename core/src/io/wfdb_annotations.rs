@@ -13,15 +13,29 @@ use crate::recording::Annotation;
 /// Largest annotation file read (64 MiB; a 24-h Holter annotation file is a few MB).
 const MAX_BYTES: u64 = 64 << 20;
 
+/// WFDB mnemonics by annotation code; "" for unassigned codes.
+const MNEMONICS: [&str; 50] = [
+    "", "N", "L", "R", "a", "V", "F", "J", "A", "S", "E", "j", "/", "Q", "~", "", "|", "", "s", "T", "*", "D", "\"",
+    "=", "p", "B", "^", "t", "+", "u", "?", "!", "[", "]", "e", "n", "@", "x", "f", "(", ")", "r", "", "", "", "", "",
+    "", "", "",
+];
+
+/// Rhythm codes written in the auxiliary text of WFDB rhythm annotations (`+`).
+// Source: PhysioNet, MIT-BIH Arrhythmia Database directory, rhythm annotations (from memory).
+const RHYTHM_CODES: [&str; 15] =
+    ["(AB", "(AFIB", "(AFL", "(B", "(BII", "(IVR", "(N", "(NOD", "(P", "(PREX", "(SBR", "(SVTA", "(T", "(VFL", "(VT"];
+
 /// The WFDB mnemonic for an annotation code (`N`, `V`, `(`, …), `None` for unassigned codes.
 #[must_use]
 pub fn mnemonic(code: u16) -> Option<&'static str> {
-    const TABLE: [&str; 50] = [
-        "", "N", "L", "R", "a", "V", "F", "J", "A", "S", "E", "j", "/", "Q", "~", "", "|", "", "s", "T", "*", "D",
-        "\"", "=", "p", "B", "^", "t", "+", "u", "?", "!", "[", "]", "e", "n", "@", "x", "f", "(", ")", "r", "", "",
-        "", "", "", "", "", "",
-    ];
-    TABLE.get(usize::from(code)).copied().filter(|s| !s.is_empty())
+    MNEMONICS.get(usize::from(code)).copied().filter(|s| !s.is_empty())
+}
+
+/// Whether `label` is one of the fixed codes annotation files use: a WFDB mnemonic or rhythm code. Such a label
+/// can travel in a de-identified copy; any other text was typed by someone and may name a person.
+#[must_use]
+pub fn is_code(label: &str) -> bool {
+    !label.is_empty() && (MNEMONICS.contains(&label) || RHYTHM_CODES.contains(&label))
 }
 
 /// Whether a mnemonic labels a beat (the beat labels of the MIT-BIH convention).

@@ -241,6 +241,12 @@ mod tests {
         assert_eq!(net_deflection(&qrsr, 0, 9, 0.0, AxisBasis::WaveSum), Some(90.0));
         assert_eq!(net_deflection(&qrsr, 0, 9, 0.0, AxisBasis::NetAmplitude), Some(70.0));
         assert_eq!(net_deflection(&[0.0, 0.0], 0, 1, 0.0, AxisBasis::WaveSum), Some(0.0));
+        // A lead with no valid sample over the wave has no deflection (not zero, which would pull the axis).
+        let missing = [f32::NAN; 4];
+        for basis in [AxisBasis::NetAmplitude, AxisBasis::NetArea, AxisBasis::WaveSum] {
+            assert_eq!(net_deflection(&missing, 0, 3, 0.0, basis), None, "{basis:?}");
+        }
+        assert_eq!(net_deflection(&[f32::NAN, 30.0, -10.0, f32::NAN], 0, 3, 0.0, AxisBasis::NetAmplitude), Some(20.0));
     }
 
     /// Limb leads of a beat whose QRS vector swings through `deg` (slow, obvious: hexaxial projections), with

@@ -20,7 +20,7 @@ const MAX_DEPTH: usize = 32;
 pub struct Found {
     /// Recordings: files given directly (whatever their extension), then the recordings inside folders.
     pub files: Vec<PathBuf>,
-    /// Paths that could not be listed, with the reason.
+    /// Folders that could not be listed and files that could not be looked at, with the reason.
     pub errors: Vec<(PathBuf, String)>,
 }
 
@@ -47,12 +47,17 @@ fn csv_looks_like_recording(path: &Path) -> bool {
     read.is_ok() && csv_text_looks_like_recording(&String::from_utf8_lossy(&head))
 }
 
-/// A regular file (or a link to one) named as a recording. Anything else in a folder (a pipe, a socket, a device)
-/// is passed over: reading a named pipe would wait for a writer that never comes.
-fn is_recording(path: &Path) -> bool {
-    std::fs::metadata(path).is_ok_and(|m| m.is_file())
-        && (has_extension(path, &RECORDING_EXTENSIONS)
-            || (has_extension(path, &["csv"]) && csv_looks_like_recording(path)))
+/// Whether a file found in a folder is a recording: named as one (`.csv` files are sniffed for a `time_s`
+/// column) and a regular file, or a link to one. Anything else with such a name (a pipe, a socket, a device) is
+/// passed over, since reading a named pipe would wait for a writer that never comes; one that cannot be looked at
+/// (a broken link, no permission) is an error, so it is not dropped unsaid.
+fn is_recording(path: &Path) -> Result<bool, String> {
+    let csv = has_extension(path, &["csv"]);
+    if !csv && !has_extension(path, &RECORDING_EXTENSIONS) {
+        return Ok(false);
+    }
+    let meta = std::fs::metadata(path).map_err(|e| format!("cannot read: {e}"))?;
+    Ok(meta.is_file() && (!csv || csv_looks_like_recording(path)))
 }
 
 fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
@@ -80,8 +85,12 @@ fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
     for (path, is_dir) in paths {
         if is_dir {
             walk_dir(&path, depth + 1, found);
-        } else if is_recording(&path) {
-            found.files.push(path);
+        } else {
+            match is_recording(&path) {
+                Ok(true) => found.files.push(path),
+                Ok(false) => {}
+                Err(e) => found.errors.push((path, e)),
+            }
         }
     }
 }
@@ -136,7 +145,7 @@ mod tests {
 
     #[test]
     #[cfg(unix)]
-    fn a_named_pipe_in_a_folder_is_passed_over() -> std::io::Result<()> {
+    fn a_named_pipe_in_a_folder_is_passed_over_and_a_broken_link_reported() -> std::io::Result<()> {
         // Before, the walk opened a pipe named like a recording to sniff its header and waited forever.
         let dir = tempfile::tempdir()?;
         let pipe = dir.path().join("monitor.csv");
@@ -145,6 +154,17 @@ mod tests {
         std::fs::write(dir.path().join("a.hea"), "")?;
         let found = find_recordings(&[dir.path().to_path_buf()]);
         assert_eq!(found.files, vec![dir.path().join("a.hea")]);
+        assert!(found.errors.is_empty(), "{:?}", found.errors);
+        // A link to nothing, named as a recording, is reported rather than skipped unsaid.
+        let broken = dir.path().join("bed-4.edf");
+        std::os::unix::fs::symlink(dir.path().join("moved-away.edf"), &broken)?;
+        let found = find_recordings(&[dir.path().to_path_buf()]);
+        assert_eq!(found.files, vec![dir.path().join("a.hea")]);
+        assert!(
+            matches!(found.errors.as_slice(), [(p, e)] if p == &broken && e.starts_with("cannot read")),
+            "{:?}",
+            found.errors
+        );
         Ok(())
     }
 
