@@ -123,14 +123,11 @@ pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<Vec<[f64; 2]>> {
         .collect()
 }
 
-/// Median RR of consecutive dominant beats, ms.
+/// Median RR of consecutive dominant beats (the NN intervals of [`hrv::nn_pairs`]), ms.
 #[must_use]
 pub fn median_rr_ms(beats: &[Beat], rate_hz: f64) -> Option<f64> {
-    let mut rr: Vec<f64> = beats
-        .windows(2)
-        .filter(|w| w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant)
-        .map(|w| (w[1].r - w[0].r) as f64 * 1000.0 / rate_hz)
-        .collect();
+    let mut rr: Vec<f64> =
+        hrv::nn_pairs(beats).into_iter().flatten().map(|(a, b)| (b - a) as f64 * 1000.0 / rate_hz).collect();
     median(&mut rr)
 }
 
