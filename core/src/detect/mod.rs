@@ -225,6 +225,50 @@ mod tests {
     }
 
     #[test]
+    fn a_run_of_wide_beats_is_found_beat_by_beat_and_typed_other() {
+        // Sinus beats every 0.8 s (narrow QRS, upright T) with a run of six wide beats every 0.45 s (QRS σ 30 ms,
+        // deep, T opposite) from 12 s, then a pause and sinus rhythm again. Every beat is found once, the run's
+        // beats are other and the sinus beats dominant.
+        let fs = 250.0;
+        let n = (fs * 30.0) as usize;
+        let mut narrow = Vec::new();
+        let mut t = 0.5;
+        while t < 11.9 {
+            narrow.push(t);
+            t += 0.8;
+        }
+        let wide: Vec<f64> = (0..6).map(|i| 12.0 + 0.45 * f64::from(i)).collect();
+        let mut t = wide[5] + 1.2;
+        while t < 29.5 {
+            narrow.push(t);
+            t += 0.8;
+        }
+        let mut x = vec![0.0f32; n];
+        for (k, v) in x.iter_mut().enumerate() {
+            let s = k as f64 / fs;
+            let mut y = 0.0;
+            for &p in &narrow {
+                let d = s - p;
+                y += 1200.0 * (-(d / 0.012).powi(2)).exp() + 300.0 * (-((d - 0.3) / 0.05).powi(2)).exp();
+            }
+            for &p in &wide {
+                let d = s - p;
+                y += -1800.0 * (-(d / 0.030).powi(2)).exp() + 500.0 * (-((d - 0.25) / 0.05).powi(2)).exp();
+            }
+            *v = y as f32;
+        }
+        let beats = detect_beats(&rec(vec![x], fs));
+        let mut truth: Vec<(f64, BeatKind)> = narrow.iter().map(|&t| (t, BeatKind::Dominant)).collect();
+        truth.extend(wide.iter().map(|&t| (t, BeatKind::Other)));
+        truth.sort_by(|a, b| a.0.total_cmp(&b.0));
+        assert_eq!(beats.len(), truth.len(), "{:?}", beats.iter().map(|b| b.r as f64 / fs).collect::<Vec<_>>());
+        for (b, (t, kind)) in beats.iter().zip(&truth) {
+            assert!((b.r as f64 / fs - t).abs() <= 0.02, "R at {:.3} s for {t:.3} s", b.r as f64 / fs);
+            assert_eq!(b.kind, *kind, "beat at {t:.2} s");
+        }
+    }
+
+    #[test]
     fn paced_beats_are_detected_once() {
         // Pacing spike (2 ms, 4 mV) 30 ms before a wide QRS, every 0.9 s, at 500 Hz.
         let fs = 500.0;
