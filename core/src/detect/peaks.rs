@@ -33,11 +33,21 @@ fn candidates(x: &[f32], fs: f64) -> Vec<usize> {
             // On a flat top (every lead clipped at once: a very large deflection, or a step of the baseline) the
             // peak is the middle of the top, not its last sample: from the last, a beat soon after an artefact
             // fell within the T-wave test of the plateau's end and was lost.
-            let first = (k.saturating_sub(r)..k).rev().take_while(|&j| x[j] == x[k]).last().unwrap_or(k);
-            out.push((first + k) / 2);
+            out.push(flat_top_middle(x, k, r));
         }
     }
     out
+}
+
+/// The middle of the run of values equal to `x[k]` that ends at `k` (at most `reach` samples back); `k` itself
+/// when `x[k - 1]` differs, as it does at almost every peak.
+#[inline(never)]
+fn flat_top_middle(x: &[f32], k: usize, reach: usize) -> usize {
+    if k == 0 || x[k - 1] != x[k] {
+        return k;
+    }
+    let first = (k.saturating_sub(reach)..k).rev().take_while(|&j| x[j] == x[k]).last().unwrap_or(k);
+    (first + k) / 2
 }
 
 /// QRS positions (feature peak samples) found on the combined, normalised feature `x` (≈ 1 at a typical QRS).
