@@ -261,6 +261,12 @@ impl BeatStack {
         }
     }
 
+    /// Adds the beats `other` kept (a stack made with the same [`BeatStack::new`] arguments, for a later window)
+    /// after this one's, as if they had been gathered here.
+    pub fn append(&mut self, mut other: BeatStack) {
+        self.beats.append(&mut other.beats);
+    }
+
     /// Number of beats kept.
     #[must_use]
     pub fn len(&self) -> usize {

@@ -25,6 +25,9 @@ pub struct Features {
 /// where starting the threads costs more than it saves (a 10-s 12-lead record took 4 ms longer in parallel).
 const PARALLEL_FROM: usize = 1 << 20;
 
+/// Most leads prepared at once: each holds a feature of 4 bytes per sample (173 MB for 24 h at 500 Hz).
+const AT_ONCE: usize = 4;
+
 /// Moving-window integration width, s. Source: Pan & Tompkins 1985 (150 ms).
 const MWI_S: f64 = 0.150;
 
@@ -36,9 +39,10 @@ pub fn lag_s() -> f64 {
 }
 
 /// Computes the feature signals. `leads` are raw samples (µV, NaN = invalid, held at the last valid value).
-/// One streaming pass per lead (band-pass, derivative, square, integrate), so a 24-h Holter stays fast. Leads
-/// are prepared as many at a time as there are cores (each holds a feature as long as the recording, so not all
-/// at once) and added in lead order, so the result does not depend on the machine.
+/// One streaming pass per lead (band-pass, derivative, square, integrate), so a 24-h Holter stays fast. Leads of
+/// [`PARALLEL_FROM`] samples or more are prepared on the rayon pool's threads, at most [`AT_ONCE`] at a time (each
+/// holds a feature as long as the recording); they are added in lead order, so the result does not depend on
+/// the number of threads.
 pub fn features(leads: &[&[f32]], fs: f64) -> Features {
     use rayon::prelude::*;
     let n = leads.first().map_or(0, |l| l.len());
@@ -49,7 +53,7 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
         let (local, weight) = normalise(&mwi, fs);
         (mwi, local, weight)
     };
-    let at_once = if n >= PARALLEL_FROM { rayon::current_num_threads().max(1) } else { 1 };
+    let at_once = if n >= PARALLEL_FROM { rayon::current_num_threads().clamp(1, AT_ONCE) } else { 1 };
     for group in leads.chunks(at_once) {
         let prepared: Vec<(Vec<f32>, Vec<f32>, f64)> =
             if group.len() > 1 { group.par_iter().map(prepare).collect() } else { group.iter().map(prepare).collect() };

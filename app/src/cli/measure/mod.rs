@@ -103,15 +103,17 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if let Ok(style) = ProgressStyle::with_template("{bar:30} {pos}/{len} recordings measured, {elapsed} {msg}") {
         bar.set_style(style);
     }
-    let results: Vec<(PathBuf, Outcome)> = found
-        .files
-        .par_iter()
-        .map(|p| {
+    // As many files at a time as there are cores. A long recording's windows are analysed in parallel too, and a
+    // core waiting for them takes other pending work: were every file pending at once, it could open more
+    // recordings than there are cores.
+    let mut results: Vec<(PathBuf, Outcome)> = Vec::with_capacity(found.files.len());
+    for group in found.files.chunks(rayon::current_num_threads().max(1)) {
+        results.par_extend(group.par_iter().map(|p| {
             let r = measure_file(p, args.rate);
             bar.inc(1);
             (p.clone(), r)
-        })
-        .collect();
+        }));
+    }
     bar.finish_and_clear();
 
     let mut rows = Vec::new();
