@@ -345,8 +345,9 @@ impl Recording {
 
     /// One note per lead with invalid (missing) samples, said once when the recording is opened: a lead with none
     /// valid is drawn blank and takes no part in the measurements; a lead with gaps is interpolated across them
-    /// for the analysis, so its beats there are found and measured on the other leads. Either way the reader
-    /// should know part of the record is not there.
+    /// for the analysis, so its beats there are found and measured on the other leads (in a one-lead recording,
+    /// not at all, and no RR interval spans a gap: [`Recording::gaps`]). Either way the reader should know part of
+    /// the record is not there.
     #[must_use]
     pub fn invalid_sample_notes(&self) -> Vec<String> {
         let fs = self.sample_rate.hz();
@@ -357,19 +358,48 @@ impl Recording {
                 if invalid == 0 {
                     None
                 } else if invalid == lead.samples.len() {
-                    Some(format!("lead {} holds no valid sample: it is drawn blank and left out of the measurements", lead.name))
+                    Some(format!(
+                        "lead {} holds no valid sample: it is drawn blank and left out of the measurements",
+                        lead.name
+                    ))
                 } else {
                     Some(format!(
-                        "lead {} has {invalid} missing sample{} ({:.1} % of it; the longest gap {:.3} s): the analysis bridges them and measures beats there on the other leads",
+                        "lead {} has {invalid} missing sample{} ({:.1} % of it; the longest gap {:.3} s): {}",
                         lead.name,
                         if invalid == 1 { "" } else { "s" },
                         // Rounded down: a lead with one valid sample is not "100.0 %" missing.
                         (1000.0 * invalid as f64 / lead.samples.len() as f64).floor() / 10.0,
-                        longest as f64 / fs
+                        longest as f64 / fs,
+                        if self.leads.len() > 1 {
+                            "the analysis bridges them and measures beats there on the other leads"
+                        } else {
+                            "beats there are not measured, and no RR interval spans a gap"
+                        }
                     ))
                 }
             })
             .collect()
+    }
+
+    /// Stretches (sorted sample ranges) where no lead has a valid sample: nothing was recorded there, so beats
+    /// on either side are not neighbours (see [`crate::measure::hrv`]).
+    #[must_use]
+    pub fn gaps(&self) -> Vec<std::ops::Range<usize>> {
+        let mut gaps = Vec::new();
+        let mut start = None;
+        for k in 0..self.len() {
+            let silent = self.leads.iter().all(|l| !l.samples[k].is_finite());
+            match (silent, start) {
+                (true, None) => start = Some(k),
+                (false, Some(a)) => {
+                    gaps.push(a..k);
+                    start = None;
+                }
+                _ => {}
+            }
+        }
+        gaps.extend(start.map(|a| a..self.len()));
+        gaps
     }
 
     /// Number of samples per lead (0 for a recording without leads).

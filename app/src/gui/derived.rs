@@ -1,6 +1,8 @@
 //! Data derived from the open recording for the views: the Tape envelope, the heart-rate trend, and beats from
 //! the recording's own annotations (used only when the detector finds none).
 
+use std::ops::Range;
+
 use isoline_core::analysis::Span;
 use isoline_core::beat::{Beat, BeatKind};
 use isoline_core::io::wfdb_annotations::is_beat;
@@ -109,13 +111,14 @@ pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Bea
 }
 
 /// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats, in
-/// runs: a run breaks where another beat interrupts the dominant beats, so the trend is not drawn across a
-/// premature beat and its pause as if a rate had been measured there.
+/// runs: a run breaks where another beat interrupts the dominant beats, or at a gap of the recording (`gaps`,
+/// see [`isoline_core::Recording::gaps`]), so the trend is not drawn across a premature beat and its pause, or
+/// across time nothing was recorded, as if a rate had been measured there.
 ///
 /// Source: references.md §10 (HR = 60 / RR in s).
 #[must_use]
-pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<Vec<[f64; 2]>> {
-    hrv::nn_pairs(beats)
+pub fn rate_trend(beats: &[Beat], rate_hz: f64, gaps: &[Range<usize>]) -> Vec<Vec<[f64; 2]>> {
+    hrv::nn_pairs(beats, gaps)
         .into_iter()
         .map(|run| {
             run.into_iter().map(|(a, b)| [b as f64 / rate_hz, 60_000.0 / ((b - a) as f64 * 1000.0 / rate_hz)]).collect()
@@ -123,11 +126,11 @@ pub fn rate_trend(beats: &[Beat], rate_hz: f64) -> Vec<Vec<[f64; 2]>> {
         .collect()
 }
 
-/// Median RR of consecutive dominant beats (the NN intervals of [`hrv::nn_pairs`]), ms.
+/// Median RR of consecutive dominant beats (the NN intervals of [`hrv::nn_pairs`], none across `gaps`), ms.
 #[must_use]
-pub fn median_rr_ms(beats: &[Beat], rate_hz: f64) -> Option<f64> {
+pub fn median_rr_ms(beats: &[Beat], rate_hz: f64, gaps: &[Range<usize>]) -> Option<f64> {
     let mut rr: Vec<f64> =
-        hrv::nn_pairs(beats).into_iter().flatten().map(|(a, b)| (b - a) as f64 * 1000.0 / rate_hz).collect();
+        hrv::nn_pairs(beats, gaps).into_iter().flatten().map(|(a, b)| (b - a) as f64 * 1000.0 / rate_hz).collect();
     median(&mut rr)
 }
 
@@ -182,12 +185,12 @@ mod tests {
     fn rate_trend_uses_dominant_pairs() {
         let beats =
             [Beat::at(0, BeatKind::Dominant), Beat::at(400, BeatKind::Dominant), Beat::at(600, BeatKind::Other)];
-        let t = rate_trend(&beats, 500.0);
+        let t = rate_trend(&beats, 500.0, &[]);
         // 400 samples at 500 Hz = 800 ms -> 75 bpm (references.md §10).
         assert_eq!(t.len(), 1);
         assert_eq!(t[0].len(), 1);
         assert!((t[0][0][1] - 75.0).abs() < 1e-9);
-        assert_eq!(median_rr_ms(&beats, 500.0), Some(800.0));
+        assert_eq!(median_rr_ms(&beats, 500.0, &[]), Some(800.0));
     }
 
     #[test]
@@ -197,7 +200,7 @@ mod tests {
         let kinds = [(0, true), (400, true), (800, true), (1000, false), (1600, true), (2000, true), (2400, true)];
         let beats: Vec<Beat> =
             kinds.iter().map(|&(r, d)| Beat::at(r, if d { BeatKind::Dominant } else { BeatKind::Other })).collect();
-        let t = rate_trend(&beats, 500.0);
+        let t = rate_trend(&beats, 500.0, &[]);
         let times: Vec<Vec<f64>> = t.iter().map(|run| run.iter().map(|p| p[0]).collect()).collect();
         assert_eq!(times, [vec![0.8, 1.6], vec![4.0, 4.8]]);
     }

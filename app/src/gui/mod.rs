@@ -317,12 +317,14 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
     let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
     let beats_source =
         if beats.is_empty() { "analysing…".to_string() } else { format!("{} annotated beats", beats.len()) };
+    let gaps = rec.gaps();
     let mut loaded = Loaded {
         path: path.to_path_buf(),
         format: opened.format,
         recording: Arc::new(rec),
         analysis: None,
         warnings: opened.warnings,
+        gaps,
         tape,
         beats,
         beats_source,

@@ -148,6 +148,8 @@ pub struct Loaded {
     pub analysis: Option<Analysis>,
     /// What the reader noticed while reading.
     pub warnings: Vec<String>,
+    /// Stretches where no lead has a valid sample (see [`isoline_core::Recording::gaps`]).
+    pub gaps: Vec<std::ops::Range<usize>>,
     /// Whole-recording min/max envelope of the Tape lead.
     pub tape: TapeEnvelope,
     /// Beats for the Tape's rate trend and caliper snapping: the detector's, or the file's annotated beats
@@ -218,8 +220,8 @@ impl Loaded {
     /// Recomputes the rate trend and median RR from `beats`.
     pub fn derive_rates(&mut self) {
         let fs = self.recording.sample_rate.hz();
-        self.trend = super::derived::rate_trend(&self.beats, fs);
-        self.median_rr_ms = super::derived::median_rr_ms(&self.beats, fs);
+        self.trend = super::derived::rate_trend(&self.beats, fs, &self.gaps);
+        self.median_rr_ms = super::derived::median_rr_ms(&self.beats, fs, &self.gaps);
     }
 
     /// The representative beat, if there were enough beats.

@@ -3,7 +3,11 @@
 //! Source: Task Force of the ESC and NASPE, Heart rate variability: standards of measurement, physiological
 //! interpretation and clinical use, Circulation 1996;93:1043-65 — SDNN is the standard deviation of the NN
 //! intervals; RMSSD the square root of the mean of the squared differences of successive NN intervals.
-//! Here an NN interval is the interval between two consecutive beats that are both typed dominant.
+//! Here an NN interval is the interval between two consecutive beats that are both typed dominant, with no gap in
+//! the recording between them (a stretch where no lead has a valid sample, [`crate::Recording::gaps`]): across a
+//! gap the beats in between were not recorded, so the time from one beat to the next is not an RR interval.
+
+use std::ops::Range;
 
 use crate::beat::{Beat, BeatKind};
 use crate::units::{Hertz, bpm_from_rr_ms};
@@ -77,10 +81,17 @@ impl Rhythm {
     }
 }
 
-/// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts.
+/// True when samples `a..b` overlap one of `gaps` (sorted, disjoint sample ranges).
+fn spans_gap(gaps: &[Range<usize>], a: usize, b: usize) -> bool {
+    let i = gaps.partition_point(|g| g.end <= a);
+    gaps.get(i).is_some_and(|g| g.start < b)
+}
+
+/// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts or a gap of the
+/// recording (`gaps`, sorted) lies between two beats.
 #[must_use]
-pub fn nn_runs(beats: &[Beat], fs: Hertz) -> Vec<Vec<f64>> {
-    nn_pairs(beats)
+pub fn nn_runs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<f64>> {
+    nn_pairs(beats, gaps)
         .into_iter()
         .map(|run| run.into_iter().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect())
         .collect()
@@ -88,12 +99,13 @@ pub fn nn_runs(beats: &[Beat], fs: Hertz) -> Vec<Vec<f64>> {
 
 /// The NN intervals of [`nn_runs`] as the R peaks (samples) that bound them, first and second, in the same runs.
 #[must_use]
-pub fn nn_pairs(beats: &[Beat]) -> Vec<Vec<(usize, usize)>> {
+pub fn nn_pairs(beats: &[Beat], gaps: &[Range<usize>]) -> Vec<Vec<(usize, usize)>> {
     let mut runs: Vec<Vec<(usize, usize)>> = Vec::new();
     let mut current = Vec::new();
     for w in beats.windows(2) {
-        if w[0].kind == BeatKind::Dominant && w[1].kind == BeatKind::Dominant && w[1].r > w[0].r {
-            current.push((w[0].r, w[1].r));
+        let (a, b) = (&w[0], &w[1]);
+        if a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant && b.r > a.r && !spans_gap(gaps, a.r, b.r) {
+            current.push((a.r, b.r));
         } else if !current.is_empty() {
             runs.push(std::mem::take(&mut current));
         }
@@ -123,18 +135,18 @@ pub fn rmssd_runs(runs: &[Vec<f64>]) -> Option<f64> {
     mean(&sq).map(f64::sqrt)
 }
 
-/// Regularity of the underlying rhythm (see [`Rhythm`]).
+/// Regularity of the underlying rhythm (see [`Rhythm`]), leaving out intervals across `gaps` (sorted).
 #[must_use]
-pub fn rhythm(beats: &[Beat], fs: Hertz) -> Rhythm {
+pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
     let other_beats = beats.iter().filter(|b| b.kind != BeatKind::Dominant).count();
-    let nn = nn_runs(beats, fs);
+    let nn = nn_runs(beats, fs, gaps);
     let runs: Vec<Vec<f64>> = if nn.iter().map(Vec::len).sum::<usize>() >= MIN_RR_FOR_REGULARITY {
         nn
     } else {
         vec![
             beats
                 .windows(2)
-                .filter(|w| w[1].r > w[0].r)
+                .filter(|w| w[1].r > w[0].r && !spans_gap(gaps, w[0].r, w[1].r))
                 .map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64))
                 .collect(),
         ]
@@ -147,10 +159,10 @@ pub fn rhythm(beats: &[Beat], fs: Hertz) -> Rhythm {
     Rhythm { rr_count: rr.len(), rr_cv, successive, regular, other_beats }
 }
 
-/// All RR statistics of a beat list at rate `fs`.
+/// All RR statistics of a beat list at rate `fs`, leaving out intervals across `gaps` (sorted).
 #[must_use]
-pub fn rr_stats(beats: &[Beat], fs: Hertz) -> RrStats {
-    let runs = nn_runs(beats, fs);
+pub fn rr_stats(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> RrStats {
+    let runs = nn_runs(beats, fs, gaps);
     let nn: Vec<f64> = runs.iter().flatten().copied().collect();
     let rr_ms = mean(&nn);
     RrStats {
@@ -159,7 +171,7 @@ pub fn rr_stats(beats: &[Beat], fs: Hertz) -> RrStats {
         heart_rate_bpm: rr_ms.and_then(bpm_from_rr_ms),
         sdnn_ms: sdnn(&nn),
         rmssd_ms: rmssd_runs(&runs),
-        rhythm: rhythm(beats, fs),
+        rhythm: rhythm(beats, fs, gaps),
     }
 }
 
@@ -176,11 +188,32 @@ mod tests {
     }
 
     #[test]
+    #[allow(clippy::single_range_in_vec_init)] // one gap: a list of one range, as `Recording::gaps` gives
+    fn an_interval_across_a_gap_is_not_an_rr_interval() {
+        // Beats every 800 ms; nothing recorded from 2500 to 4000 (the beats at 3.2 s were lost): the 2400-ms
+        // interval from 2.4 s to 4.8 s is left out, and the runs on either side stay apart for RMSSD.
+        let rs = [0usize, 800, 1600, 2400, 4800, 5600, 6400, 7200];
+        let b: Vec<Beat> = rs.iter().map(|&r| Beat::at(r, BeatKind::Dominant)).collect();
+        let gaps = [2500..4000];
+        assert_eq!(nn_runs(&b, fs(), &gaps), vec![vec![800.0; 3], vec![800.0; 3]]);
+        let s = rr_stats(&b, fs(), &gaps);
+        assert_eq!((s.nn_count, s.rr_ms, s.sdnn_ms), (6, Some(800.0), Some(0.0)));
+        assert_eq!(s.rhythm.regular, Some(true));
+        // Without the gap the long interval counts: a slower rate and an irregular rhythm.
+        let s = rr_stats(&b, fs(), &[]);
+        assert_eq!(s.nn_count, 7);
+        assert_eq!(s.rhythm.regular, Some(false));
+        // Samples a..b against the gap's range, both half-open: ranges that only touch do not overlap.
+        assert!(spans_gap(&[10..20], 0, 11) && spans_gap(&[10..20], 19, 30));
+        assert!(!spans_gap(&[10..20], 0, 10) && !spans_gap(&[10..20], 20, 30));
+    }
+
+    #[test]
     fn runs_break_at_other_beats() {
         use BeatKind::{Dominant as D, Other as O};
         let b = beats(&[(0, D), (800, D), (1600, D), (2100, O), (3000, D), (3800, D)]);
-        assert_eq!(nn_runs(&b, fs()), vec![vec![800.0, 800.0], vec![800.0]]);
-        let s = rr_stats(&b, fs());
+        assert_eq!(nn_runs(&b, fs(), &[]), vec![vec![800.0, 800.0], vec![800.0]]);
+        let s = rr_stats(&b, fs(), &[]);
         assert_eq!(s.nn_count, 3);
         assert_eq!(s.rr_ms, Some(800.0));
         assert_eq!(s.heart_rate_bpm, Some(75.0));
@@ -205,12 +238,12 @@ mod tests {
                 b.push((t - 300, O));
             }
         }
-        let r = rhythm(&beats(&b), fs());
+        let r = rhythm(&beats(&b), fs(), &[]);
         assert_eq!((r.regular, r.other_beats, r.rr_count), (Some(true), 2, 11));
         assert_eq!(r.describe(), "regular, 2 other beats");
         // With no dominant beat, all RR intervals are judged.
         let all_other: Vec<Beat> = beats(&b).into_iter().map(|x| Beat::at(x.r, O)).collect();
-        assert_eq!(rhythm(&all_other, fs()).regular, Some(false));
+        assert_eq!(rhythm(&all_other, fs(), &[]).regular, Some(false));
     }
 
     #[test]
@@ -225,7 +258,7 @@ mod tests {
                 beat
             })
             .collect();
-        let r = rhythm(&b, fs());
+        let r = rhythm(&b, fs(), &[]);
         assert!(r.rr_cv.is_some_and(|cv| cv > 0.15), "{r:?}");
         assert!(r.successive.is_some_and(|v| v < 0.02), "{r:?}");
         assert_eq!(r.regular, Some(true));
@@ -235,7 +268,7 @@ mod tests {
     fn irregular_dominant_beats_stay_irregular() {
         // RR alternating 600 and 1000 ms, every beat dominant (as in atrial fibrillation with narrow QRS).
         let b: Vec<Beat> = (0..12).map(|k| Beat::at(k * 800 + (k % 2) * 200, BeatKind::Dominant)).collect();
-        let r = rhythm(&b, fs());
+        let r = rhythm(&b, fs(), &[]);
         assert_eq!((r.regular, r.other_beats), (Some(false), 0));
         assert_eq!(r.describe(), "irregular");
     }
@@ -243,8 +276,8 @@ mod tests {
     #[test]
     fn steady_rhythm_is_regular_and_few_beats_undecided() {
         let b: Vec<Beat> = (0..10).map(|k| Beat::at(k * 1000 + (k % 2) * 20, BeatKind::Dominant)).collect();
-        assert_eq!(rhythm(&b, fs()).regular, Some(true));
-        assert_eq!(rhythm(&b[..3], fs()).regular, None);
-        assert_eq!(rr_stats(&b[..1], fs()).rr_ms, None);
+        assert_eq!(rhythm(&b, fs(), &[]).regular, Some(true));
+        assert_eq!(rhythm(&b[..3], fs(), &[]).regular, None);
+        assert_eq!(rr_stats(&b[..1], fs(), &[]).rr_ms, None);
     }
 }

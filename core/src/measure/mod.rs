@@ -105,7 +105,7 @@ pub fn measure_with(
     basis: AxisBasis,
 ) -> Measurements {
     let fs = recording.sample_rate;
-    let rr = hrv::rr_stats(beats, fs);
+    let rr = hrv::rr_stats(beats, fs, &recording.gaps());
     let beat_medians = median_intervals(beats, fs);
     let (intervals, intervals_source) = match template {
         Some(t) => (intervals(&t.bounds, t.sample_rate), IntervalSource::Representative),

@@ -32,8 +32,8 @@ fn rate_and_variability_match_the_reference_beats() -> Result<(), String> {
     for (rec, refs) in BEAT_RECORDS {
         let (recording, beats) = beats_of(&data(rec))?;
         let fs = recording.sample_rate;
-        let ours = hrv::rr_stats(&beats, fs);
-        let theirs = hrv::rr_stats(&reference_beats(&data(refs))?, fs);
+        let ours = hrv::rr_stats(&beats, fs, &[]);
+        let theirs = hrv::rr_stats(&reference_beats(&data(refs))?, fs, &[]);
         let others = (beats.iter().filter(|b| b.kind == BeatKind::Other).count(), theirs.rhythm.other_beats);
         let f = |v: Option<f64>| v.unwrap_or(f64::NAN);
         println!(

@@ -68,7 +68,7 @@ fn regularity_follows_the_diagnosed_rhythm() -> Result<(), String> {
             continue;
         }
         let (recording, beats) = beats_of(&data(&format!("ludb/{record}.hea")))?;
-        let r = hrv::rhythm(&beats, recording.sample_rate);
+        let r = hrv::rhythm(&beats, recording.sample_rate, &recording.gaps());
         println!(
             "ludb {record}: {} — {} (beat-to-beat {:.1} %, CV {:.1} %)",
             if is_af { "atrial fibrillation" } else { "sinus" },

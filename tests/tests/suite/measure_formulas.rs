@@ -55,7 +55,7 @@ fn sdnn_rmssd_worked_example() {
         r += d as usize;
         beats.push(Beat::at(r, BeatKind::Dominant));
     }
-    let s = hrv::rr_stats(&beats, hz(1000.0));
+    let s = hrv::rr_stats(&beats, hz(1000.0), &[]);
     assert!(close(s.rmssd_ms.unwrap_or(f64::NAN), 15.55, 0.005));
     assert!(close(s.sdnn_ms.unwrap_or(f64::NAN), 8.54, 0.005));
     assert!(close(s.rr_ms.unwrap_or(f64::NAN), 801.25, 1e-9));

@@ -266,3 +266,37 @@ fn a_missing_lead_leaves_the_others_measured() {
         }
     }
 }
+
+#[test]
+fn time_nothing_was_recorded_is_not_an_rr_interval() {
+    // Every lead blank from 10 to 13 s (a lead-off stretch marked invalid), and a one-lead demo blank for 2 s in
+    // every 6: the intervals across the gaps are not RR intervals. Before, the 3-s gap read HR 64 and SDNN 599 ms
+    // for 72 and 1, and the one-lead demo HR 47, "irregular" and a short QTc.
+    let s = synth::generate(&SynthSpec { seconds: 30.0, ..Scenario::Normal.spec() }).unwrap_or_else(|e| panic!("{e}"));
+    let fs = s.recording.sample_rate.hz();
+    let mut gap = s.recording.clone();
+    for lead in &mut gap.leads {
+        lead.samples[(10.0 * fs) as usize..(13.0 * fs) as usize].fill(f32::NAN);
+    }
+    let one = synth::generate(&SynthSpec { seconds: 30.0, leads: synth::LeadSet::Single, ..Scenario::Normal.spec() })
+        .unwrap_or_else(|e| panic!("{e}"));
+    let mut gaps = one.recording.clone();
+    for (k, v) in gaps.leads[0].samples.iter_mut().enumerate() {
+        if (k as f64 / fs) % 6.0 >= 4.0 {
+            *v = f32::NAN;
+        }
+    }
+    for (name, rec, whole) in
+        [("12 leads, 3-s gap", gap, &s.recording), ("1 lead, 2 s in 6 blank", gaps, &one.recording)]
+    {
+        let (m, c) = (
+            analyze(&rec, &FilterSettings::default()).measurements,
+            analyze(whole, &FilterSettings::default()).measurements,
+        );
+        let (hr, hr_whole) = (m.rr.heart_rate_bpm.unwrap_or(f64::NAN), c.rr.heart_rate_bpm.unwrap_or(f64::NAN));
+        println!("{name}: HR {hr:.1} (complete {hr_whole:.1}), SDNN {:?}, {}", m.rr.sdnn_ms, m.rr.rhythm.describe());
+        assert!((hr - hr_whole).abs() <= 1.0, "{name}: HR {hr} for {hr_whole}");
+        assert!(m.rr.sdnn_ms.is_some_and(|sd| sd <= 2.0), "{name}: SDNN {:?}", m.rr.sdnn_ms);
+        assert_eq!(m.rr.rhythm.regular, Some(true), "{name}");
+    }
+}
