@@ -140,6 +140,20 @@ pub struct Lead {
     pub samples: Vec<f32>,
 }
 
+/// A lead spanning less than this (µV, 0.5th to 99.5th percentile) is flat: no ECG lead is, even one at right
+/// angles to the heart's axis (its P and T waves and noise span tens of µV); a lead whose electrode is off, or a
+/// channel held at one level, is.
+// Common practice, no source: well under one digital step of most ECG recorders (0.5–5 µV).
+pub const FLAT_UV: f32 = 1.0;
+
+impl Lead {
+    /// True when the lead is flat (see [`FLAT_UV`]), or holds no valid sample.
+    #[must_use]
+    pub fn is_flat(&self) -> bool {
+        robust_span(&self.samples).is_none_or(|s| s < FLAT_UV)
+    }
+}
+
 /// Descriptive data about the recording and the person recorded. Any of it may identify a patient;
 /// [`Meta::deidentified`] keeps only sex and age (a great age as [`OLDEST_AGE_SHOWN`]).
 #[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
@@ -377,6 +391,25 @@ impl Recording {
                         }
                     ))
                 }
+            })
+            .collect()
+    }
+
+    /// One note per flat lead (see [`Lead::is_flat`]) with a valid sample, when not every lead is flat (then
+    /// [`Recording::amplitude_doubt`] speaks): such a lead is left out of the axis and its ST level is absent.
+    #[must_use]
+    pub fn flat_lead_notes(&self) -> Vec<String> {
+        if self.leads.iter().all(Lead::is_flat) {
+            return Vec::new();
+        }
+        self.leads
+            .iter()
+            .filter(|l| l.is_flat() && l.samples.iter().any(|v| v.is_finite()))
+            .map(|l| {
+                format!(
+                    "lead {} is flat (it spans under {FLAT_UV} µV, as when its electrode is off): it is left out of the axis and has no ST level",
+                    l.name
+                )
             })
             .collect()
     }

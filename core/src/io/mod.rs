@@ -128,7 +128,8 @@ pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
     let renamed = opened.recording.name_leads_uniquely();
     let doubt = opened.recording.amplitude_doubt();
     let missing = opened.recording.invalid_sample_notes();
-    let notes = renamed.into_iter().chain(doubt).chain(missing);
+    let flat = opened.recording.flat_lead_notes();
+    let notes = renamed.into_iter().chain(doubt).chain(missing).chain(flat);
     opened.warnings.extend(notes.map(|r| format!("{}: {r}", path.display())));
     Ok(opened)
 }

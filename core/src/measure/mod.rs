@@ -114,10 +114,23 @@ pub fn measure_with(
     };
     let (axes, st, limb_gain_mismatch_pct) = match template {
         Some(t) => {
-            let names = recording.leads.iter().map(|l| &l.name);
+            // A flat lead (an electrode off) shows no wave: it would pull the axis towards the leads it lies at
+            // right angles to, and read an ST level of 0.
+            let leads = || recording.leads.iter().zip(t.leads).filter(|(l, _)| !l.is_flat());
             let limb: Vec<(StandardLead, &[f32])> =
-                names.clone().zip(t.leads).filter_map(|(n, x)| n.standard().map(|s| (s, x.as_slice()))).collect();
-            let st = names.zip(t.leads).map(|(n, x)| st::st_level(n.clone(), x, &t.bounds, t.sample_rate)).collect();
+                leads().filter_map(|(l, x)| l.name.standard().map(|s| (s, x.as_slice()))).collect();
+            let st = recording
+                .leads
+                .iter()
+                .zip(t.leads)
+                .map(|(l, x)| {
+                    if l.is_flat() {
+                        st::StLevel { lead: l.name.clone(), j_uv: None, j60_uv: None }
+                    } else {
+                        st::st_level(l.name.clone(), x, &t.bounds, t.sample_rate)
+                    }
+                })
+                .collect();
             let mismatch = axis::qrs_limb_gains(&limb, &t.bounds, t.sample_rate)
                 .filter(einthoven::LimbGains::applies)
                 .map(|g| 100.0 * g.residual_before);

@@ -225,6 +225,11 @@ fn a_missing_lead_leaves_the_others_measured() {
     let i = s.recording.lead_index(&isoline_core::recording::LeadName::parse("I"));
     no_i.leads[i.unwrap_or_else(|| panic!("no lead I"))].samples.fill(f32::NAN);
     cases.push(("lead I missing".to_string(), no_i, 11));
+    // Lead I flat at -5 mV (its electrode off): left out as if missing. Before, it pulled the axis to 62° for 50°.
+    let mut flat_i = s.recording.clone();
+    flat_i.leads[i.unwrap_or_else(|| panic!("no lead I"))].samples.fill(-5000.0);
+    assert!(flat_i.flat_lead_notes()[0].starts_with("lead I is flat"), "{:?}", flat_i.flat_lead_notes());
+    cases.push(("lead I flat".to_string(), flat_i, 11));
     // Lead I with a single valid sample (too few for its median): as if missing. Lead I with every other sample
     // missing: each sample of its median still has half the beats.
     let mut one_i = s.recording.clone();
