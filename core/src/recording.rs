@@ -399,13 +399,15 @@ impl Recording {
     /// [`Recording::amplitude_doubt`] speaks): such a lead is left out of the axis and its ST level is absent.
     #[must_use]
     pub fn flat_lead_notes(&self) -> Vec<String> {
-        if self.leads.iter().all(Lead::is_flat) {
+        let flat: Vec<bool> = self.leads.iter().map(Lead::is_flat).collect();
+        if flat.iter().all(|&f| f) {
             return Vec::new();
         }
         self.leads
             .iter()
-            .filter(|l| l.is_flat() && l.samples.iter().any(|v| v.is_finite()))
-            .map(|l| {
+            .zip(flat)
+            .filter(|(l, flat)| *flat && l.samples.iter().any(|v| v.is_finite()))
+            .map(|(l, _)| {
                 format!(
                     "lead {} is flat (it spans under {FLAT_UV} µV, as when its electrode is off): it is left out of the axis and has no ST level",
                     l.name

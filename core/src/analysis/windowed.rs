@@ -72,9 +72,11 @@ pub fn analyze_in_windows(recording: &Recording, settings: &FilterSettings, wind
     }
 }
 
-/// What one window gives: its filters' description, its beats (samples of the window with its margins, which
-/// start at `a`), its P model, and the beats it keeps for the representative beat.
+/// What one window gives: its own samples `own` (of the whole recording), its filters' description, its beats
+/// (samples of the window with its margins, which start at `a`), its P model, and the beats it keeps for the
+/// representative beat.
 struct WindowResult {
+    own: std::ops::Range<usize>,
     a: usize,
     description: String,
     found: Vec<Beat>,
@@ -109,15 +111,14 @@ fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, stac
                 s.gather(&rec, &found, start - a..end - a);
                 s
             });
-            WindowResult { a, description: part_filtered.description, found, model, kept }
+            WindowResult { own: start..end, a, description: part_filtered.description, found, model, kept }
         })
         .collect();
     let mut stack = empty_stack;
     let mut beats: Vec<Beat> = Vec::new();
     let mut p_model: Option<PModel> = None;
     let mut description = None;
-    for (w, &start) in results.into_iter().zip(&starts) {
-        let end = (start + window).min(n);
+    for w in results {
         description = Some(w.description);
         if let Some(m) = w.model.filter(|m| p_model.as_ref().is_none_or(|best| m.consistency > best.consistency)) {
             p_model = Some(m);
@@ -128,7 +129,7 @@ fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, stac
         for b in w.found {
             let r = b.r + w.a;
             let after_last = beats.last().is_none_or(|l| r >= l.r + refractory);
-            if r + seam >= start && r < end && after_last {
+            if r + seam >= w.own.start && r < w.own.end && after_last {
                 beats.push(shifted(&b, w.a));
             }
         }

@@ -41,7 +41,6 @@ fn candidates(x: &[f32], fs: f64) -> Vec<usize> {
 
 /// The middle of the run of values equal to `x[k]` that ends at `k` (at most `reach` samples back); `k` itself
 /// when `x[k - 1]` differs, as it does at almost every peak.
-#[inline(never)]
 fn flat_top_middle(x: &[f32], k: usize, reach: usize) -> usize {
     if k == 0 || x[k - 1] != x[k] {
         return k;

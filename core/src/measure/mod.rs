@@ -31,7 +31,7 @@ pub use st::StLevel;
 pub use values::{KEYS, MeasuredValue};
 
 use crate::beat::{Beat, BeatKind, Boundaries};
-use crate::recording::{Recording, StandardLead};
+use crate::recording::{LeadName, Recording, StandardLead};
 use crate::units::Hertz;
 
 /// A representative beat as measurement sees it: one sample vector per lead, **in the order of the
@@ -116,18 +116,20 @@ pub fn measure_with(
         Some(t) => {
             // A flat lead (an electrode off) shows no wave: it would pull the axis towards the leads it lies at
             // right angles to, and read an ST level of 0.
-            let leads = || recording.leads.iter().zip(t.leads).filter(|(l, _)| !l.is_flat());
-            let limb: Vec<(StandardLead, &[f32])> =
-                leads().filter_map(|(l, x)| l.name.standard().map(|s| (s, x.as_slice()))).collect();
-            let st = recording
-                .leads
+            let leads: Vec<(&LeadName, &Vec<f32>, bool)> =
+                recording.leads.iter().zip(t.leads).map(|(l, x)| (&l.name, x, l.is_flat())).collect();
+            let limb: Vec<(StandardLead, &[f32])> = leads
                 .iter()
-                .zip(t.leads)
-                .map(|(l, x)| {
-                    if l.is_flat() {
-                        st::StLevel { lead: l.name.clone(), j_uv: None, j60_uv: None }
+                .filter(|(_, _, flat)| !flat)
+                .filter_map(|(n, x, _)| n.standard().map(|s| (s, x.as_slice())))
+                .collect();
+            let st = leads
+                .iter()
+                .map(|&(n, x, flat)| {
+                    if flat {
+                        st::StLevel { lead: n.clone(), j_uv: None, j60_uv: None }
                     } else {
-                        st::st_level(l.name.clone(), x, &t.bounds, t.sample_rate)
+                        st::st_level(n.clone(), x, &t.bounds, t.sample_rate)
                     }
                 })
                 .collect();
