@@ -16,6 +16,7 @@ pub mod caliper;
 pub mod delineate;
 pub mod detect;
 pub mod filter;
+pub mod gaps;
 pub mod io;
 pub mod measure;
 pub mod paper;

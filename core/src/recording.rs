@@ -420,21 +420,8 @@ impl Recording {
     /// on either side are not neighbours (see [`crate::measure::hrv`]).
     #[must_use]
     pub fn gaps(&self) -> Vec<std::ops::Range<usize>> {
-        let mut gaps = Vec::new();
-        let mut start = None;
-        for k in 0..self.len() {
-            let silent = self.leads.iter().all(|l| !l.samples[k].is_finite());
-            match (silent, start) {
-                (true, None) => start = Some(k),
-                (false, Some(a)) => {
-                    gaps.push(a..k);
-                    start = None;
-                }
-                _ => {}
-            }
-        }
-        gaps.extend(start.map(|a| a..self.len()));
-        gaps
+        let leads: Vec<&[f32]> = self.leads.iter().map(|l| l.samples.as_slice()).collect();
+        crate::gaps::find(&leads)
     }
 
     /// Number of samples per lead (0 for a recording without leads).

@@ -42,6 +42,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         anyhow::bail!("{}: the recording has no samples", args.file.display());
     }
     let fs = raw.sample_rate;
+    // No RR interval spans a stretch where nothing was recorded.
+    let gaps = raw.gaps();
     let settings = filter::FilterSettings::default();
     let (beats, filters) = if raw.duration_s() > analysis::LONG_RECORDING_S {
         // A long recording window by window: memory stays near the recording's own size.
@@ -54,7 +56,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         delineate::delineate_beats(&filtered.recording, &mut beats);
         (beats, filtered.description)
     };
-    let rr = detect::rr_ms(&beats, fs);
+    let rr = detect::rr_ms(&beats, fs, &gaps);
     let mut out = String::new();
     match args.format {
         BeatsFormat::Csv => {

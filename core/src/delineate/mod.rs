@@ -38,6 +38,11 @@ const T_MAX_S: f64 = 0.70;
 // Common practice, no source.
 const T_RR_FRACTION: f64 = 0.65;
 
+/// A P wave is sought from this long after a stretch with no recorded lead: one whose onset is hidden in the
+/// gap then lies partly before the search and is not placed.
+// Common practice, no source: a P wave's first 20 ms are its slow start, where its onset is judged.
+const AFTER_GAP_S: f64 = 0.020;
+
 /// Largest departure of a beat's R-to-T-end time from the record's median, s.
 // Common practice, no source: the QT interval adapts to rate over many beats and changes by a few tens of ms
 // from one beat to the next; a 100 ms jump marks a misplaced T end.
@@ -63,6 +68,9 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         let min_start = if i > 0 { rs[i - 1] + sig.samples(0.150).min((r - rs[i - 1]) / 2) } else { 0 };
         let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
         let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
+        // Where nothing was recorded within a search, the boundary may lie in the gap: none is given.
+        let on = on.filter(|_| !sig.bridged(r.saturating_sub(sig.samples(qrs::BEFORE_R_S)).max(min_start), r));
+        let end = end.filter(|_| !sig.bridged(r, (r + sig.samples(qrs::AFTER_R_S)).min(max_end)));
         let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
         t_waves.push(beat_t_waves(sig, r, on, end, rr_next, n));
         beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: None };
@@ -73,14 +81,16 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         b.bounds.t_end = t.as_ref().and_then(|t| twave::global_end(sig, t));
     }
     drop_outlying_t_ends(sig, beats);
-    // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R).
+    // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R), and
+    // [`AFTER_GAP_S`] after a stretch with no recorded lead before the QRS.
     let earliest: Vec<usize> = (0..beats.len())
         .map(|i| {
-            if i == 0 {
-                return 0;
-            }
-            let prev = &beats[i - 1];
-            prev.bounds.t_end.unwrap_or(prev.r + (rs[i] - prev.r) * 6 / 10)
+            let e = match i {
+                0 => 0,
+                _ => beats[i - 1].bounds.t_end.unwrap_or(beats[i - 1].r + (rs[i] - beats[i - 1].r) * 6 / 10),
+            };
+            let last_gap_end = sig.gaps[..sig.gaps.partition_point(|g| g.start < rs[i])].last().map(|g| g.end);
+            last_gap_end.map_or(e, |g| e.max(g + sig.samples(AFTER_GAP_S)))
         })
         .collect();
     let onsets: Vec<(usize, usize)> = beats
@@ -88,10 +98,12 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         .zip(&earliest)
         .filter(|(b, _)| b.kind == BeatKind::Dominant)
         .filter_map(|(b, &e)| b.bounds.qrs_on.map(|q| (q, e)))
+        .filter(|&(q, e)| !sig.bridged(e, q))
         .collect();
     let model = pwave::model(sig, &onsets)?;
     for (b, &e) in beats.iter_mut().zip(&earliest) {
-        if let Some((on, end)) = b.bounds.qrs_on.and_then(|q| model.for_beat(sig, q, e)) {
+        let q = b.bounds.qrs_on.filter(|&q| !sig.bridged(e, q));
+        if let Some((on, end)) = q.and_then(|q| model.for_beat(sig, q, e)) {
             b.bounds.p_on = Some(on);
             b.bounds.p_end = Some(end);
         }
@@ -114,6 +126,9 @@ fn beat_t_waves(
     let earliest = r + sig.samples(0.100);
     let from = end.map_or(earliest, |e| (e + sig.samples(0.050)).max(earliest));
     let to = (r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(limit.saturating_sub(1));
+    if sig.bridged(r, to + 1) {
+        return None;
+    }
     on.and_then(|q| twave::lead_ts(sig, q.saturating_sub(sig.samples(0.008)), from, to))
 }
 

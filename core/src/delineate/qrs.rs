@@ -67,6 +67,13 @@ const ROBUST_LEADS: usize = 4;
 // Common practice, no source.
 const END_REACH_S: f64 = 0.120;
 
+/// The QRS onset is sought at most this long before the R peak, s.
+// Common practice, no source: the QRS rarely starts more than 120 ms before its largest peak.
+pub(super) const BEFORE_R_S: f64 = 0.120;
+/// The J point is sought at most this long after the R peak, s.
+// Common practice, no source: even a wide QRS ends within 150 ms of its largest peak.
+pub(super) const AFTER_R_S: f64 = 0.150;
+
 /// QRS onset and J point around R peak `r`, as sample indices. `None` where no lead gives a clear edge.
 #[must_use]
 pub fn qrs_bounds(sig: &Signals, r: usize, min_start: usize, max_end: usize) -> (Option<usize>, Option<usize>) {
@@ -91,7 +98,7 @@ pub fn lead_edges(
     if n == 0 || r >= n {
         return Vec::new();
     }
-    let lo = r.saturating_sub(sig.samples(0.120)).max(min_start);
+    let lo = r.saturating_sub(sig.samples(BEFORE_R_S)).max(min_start);
     // After a pacing spike between the search start and R, the QRS can only start once the artefact is over.
     // (`spikes` is sorted: the last spike before R is found by bisection, not by a scan per beat.)
     let before_r = &sig.spikes[..sig.spikes.partition_point(|&s| s < r)];
@@ -99,7 +106,7 @@ pub fn lead_edges(
         Some(&s) => (s + sig.samples(AFTER_SPIKE_S)).min(r),
         None => lo,
     };
-    let hi = (r + sig.samples(0.150)).min(n - 1).min(max_end);
+    let hi = (r + sig.samples(AFTER_R_S)).min(n - 1).min(max_end);
     if lo >= hi {
         return Vec::new();
     }

@@ -2,8 +2,10 @@
 //! the multi-lead QRS slope envelope, and the pacing spikes found in the unfiltered leads.
 
 use std::borrow::Cow;
+use std::ops::Range;
 
 use crate::filter::{Biquad, fill_invalid, filtfilt};
+use crate::gaps;
 
 /// Low-pass cutoff for QRS boundaries, Hz.
 const QRS_LP_HZ: f64 = 40.0;
@@ -38,6 +40,8 @@ pub struct Signals<'a> {
     /// Largest over the leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so
     /// the first lead to start and the last to finish set the edges), smoothed over ≈ 10 ms. Dimensionless.
     pub env: Vec<f32>,
+    /// Stretches where no lead has a valid sample (see [`crate::gaps`]): no boundary is sought across one.
+    pub gaps: Vec<Range<usize>>,
     /// Pacing spikes: sorted sample indices where any unfiltered lead jumps away from and back to its local
     /// level within a few samples (see [`pacing_spikes`]).
     pub spikes: Vec<usize>,
@@ -83,7 +87,7 @@ impl<'a> Signals<'a> {
         let w = ((0.010 * fs).round() as usize).max(1) | 1;
         spikes.sort_unstable();
         spikes.dedup();
-        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), spikes }
+        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), gaps: gaps::find(leads), spikes }
     }
 
     /// Number of samples.
@@ -96,6 +100,13 @@ impl<'a> Signals<'a> {
     #[must_use]
     pub fn is_empty(&self) -> bool {
         self.env.is_empty()
+    }
+
+    /// True when samples `a..b` overlap a stretch where no lead was recorded: a boundary sought there could lie
+    /// inside it, on interpolated samples.
+    #[must_use]
+    pub fn bridged(&self, a: usize, b: usize) -> bool {
+        gaps::overlaps(&self.gaps, a, b)
     }
 
     /// Samples in `s` seconds (rounded).

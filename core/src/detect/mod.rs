@@ -8,7 +8,10 @@ mod typing;
 pub use typing::correlation;
 pub(crate) use typing::{ALIGN_S, WIN_S, matching_shift, push_levelled};
 
+use std::ops::Range;
+
 use crate::beat::{Beat, BeatKind};
+use crate::gaps;
 use crate::recording::Recording;
 use crate::units::Hertz;
 
@@ -31,7 +34,7 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     }
     let peaks = peaks::pick(&f.combined, fs);
     let r = place_r(&leads, &f.weights, &peaks, fs);
-    let dominant = typing::dominant(&leads, &f.weights, &r, fs);
+    let dominant = typing::dominant(&leads, &f.weights, &r, fs, &gaps::find(&leads));
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
 }
 
@@ -85,13 +88,16 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
     out
 }
 
-/// RR interval to the previous beat, ms (`None` for the first beat).
+/// RR interval to the previous beat, ms: `None` for the first beat and where one of `gaps` (stretches where no
+/// lead was recorded, see [`crate::gaps`]) lies between the two.
 #[must_use]
-pub fn rr_ms(beats: &[Beat], fs: Hertz) -> Vec<Option<f64>> {
+pub fn rr_ms(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Option<f64>> {
     let mut out = Vec::with_capacity(beats.len());
-    for (i, b) in beats.iter().enumerate() {
-        out.push((i > 0 && b.r > beats[i - 1].r).then(|| fs.ms_from_samples((b.r - beats[i - 1].r) as f64)));
-    }
+    out.extend(beats.first().map(|_| None));
+    out.extend(beats.windows(2).map(|w| {
+        let (a, b) = (w[0].r, w[1].r);
+        (b > a && !gaps::overlaps(gaps, a, b)).then(|| fs.ms_from_samples((b - a) as f64))
+    }));
     out
 }
 
@@ -144,9 +150,15 @@ mod tests {
             assert!(b.r.abs_diff(*t) <= 2, "{} vs {}", b.r, t);
             assert_eq!(b.kind, BeatKind::Dominant);
         }
-        let rr = rr_ms(&beats, Hertz::from_hz(fs).unwrap_or_else(|_| unreachable!()));
+        let hz = Hertz::from_hz(fs).unwrap_or_else(|_| unreachable!());
+        let rr = rr_ms(&beats, hz, &[]);
         assert_eq!(rr[0], None);
         assert!(rr[1..].iter().all(|v| v.is_some_and(|ms| (ms - 800.0).abs() <= 8.0)));
+        // A stretch of the recording with no valid sample between beats 3 and 4: no RR across it.
+        let gap = beats[3].r + 20..beats[4].r - 20;
+        let rr = rr_ms(&beats, hz, std::slice::from_ref(&gap));
+        assert_eq!(rr[4], None);
+        assert!(rr[3].is_some() && rr[5].is_some());
     }
 
     #[test]

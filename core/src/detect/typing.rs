@@ -1,6 +1,10 @@
 //! Beat typing: dominant versus other, by correlation with the dominant template (median of beats),
 //! QRS energy width and prematurity.
 
+use std::ops::Range;
+
+use crate::gaps;
+
 /// Window around the R peak compared with the template, s (before, after).
 pub(crate) const WIN_S: (f64, f64) = (0.080, 0.100);
 /// Correlation below which a beat's shape differs from the dominant one.
@@ -43,8 +47,10 @@ pub(crate) const ALIGN_S: f64 = 0.040;
 const COARSE_HZ: f64 = 200.0;
 
 /// Types each beat: `true` = dominant. `leads` are the samples (µV, NaN = invalid), `weights` the leads'
-/// detection weights (leads of weight 0 are not compared).
-pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> Vec<bool> {
+/// detection weights (leads of weight 0 are not compared), `gaps` the stretches where no lead was recorded (see
+/// [`crate::gaps`]): an RR across one is not an RR, so it neither makes a beat premature nor sets the local
+/// median.
+pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64, gaps: &[Range<usize>]) -> Vec<bool> {
     let n = leads_in.first().map_or(0, |l| l.len());
     let (a, b) = ((WIN_S.0 * fs) as usize, (WIN_S.1 * fs) as usize);
     let reach = (ALIGN_S * fs).round() as usize;
@@ -77,7 +83,7 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64) -> V
     if close.len() * 3 >= pool.len() {
         template = median_template(&close, len);
     }
-    let premature = premature_beats(r);
+    let premature = premature_beats(r, gaps);
     snippets
         .iter()
         .zip(r)
@@ -168,21 +174,24 @@ pub fn correlation(x: &[f32], y: &[f32]) -> f64 {
 /// the 8 RRs before and 8 after, AND — when enough ordinary RRs surround it — more than [`OUTLIER_SD`] SDs
 /// (of the 16 RRs before and 16 after) below that median. So in a regular rhythm a 15 % early beat is
 /// premature, while in atrial fibrillation or an irregular sinus rhythm, where short RRs are ordinary, a beat
-/// is `other` only by its shape.
-fn premature_beats(r: &[usize]) -> Vec<bool> {
-    let rr: Vec<f64> = r.windows(2).map(|w| (w[1] - w[0]) as f64).collect();
+/// is `other` only by its shape. An interval across one of `gaps` is no RR: it is left out of the medians and
+/// spreads, and the beat it ends is not judged by it.
+fn premature_beats(r: &[usize], gaps: &[Range<usize>]) -> Vec<bool> {
+    let rr: Vec<Option<f64>> =
+        r.windows(2).map(|w| (!gaps::overlaps(gaps, w[0], w[1])).then(|| (w[1] - w[0]) as f64)).collect();
     let mut buf = Vec::with_capacity(17);
     let mut ordinary = Vec::with_capacity(33);
     (0..r.len())
         .map(|i| {
-            if i == 0 || rr.is_empty() {
+            if i == 0 {
                 return false;
             }
             let j = i - 1; // rr[j] ends at beat i
+            let Some(own) = rr[j] else { return false };
             buf.clear();
-            buf.extend_from_slice(&rr[j.saturating_sub(8)..(j + 9).min(rr.len())]);
+            buf.extend(rr[j.saturating_sub(8)..(j + 9).min(rr.len())].iter().flatten());
             let m = median(&mut buf);
-            let short = |k: usize| rr[k] < PREMATURE * m;
+            let short = |k: usize| rr[k].is_some_and(|v| v < PREMATURE * m);
             if !short(j) {
                 return false;
             }
@@ -193,13 +202,13 @@ fn premature_beats(r: &[usize]) -> Vec<bool> {
             ordinary.extend(
                 (j.saturating_sub(16)..(j + 17).min(rr.len()))
                     .filter(|&k| k != j && k != j + 1 && (k == 0 || !short(k - 1)))
-                    .map(|k| (rr[k] - m).abs()),
+                    .filter_map(|k| rr[k].map(|v| (v - m).abs())),
             );
             if ordinary.len() < MIN_ORDINARY {
                 return true;
             }
             let sd = 1.4826 * median(&mut ordinary);
-            rr[j] < m - OUTLIER_SD * sd
+            own < m - OUTLIER_SD * sd
         })
         .collect()
 }
@@ -247,7 +256,7 @@ mod tests {
         for (i, &p) in r.iter().enumerate() {
             add_gaussian(&mut lead, p, 1000.0, if i == 10 { 12.0 } else { 4.0 }, 25);
         }
-        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs);
+        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs, &[]);
         assert!(!dom[10]);
         assert_eq!(dom.iter().filter(|&&d| d).count(), r.len() - 1);
     }
@@ -269,7 +278,7 @@ mod tests {
             t += 220 + (k % 2) * 4;
             k += 1;
         }
-        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs);
+        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs, &[]);
         assert!(dom.iter().all(|&d| d), "{} of {} beats dominant", dom.iter().filter(|&&d| d).count(), dom.len());
     }
 
@@ -287,7 +296,7 @@ mod tests {
         let mut rr: Vec<usize> = (0..30).map(|k| 200 + k % 3).collect();
         rr[15] = 160; // 20 % early
         rr[16] = 240; // compensatory pause
-        let p = premature_beats(&peaks(&rr));
+        let p = premature_beats(&peaks(&rr), &[]);
         assert_eq!(p.iter().filter(|&&b| b).count(), 1);
         assert!(p[16]);
     }
@@ -303,15 +312,28 @@ mod tests {
             })
             .collect();
         assert!(rr.iter().filter(|&&v| v < 170).count() >= 5, "the pattern must hold short RRs");
-        assert!(premature_beats(&peaks(&rr)).iter().all(|&b| !b));
+        assert!(premature_beats(&peaks(&rr), &[]).iter().all(|&b| !b));
     }
 
     #[test]
     fn trigeminy_stays_premature() {
         // Normal, short, pause, normal, short, pause…: the early beats stand out from the steady normal RRs.
         let rr: Vec<usize> = (0..30).map(|k| [200, 140, 250][k % 3]).collect();
-        let p = premature_beats(&peaks(&rr));
+        let p = premature_beats(&peaks(&rr), &[]);
         let expected: Vec<bool> = (0..p.len()).map(|i| i > 0 && (i - 1) % 3 == 1).collect();
         assert_eq!(p, expected);
+    }
+
+    #[test]
+    fn an_interval_across_a_gap_is_no_rr() {
+        // A steady rhythm (RR 200) where two intervals in three hold a stretch with no recorded lead and read
+        // twice as long (a beat lost in the gap): those are not RRs. Counted, they doubled the local median and
+        // made beats after an ordinary RR premature.
+        let rr: Vec<usize> = (0..30).map(|k| [200, 400, 400][k % 3]).collect();
+        let r = peaks(&rr);
+        let gaps: Vec<Range<usize>> =
+            r.windows(2).filter(|w| w[1] - w[0] == 400).map(|w| w[0] + 150..w[0] + 250).collect();
+        assert!(premature_beats(&r, &gaps).iter().all(|&p| !p));
+        assert!(premature_beats(&r, &[]).iter().filter(|&&p| p).count() >= 3);
     }
 }

@@ -10,6 +10,7 @@
 use std::ops::Range;
 
 use crate::beat::{Beat, BeatKind};
+use crate::gaps;
 use crate::units::{Hertz, bpm_from_rr_ms};
 
 use super::stats::{mean, sample_sd};
@@ -81,12 +82,6 @@ impl Rhythm {
     }
 }
 
-/// True when samples `a..b` overlap one of `gaps` (sorted, disjoint sample ranges).
-fn spans_gap(gaps: &[Range<usize>], a: usize, b: usize) -> bool {
-    let i = gaps.partition_point(|g| g.end <= a);
-    gaps.get(i).is_some_and(|g| g.start < b)
-}
-
 /// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts or a gap of the
 /// recording (`gaps`, sorted) lies between two beats.
 #[must_use]
@@ -104,7 +99,8 @@ pub fn nn_pairs(beats: &[Beat], gaps: &[Range<usize>]) -> Vec<Vec<(usize, usize)
     let mut current = Vec::new();
     for w in beats.windows(2) {
         let (a, b) = (&w[0], &w[1]);
-        if a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant && b.r > a.r && !spans_gap(gaps, a.r, b.r) {
+        if a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant && b.r > a.r && !gaps::overlaps(gaps, a.r, b.r)
+        {
             current.push((a.r, b.r));
         } else if !current.is_empty() {
             runs.push(std::mem::take(&mut current));
@@ -146,7 +142,7 @@ pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
         vec![
             beats
                 .windows(2)
-                .filter(|w| w[1].r > w[0].r && !spans_gap(gaps, w[0].r, w[1].r))
+                .filter(|w| w[1].r > w[0].r && !gaps::overlaps(gaps, w[0].r, w[1].r))
                 .map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64))
                 .collect(),
         ]
@@ -203,9 +199,6 @@ mod tests {
         let s = rr_stats(&b, fs(), &[]);
         assert_eq!(s.nn_count, 7);
         assert_eq!(s.rhythm.regular, Some(false));
-        // Samples a..b against the gap's range, both half-open: ranges that only touch do not overlap.
-        assert!(spans_gap(&[10..20], 0, 11) && spans_gap(&[10..20], 19, 30));
-        assert!(!spans_gap(&[10..20], 0, 10) && !spans_gap(&[10..20], 20, 30));
     }
 
     #[test]
