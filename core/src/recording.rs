@@ -271,6 +271,15 @@ fn invalid_runs(x: &[f32]) -> (usize, usize) {
     (total, longest)
 }
 
+/// Lead names as prose: "I, II and V1".
+fn join_names(leads: &[&Lead]) -> String {
+    let names: Vec<String> = leads.iter().map(|l| l.name.to_string()).collect();
+    match names.split_last() {
+        Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
+        _ => names.concat(),
+    }
+}
+
 /// `n` as an English ordinal: 1st, 2nd, 3rd, 4th, 11th, 21st…
 fn ordinal(n: usize) -> String {
     let suffix = match (n % 10, n % 100) {
@@ -357,42 +366,72 @@ impl Recording {
         }
     }
 
-    /// One note per lead with invalid (missing) samples, said once when the recording is opened: a lead with none
-    /// valid is drawn blank and takes no part in the measurements; a lead with gaps is interpolated across them
-    /// for the analysis, so its beats there are found and measured on the other leads (in a one-lead recording,
-    /// not at all, and no RR interval spans a gap: [`Recording::gaps`]). Either way the reader should know part of
-    /// the record is not there.
+    /// One note per set of leads missing the same samples, said once when the recording is opened: a lead with
+    /// none valid is drawn blank and takes no part in the measurements; a lead with gaps is interpolated across
+    /// them for the analysis, so its beats there are found and measured on the other leads. Where no lead was
+    /// recorded ([`Recording::gaps`]: every lead alike, a one-lead recording, or different leads missing at
+    /// overlapping times, which gets a note of its own), beats are not measured and no RR interval spans the gap.
+    /// Either way the reader should know part of the record is not there.
     #[must_use]
     pub fn invalid_sample_notes(&self) -> Vec<String> {
         let fs = self.sample_rate.hz();
-        self.leads
+        // Leads missing exactly the same samples share one note (an unplugged recorder loses every lead at
+        // once; twelve alike notes would bury the point that nothing was recorded then).
+        let mut groups: Vec<Vec<&Lead>> = Vec::new();
+        for lead in self.leads.iter().filter(|l| l.samples.iter().any(|v| !v.is_finite())) {
+            let same_mask = |g: &&mut Vec<&Lead>| {
+                g[0].samples.iter().zip(&lead.samples).all(|(a, b)| a.is_finite() == b.is_finite())
+            };
+            match groups.iter_mut().find(same_mask) {
+                Some(g) => g.push(lead),
+                None => groups.push(vec![lead]),
+            }
+        }
+        let mut notes: Vec<String> = groups
             .iter()
-            .filter_map(|lead| {
+            .map(|group| {
+                let lead = group[0];
                 let (invalid, longest) = invalid_runs(&lead.samples);
-                if invalid == 0 {
-                    None
-                } else if invalid == lead.samples.len() {
-                    Some(format!(
-                        "lead {} holds no valid sample: it is drawn blank and left out of the measurements",
-                        lead.name
-                    ))
-                } else {
-                    Some(format!(
-                        "lead {} has {invalid} missing sample{} ({:.1} % of it; the longest gap {:.3} s): {}",
-                        lead.name,
-                        if invalid == 1 { "" } else { "s" },
-                        // Rounded down: a lead with one valid sample is not "100.0 %" missing.
-                        (1000.0 * invalid as f64 / lead.samples.len() as f64).floor() / 10.0,
-                        longest as f64 / fs,
-                        if self.leads.len() > 1 {
-                            "the analysis bridges them and measures beats there on the other leads"
-                        } else {
-                            "beats there are not measured, and no RR interval spans a gap"
-                        }
-                    ))
+                let every = group.len() == self.leads.len();
+                // Who, the verb agreeing with it, and how the count applies.
+                let (who, has, holds, they, each) = match group.len() {
+                    1 => (format!("lead {}", lead.name), "has", "holds", "it is", ""),
+                    _ if every => ("every lead".to_owned(), "has", "holds", "they are", ", at the same times"),
+                    _ => {
+                        (format!("leads {}", join_names(group)), "have", "hold", "they are", " each, at the same times")
+                    }
+                };
+                if invalid == lead.samples.len() {
+                    return format!(
+                        "{who} {holds} no valid sample: {they} drawn blank and left out of the measurements"
+                    );
                 }
+                format!(
+                    "{who} {has} {invalid} missing sample{}{each} ({:.1} % of it; the longest gap {:.3} s): {}",
+                    if invalid == 1 { "" } else { "s" },
+                    // Rounded down: a lead with one valid sample is not "100.0 %" missing.
+                    (1000.0 * invalid as f64 / lead.samples.len() as f64).floor() / 10.0,
+                    longest as f64 / fs,
+                    if every {
+                        "nothing was recorded then, so beats there are not measured, and no RR interval spans a gap"
+                    } else {
+                        "the analysis bridges them and measures beats there on the other leads"
+                    }
+                )
             })
-            .collect()
+            .collect();
+        // Different leads missing at overlapping times also leave stretches with no lead at all.
+        let gaps = self.gaps();
+        if !gaps.is_empty() && !groups.iter().any(|g| g.len() == self.leads.len()) {
+            let total: usize = gaps.iter().map(ExactSizeIterator::len).sum();
+            let longest = gaps.iter().map(ExactSizeIterator::len).max().unwrap_or(0);
+            notes.push(format!(
+                "no lead was recorded for {:.3} s in all (the longest stretch {:.3} s): beats there are not measured, and no RR interval spans such a stretch",
+                total as f64 / fs,
+                longest as f64 / fs
+            ));
+        }
+        notes
     }
 
     /// One note per flat lead (see [`Lead::is_flat`]) with a valid sample, when not every lead is flat (then
@@ -535,6 +574,37 @@ mod tests {
         let r = rec(vec![Lead { name: LeadName::parse("I"), samples: one_left }]);
         let notes = r.invalid_sample_notes();
         assert!(notes[0].starts_with("lead I has 14999 missing samples (99.9 % of it"), "{}", notes[0]);
+    }
+
+    #[test]
+    fn leads_missing_the_same_samples_share_a_note() {
+        let gap = |from: usize, to: usize| {
+            let mut x = vec![1.0f32; 1000];
+            x[from..to].fill(f32::NAN);
+            x
+        };
+        let lead = |name: &str, samples: Vec<f32>| Lead { name: LeadName::parse(name), samples };
+        // Every lead loses the same 0.4 s (a recorder unplugged): one note, saying nothing was recorded then.
+        let every = rec(["I", "II", "V1"].into_iter().map(|n| lead(n, gap(100, 300))).collect());
+        assert_eq!(
+            every.invalid_sample_notes(),
+            ["every lead has 200 missing samples, at the same times (20.0 % of it; the longest gap 0.400 s): \
+              nothing was recorded then, so beats there are not measured, and no RR interval spans a gap"]
+        );
+        // Two of three alike; the third whole.
+        let two = rec(vec![lead("I", gap(100, 300)), lead("II", gap(100, 300)), lead("V1", vec![0.0; 1000])]);
+        let notes = two.invalid_sample_notes();
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(notes[0].starts_with("leads I and II have 200 missing samples each, at the same times"), "{notes:?}");
+        assert!(notes[0].ends_with("measures beats there on the other leads"), "{notes:?}");
+        // Different stretches that overlap leave 0.1 s with no lead at all: said once more.
+        let overlap = rec(vec![lead("I", gap(100, 300)), lead("II", gap(250, 400))]);
+        let notes = overlap.invalid_sample_notes();
+        assert_eq!(notes.len(), 3, "{notes:?}");
+        assert!(
+            notes[2].starts_with("no lead was recorded for 0.100 s in all (the longest stretch 0.100 s)"),
+            "{notes:?}"
+        );
     }
 
     #[test]

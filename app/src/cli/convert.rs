@@ -59,6 +59,19 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         }
     }
     let rec = &opened.recording;
+    if !matches!(target, Target::Edf) && !rec.annotations.is_empty() {
+        // Said, not silently lost: CSV has no place for annotations.
+        let n = rec.annotations.len();
+        eprintln!(
+            "isoline: {}: {n} annotation{} not written (a CSV holds samples only; convert to .edf to keep them)",
+            if matches!(target, Target::Stdout) {
+                "standard output".to_owned()
+            } else {
+                args.out.display().to_string()
+            },
+            if n == 1 { "" } else { "s" }
+        );
+    }
     match target {
         Target::Stdout => {
             let stdout = std::io::stdout();

@@ -102,6 +102,19 @@ fn convert_to_csv_reproduces_the_reference_values() -> TestResult {
 }
 
 #[test]
+fn convert_to_csv_says_the_annotations_are_left_behind() -> TestResult {
+    // Before, a record's beat annotations vanished from a CSV without a word.
+    let out = isoline(&["convert", &path_str(&data("qtdb/sel100")), "--out", "-"])?;
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let err = String::from_utf8(out.stderr)?;
+    assert!(
+        err.contains("standard output: ") && err.contains("annotations not written (a CSV holds samples only"),
+        "{err}"
+    );
+    Ok(())
+}
+
+#[test]
 fn convert_through_edf_keeps_the_reference_values() -> TestResult {
     let reference = reference()?;
     let dir = tempfile::tempdir()?;

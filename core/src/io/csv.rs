@@ -35,7 +35,7 @@ fn value(cell: &str) -> Result<Option<f64>, ()> {
 /// # Errors
 /// [`ReadError`] naming the line and column at fault.
 pub fn read(path: &Path, rate_hz: Option<f64>) -> Result<Opened, ReadError> {
-    let file = std::fs::File::open(path).map_err(|e| ReadError::io(path, e))?;
+    let file = crate::io::open_file(path)?;
     let len = file.metadata().map(|m| m.len()).ok();
     read_inner(path, std::io::BufReader::with_capacity(1 << 20, file), rate_hz, len)
 }

@@ -159,9 +159,26 @@ pub fn printable(s: &str) -> String {
     s.chars().map(|c| if matches!(c, ' '..='~') { c.to_string() } else { c.escape_default().to_string() }).collect()
 }
 
-/// Reads a whole file, mapping the error to [`ReadError::Io`].
+/// Opens a file for reading, refusing anything but a regular file (or a link to one): opening a named pipe
+/// waits for a writer that may never come, and a folder or device is no recording.
+///
+/// # Errors
+/// [`ReadError::Io`] naming `path`.
+pub(crate) fn open_file(path: &Path) -> Result<std::fs::File, ReadError> {
+    let meta = std::fs::metadata(path).map_err(|e| ReadError::io(path, e))?;
+    if !meta.is_file() {
+        let what = if meta.is_dir() { "a folder" } else { "not a regular file (a pipe, socket or device)" };
+        return Err(ReadError::io(path, std::io::Error::new(std::io::ErrorKind::InvalidInput, format!("is {what}"))));
+    }
+    std::fs::File::open(path).map_err(|e| ReadError::io(path, e))
+}
+
+/// Reads a whole regular file (see [`open_file`]), mapping the error to [`ReadError::Io`].
 pub(crate) fn read_bytes(path: &Path) -> Result<Vec<u8>, ReadError> {
-    std::fs::read(path).map_err(|e| ReadError::io(path, e))
+    use std::io::Read;
+    let mut bytes = Vec::new();
+    open_file(path)?.read_to_end(&mut bytes).map_err(|e| ReadError::io(path, e))?;
+    Ok(bytes)
 }
 
 /// Writes a file atomically through [`atomic::write_with`] (temporary file, sync, rename, sync the folder). On
@@ -184,6 +201,25 @@ pub(crate) fn file_len(path: &Path) -> Result<u64, ReadError> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    #[cfg(unix)]
+    fn a_pipe_or_folder_is_refused_without_waiting() -> Result<(), Box<dyn std::error::Error>> {
+        // Before, a named pipe called *.csv or *.hea was opened and read, waiting for a writer that never came.
+        let dir = tempfile::tempdir()?;
+        for name in ["pipe.csv", "pipe.hea", "pipe.edf"] {
+            let fifo = dir.path().join(name);
+            let made = std::process::Command::new("mkfifo").arg(&fifo).status()?;
+            assert!(made.success(), "mkfifo {name}");
+            let err = open(&fifo, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+            assert!(err.contains("not a regular file") && err.contains(name), "{err}");
+        }
+        let folder = dir.path().join("folder.csv");
+        std::fs::create_dir(&folder)?;
+        let err = open(&folder, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(err.contains("is a folder"), "{err}");
+        Ok(())
+    }
 
     #[test]
     fn missing_path_without_extension_is_not_found() -> std::io::Result<()> {

@@ -1,7 +1,6 @@
 //! Which recording a review belongs to: its file name, where it lies relative to the review, and the
 //! SHA-256 of its signal content, so that a review is never applied to another recording by mistake.
 
-use std::fs::File;
 use std::io::{Read, Seek, SeekFrom};
 use std::path::{Component, Path, PathBuf};
 
@@ -106,7 +105,7 @@ fn wfdb_signal_files(hea: &Path) -> Result<Vec<PathBuf>, ReadError> {
     if len > 1 << 20 {
         return Err(ReadError::invalid(hea, format!("header is {len} bytes, more than 1 MiB")));
     }
-    let bytes = std::fs::read(hea).map_err(|e| ReadError::io(hea, e))?;
+    let bytes = crate::io::read_bytes(hea)?;
     let header = wfdb::parse_header(hea, &String::from_utf8_lossy(&bytes))?;
     let dir = hea.parent().unwrap_or(Path::new(""));
     let mut files: Vec<PathBuf> = Vec::new();
@@ -125,7 +124,7 @@ fn wfdb_signal_files(hea: &Path) -> Result<Vec<PathBuf>, ReadError> {
 /// Length of an EDF header: the ASCII number of bytes at offset 184 (8 bytes). Source: Kemp et al. 1992,
 /// Electroencephalogr Clin Neurophysiol 82:391-393 (EDF header layout). From memory.
 fn edf_header_len(path: &Path) -> Result<u64, ReadError> {
-    let mut f = File::open(path).map_err(|e| ReadError::io(path, e))?;
+    let mut f = crate::io::open_file(path)?;
     let mut head = [0u8; 192];
     f.read_exact(&mut head).map_err(|_| ReadError::invalid(path, "shorter than an EDF header (192 bytes)"))?;
     let field = String::from_utf8_lossy(&head[184..192]);
@@ -143,7 +142,7 @@ fn edf_header_len(path: &Path) -> Result<u64, ReadError> {
 }
 
 fn hash_file(hasher: &mut Sha256, path: &Path, offset: u64) -> Result<(), ReadError> {
-    let mut f = File::open(path).map_err(|e| ReadError::io(path, e))?;
+    let mut f = crate::io::open_file(path)?;
     f.seek(SeekFrom::Start(offset)).map_err(|e| ReadError::io(path, e))?;
     let mut buf = vec![0u8; 1 << 16];
     loop {

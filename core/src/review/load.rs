@@ -33,7 +33,12 @@ fn present<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u64>, D::Err
 /// an unknown or missing field; [`ReviewError::UnsupportedVersion`] for a version this program does not read.
 pub fn load(path: &Path) -> Result<Review, ReviewError> {
     let io = |source| ReviewError::Io { path: path.to_path_buf(), source };
-    let len = std::fs::metadata(path).map_err(io)?.len();
+    let meta = std::fs::metadata(path).map_err(io)?;
+    if !meta.is_file() {
+        // A named pipe would wait for a writer; a folder or device is no review.
+        return Err(io(std::io::Error::new(std::io::ErrorKind::InvalidInput, "is not a regular file")));
+    }
+    let len = meta.len();
     if len > MAX_REVIEW_BYTES {
         return Err(parse_error(path, 1, 1, None, format!("{len} bytes is too large for a review file")));
     }

@@ -29,22 +29,27 @@ fn has_extension(path: &Path, exts: &[&str]) -> bool {
 }
 
 /// True when the CSV text's header row (the first line that is neither blank nor a `#` comment) has `time_s` as
-/// its first column, as Isoline writes recordings; other tables (labels, summaries) are not recordings.
+/// its first column, as Isoline writes recordings; other tables (labels, summaries) are not recordings. A
+/// header separated by semicolons or tabs counts too, so that the reader says why it cannot take the file
+/// rather than the walk passing over a recording unsaid.
 fn csv_text_looks_like_recording(text: &str) -> bool {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     text.lines()
         .map(str::trim)
         .find(|l| !l.is_empty() && !l.starts_with('#'))
-        .and_then(|header| header.split(',').next())
+        .and_then(|header| header.split([',', ';', '\t']).next())
         .is_some_and(|first| first.trim().trim_matches('"').trim().eq_ignore_ascii_case("time_s"))
 }
 
-/// Reads the start of a `.csv` file and tells whether it looks like a recording; unreadable files do not.
-fn csv_looks_like_recording(path: &Path) -> bool {
+/// Reads the start of a `.csv` file and tells whether it looks like a recording; one that cannot be read is an
+/// error (it might be one).
+fn csv_looks_like_recording(path: &Path) -> Result<bool, String> {
     use std::io::Read as _;
     let mut head = Vec::new();
-    let read = std::fs::File::open(path).and_then(|f| f.take(CSV_SNIFF_BYTES).read_to_end(&mut head));
-    read.is_ok() && csv_text_looks_like_recording(&String::from_utf8_lossy(&head))
+    std::fs::File::open(path)
+        .and_then(|f| f.take(CSV_SNIFF_BYTES).read_to_end(&mut head))
+        .map_err(|e| format!("cannot read: {e}"))?;
+    Ok(csv_text_looks_like_recording(&String::from_utf8_lossy(&head)))
 }
 
 /// Whether a file found in a folder is a recording: named as one (`.csv` files are sniffed for a `time_s`
@@ -57,7 +62,10 @@ fn is_recording(path: &Path) -> Result<bool, String> {
         return Ok(false);
     }
     let meta = std::fs::metadata(path).map_err(|e| format!("cannot read: {e}"))?;
-    Ok(meta.is_file() && (!csv || csv_looks_like_recording(path)))
+    if !meta.is_file() {
+        return Ok(false);
+    }
+    if csv { csv_looks_like_recording(path) } else { Ok(true) }
 }
 
 fn walk_dir(dir: &Path, depth: usize, found: &mut Found) {
@@ -196,6 +204,9 @@ mod tests {
         assert!(csv_text_looks_like_recording("time_s,I\n0,1\n"));
         assert!(csv_text_looks_like_recording("\u{feff}\n# comment\n \"TIME_S\" , II\n"));
         assert!(!csv_text_looks_like_recording("I,II,time_s\n1,2,0\n"));
+        // A spreadsheet's semicolons or tabs: taken, so that the reader names the separator it cannot read.
+        assert!(csv_text_looks_like_recording("time_s;I;II\n0;0,5;1\n"));
+        assert!(csv_text_looks_like_recording("time_s\tI\n0\t1\n"));
         assert!(!csv_text_looks_like_recording("record,rhythm\n"));
         assert!(!csv_text_looks_like_recording(""));
     }

@@ -98,7 +98,7 @@ fn choose_leads(
 /// an EDF+D file.
 pub fn read(path: &Path) -> Result<Opened, ReadError> {
     let len = file_len(path)?;
-    let mut file = std::fs::File::open(path).map_err(|e| ReadError::io(path, e))?;
+    let mut file = crate::io::open_file(path)?;
     let mut fixed_bytes = Vec::with_capacity(header::FIXED_BYTES);
     (&mut file).take(header::FIXED_BYTES as u64).read_to_end(&mut fixed_bytes).map_err(|e| ReadError::io(path, e))?;
     let fixed = header::parse_fixed(path, &fixed_bytes)?;

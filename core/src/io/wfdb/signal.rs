@@ -50,7 +50,7 @@ pub fn read_signals(
     use std::io::{Seek, SeekFrom};
     let fb = frame_bytes(format, n_sig)
         .ok_or_else(|| ReadError::unsupported(path, format!("signal format {format} (supported: 16, 61, 80, 212)")))?;
-    let mut file = std::fs::File::open(path).map_err(|e| ReadError::io(path, e))?;
+    let mut file = crate::io::open_file(path)?;
     file.seek(SeekFrom::Start(offset)).map_err(|e| ReadError::io(path, e))?;
     let mut out =
         Decoded { samples: (0..n_sig).map(|_| Vec::with_capacity(n_frames)).collect(), checksums: vec![0; n_sig] };
