@@ -130,8 +130,8 @@ pub fn draw_page(
         painter.add(Shape::line(pulse, trace));
         for cell in &row.cells {
             let Some(lead) = rec.leads.get(cell.lead) else { continue };
-            let pts = trace_points(&geo, row, cell, (&lead.samples, shown.first), rec.sample_rate.hz(), ppp);
-            if pts.len() > 1 {
+            let runs = trace_points(&geo, row, cell, (&lead.samples, shown.first), rec.sample_rate.hz(), ppp);
+            for pts in runs.into_iter().filter(|pts| pts.len() > 1) {
                 painter.add(Shape::line(pts, trace));
             }
             painter.text(
@@ -193,10 +193,12 @@ fn draw_grid(painter: &egui::Painter, geo: &SheetGeometry, pal: &Palette, page_r
     }
 }
 
-/// Screen points of one cell's trace: every sample when there are at most two per pixel column, otherwise the
-/// minimum and maximum of each pixel column ([`decimate_min_max`], as on the exported page), the one nearer the
-/// column's first sample first. `held` is the lead's samples from sample `held.1` of the recording on (a span of
-/// a long recording's filtered signal, or the whole lead from 0).
+/// Screen points of one cell's trace, as runs to draw each as one line: every sample when there are at most two
+/// per pixel column, otherwise the minimum and maximum of each pixel column ([`decimate_min_max`], as on the
+/// exported page), the one nearer the column's first sample first. Missing samples (NaN) end a run, so the paper
+/// stays blank where nothing was recorded rather than showing a line bridging the gap. `held` is the lead's
+/// samples from sample `held.1` of the recording on (a span of a long recording's filtered signal, or the whole
+/// lead from 0).
 #[must_use]
 pub fn trace_points(
     geo: &SheetGeometry,
@@ -205,7 +207,7 @@ pub fn trace_points(
     held: (&[f32], usize),
     rate_hz: f64,
     pixels_per_point: f32,
-) -> Vec<Pos2> {
+) -> Vec<Vec<Pos2>> {
     let paper = geo.page.paper;
     let (samples, from) = held;
     let end = from + samples.len();
@@ -219,20 +221,71 @@ pub fn trace_points(
     let x_of = |k: usize| geo.x_of_time(cell, k as f64 / rate_hz);
     let px_per_s = paper.speed_mm_per_s as f32 * geo.points_per_mm * pixels_per_point;
     let samples_per_px = rate_hz as f32 / px_per_s.max(1e-3);
+    let mut runs: Vec<Vec<Pos2>> = Vec::new();
+    let mut run: Vec<Pos2> = Vec::new();
     if samples_per_px <= 2.0 {
-        return (first..=last).filter(|&k| sample(k).is_finite()).map(|k| Pos2::new(x_of(k), y(sample(k)))).collect();
+        for k in first..=last {
+            if sample(k).is_finite() {
+                run.push(Pos2::new(x_of(k), y(sample(k))));
+            } else if !run.is_empty() {
+                runs.push(std::mem::take(&mut run));
+            }
+        }
+    } else {
+        // Same min/max column decimation as the exported page, in physical pixels; a column without a valid
+        // sample is left out, and the run breaks there.
+        let x0_px = f64::from(x_of(first) * pixels_per_point);
+        let px_per_sample = f64::from(px_per_s) / rate_hz;
+        let mut prev_x = None;
+        for c in decimate_min_max(&samples[first - from..=last - from], x0_px, px_per_sample) {
+            if prev_x.is_some_and(|x| x + 1 != c.x) && !run.is_empty() {
+                runs.push(std::mem::take(&mut run));
+            }
+            prev_x = Some(c.x);
+            let x = c.x as f32 / pixels_per_point;
+            // Start with the extreme nearer the column's first sample, so the line follows the order of the
+            // samples.
+            let (p, q) =
+                if (c.first - c.min).abs() <= (c.first - c.max).abs() { (c.min, c.max) } else { (c.max, c.min) };
+            run.push(Pos2::new(x, y(p)));
+            run.push(Pos2::new(x, y(q)));
+        }
     }
-    // Same min/max column decimation as the exported page, in physical pixels.
-    let x0_px = f64::from(x_of(first) * pixels_per_point);
-    let px_per_sample = f64::from(px_per_s) / rate_hz;
-    let columns = decimate_min_max(&samples[first - from..=last - from], x0_px, px_per_sample);
-    let mut pts = Vec::with_capacity(columns.len() * 2);
-    for c in columns {
-        let x = c.x as f32 / pixels_per_point;
-        // Start with the extreme nearer the column's first sample, so the line follows the order of the samples.
-        let (p, q) = if (c.first - c.min).abs() <= (c.first - c.max).abs() { (c.min, c.max) } else { (c.max, c.min) };
-        pts.push(Pos2::new(x, y(p)));
-        pts.push(Pos2::new(x, y(q)));
+    if !run.is_empty() {
+        runs.push(run);
     }
-    pts
+    runs
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use isoline_core::paper::{Layout, PageSpec};
+    use isoline_core::recording::{Lead, LeadName, Meta};
+
+    #[test]
+    fn a_gap_leaves_the_paper_blank() {
+        // 10 s of lead II at 500 Hz with nothing recorded from 3 to 4 s. Before, the points on either side were
+        // joined, and the Sheet drew a straight line across the gap (the exported page already left it blank).
+        let mut samples: Vec<f32> = (0..5000).map(|k| (k as f32 * 0.05).sin() * 500.0).collect();
+        samples[1500..2000].fill(f32::NAN);
+        let rec = Recording {
+            leads: vec![Lead { name: LeadName::parse("II"), samples }],
+            sample_rate: isoline_core::units::Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!()),
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        };
+        let spec = PageSpec { layout: Layout::Strip(LeadName::parse("II")), ..PageSpec::default() };
+        // 4 points per mm: 5 samples per pixel column (decimated); 40: half a sample per column (every sample).
+        for points_per_mm in [4.0f32, 40.0] {
+            let geo = SheetGeometry { origin: Pos2::ZERO, points_per_mm, page: spec.page(&rec) };
+            let (row, cell) = (&geo.page.rows[0], &geo.page.rows[0].cells[0]);
+            let runs = trace_points(&geo, row, cell, (&rec.leads[0].samples, 0), 500.0, 1.0);
+            assert_eq!(runs.len(), 2, "{points_per_mm} points/mm");
+            let (gap_from, gap_to) = (geo.x_of_time(cell, 3.0), geo.x_of_time(cell, 3.998));
+            let inside = runs.iter().flatten().filter(|p| p.x > gap_from + 1.0 && p.x < gap_to - 1.0).count();
+            assert_eq!(inside, 0, "{points_per_mm} points/mm");
+        }
+    }
 }
