@@ -387,6 +387,7 @@ impl Recording {
                 None => groups.push(vec![lead]),
             }
         }
+        let (min_gap, min_gap_ms) = ((crate::gaps::MIN_GAP_S * fs).ceil() as usize, crate::gaps::MIN_GAP_S * 1000.0);
         let mut notes: Vec<String> = groups
             .iter()
             .map(|group| {
@@ -412,10 +413,14 @@ impl Recording {
                     // Rounded down: a lead with one valid sample is not "100.0 %" missing.
                     (1000.0 * invalid as f64 / lead.samples.len() as f64).floor() / 10.0,
                     longest as f64 / fs,
-                    if every {
-                        "nothing was recorded then, so beats there are not measured, and no RR interval spans a gap"
-                    } else {
-                        "the analysis bridges them and measures beats there on the other leads"
+                    match (every, longest >= min_gap) {
+                        (true, true) => format!(
+                            "nothing was recorded then, so no beat is measured within a gap of {min_gap_ms:.0} ms or \
+                             more, and no RR interval spans one"
+                        ),
+                        (true, false) => format!("each gap is under {min_gap_ms:.0} ms, and the analysis bridges it"),
+                        (false, _) =>
+                            "the analysis bridges them and measures beats there on the other leads".to_owned(),
                     }
                 )
             })
@@ -455,12 +460,12 @@ impl Recording {
             .collect()
     }
 
-    /// Stretches (sorted sample ranges) where no lead has a valid sample: nothing was recorded there, so beats
-    /// on either side are not neighbours (see [`crate::measure::hrv`]).
+    /// Stretches (sorted sample ranges) of at least [`crate::gaps::MIN_GAP_S`] where no lead has a valid sample:
+    /// nothing was recorded there, so beats on either side are not neighbours (see [`crate::measure::hrv`]).
     #[must_use]
     pub fn gaps(&self) -> Vec<std::ops::Range<usize>> {
         let leads: Vec<&[f32]> = self.leads.iter().map(|l| l.samples.as_slice()).collect();
-        crate::gaps::find(&leads)
+        crate::gaps::find(&leads, self.sample_rate.hz())
     }
 
     /// Number of samples per lead (0 for a recording without leads).
@@ -589,7 +594,8 @@ mod tests {
         assert_eq!(
             every.invalid_sample_notes(),
             ["every lead has 200 missing samples, at the same times (20.0 % of it; the longest gap 0.400 s): \
-              nothing was recorded then, so beats there are not measured, and no RR interval spans a gap"]
+              nothing was recorded then, so no beat is measured within a gap of 40 ms or more, and no RR interval \
+              spans one"]
         );
         // Two of three alike; the third whole.
         let two = rec(vec![lead("I", gap(100, 300)), lead("II", gap(100, 300)), lead("V1", vec![0.0; 1000])]);

@@ -115,7 +115,10 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         identify: args.identify,
         filter_text: Some(analysis.filters.description.clone()),
         ledger: render::ledger_lines(&analysis.measurements, review.as_ref()),
-        notes: render::ledger_notes(&analysis.measurements, review.as_ref()),
+        notes: render::signal_notes(raw)
+            .into_iter()
+            .chain(render::ledger_notes(&analysis.measurements, review.as_ref()))
+            .collect(),
         ..RenderInput::of_span(&span, raw.duration_s(), spec, args.dpi)
     };
     if let Some(r) = &review {

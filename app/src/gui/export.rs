@@ -58,7 +58,8 @@ impl IsolineApp {
         input.ledger = export_ledger(&rows);
         // The Ledger's range notes, which follow the reader's values.
         let notes: Vec<RangeNote> = rows.iter().flat_map(|r| r.notes.iter().cloned()).collect();
-        input.notes = ranges::condensed(&notes);
+        input.notes = render::signal_notes(&loaded.recording);
+        input.notes.extend(ranges::condensed(&notes));
         let pixmap = render::render_page(&input)?;
         let bytes = render::encode_png(&pixmap, EXPORT_DPI)?;
         render::write_png_atomic(path, &bytes)?;

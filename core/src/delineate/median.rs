@@ -58,11 +58,12 @@ pub fn representative_beat_with(
     // Each beat whose span fits the recording, with the room it has to be moved by on either side. A beat at an
     // edge with no room joins as placed, even if it would match better moved: one beat among the rest bends the
     // median little. (Long recordings gather their beats with the full room, `BeatStack::gather`.)
+    let gaps = recording.gaps();
     let chosen: Vec<(usize, Room)> = median_beats(beats)
         .map(|b| b.r)
         .filter(|&r| r >= before && r + after <= n)
         .map(|r| (r, (reach.min(r - before), reach.min(n - r - after))))
-        .filter(|&(r, (left, right))| has_signal(recording, r - before - left..r + after + right))
+        .filter(|&(r, (left, right))| has_signal(&gaps, r - before - left..r + after + right))
         .collect();
     if chosen.len() < MIN_BEATS {
         return None;
@@ -77,11 +78,13 @@ pub fn representative_beat_with(
 /// Fewest beats a representative beat is made of, and fewest valid values a sample of it is the median of.
 const MIN_BEATS: usize = 3;
 
-/// True when at least one lead is valid over the whole `span`: a beat with a signal to join the median. A lead
-/// missing over part of it (a gap, a lead absent from the file) leaves those samples out of that lead's median
-/// only ([`median_leads`]).
-fn has_signal(recording: &Recording, span: std::ops::Range<usize>) -> bool {
-    recording.leads.iter().any(|l| l.samples[span.clone()].iter().all(|v| v.is_finite()))
+/// True when `span` holds none of the recording's `gaps` (stretches of [`crate::gaps::MIN_GAP_S`] or more with no
+/// valid lead, [`Recording::gaps`]): a beat with a signal to join the median. A lead missing over part of it (a
+/// lead absent from the file, a lost sample) leaves those samples out of that lead's median only
+/// ([`median_leads`]). (Asking for one lead valid throughout, as before, a recorder losing one sample of every
+/// lead each half second gave no representative beat, hence no axis and no ST level.)
+fn has_signal(gaps: &[std::ops::Range<usize>], span: std::ops::Range<usize>) -> bool {
+    !crate::gaps::overlaps(gaps, span.start, span.end)
 }
 
 /// Samples before and after R in the representative beat of a record with median RR `rr` (samples).
@@ -245,14 +248,15 @@ impl BeatStack {
 
     /// Keeps up to the stack's quota of `beats` (found in `part`, a window with its margins), evenly spaced
     /// among those the median is taken over whose R peak lies in `own` (the window's own samples of `part`) and
-    /// whose span lies in `part` with at least one lead valid throughout (see [`has_signal`]).
+    /// whose span lies in `part` and holds no gap (see [`has_signal`]).
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
         let n = part.len();
         let (before, after) = (self.before, self.after);
+        let gaps = part.gaps();
         let usable: Vec<usize> = median_beats(beats)
             .map(|b| b.r)
             .filter(|r| own.contains(r) && *r >= before && r + after < n)
-            .filter(|&r| has_signal(part, r - before..r + after))
+            .filter(|&r| has_signal(&gaps, r - before..r + after))
             .collect();
         let take = usable.len().min(self.quota);
         for i in 0..take {

@@ -68,9 +68,6 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         let min_start = if i > 0 { rs[i - 1] + sig.samples(0.150).min((r - rs[i - 1]) / 2) } else { 0 };
         let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
         let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
-        // Where nothing was recorded within a search, the boundary may lie in the gap: none is given.
-        let on = on.filter(|_| !sig.bridged(r.saturating_sub(sig.samples(qrs::BEFORE_R_S)).max(min_start), r));
-        let end = end.filter(|_| !sig.bridged(r, (r + sig.samples(qrs::AFTER_R_S)).min(max_end)));
         let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
         t_waves.push(beat_t_waves(sig, r, on, end, rr_next, n));
         beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: None };
@@ -98,12 +95,12 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         .zip(&earliest)
         .filter(|(b, _)| b.kind == BeatKind::Dominant)
         .filter_map(|(b, &e)| b.bounds.qrs_on.map(|q| (q, e)))
-        .filter(|&(q, e)| !sig.bridged(e, q))
+        // The P model's template is read up to its longest window (and lag) before the QRS: none from a gap.
+        .filter(|&(q, e)| e < q && !sig.bridged(q.saturating_sub(sig.samples(pwave::READ_BEFORE_S)), q))
         .collect();
     let model = pwave::model(sig, &onsets)?;
     for (b, &e) in beats.iter_mut().zip(&earliest) {
-        let q = b.bounds.qrs_on.filter(|&q| !sig.bridged(e, q));
-        if let Some((on, end)) = q.and_then(|q| model.for_beat(sig, q, e)) {
+        if let Some((on, end)) = b.bounds.qrs_on.filter(|&q| e < q).and_then(|q| model.for_beat(sig, q, e)) {
             b.bounds.p_on = Some(on);
             b.bounds.p_end = Some(end);
         }
@@ -126,10 +123,12 @@ fn beat_t_waves(
     let earliest = r + sig.samples(0.100);
     let from = end.map_or(earliest, |e| (e + sig.samples(0.050)).max(earliest));
     let to = (r + sig.samples(T_MAX_S).min((T_RR_FRACTION * rr as f64) as usize)).min(limit.saturating_sub(1));
-    if sig.bridged(r, to + 1) {
+    let iso_at = on?.saturating_sub(sig.samples(0.008));
+    // The search reads the isoelectric level before the QRS (see `twave::lead_ts`) and the signal up to `to`.
+    if sig.bridged(iso_at.saturating_sub(sig.samples(twave::ISO_S)), to + 1) {
         return None;
     }
-    on.and_then(|q| twave::lead_ts(sig, q.saturating_sub(sig.samples(0.008)), from, to))
+    twave::lead_ts(sig, iso_at, from, to)
 }
 
 /// A beat whose R-to-T-end time differs from the record's median by more than [`T_OUTLIER_S`] has followed

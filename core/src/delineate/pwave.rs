@@ -78,6 +78,8 @@ const MAX_GAIN: f32 = 4.0;
 const SELECT_FROM: usize = 20;
 /// Largest lag tried when matching a beat to the median P, s.
 const MAX_LAG_S: f64 = 0.024;
+/// How far before a QRS onset the P model reads a beat: its longest window, moved by the largest lag.
+pub(super) const READ_BEFORE_S: f64 = LONG_WINDOW_S + MAX_LAG_S;
 /// How far the P-band and 40 Hz zero-phase low-passes and the 16 ms envelope smoothing spread an abrupt start
 /// (end) of the P wave, s: an edge found on the envelope moves at most this far towards the P peak, over samples
 /// where the unfiltered median leads still stand still (as for the QRS edges in `qrs`).

@@ -7,7 +7,8 @@
 //! onset is the earliest lead onset that another lead confirms within [`AGREE_S`], and the J point the latest
 //! end that another lead confirms (the usual 12-lead global QRS runs from the first lead to start to the last
 //! to finish; one lead alone is more often noise). A pacing spike before the QRS bounds the onset search: the
-//! QRS starts after the stimulus artefact.
+//! QRS starts after the stimulus artefact. Where what an edge is found from (the quiet before the QRS up to R,
+//! or R to the quiet after it) holds a stretch with no recorded lead, that edge is not given.
 //!
 //! The zero-phase low-pass and the smoothing spread an abrupt start (end) of a deflection a few samples outward,
 //! so the smoothed slope crosses the threshold 1–3 samples before the lead leaves (after it regains) its level.
@@ -69,10 +70,11 @@ const END_REACH_S: f64 = 0.120;
 
 /// The QRS onset is sought at most this long before the R peak, s.
 // Common practice, no source: the QRS rarely starts more than 120 ms before its largest peak.
-pub(super) const BEFORE_R_S: f64 = 0.120;
-/// The J point is sought at most this long after the R peak, s.
-// Common practice, no source: even a wide QRS ends within 150 ms of its largest peak.
-pub(super) const AFTER_R_S: f64 = 0.150;
+const BEFORE_R_S: f64 = 0.120;
+/// The steep part of the QRS is sought at most this long after the R peak, s (the J point up to
+/// [`END_REACH_S`] further).
+// Common practice, no source: even a wide QRS has its steep part within 150 ms of its largest peak.
+const AFTER_R_S: f64 = 0.150;
 
 /// QRS onset and J point around R peak `r`, as sample indices. `None` where no lead gives a clear edge.
 #[must_use]
@@ -125,6 +127,10 @@ pub fn lead_edges(
         b0: (last + sig.samples(0.200)).min(n - 1).min(max_end.max(last)),
         on_min: lo,
     };
+    // What the edges are found from: the quiet before the QRS and its steep part up to R for the onset, from R to
+    // the quiet after it for the end. Where that holds a stretch with no recorded lead, the edge could lie in it.
+    let onset_readable = !sig.bridged(win.a0, r + 1);
+    let end_readable = !sig.bridged(r, win.b0 + 1);
     let w = ((0.010 * sig.fs).round() as usize).max(1) | 1;
     let envs: Vec<(Vec<f32>, f32)> = sig
         .qrs
@@ -148,7 +154,9 @@ pub fn lead_edges(
         .map(|(i, (e, peak))| {
             let lead = Lead { x: &sig.wide[i], q: &sig.qrs[i] };
             let noise = win.noise_before(e, first, sig);
-            (i, noise.and_then(|n| win.onset(e, lead, *peak, n, first, sig)), win.end(e, lead, *peak, noise, last, sig))
+            let onset = noise.filter(|_| onset_readable).and_then(|n| win.onset(e, lead, *peak, n, first, sig));
+            let end = if end_readable { win.end(e, lead, *peak, noise, last, sig) } else { None };
+            (i, onset, end)
         })
         .collect()
 }

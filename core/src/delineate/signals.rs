@@ -87,7 +87,7 @@ impl<'a> Signals<'a> {
         let w = ((0.010 * fs).round() as usize).max(1) | 1;
         spikes.sort_unstable();
         spikes.dedup();
-        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), gaps: gaps::find(leads), spikes }
+        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), gaps: gaps::find(leads, fs), spikes }
     }
 
     /// Number of samples.

@@ -23,6 +23,10 @@
 use super::signals::Signals;
 use crate::beat::BeatKind;
 
+/// The isoelectric level of a lead is the median of its 12 Hz signal over this long before the QRS onset, s.
+// Common practice, no source: the PR segment and the end of the TP segment; the P wave is brief.
+pub(super) const ISO_S: f64 = 0.200;
+
 /// The second lobe of a biphasic T counts as terminal when at least this fraction of the main lobe.
 // Common practice, no source.
 const BIPHASIC: f32 = 0.5;
@@ -101,8 +105,8 @@ pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<B
         .iter()
         .zip(&sig.wide)
         .map(|(slow, wide)| {
-            // Isoelectric level: median of the 200 ms before QRS onset (PR and TP segments; the P wave is brief).
-            let mut pre: Vec<f32> = slow[iso_at.saturating_sub(sig.samples(0.200))..=iso_at].to_vec();
+            // Isoelectric level: median of the ISO_S before QRS onset (PR and TP segments; the P wave is brief).
+            let mut pre: Vec<f32> = slow[iso_at.saturating_sub(sig.samples(ISO_S))..=iso_at].to_vec();
             let mid = pre.len() / 2;
             let iso = *pre.select_nth_unstable_by(mid, f32::total_cmp).1;
             lead_t_end(

@@ -34,7 +34,7 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     }
     let peaks = peaks::pick(&f.combined, fs);
     let r = place_r(&leads, &f.weights, &peaks, fs);
-    let dominant = typing::dominant(&leads, &f.weights, &r, fs, &gaps::find(&leads));
+    let dominant = typing::dominant(&leads, &f.weights, &r, fs, &gaps::find(&leads, fs));
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
 }
 

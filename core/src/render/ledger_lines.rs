@@ -3,6 +3,7 @@
 
 use super::LedgerLine;
 use crate::measure::{Measurements, RangeNote, ranges};
+use crate::recording::Recording;
 use crate::review::{Review, Stage};
 
 /// Measurement keys the box always lists (when measured or reviewed), in order. Any other measurement follows
@@ -95,6 +96,16 @@ pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec
     ranges::condensed(&kept)
 }
 
+/// Notes on the signal itself, printed before the range notes: missing samples and flat leads (see
+/// [`Recording::invalid_sample_notes`] and [`Recording::flat_lead_notes`]). A blank stretch or a flat trace on
+/// the page is then not read as the heart's own; the notes name leads, never the patient.
+#[must_use]
+pub fn signal_notes(recording: &Recording) -> Vec<String> {
+    let mut notes = recording.invalid_sample_notes();
+    notes.extend(recording.flat_lead_notes());
+    notes
+}
+
 /// Header fields naming the reader (when known) and the stage: `Reader: AB`, `Stage: checked`.
 #[must_use]
 pub fn header_fields(reader: Option<&str>, stage: Stage) -> Vec<(String, String)> {
@@ -145,6 +156,28 @@ mod tests {
 
     fn value<'a>(key: &'a str, unit: &'a str, auto: Option<f64>, reviewed: Option<f64>) -> LedgerValue<'a> {
         LedgerValue { key, label: key, unit, auto, reviewed }
+    }
+
+    #[test]
+    fn the_page_says_what_the_signal_lacks() {
+        // A blank stretch or a flat trace on an exported page must not be read as the heart's own.
+        use crate::recording::{Lead, LeadName, Meta};
+        let mut gappy: Vec<f32> = (0..5000).map(|k| (k as f32 * 0.01).sin() * 800.0).collect();
+        gappy[1000..1500].fill(f32::NAN);
+        let rec = Recording {
+            leads: vec![
+                Lead { name: LeadName::parse("I"), samples: gappy },
+                Lead { name: LeadName::parse("II"), samples: vec![-5000.0; 5000] },
+            ],
+            sample_rate: crate::units::Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!()),
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        };
+        let notes = signal_notes(&rec);
+        assert_eq!(notes.len(), 2, "{notes:?}");
+        assert!(notes[0].starts_with("lead I has 500 missing samples"), "{notes:?}");
+        assert!(notes[1].starts_with("lead II is flat"), "{notes:?}");
     }
 
     #[test]

@@ -45,7 +45,7 @@ use crate::recording::Recording;
 
 pub use self::furniture::header_lines;
 pub use self::ledger_lines::{
-    LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field,
+    LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field, signal_notes,
 };
 pub use self::png::{check_png_name, encode_png, write_png_atomic};
 pub use self::trace::{Column, decimate_min_max};

@@ -312,8 +312,9 @@ fn no_boundary_is_placed_across_a_gap() {
     // waves in turn. Before, boundaries were sought over the interpolated gaps: on this demo a T end 42 ms and a
     // J point 34 ms off, a QRS onset 24 ms early; on LUDB 1's lead II blank 0.5 s in every 2 s, QT 445 ms for
     // 496. The intervals across gaps also made the next beats premature (typed other), and `beats` printed them
-    // as RR intervals. Now each boundary of the gapped recording is the complete recording's (within 2 samples)
-    // or absent, and every beat keeps its kind.
+    // as RR intervals. Now each boundary of the gapped recording is the complete recording's or absent, and every
+    // beat keeps its kind: within 2 samples, the P wave's within 4, since it is placed by the record's P model,
+    // made here from the fewer beats with no gap in the half second before their QRS (measured: P end 8 ms on).
     let spec = SynthSpec { seconds: 30.0, leads: synth::LeadSet::Single, ..Scenario::Normal.spec() };
     let one = synth::generate(&spec).unwrap_or_else(|e| panic!("{e}"));
     let fs = one.recording.sample_rate.hz();
@@ -329,19 +330,19 @@ fn no_boundary_is_placed_across_a_gap() {
         let w = whole.beats.iter().find(|w| w.r.abs_diff(b.r) <= 2).unwrap_or_else(|| panic!("beat at {}", b.r));
         assert_eq!(b.kind, w.kind, "beat at {}", b.r);
         let (g, c) = (&b.bounds, &w.bounds);
-        for (i, (name, got, want)) in [
-            ("P onset", g.p_on, c.p_on),
-            ("P end", g.p_end, c.p_end),
-            ("QRS onset", g.qrs_on, c.qrs_on),
-            ("J point", g.qrs_end, c.qrs_end),
-            ("T end", g.t_end, c.t_end),
+        for (i, (name, got, want, tolerance)) in [
+            ("P onset", g.p_on, c.p_on, 4),
+            ("P end", g.p_end, c.p_end, 4),
+            ("QRS onset", g.qrs_on, c.qrs_on, 2),
+            ("J point", g.qrs_end, c.qrs_end, 2),
+            ("T end", g.t_end, c.t_end, 2),
         ]
         .into_iter()
         .enumerate()
         {
             if let Some(got) = got {
                 kept[i] += 1;
-                let near = want.is_some_and(|want| want.abs_diff(got) <= 2);
+                let near = want.is_some_and(|want| want.abs_diff(got) <= tolerance);
                 assert!(near, "beat at {}: {name} {got} where the complete recording has {want:?}", b.r);
             }
         }
@@ -354,4 +355,56 @@ fn no_boundary_is_placed_across_a_gap() {
         let across = cut.gaps().iter().any(|g| g.start < w[1].r && g.end > w[0].r);
         assert_eq!(rr.is_none(), across, "RR from {} to {}: {rr:?}", w[0].r, w[1].r);
     }
+}
+
+#[test]
+fn single_lost_samples_are_bridged() {
+    // A one-lead demo losing one sample in about every thousand, as wireless recorders drop them. Such a loss
+    // cannot hide a beat and moves a boundary by at most a sample, so it is not a gap: every beat, boundary and
+    // RR interval is the complete recording's (within 1 sample). A first version of the gap rule counted each
+    // lost sample as a gap: 28 RR intervals and 39 T ends of 72 beats were left.
+    let spec = SynthSpec { seconds: 60.0, leads: synth::LeadSet::Single, ..Scenario::Normal.spec() };
+    let one = synth::generate(&spec).unwrap_or_else(|e| panic!("{e}"));
+    let mut lossy = one.recording.clone();
+    for k in (0..lossy.len()).step_by(997) {
+        lossy.leads[0].samples[k] = f32::NAN;
+    }
+    assert!(lossy.gaps().is_empty());
+    let (a, whole) = (analyze(&lossy, &FilterSettings::default()), analyze(&one.recording, &FilterSettings::default()));
+    assert_eq!(a.beats.len(), whole.beats.len());
+    for (b, w) in a.beats.iter().zip(&whole.beats) {
+        assert!(b.r.abs_diff(w.r) <= 1 && b.kind == w.kind, "beat at {} vs {}", b.r, w.r);
+        let (g, c) = (&b.bounds, &w.bounds);
+        for (name, got, want) in [
+            ("P onset", g.p_on, c.p_on),
+            ("P end", g.p_end, c.p_end),
+            ("QRS onset", g.qrs_on, c.qrs_on),
+            ("J point", g.qrs_end, c.qrs_end),
+            ("T end", g.t_end, c.t_end),
+        ] {
+            let same = match (got, want) {
+                (Some(g), Some(w)) => g.abs_diff(w) <= 1,
+                (g, w) => g == w,
+            };
+            assert!(same, "beat at {}: {name} {got:?} where the complete recording has {want:?}", b.r);
+        }
+    }
+    let (m, c) = (&a.measurements, &whole.measurements);
+    assert_eq!(m.rr.nn_count, c.rr.nn_count);
+    assert_eq!(m.intervals.qt_ms, c.intervals.qt_ms);
+    // Twelve leads losing the same sample every half second: before, no beat joined the representative beat (one
+    // lead had to be valid throughout), so the axes and ST levels were gone.
+    let twelve = synth::generate(&Scenario::Normal.spec()).unwrap_or_else(|e| panic!("{e}"));
+    let mut lossy = twelve.recording.clone();
+    let half_s = (0.5 * twelve.recording.sample_rate.hz()) as usize;
+    for lead in &mut lossy.leads {
+        for k in (0..lead.samples.len()).step_by(half_s) {
+            lead.samples[k] = f32::NAN;
+        }
+    }
+    let (a, whole) =
+        (analyze(&lossy, &FilterSettings::default()), analyze(&twelve.recording, &FilterSettings::default()));
+    let (got, want) = (a.measurements.axes.qrs_deg, whole.measurements.axes.qrs_deg);
+    assert!(got.zip(want).is_some_and(|(g, w)| (g - w).abs() <= 1.0), "QRS axis {got:?} for {want:?}");
+    assert_eq!(a.measurements.st.iter().filter(|s| s.j_uv.is_some()).count(), 12);
 }
