@@ -16,9 +16,9 @@ pub struct TapeEnvelope {
     pub lead: usize,
     /// Seconds per bucket.
     pub bucket_s: f64,
-    /// Smallest sample of each bucket, µV.
+    /// Smallest sample of each bucket, µV (NaN where the bucket holds no valid sample).
     pub min: Vec<f32>,
-    /// Largest sample of each bucket, µV.
+    /// Largest sample of each bucket, µV (NaN where the bucket holds no valid sample).
     pub max: Vec<f32>,
 }
 
@@ -69,7 +69,7 @@ impl TapeEnvelope {
 /// each span cost little beside it.
 const SPAN_S: f64 = 600.0;
 
-/// Smallest and largest finite value of a slice (0, 0 when there is none).
+/// Smallest and largest finite value of a slice (NaN, NaN when there is none: nothing was recorded there).
 #[must_use]
 pub fn min_max(xs: &[f32]) -> (f32, f32) {
     let (mut lo, mut hi) = (f32::INFINITY, f32::NEG_INFINITY);
@@ -79,7 +79,7 @@ pub fn min_max(xs: &[f32]) -> (f32, f32) {
             hi = hi.max(x);
         }
     }
-    if lo > hi { (0.0, 0.0) } else { (lo, hi) }
+    if lo > hi { (f32::NAN, f32::NAN) } else { (lo, hi) }
 }
 
 /// Whether a WFDB annotation label marks a beat, and of which kind. Normal and bundle-branch beats count as
@@ -152,7 +152,8 @@ mod tests {
     fn min_max_matches_sorting() {
         let xs = [3.0, -1.0, f32::NAN, 7.5, 0.0];
         assert_eq!(min_max(&xs), (-1.0, 7.5));
-        assert_eq!(min_max(&[]), (0.0, 0.0));
+        let (lo, hi) = min_max(&[f32::NAN]);
+        assert!(lo.is_nan() && hi.is_nan() && min_max(&[]).0.is_nan());
     }
 
     #[test]

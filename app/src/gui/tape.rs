@@ -27,9 +27,10 @@ pub fn tape_ui(
     let duration = loaded.recording.duration_s();
     let lead_name = loaded.recording.leads.get(loaded.tape.lead).map(|l| l.name.to_string()).unwrap_or_default();
     let columns = (ui.available_width() * ui.ctx().pixels_per_point()).max(16.0) as usize;
-    let (xs, lo, hi) = merged_columns(&loaded.tape, columns);
+    let (xs, mut lo, mut hi) = merged_columns(&loaded.tape, columns);
     let (y_lo, y_hi) = lo.iter().chain(&hi).fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
     let (y_lo, y_hi) = if y_lo < y_hi { (y_lo, y_hi) } else { (-1.0, 1.0) };
+    thicken(&mut lo, &mut hi, MIN_BAND * (y_hi - y_lo));
     let window = move |y0: f64, y1: f64| {
         Polygon::new(
             "Sheet window",
@@ -54,7 +55,15 @@ pub fn tape_ui(
         .x_grid_spacer(clock_marks)
         .default_x_bounds(0.0, x_end(duration))
         .show(ui, |p| {
-            p.add(FilledArea::new(lead_name.as_str(), &xs, &lo, &hi).fill_color(fill));
+            // One band per run of columns holding samples: where nothing was recorded the Tape stays blank.
+            for run in recorded_runs(&lo) {
+                let (x, l, h) = (&xs[run.clone()], &lo[run.clone()], &hi[run]);
+                p.add(FilledArea::new(lead_name.as_str(), x, l, h).fill_color(fill));
+                // A line through the columns' middles keeps a thin flat stretch joined where the fill fades out.
+                let mid: Vec<[f64; 2]> =
+                    x.iter().zip(l.iter().zip(h)).map(|(&x, (&l, &h))| [x, 0.5 * (l + h)]).collect();
+                p.add(Line::new(lead_name.as_str(), PlotPoints::new(mid)).color(fill).width(1.0));
+            }
             p.add(window(y_lo, y_hi));
         });
     *geometry = Some((
@@ -118,7 +127,26 @@ fn jump(
     Some(Command::SetStart((t - window_s / 2.0).clamp(0.0, (duration - window_s).max(0.0))))
 }
 
-/// Merges envelope buckets down to at most `columns`, returning bucket centre times (s) and min/max in mV.
+/// The runs of consecutive columns whose minimum `lo` is a number (columns with no valid sample are NaN).
+fn recorded_runs(lo: &[f64]) -> Vec<std::ops::Range<usize>> {
+    let mut runs = Vec::new();
+    let mut start = None;
+    for (i, v) in lo.iter().enumerate() {
+        match (v.is_finite(), start) {
+            (true, None) => start = Some(i),
+            (false, Some(a)) => {
+                runs.push(a..i);
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    runs.extend(start.map(|a| a..lo.len()));
+    runs
+}
+
+/// Merges envelope buckets down to at most `columns`, returning bucket centre times (s) and min/max in mV (NaN for
+/// a column without a valid sample).
 #[must_use]
 pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
     let n = env.min.len();
@@ -128,10 +156,28 @@ pub fn merged_columns(env: &TapeEnvelope, columns: usize) -> (Vec<f64>, Vec<f64>
     let mut hi = Vec::with_capacity(n / per + 1);
     for (k, (a, b)) in env.min.chunks(per).zip(env.max.chunks(per)).enumerate() {
         xs.push((k * per) as f64 * env.bucket_s + a.len() as f64 * env.bucket_s / 2.0);
-        lo.push(f64::from(a.iter().copied().fold(f32::INFINITY, f32::min)) / 1000.0);
-        hi.push(f64::from(b.iter().copied().fold(f32::NEG_INFINITY, f32::max)) / 1000.0);
+        // f32::min and max pass over NaN; a column of empty buckets stays infinite and becomes NaN.
+        let (l, h) =
+            (a.iter().copied().fold(f32::INFINITY, f32::min), b.iter().copied().fold(f32::NEG_INFINITY, f32::max));
+        let (l, h) = if l <= h { (f64::from(l) / 1000.0, f64::from(h) / 1000.0) } else { (f64::NAN, f64::NAN) };
+        lo.push(l);
+        hi.push(h);
     }
     (xs, lo, hi)
+}
+
+/// Least height of a column of the envelope, as a fraction of the plotted range (about 1 point on the 70-point
+/// plot): where the lead is flat within a column its minimum equals its maximum, and a fill of no height left the
+/// baseline between beats as scattered dots.
+const MIN_BAND: f64 = 0.015;
+
+/// Widens each column `lo[i]..hi[i]` about its middle to at least `least`.
+fn thicken(lo: &mut [f64], hi: &mut [f64], least: f64) {
+    for (l, h) in lo.iter_mut().zip(hi.iter_mut()) {
+        let pad = ((least - (*h - *l)) / 2.0).max(0.0);
+        *l -= pad;
+        *h += pad;
+    }
 }
 
 /// Room above the fastest and below the slowest rate on the trend, bpm.
@@ -205,6 +251,15 @@ mod tests {
     }
 
     #[test]
+    fn flat_columns_are_thickened_to_show() {
+        let (mut lo, mut hi) = (vec![0.0, -1.0, 0.5], vec![0.0, 1.0, 0.52]);
+        thicken(&mut lo, &mut hi, 0.1);
+        assert_eq!((lo[0], hi[0]), (-0.05, 0.05));
+        assert_eq!((lo[1], hi[1]), (-1.0, 1.0));
+        assert!((hi[2] - lo[2] - 0.1).abs() < 1e-12 && (lo[2] + hi[2] - 1.02).abs() < 1e-12);
+    }
+
+    #[test]
     fn merged_columns_keep_extremes() {
         let env = TapeEnvelope {
             lead: 0,
@@ -216,5 +271,12 @@ mod tests {
         assert_eq!(xs, vec![1.0, 3.0]);
         assert_eq!(lo, vec![-0.5, 0.01]);
         assert_eq!(hi, vec![0.1, 2.0]);
+        // Buckets with nothing recorded: a column of them is NaN, and the Tape draws the runs either side.
+        let nan = f32::NAN;
+        let env =
+            TapeEnvelope { lead: 0, bucket_s: 1.0, min: vec![0.0, nan, nan, 20.0], max: vec![100.0, nan, nan, 30.0] };
+        let (_, lo, _) = merged_columns(&env, 4);
+        assert!(lo[1].is_nan() && lo[2].is_nan());
+        assert_eq!(recorded_runs(&lo), vec![0..1, 3..4]);
     }
 }
