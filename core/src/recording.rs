@@ -271,6 +271,16 @@ fn invalid_runs(x: &[f32]) -> (usize, usize) {
     (total, longest)
 }
 
+/// More notes than this on leads missing samples at times of their own become one.
+const SCATTERED_NOTES: usize = 3;
+
+/// `part` of `whole` as a percentage with one decimal, rounded down (a lead with one valid sample is not "100.0 %"
+/// missing), and "under 0.1 %" for a share that would read 0.0.
+fn share(part: usize, whole: usize) -> String {
+    let tenths = (1000.0 * part as f64 / whole.max(1) as f64).floor() / 10.0;
+    if part > 0 && tenths == 0.0 { "under 0.1 %".to_owned() } else { format!("{tenths:.1} %") }
+}
+
 /// Lead names as prose: "I, II and V1".
 fn join_names(leads: &[&Lead]) -> String {
     let names: Vec<String> = leads.iter().map(|l| l.name.to_string()).collect();
@@ -388,12 +398,17 @@ impl Recording {
             }
         }
         let (min_gap, min_gap_ms) = ((crate::gaps::MIN_GAP_S * fs).ceil() as usize, crate::gaps::MIN_GAP_S * 1000.0);
+        let n_leads = self.leads.len();
+        // Leads missing some samples at times of their own, bridged: said in one note when there are many.
+        let partial = |g: &&Vec<&Lead>| g.len() < n_leads && g[0].samples.iter().any(|v| v.is_finite());
+        let scattered = groups.iter().filter(partial).count() > SCATTERED_NOTES;
         let mut notes: Vec<String> = groups
             .iter()
+            .filter(|g| !scattered || !partial(g))
             .map(|group| {
                 let lead = group[0];
                 let (invalid, longest) = invalid_runs(&lead.samples);
-                let every = group.len() == self.leads.len();
+                let every = group.len() == n_leads;
                 // Who, the verb agreeing with it, and how the count applies.
                 let (who, has, holds, they, each) = match group.len() {
                     1 => (format!("lead {}", lead.name), "has", "holds", "it is", ""),
@@ -407,24 +422,51 @@ impl Recording {
                         "{who} {holds} no valid sample: {they} drawn blank and left out of the measurements"
                     );
                 }
+                let them = if invalid == 1 { "it" } else { "them" };
                 format!(
-                    "{who} {has} {invalid} missing sample{}{each} ({:.1} % of it; the longest gap {:.3} s): {}",
+                    "{who} {has} {invalid} missing sample{}{each} ({} of it; the longest run {:.3} s): {}",
                     if invalid == 1 { "" } else { "s" },
-                    // Rounded down: a lead with one valid sample is not "100.0 %" missing.
-                    (1000.0 * invalid as f64 / lead.samples.len() as f64).floor() / 10.0,
+                    share(invalid, lead.samples.len()),
                     longest as f64 / fs,
                     match (every, longest >= min_gap) {
                         (true, true) => format!(
                             "nothing was recorded then, so no beat is measured within a gap of {min_gap_ms:.0} ms or \
                              more, and no RR interval spans one"
                         ),
-                        (true, false) => format!("each gap is under {min_gap_ms:.0} ms, and the analysis bridges it"),
+                        (true, false) => {
+                            format!("no run reaches {min_gap_ms:.0} ms, and the analysis bridges {them}")
+                        }
                         (false, _) =>
-                            "the analysis bridges them and measures beats there on the other leads".to_owned(),
+                            format!("the analysis bridges {them} and measures beats there on the other leads"),
                     }
                 )
             })
             .collect();
+        if scattered {
+            let leads: Vec<&Lead> = groups.iter().filter(partial).flatten().copied().collect();
+            let counts: Vec<(usize, usize)> = leads.iter().map(|l| invalid_runs(&l.samples)).collect();
+            let fewest = counts.iter().map(|c| c.0).min().unwrap_or(0);
+            let most = counts.iter().map(|c| c.0).max().unwrap_or(0);
+            let longest = counts.iter().map(|c| c.1).max().unwrap_or(0);
+            let most_share = leads
+                .iter()
+                .zip(&counts)
+                .map(|(l, c)| (c.0, l.samples.len()))
+                .max_by(|a, b| (a.0 as f64 / a.1 as f64).total_cmp(&(b.0 as f64 / b.1 as f64)));
+            notes.push(format!(
+                "{} leads ({}) miss samples at times of their own ({} each, {}; the longest run {:.3} s): the \
+                 analysis bridges them and measures beats there on the other leads",
+                leads.len(),
+                join_names(&leads),
+                if fewest == most { fewest.to_string() } else { format!("{fewest} to {most}") },
+                match most_share.map(|(k, n)| share(k, n)) {
+                    Some(s) if s.starts_with("under") => format!("{s} of any lead"),
+                    Some(s) => format!("at most {s} of a lead"),
+                    None => String::new(),
+                },
+                longest as f64 / fs,
+            ));
+        }
         // Different leads missing at overlapping times also leave stretches with no lead at all.
         let gaps = self.gaps();
         if !gaps.is_empty() && !groups.iter().any(|g| g.len() == self.leads.len()) {
@@ -569,7 +611,7 @@ mod tests {
         assert!(notes[0].starts_with("lead I holds no valid sample"), "{}", notes[0]);
         // 251 of 1000 samples; the longest gap 250 samples at 500 Hz.
         assert!(
-            notes[1].starts_with("lead II has 251 missing samples (25.1 % of it; the longest gap 0.500 s)"),
+            notes[1].starts_with("lead II has 251 missing samples (25.1 % of it; the longest run 0.500 s)"),
             "{}",
             notes[1]
         );
@@ -593,8 +635,8 @@ mod tests {
         let every = rec(["I", "II", "V1"].into_iter().map(|n| lead(n, gap(100, 300))).collect());
         assert_eq!(
             every.invalid_sample_notes(),
-            ["every lead has 200 missing samples, at the same times (20.0 % of it; the longest gap 0.400 s): \
-              nothing was recorded then, so no beat is measured within a gap of 40 ms or more, and no RR interval \
+            ["every lead has 200 missing samples, at the same times (20.0 % of it; the longest run 0.400 s): \
+              nothing was recorded then, so no beat is measured within a gap of 20 ms or more, and no RR interval \
               spans one"]
         );
         // Two of three alike; the third whole.
@@ -610,6 +652,28 @@ mod tests {
         assert!(
             notes[2].starts_with("no lead was recorded for 0.100 s in all (the longest stretch 0.100 s)"),
             "{notes:?}"
+        );
+        // Scattered single losses in five leads of 10 000 samples, at different times: one note for them all.
+        let one_lost = |name: &str, at: usize| {
+            let mut x = vec![1.0f32; 10_000];
+            x[at] = f32::NAN;
+            lead(name, x)
+        };
+        let scattered =
+            rec(["I", "II", "III", "aVR", "aVL"].iter().enumerate().map(|(i, n)| one_lost(n, 100 * i)).collect());
+        assert_eq!(
+            scattered.invalid_sample_notes(),
+            ["5 leads (I, II, III, aVR and aVL) miss samples at times of their own (1 each, under 0.1 % of any lead; \
+              the longest run 0.002 s): the analysis bridges them and measures beats there on the other leads"]
+        );
+        // One lead, one sample: singular, and a share that does not read 0.0 %.
+        let one = rec(vec![one_lost("I", 5)]);
+        assert_eq!(
+            one.invalid_sample_notes(),
+            [
+                "lead I has 1 missing sample (under 0.1 % of it; the longest run 0.002 s): no run reaches 20 ms, and the \
+              analysis bridges it"
+            ]
         );
     }
 

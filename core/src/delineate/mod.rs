@@ -75,7 +75,8 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
     let kinds: Vec<BeatKind> = beats.iter().map(|b| b.kind).collect();
     twave::drop_inconsistent_leads(sig, &mut t_waves, &kinds);
     for (b, t) in beats.iter_mut().zip(&t_waves) {
-        b.bounds.t_end = t.as_ref().and_then(|t| twave::global_end(sig, t));
+        // The end may lie past the search (the limb is followed to its knee): not into a gap either.
+        b.bounds.t_end = t.as_ref().and_then(|t| twave::global_end(sig, t)).filter(|&e| !sig.bridged(b.r, e + 1));
     }
     drop_outlying_t_ends(sig, beats);
     // P waves: earliest allowed sample = previous beat's T end (or 60 % of the way from the previous R), and

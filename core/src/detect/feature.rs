@@ -54,10 +54,24 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
         (mwi, local, weight)
     };
     let at_once = if n >= PARALLEL_FROM { rayon::current_num_threads().clamp(1, AT_ONCE) } else { 1 };
+    // Where some lead is absent somewhere: the weight of the leads absent at each sample, and what they would
+    // have added (held at their last value), used where no lead is present.
+    let mut absent: Option<(Vec<f32>, Vec<f32>)> = None;
     for group in leads.chunks(at_once) {
         let prepared: Vec<(Vec<f32>, Vec<f32>, f64)> =
             if group.len() > 1 { group.par_iter().map(prepare).collect() } else { group.iter().map(prepare).collect() };
-        for (mwi, local, weight) in prepared {
+        for (lead, (mut mwi, local, weight)) in group.iter().zip(prepared) {
+            let spans = absent_spans(lead, fs);
+            if weight > 0.0 && !spans.is_empty() {
+                let (missing, hidden) = absent.get_or_insert_with(|| (vec![0.0; n], vec![0.0; n]));
+                let mut part = vec![0.0f32; n];
+                for span in spans {
+                    part[span.clone()].copy_from_slice(&mwi[span.clone()]);
+                    mwi[span.clone()].fill(0.0);
+                    missing[span].iter_mut().for_each(|m| *m += weight as f32);
+                }
+                add_lead(hidden, &part, &local, weight, fs);
+            }
             add_lead(&mut combined, &mwi, &local, weight, fs);
             weights.push(weight);
         }
@@ -65,9 +79,53 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
     let total: f64 = weights.iter().sum();
     if total > 0.0 {
         let inv = (1.0 / total) as f32;
-        combined.iter_mut().for_each(|c| *c *= inv);
+        match &absent {
+            // Divided by the weight of the leads present: where some leads are missing the others still give
+            // about 1 at a QRS, so their beats are found (before, one lead of twelve left gave a twelfth). Where
+            // none is present, the absent leads as held count after all (a QRS partly lost in every lead).
+            Some((missing, hidden)) => combined.iter_mut().zip(missing).zip(hidden).for_each(|((c, &m), &h)| {
+                let present = total as f32 - m;
+                *c = if present > 1e-6 * total as f32 { *c / present } else { (*c + h) * inv };
+            }),
+            None => combined.iter_mut().for_each(|c| *c *= inv),
+        }
     }
     Features { combined, weights }
+}
+
+/// A lead is left out of the combined feature over a run of at least this many seconds of invalid samples
+/// (held at the last valid value there, its feature is flat, then jumps where the signal resumes).
+// Common practice, no source: a lost sample or two held at the last value leave the feature about as it was; 10
+// ms can hold the steep part of a narrow QRS.
+const ABSENT_RUN_S: f64 = 0.010;
+
+/// The samples over which `lead` is absent from the combined feature: each run of [`ABSENT_RUN_S`] or more of
+/// invalid samples, and the feature's reach after it (the integration window and the band-pass settling on the
+/// resumed signal, [`MWI_S`] + 50 ms).
+fn absent_spans(lead: &[f32], fs: f64) -> Vec<std::ops::Range<usize>> {
+    let n = lead.len();
+    let min_run = ((ABSENT_RUN_S * fs).ceil() as usize).max(1);
+    let reach = ((MWI_S + 0.050) * fs).round() as usize;
+    let mut spans: Vec<std::ops::Range<usize>> = Vec::new();
+    let mut k = 0;
+    while k < n {
+        if lead[k].is_finite() {
+            k += 1;
+            continue;
+        }
+        let start = k;
+        while k < n && !lead[k].is_finite() {
+            k += 1;
+        }
+        if k - start >= min_run {
+            let span = start..(k + reach).min(n);
+            match spans.last_mut() {
+                Some(last) if last.end >= span.start => last.end = span.end,
+                _ => spans.push(span),
+            }
+        }
+    }
+    spans
 }
 
 /// Adds one lead's feature `mwi`, normalised by its local heights `local` (one per block) and clipped at [`CLIP`],

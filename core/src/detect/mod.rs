@@ -43,8 +43,11 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
 /// ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks strictly increasing.
 fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
     // Leads with a QRS (weight above 0) from the clearest down (the first listed wins a tie). A beat is placed on
-    // the first with no invalid sample in its search window: on a lead missing there, every beat of the gap would
-    // land on the window's first sample. With none whole there, the clearest lead's valid samples are used.
+    // the first whose search window holds no run of invalid samples wider than the running median bridges, and
+    // at most a tenth of them invalid: on a lead missing there, every beat of the gap would land on the window's
+    // first sample, while a lost sample or two must not send the beat to another lead, whose largest deflection may be another wave (three lost
+    // samples in three leads of LUDB 24 moved an R peak 66 ms). With none usable there, the clearest lead's valid
+    // samples are used.
     let mut order: Vec<usize> = (0..leads.len()).filter(|&i| weights[i] > 0.0).collect();
     order.sort_by(|&a, &b| weights[b].total_cmp(&weights[a]).then(a.cmp(&b)));
     let Some(&best) = order.first() else { return Vec::new() };
@@ -63,14 +66,23 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
         if a >= b {
             continue;
         }
-        let whole = |&&i: &&usize| leads[i][a..b].iter().all(|v| v.is_finite());
-        let lead = leads[order.iter().find(whole).copied().unwrap_or(best)];
+        let usable = |&&i: &&usize| {
+            let w = &leads[i][a..b];
+            longest_invalid_run(w) <= hm && w.iter().filter(|v| !v.is_finite()).count() * 10 <= w.len()
+        };
+        let lead = leads[order.iter().find(usable).copied().unwrap_or(best)];
         let valid = lead[a..b].iter().filter(|v| v.is_finite());
         let count = valid.clone().count();
         let mean = if count > 0 { valid.sum::<f32>() / count as f32 } else { 0.0 };
         // Deflection of a running median (≈ 10 ms), so a pacing spike of a few ms is not taken for R.
         let mut buf = Vec::with_capacity(2 * hm + 1);
+        // R is not placed inside a run of invalid samples longer than the running median's width (it would sit in
+        // a gap, one sample past the last valid one); in a shorter one it takes its neighbours' median.
+        let runs = invalid_run_lengths(&lead[a..b]);
         let mut dev = |i: usize| -> f32 {
+            if runs[i - a] > 2 * hm + 1 {
+                return -1.0;
+            }
             buf.clear();
             buf.extend(lead[i.saturating_sub(hm)..(i + hm + 1).min(n)].iter().copied().filter(|v| v.is_finite()));
             if buf.is_empty() {
@@ -84,6 +96,29 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
         if out.last().is_none_or(|&l| r > l) {
             out.push(r);
         }
+    }
+    out
+}
+
+/// Length of the longest run of invalid samples in `x`.
+fn longest_invalid_run(x: &[f32]) -> usize {
+    invalid_run_lengths(x).into_iter().max().unwrap_or(0)
+}
+
+/// For each sample of `x`, the length of the run of invalid samples it belongs to (0 for a valid sample).
+fn invalid_run_lengths(x: &[f32]) -> Vec<usize> {
+    let mut out = vec![0; x.len()];
+    let mut k = 0;
+    while k < x.len() {
+        if x[k].is_finite() {
+            k += 1;
+            continue;
+        }
+        let start = k;
+        while k < x.len() && !x[k].is_finite() {
+            k += 1;
+        }
+        out[start..k].fill(k - start);
     }
     out
 }
