@@ -52,12 +52,12 @@ mod tests {
 
     #[test]
     fn a_gap_is_where_every_lead_is_invalid() {
-        // At 100 Hz a gap is 2 samples or more (20 ms).
+        // At 100 Hz a gap is 2 samples or more (20 ms): the single lost sample 8 is bridged, not a gap.
         let nan = f32::NAN;
         let a = [0.0, nan, nan, nan, 0.0, nan, nan, 0.0, nan];
         let b = [nan, nan, nan, 0.0, 0.0, nan, nan, nan, nan];
         assert_eq!(find(&[&a, &b], 100.0), vec![1..3, 5..7]);
-        // A single lost sample (8) is bridged, not a gap.
+        // At 50 Hz one sample is 20 ms, a gap.
         assert_eq!(find(&[&a, &b], 50.0), vec![1..3, 5..7, 8..9]);
         // One lead whole: no gap, whatever the others hold.
         let whole = [0.0f32; 9];

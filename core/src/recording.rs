@@ -1,6 +1,7 @@
 //! The recording model: leads of samples in microvolts at one sampling rate, with start time and metadata.
 
 use std::fmt;
+use std::ops::Range;
 
 use crate::units::Hertz;
 
@@ -271,6 +272,24 @@ fn invalid_runs(x: &[f32]) -> (usize, usize) {
     (total, longest)
 }
 
+/// The runs of invalid samples of `x`, in order.
+fn invalid_run_ranges(x: &[f32]) -> Vec<Range<usize>> {
+    let mut runs = Vec::new();
+    let mut k = 0;
+    while k < x.len() {
+        if x[k].is_finite() {
+            k += 1;
+            continue;
+        }
+        let start = k;
+        while k < x.len() && !x[k].is_finite() {
+            k += 1;
+        }
+        runs.push(start..k);
+    }
+    runs
+}
+
 /// More notes than this on leads missing samples at times of their own become one.
 const SCATTERED_NOTES: usize = 3;
 
@@ -387,35 +406,49 @@ impl Recording {
         let fs = self.sample_rate.hz();
         // Leads missing exactly the same samples share one note (an unplugged recorder loses every lead at
         // once; twelve alike notes would bury the point that nothing was recorded then).
-        let mut groups: Vec<Vec<&Lead>> = Vec::new();
-        for lead in self.leads.iter().filter(|l| l.samples.iter().any(|v| !v.is_finite())) {
-            let same_mask = |g: &&mut Vec<&Lead>| {
-                g[0].samples.iter().zip(&lead.samples).all(|(a, b)| a.is_finite() == b.is_finite())
-            };
-            match groups.iter_mut().find(same_mask) {
-                Some(g) => g.push(lead),
-                None => groups.push(vec![lead]),
+        // Compared as lists of runs, each lead's found in one pass (comparing whole masks cost up to 12 × 11 / 2
+        // passes over a 24-h recording).
+        let mut groups: Vec<(Vec<Range<usize>>, Vec<&Lead>)> = Vec::new();
+        for lead in &self.leads {
+            let runs = invalid_run_ranges(&lead.samples);
+            if runs.is_empty() {
+                continue;
+            }
+            match groups.iter_mut().find(|(r, _)| *r == runs) {
+                Some((_, g)) => g.push(lead),
+                None => groups.push((runs, vec![lead])),
             }
         }
+        let gaps = self.gaps();
         let (min_gap, min_gap_ms) = ((crate::gaps::MIN_GAP_S * fs).ceil() as usize, crate::gaps::MIN_GAP_S * 1000.0);
         let n_leads = self.leads.len();
         // Leads missing some samples at times of their own, bridged: said in one note when there are many.
-        let partial = |g: &&Vec<&Lead>| g.len() < n_leads && g[0].samples.iter().any(|v| v.is_finite());
+        let partial = |(runs, g): &&(Vec<Range<usize>>, Vec<&Lead>)| {
+            g.len() < n_leads && runs.iter().map(Range::len).sum::<usize>() < g[0].samples.len()
+        };
         let scattered = groups.iter().filter(partial).count() > SCATTERED_NOTES;
         let mut notes: Vec<String> = groups
             .iter()
             .filter(|g| !scattered || !partial(g))
-            .map(|group| {
+            .map(|(runs, group)| {
                 let lead = group[0];
-                let (invalid, longest) = invalid_runs(&lead.samples);
+                let invalid = runs.iter().map(Range::len).sum::<usize>();
+                let longest = runs.iter().map(Range::len).max().unwrap_or(0);
                 let every = group.len() == n_leads;
+                // Some of these samples fall where no lead was recorded (said in a note of its own).
+                let unrecorded = runs.iter().any(|r| crate::gaps::overlaps(&gaps, r.start, r.end));
                 // Who, the verb agreeing with it, and how the count applies.
-                let (who, has, holds, they, each) = match group.len() {
-                    1 => (format!("lead {}", lead.name), "has", "holds", "it is", ""),
-                    _ if every => ("every lead".to_owned(), "has", "holds", "they are", ", at the same times"),
-                    _ => {
-                        (format!("leads {}", join_names(group)), "have", "hold", "they are", " each, at the same times")
-                    }
+                let (who, has, holds, they, each, of) = match group.len() {
+                    1 => (format!("lead {}", lead.name), "has", "holds", "it is", "", "it"),
+                    _ if every => ("every lead".to_owned(), "has", "holds", "they are", ", at the same times", "each"),
+                    _ => (
+                        format!("leads {}", join_names(group)),
+                        "have",
+                        "hold",
+                        "they are",
+                        " each, at the same times",
+                        "each",
+                    ),
                 };
                 if invalid == lead.samples.len() {
                     return format!(
@@ -424,11 +457,11 @@ impl Recording {
                 }
                 let them = if invalid == 1 { "it" } else { "them" };
                 format!(
-                    "{who} {has} {invalid} missing sample{}{each} ({} of it; the longest run {:.3} s): {}",
+                    "{who} {has} {invalid} missing sample{}{each} ({} of {of}; the longest run {:.3} s): {}",
                     if invalid == 1 { "" } else { "s" },
                     share(invalid, lead.samples.len()),
                     longest as f64 / fs,
-                    match (every, longest >= min_gap) {
+                    match (every, if every { longest >= min_gap } else { unrecorded }) {
                         (true, true) => format!(
                             "nothing was recorded then, so no beat is measured within a gap of {min_gap_ms:.0} ms or \
                              more, and no RR interval spans one"
@@ -436,14 +469,18 @@ impl Recording {
                         (true, false) => {
                             format!("no run reaches {min_gap_ms:.0} ms, and the analysis bridges {them}")
                         }
-                        (false, _) =>
-                            format!("the analysis bridges {them} and measures beats there on the other leads"),
+                        (false, false) => {
+                            format!("the analysis bridges {them} and measures beats there on the other leads")
+                        }
+                        (false, true) => {
+                            format!("where another lead records, the analysis bridges {them} and measures beats on it")
+                        }
                     }
                 )
             })
             .collect();
         if scattered {
-            let leads: Vec<&Lead> = groups.iter().filter(partial).flatten().copied().collect();
+            let leads: Vec<&Lead> = groups.iter().filter(partial).flat_map(|(_, g)| g.iter().copied()).collect();
             let counts: Vec<(usize, usize)> = leads.iter().map(|l| invalid_runs(&l.samples)).collect();
             let fewest = counts.iter().map(|c| c.0).min().unwrap_or(0);
             let most = counts.iter().map(|c| c.0).max().unwrap_or(0);
@@ -468,8 +505,7 @@ impl Recording {
             ));
         }
         // Different leads missing at overlapping times also leave stretches with no lead at all.
-        let gaps = self.gaps();
-        if !gaps.is_empty() && !groups.iter().any(|g| g.len() == self.leads.len()) {
+        if !gaps.is_empty() && !groups.iter().any(|(_, g)| g.len() == self.leads.len()) {
             let total: usize = gaps.iter().map(ExactSizeIterator::len).sum();
             let longest = gaps.iter().map(ExactSizeIterator::len).max().unwrap_or(0);
             notes.push(format!(
@@ -635,7 +671,7 @@ mod tests {
         let every = rec(["I", "II", "V1"].into_iter().map(|n| lead(n, gap(100, 300))).collect());
         assert_eq!(
             every.invalid_sample_notes(),
-            ["every lead has 200 missing samples, at the same times (20.0 % of it; the longest run 0.400 s): \
+            ["every lead has 200 missing samples, at the same times (20.0 % of each; the longest run 0.400 s): \
               nothing was recorded then, so no beat is measured within a gap of 20 ms or more, and no RR interval \
               spans one"]
         );
@@ -653,6 +689,20 @@ mod tests {
             notes[2].starts_with("no lead was recorded for 0.100 s in all (the longest stretch 0.100 s)"),
             "{notes:?}"
         );
+        // All three leads lose the same 0.4 s (a recorder unplugged) and V1 another 0.1 s: no note may say the
+        // beats of those 0.4 s are measured on other leads.
+        let mut v1 = gap(100, 300);
+        v1[600..650].fill(f32::NAN);
+        let unplugged = rec(vec![lead("I", gap(100, 300)), lead("II", gap(100, 300)), lead("V1", v1)]);
+        let notes = unplugged.invalid_sample_notes();
+        assert_eq!(notes.len(), 3, "{notes:?}");
+        assert!(
+            notes[..2]
+                .iter()
+                .all(|n| n.ends_with("where another lead records, the analysis bridges them and measures beats on it")),
+            "{notes:?}"
+        );
+        assert!(notes[2].starts_with("no lead was recorded for 0.400 s in all"), "{notes:?}");
         // Scattered single losses in five leads of 10 000 samples, at different times: one note for them all.
         let one_lost = |name: &str, at: usize| {
             let mut x = vec![1.0f32; 10_000];

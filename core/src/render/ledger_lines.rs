@@ -96,14 +96,17 @@ pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec
     ranges::condensed(&kept)
 }
 
-/// Notes on the signal itself, printed before the range notes: missing samples and flat leads (see
-/// [`Recording::invalid_sample_notes`] and [`Recording::flat_lead_notes`]). A blank stretch or a flat trace on
+/// Notes on the signal itself, printed before the range notes: missing samples, flat leads and implausible
+/// amplitudes (see [`Recording::invalid_sample_notes`], [`Recording::flat_lead_notes`] and
+/// [`Recording::amplitude_doubt`]), each marked as about the whole recording. A blank stretch or a flat trace on
 /// the page is then not read as the heart's own; the notes name leads, never the patient.
 #[must_use]
 pub fn signal_notes(recording: &Recording) -> Vec<String> {
     let mut notes = recording.invalid_sample_notes();
     notes.extend(recording.flat_lead_notes());
-    notes
+    notes.extend(recording.amplitude_doubt());
+    // They describe the whole recording, of which the page may show a window.
+    notes.into_iter().map(|n| format!("whole recording: {n}")).collect()
 }
 
 /// Header fields naming the reader (when known) and the stage: `Reader: AB`, `Stage: checked`.
@@ -176,8 +179,8 @@ mod tests {
         };
         let notes = signal_notes(&rec);
         assert_eq!(notes.len(), 2, "{notes:?}");
-        assert!(notes[0].starts_with("lead I has 500 missing samples"), "{notes:?}");
-        assert!(notes[1].starts_with("lead II is flat"), "{notes:?}");
+        assert!(notes[0].starts_with("whole recording: lead I has 500 missing samples"), "{notes:?}");
+        assert!(notes[1].starts_with("whole recording: lead II is flat"), "{notes:?}");
     }
 
     #[test]
