@@ -39,6 +39,25 @@ pub fn find(leads: &[&[f32]], fs: f64) -> Vec<Range<usize>> {
     gaps
 }
 
+/// The runs of invalid (NaN or infinite) samples of one lead, in order.
+#[must_use]
+pub fn invalid_runs(x: &[f32]) -> Vec<Range<usize>> {
+    let mut runs = Vec::new();
+    let mut k = 0;
+    while k < x.len() {
+        if x[k].is_finite() {
+            k += 1;
+            continue;
+        }
+        let start = k;
+        while k < x.len() && !x[k].is_finite() {
+            k += 1;
+        }
+        runs.push(start..k);
+    }
+    runs
+}
+
 /// True when samples `a..b` overlap one of `gaps` (sorted, disjoint sample ranges).
 #[must_use]
 pub fn overlaps(gaps: &[Range<usize>], a: usize, b: usize) -> bool {
@@ -65,6 +84,13 @@ mod tests {
         assert!(find(&[], 100.0).is_empty());
         assert_eq!(find(&[&[nan, nan]], 100.0), vec![0..2]);
         assert!(find(&[&[nan, 0.0, nan]], 100.0).is_empty());
+    }
+
+    #[test]
+    fn invalid_runs_are_listed_in_order() {
+        let nan = f32::NAN;
+        assert_eq!(invalid_runs(&[nan, 0.0, nan, f32::INFINITY, 1.0, nan]), vec![0..1, 2..4, 5..6]);
+        assert!(invalid_runs(&[0.0, 1.0]).is_empty() && invalid_runs(&[]).is_empty());
     }
 
     #[test]

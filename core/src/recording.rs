@@ -272,24 +272,6 @@ fn invalid_runs(x: &[f32]) -> (usize, usize) {
     (total, longest)
 }
 
-/// The runs of invalid samples of `x`, in order.
-fn invalid_run_ranges(x: &[f32]) -> Vec<Range<usize>> {
-    let mut runs = Vec::new();
-    let mut k = 0;
-    while k < x.len() {
-        if x[k].is_finite() {
-            k += 1;
-            continue;
-        }
-        let start = k;
-        while k < x.len() && !x[k].is_finite() {
-            k += 1;
-        }
-        runs.push(start..k);
-    }
-    runs
-}
-
 /// More notes than this on leads missing samples at times of their own become one.
 const SCATTERED_NOTES: usize = 3;
 
@@ -410,7 +392,7 @@ impl Recording {
         // passes over a 24-h recording).
         let mut groups: Vec<(Vec<Range<usize>>, Vec<&Lead>)> = Vec::new();
         for lead in &self.leads {
-            let runs = invalid_run_ranges(&lead.samples);
+            let runs = crate::gaps::invalid_runs(&lead.samples);
             if runs.is_empty() {
                 continue;
             }

@@ -84,9 +84,10 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         std::fs::write(t, json + "\n").with_context(|| format!("{}: cannot write the truth", t.display()))?;
     }
     eprintln!(
-        "isoline: wrote {} ({} leads, {} Hz, {:.0} s, {} beats) — synthetic demo data. {}",
+        "isoline: wrote {} ({} lead{}, {} Hz, {:.0} s, {} beats) — synthetic demo data. {}",
         args.out.display(),
         rec.leads.len(),
+        if rec.leads.len() == 1 { "" } else { "s" },
         rec.sample_rate.hz(),
         rec.duration_s(),
         demo.truth.beats.len(),

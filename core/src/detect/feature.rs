@@ -107,22 +107,11 @@ fn absent_spans(lead: &[f32], fs: f64) -> Vec<std::ops::Range<usize>> {
     let min_run = ((ABSENT_RUN_S * fs).ceil() as usize).max(1);
     let reach = ((MWI_S + 0.050) * fs).round() as usize;
     let mut spans: Vec<std::ops::Range<usize>> = Vec::new();
-    let mut k = 0;
-    while k < n {
-        if lead[k].is_finite() {
-            k += 1;
-            continue;
-        }
-        let start = k;
-        while k < n && !lead[k].is_finite() {
-            k += 1;
-        }
-        if k - start >= min_run {
-            let span = start..(k + reach).min(n);
-            match spans.last_mut() {
-                Some(last) if last.end >= span.start => last.end = span.end,
-                _ => spans.push(span),
-            }
+    for run in crate::gaps::invalid_runs(lead).into_iter().filter(|r| r.len() >= min_run) {
+        let span = run.start..(run.end + reach).min(n);
+        match spans.last_mut() {
+            Some(last) if last.end >= span.start => last.end = span.end,
+            _ => spans.push(span),
         }
     }
     spans

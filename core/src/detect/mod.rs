@@ -108,17 +108,9 @@ fn longest_invalid_run(x: &[f32]) -> usize {
 /// For each sample of `x`, the length of the run of invalid samples it belongs to (0 for a valid sample).
 fn invalid_run_lengths(x: &[f32]) -> Vec<usize> {
     let mut out = vec![0; x.len()];
-    let mut k = 0;
-    while k < x.len() {
-        if x[k].is_finite() {
-            k += 1;
-            continue;
-        }
-        let start = k;
-        while k < x.len() && !x[k].is_finite() {
-            k += 1;
-        }
-        out[start..k].fill(k - start);
+    for run in gaps::invalid_runs(x) {
+        let len = run.len();
+        out[run].fill(len);
     }
     out
 }
