@@ -257,19 +257,9 @@ fn robust_span(x: &[f32]) -> Option<f32> {
     Some(high - low)
 }
 
-/// The number of invalid (non-finite) samples in `x` and the length of its longest run of them.
-fn invalid_runs(x: &[f32]) -> (usize, usize) {
-    let (mut total, mut run, mut longest) = (0, 0, 0);
-    for v in x {
-        if v.is_finite() {
-            run = 0;
-        } else {
-            total += 1;
-            run += 1;
-            longest = longest.max(run);
-        }
-    }
-    (total, longest)
+/// The number of samples in `runs` (sample ranges: missing runs, gaps) and the length of the longest.
+fn run_totals(runs: &[Range<usize>]) -> (usize, usize) {
+    (runs.iter().map(Range::len).sum(), runs.iter().map(Range::len).max().unwrap_or(0))
 }
 
 /// More notes than this on leads missing samples at times of their own become one.
@@ -405,17 +395,15 @@ impl Recording {
         let (min_gap, min_gap_ms) = ((crate::gaps::MIN_GAP_S * fs).ceil() as usize, crate::gaps::MIN_GAP_S * 1000.0);
         let n_leads = self.leads.len();
         // Leads missing some samples at times of their own, bridged: said in one note when there are many.
-        let partial = |(runs, g): &&(Vec<Range<usize>>, Vec<&Lead>)| {
-            g.len() < n_leads && runs.iter().map(Range::len).sum::<usize>() < g[0].samples.len()
-        };
+        let partial =
+            |(runs, g): &&(Vec<Range<usize>>, Vec<&Lead>)| g.len() < n_leads && run_totals(runs).0 < g[0].samples.len();
         let scattered = groups.iter().filter(partial).count() > SCATTERED_NOTES;
         let mut notes: Vec<String> = groups
             .iter()
             .filter(|g| !scattered || !partial(g))
             .map(|(runs, group)| {
                 let lead = group[0];
-                let invalid = runs.iter().map(Range::len).sum::<usize>();
-                let longest = runs.iter().map(Range::len).max().unwrap_or(0);
+                let (invalid, longest) = run_totals(runs);
                 let every = group.len() == n_leads;
                 // Some of these samples fall where no lead was recorded (said in a note of its own).
                 let unrecorded = runs.iter().any(|r| crate::gaps::overlaps(&gaps, r.start, r.end));
@@ -462,8 +450,12 @@ impl Recording {
             })
             .collect();
         if scattered {
-            let leads: Vec<&Lead> = groups.iter().filter(partial).flat_map(|(_, g)| g.iter().copied()).collect();
-            let counts: Vec<(usize, usize)> = leads.iter().map(|l| invalid_runs(&l.samples)).collect();
+            // Each lead's totals from its group's runs, found once above.
+            let (leads, counts): (Vec<&Lead>, Vec<(usize, usize)>) = groups
+                .iter()
+                .filter(partial)
+                .flat_map(|(runs, g)| g.iter().map(move |&l| (l, run_totals(runs))))
+                .unzip();
             let fewest = counts.iter().map(|c| c.0).min().unwrap_or(0);
             let most = counts.iter().map(|c| c.0).max().unwrap_or(0);
             let longest = counts.iter().map(|c| c.1).max().unwrap_or(0);
@@ -488,8 +480,7 @@ impl Recording {
         }
         // Different leads missing at overlapping times also leave stretches with no lead at all.
         if !gaps.is_empty() && !groups.iter().any(|(_, g)| g.len() == self.leads.len()) {
-            let total: usize = gaps.iter().map(ExactSizeIterator::len).sum();
-            let longest = gaps.iter().map(ExactSizeIterator::len).max().unwrap_or(0);
+            let (total, longest) = run_totals(&gaps);
             notes.push(format!(
                 "no lead was recorded for {:.3} s in all (the longest stretch {:.3} s): beats there are not measured, and no RR interval spans such a stretch",
                 total as f64 / fs,
@@ -633,7 +624,7 @@ mod tests {
             "{}",
             notes[1]
         );
-        assert_eq!(invalid_runs(&[1.0, f32::NAN, f32::NAN, 2.0, f32::NAN]), (3, 2));
+        assert_eq!(run_totals(&crate::gaps::invalid_runs(&[1.0, f32::NAN, f32::NAN, 2.0, f32::NAN])), (3, 2));
         let mut one_left = vec![f32::NAN; 15_000];
         one_left[7] = 0.0;
         let r = rec(vec![Lead { name: LeadName::parse("I"), samples: one_left }]);
