@@ -8,6 +8,7 @@ use isoline_core::beat::{Beat, BeatKind};
 use isoline_core::io::wfdb_annotations::is_beat;
 use isoline_core::measure::hrv;
 use isoline_core::recording::{Annotation, Recording};
+use isoline_core::units::Hertz;
 
 /// Whole-recording min/max envelope of one lead, in equal time buckets.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -117,8 +118,9 @@ pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Bea
 ///
 /// Source: references.md §10 (HR = 60 / RR in s).
 #[must_use]
-pub fn rate_trend(beats: &[Beat], rate_hz: f64, gaps: &[Range<usize>]) -> Vec<Vec<[f64; 2]>> {
-    hrv::nn_pairs(beats, gaps)
+pub fn rate_trend(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<[f64; 2]>> {
+    let rate_hz = fs.hz();
+    hrv::nn_pairs(beats, fs, gaps)
         .into_iter()
         .map(|run| {
             run.into_iter().map(|(a, b)| [b as f64 / rate_hz, 60_000.0 / ((b - a) as f64 * 1000.0 / rate_hz)]).collect()
@@ -128,9 +130,9 @@ pub fn rate_trend(beats: &[Beat], rate_hz: f64, gaps: &[Range<usize>]) -> Vec<Ve
 
 /// Median RR of consecutive dominant beats (the NN intervals of [`hrv::nn_pairs`], none across `gaps`), ms.
 #[must_use]
-pub fn median_rr_ms(beats: &[Beat], rate_hz: f64, gaps: &[Range<usize>]) -> Option<f64> {
+pub fn median_rr_ms(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Option<f64> {
     let mut rr: Vec<f64> =
-        hrv::nn_pairs(beats, gaps).into_iter().flatten().map(|(a, b)| (b - a) as f64 * 1000.0 / rate_hz).collect();
+        hrv::nn_pairs(beats, fs, gaps).into_iter().flatten().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect();
     median(&mut rr)
 }
 
@@ -167,7 +169,7 @@ mod tests {
                 isoline_core::recording::Lead { name: LeadName::parse("I"), samples: vec![0.0; n] },
                 isoline_core::recording::Lead { name: LeadName::parse("II"), samples },
             ],
-            sample_rate: isoline_core::units::Hertz::from_hz(50.0).unwrap_or_else(|_| unreachable!()),
+            sample_rate: Hertz::from_hz(50.0).unwrap_or_else(|_| unreachable!()),
             start: None,
             meta: isoline_core::recording::Meta::default(),
             annotations: Vec::new(),
@@ -182,16 +184,20 @@ mod tests {
         assert_eq!(TapeEnvelope::from_spans(&rec, 2, |a, b| Span::cut(&rec, a, b)).min.len(), 0, "no such lead");
     }
 
+    fn hz500() -> Hertz {
+        Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!())
+    }
+
     #[test]
     fn rate_trend_uses_dominant_pairs() {
         let beats =
             [Beat::at(0, BeatKind::Dominant), Beat::at(400, BeatKind::Dominant), Beat::at(600, BeatKind::Other)];
-        let t = rate_trend(&beats, 500.0, &[]);
+        let t = rate_trend(&beats, hz500(), &[]);
         // 400 samples at 500 Hz = 800 ms -> 75 bpm (references.md §10).
         assert_eq!(t.len(), 1);
         assert_eq!(t[0].len(), 1);
         assert!((t[0][0][1] - 75.0).abs() < 1e-9);
-        assert_eq!(median_rr_ms(&beats, 500.0, &[]), Some(800.0));
+        assert_eq!(median_rr_ms(&beats, hz500(), &[]), Some(800.0));
     }
 
     #[test]
@@ -201,7 +207,7 @@ mod tests {
         let kinds = [(0, true), (400, true), (800, true), (1000, false), (1600, true), (2000, true), (2400, true)];
         let beats: Vec<Beat> =
             kinds.iter().map(|&(r, d)| Beat::at(r, if d { BeatKind::Dominant } else { BeatKind::Other })).collect();
-        let t = rate_trend(&beats, 500.0, &[]);
+        let t = rate_trend(&beats, hz500(), &[]);
         let times: Vec<Vec<f64>> = t.iter().map(|run| run.iter().map(|p| p[0]).collect()).collect();
         assert_eq!(times, [vec![0.8, 1.6], vec![4.0, 4.8]]);
     }

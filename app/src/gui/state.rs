@@ -219,7 +219,7 @@ impl Loaded {
 
     /// Recomputes the rate trend and median RR from `beats`.
     pub fn derive_rates(&mut self) {
-        let fs = self.recording.sample_rate.hz();
+        let fs = self.recording.sample_rate;
         self.trend = super::derived::rate_trend(&self.beats, fs, &self.gaps);
         self.median_rr_ms = super::derived::median_rr_ms(&self.beats, fs, &self.gaps);
     }

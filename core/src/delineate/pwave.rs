@@ -80,6 +80,13 @@ const SELECT_FROM: usize = 20;
 const MAX_LAG_S: f64 = 0.024;
 /// How far before a QRS onset the P model reads a beat: its longest window, moved by the largest lag.
 pub(super) const READ_BEFORE_S: f64 = LONG_WINDOW_S + MAX_LAG_S;
+/// A lead enters a median of PR windows when it is present in at least this many of them (see [`median_of`]).
+// Common practice, no source: a median of one or two beats is mostly their noise.
+const MIN_PRESENT: usize = 3;
+/// A lead is left out of a beat's PR window when it misses samples within this time of the window, s: the
+/// zero-phase low-passes spread the interpolated stretch into the samples around it.
+// Common practice, no source: about half the impulse response of the 12 Hz low-pass.
+const SETTLE_S: f64 = 0.040;
 /// How far the P-band and 40 Hz zero-phase low-passes and the 16 ms envelope smoothing spread an abrupt start
 /// (end) of the P wave, s: an edge found on the envelope moves at most this far towards the P peak, over samples
 /// where the unfiltered median leads still stand still (as for the QRS edges in `qrs`).
@@ -112,7 +119,9 @@ pub struct PModel {
 }
 
 /// The PR window of one beat (per lead, relative to the PR-segment level), `w` samples long, if its last `need`
-/// samples lie inside the recording (any earlier ones outside it read 0).
+/// samples lie inside the recording (any earlier ones outside it read 0). A lead with a run of missing samples
+/// within the window or [`SETTLE_S`] of it reads NaN throughout (see [`Signals::lead_absent`]): its interpolated
+/// stretch would flatten the median P wave and lower the beat's resemblance to it.
 fn segment(sig: &Signals, qrs_on: usize, lag: isize, w: usize, need: usize) -> Option<Vec<Vec<f32>>> {
     segment_of(sig, &sig.slow, qrs_on, lag, w, need)
 }
@@ -133,10 +142,16 @@ fn segment_of<L: AsRef<[f32]>>(
     let end = end as usize;
     let ref_a = end - sig.samples(0.012).max(1);
     let lead_in = w.saturating_sub(end);
+    let settle = sig.samples(SETTLE_S);
+    let (a, b) = ((end + lead_in - w).saturating_sub(settle), end + settle);
     Some(
         leads
             .iter()
-            .map(|x| {
+            .enumerate()
+            .map(|(l, x)| {
+                if sig.lead_absent(l, a, b) {
+                    return vec![f32::NAN; w];
+                }
                 let x = x.as_ref();
                 let base = x[ref_a..end].iter().sum::<f32>() / (end - ref_a) as f32;
                 let mut v = vec![0.0f32; lead_in];
@@ -145,6 +160,11 @@ fn segment_of<L: AsRef<[f32]>>(
             })
             .collect(),
     )
+}
+
+/// True when a lead of a PR window (or of a median of them) holds samples: see [`segment`].
+fn present(lead: &[f32]) -> bool {
+    lead.first().is_some_and(|v| v.is_finite())
 }
 
 /// Builds the P model from dominant beats' QRS onsets; `earliest` is, per beat, the first sample the P wave
@@ -200,7 +220,7 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     // baseline cannot place the peak on a bump of its own, while a P wave moves most leads at once.
     let mut best_amp = 0.0f32;
     let mut departure = vec![0.0f32; w];
-    for t in &template {
+    for t in template.iter().filter(|t| present(t)) {
         let (ya, yb) = (t[start], t[stop]);
         for k in start..=stop {
             let line = ya + (yb - ya) * (k - start) as f32 / (stop - start) as f32;
@@ -262,6 +282,9 @@ fn edges(
         .map(|seg| {
             seg.iter()
                 .map(|t| {
+                    if !present(t) {
+                        return t.clone();
+                    }
                     let x: Vec<f64> = t.iter().map(|&v| f64::from(v)).collect();
                     filtfilt(&lp, &x, w / 2).into_iter().map(|v| v as f32).collect()
                 })
@@ -273,8 +296,9 @@ fn edges(
     // raised at most MAX_GAIN times relative to the lead with the steepest), so the leads' P waves count alike
     // and the biggest one does not alone set the edges.
     let slope = |t: &[f32], k: usize| ((t[k + 1] - t[k - 1]) * 0.5).abs();
+    let shown: Vec<&Vec<f32>> = fine.iter().filter(|t| present(t)).collect();
     let peaks: Vec<f32> =
-        fine.iter().map(|t| (start.max(1)..stop.min(w - 1)).map(|k| slope(t, k)).fold(0.0, f32::max)).collect();
+        shown.iter().map(|t| (start.max(1)..stop.min(w - 1)).map(|k| slope(t, k)).fold(0.0, f32::max)).collect();
     let top = peaks.iter().copied().fold(0.0f32, f32::max);
     let scales: Vec<f32> = peaks.iter().map(|&p| p.max(top / MAX_GAIN).max(f32::MIN_POSITIVE)).collect();
     let raw_env: Vec<f32> = (0..w)
@@ -282,7 +306,7 @@ fn edges(
             if k == 0 || k + 1 >= w {
                 return 0.0;
             }
-            fine.iter().zip(&scales).map(|(t, s)| slope(t, k) / s).sum()
+            shown.iter().zip(&scales).map(|(t, s)| slope(t, k) / s).sum()
         })
         .collect();
     let env = smooth(&raw_env, (sig.samples(0.016).max(1)) | 1);
@@ -335,6 +359,7 @@ fn refine(
     let noise: f32 = raw
         .iter()
         .zip(fine)
+        .filter(|(r, f)| present(r) && present(f))
         .map(|(r, f)| {
             // The two are levelled on different PR-segment means, so the deviation is taken about its median.
             let mut d: Vec<f32> = (start..on).chain(end + 1..stop).map(|k| r[k] - f[k]).collect();
@@ -347,7 +372,7 @@ fn refine(
             NOISE_FACTOR * *dev.select_nth_unstable_by(mid, f32::total_cmp).1
         })
         .sum();
-    let step = |k: usize| -> f32 { raw.iter().map(|r| (r[k + 1] - r[k]).abs()).sum() };
+    let step = |k: usize| -> f32 { raw.iter().filter(|r| present(r)).map(|r| (r[k + 1] - r[k]).abs()).sum() };
     let spread = sig.samples(SPREAD_S);
     let on = if noise <= STILL * on_level {
         let reach = (on + spread).min(up);
@@ -364,16 +389,21 @@ fn refine(
     (on, end)
 }
 
-/// Sample-by-sample median over segments (per lead).
+/// Sample-by-sample median over segments (per lead), over the segments where the lead is present (see
+/// [`segment`]); a lead present in fewer than [`MIN_PRESENT`] of them (or in none, when there are fewer) reads NaN.
 fn median_of(segs: &[&Vec<Vec<f32>>], w: usize) -> Vec<Vec<f32>> {
     let leads = segs.first().map_or(0, |s| s.len());
     let mut col = Vec::with_capacity(segs.len());
     (0..leads)
         .map(|l| {
+            let with: Vec<&Vec<f32>> = segs.iter().map(|s| &s[l]).filter(|t| present(t)).collect();
+            if with.is_empty() || with.len() < MIN_PRESENT.min(segs.len()) {
+                return vec![f32::NAN; w];
+            }
             (0..w)
                 .map(|k| {
                     col.clear();
-                    col.extend(segs.iter().map(|s| s[l][k]));
+                    col.extend(with.iter().map(|t| t[k]));
                     let mid = col.len() / 2;
                     *col.select_nth_unstable_by(mid, f32::total_cmp).1
                 })
@@ -383,7 +413,7 @@ fn median_of(segs: &[&Vec<Vec<f32>>], w: usize) -> Vec<Vec<f32>> {
 }
 
 impl PModel {
-    /// Correlation of a beat's PR window with the template over the P wave (±20 ms), all leads together.
+    /// Correlation of a beat's PR window with the template over the P wave (±20 ms), all leads both hold together.
     fn similarity(&self, seg: &[Vec<f32>]) -> f64 {
         let w = self.template.first().map_or(0, Vec::len) as isize;
         let margin = self.margin as isize;
@@ -392,8 +422,13 @@ impl PModel {
         if b <= a + 2 {
             return 0.0;
         }
-        let flat = |v: &[Vec<f32>]| v.iter().flat_map(|t| t[a..b].iter().copied()).collect::<Vec<f32>>();
-        correlation(&flat(seg), &flat(&self.template))
+        // Over the leads both hold (see `segment`); none in common compares nothing.
+        let (mut x, mut y) = (Vec::new(), Vec::new());
+        for (s, t) in seg.iter().zip(&self.template).filter(|(s, t)| present(s) && present(t)) {
+            x.extend_from_slice(&s[a..b]);
+            y.extend_from_slice(&t[a..b]);
+        }
+        correlation(&x, &y)
     }
 
     /// A model of the median PR window `template` with no edges yet, compared with beats over the P wave and

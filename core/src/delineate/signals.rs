@@ -42,6 +42,9 @@ pub struct Signals<'a> {
     pub env: Vec<f32>,
     /// Stretches where no lead has a valid sample (see [`crate::gaps`]): no boundary is sought across one.
     pub gaps: Vec<Range<usize>>,
+    /// Per lead, its runs of [`gaps::ABSENT_RUN_S`] or more of invalid samples (bridged by interpolation in the
+    /// leads above): a wave model read from many beats leaves the lead out of a beat where it was not recorded.
+    pub absent: Vec<Vec<Range<usize>>>,
     /// Pacing spikes: sorted sample indices where any unfiltered lead jumps away from and back to its local
     /// level within a few samples (see [`pacing_spikes`]).
     pub spikes: Vec<usize>,
@@ -59,6 +62,7 @@ impl<'a> Signals<'a> {
         let mut slow = Vec::with_capacity(leads.len());
         let mut wide = Vec::with_capacity(leads.len());
         let mut spikes = Vec::new();
+        let absent = leads.iter().map(|l| gaps::absent_runs(l, fs)).collect();
         for &lead in leads {
             let x = fill_invalid(lead);
             spikes.extend(pacing_spikes(&x, fs));
@@ -87,7 +91,7 @@ impl<'a> Signals<'a> {
         let w = ((0.010 * fs).round() as usize).max(1) | 1;
         spikes.sort_unstable();
         spikes.dedup();
-        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), gaps: gaps::find(leads, fs), spikes }
+        Self { fs, qrs, slow, wide, env: smooth(&raw_env, w), gaps: gaps::find(leads, fs), absent, spikes }
     }
 
     /// Number of samples.
@@ -107,6 +111,12 @@ impl<'a> Signals<'a> {
     #[must_use]
     pub fn bridged(&self, a: usize, b: usize) -> bool {
         gaps::overlaps(&self.gaps, a, b)
+    }
+
+    /// True when lead `lead` has a run of missing samples ([`Self::absent`]) overlapping samples `a..b`.
+    #[must_use]
+    pub fn lead_absent(&self, lead: usize, a: usize, b: usize) -> bool {
+        self.absent.get(lead).is_some_and(|runs| gaps::overlaps(runs, a, b))
     }
 
     /// Samples in `s` seconds (rounded).

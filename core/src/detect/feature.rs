@@ -38,7 +38,7 @@ pub fn lag_s() -> f64 {
     MWI_S / 2.0 + 0.020
 }
 
-/// Computes the feature signals. `leads` are raw samples (µV, NaN = invalid, held at the last valid value).
+/// Computes the feature signals. `leads` are raw samples (µV, NaN = invalid, bridged by a straight line).
 /// One streaming pass per lead (band-pass, derivative, square, integrate), so a 24-h Holter stays fast. Leads of
 /// [`PARALLEL_FROM`] samples or more are prepared on the rayon pool's threads, at most [`AT_ONCE`] at a time (each
 /// holds a feature as long as the recording); they are added in lead order, so the result does not depend on
@@ -55,7 +55,7 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
     };
     let at_once = if n >= PARALLEL_FROM { rayon::current_num_threads().clamp(1, AT_ONCE) } else { 1 };
     // Where some lead is absent somewhere: the weight of the leads absent at each sample, and what they would
-    // have added (held at their last value), used where no lead is present.
+    // have added (bridged), used where no lead is present.
     let mut absent: Option<(Vec<f32>, Vec<f32>)> = None;
     for group in leads.chunks(at_once) {
         let prepared: Vec<(Vec<f32>, Vec<f32>, f64)> =
@@ -82,7 +82,7 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
         match &absent {
             // Divided by the weight of the leads present: where some leads are missing the others still give
             // about 1 at a QRS, so their beats are found (before, one lead of twelve left gave a twelfth). Where
-            // none is present, the absent leads as held count after all (a QRS partly lost in every lead).
+            // none is present, the absent leads as bridged count after all (a QRS partly lost in every lead).
             Some((missing, hidden)) => combined.iter_mut().zip(missing).zip(hidden).for_each(|((c, &m), &h)| {
                 let present = total as f32 - m;
                 *c = if present > 1e-6 * total as f32 { *c / present } else { (*c + h) * inv };
@@ -93,21 +93,15 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
     Features { combined, weights }
 }
 
-/// A lead is left out of the combined feature over a run of at least this many seconds of invalid samples
-/// (held at the last valid value there, its feature is flat, then jumps where the signal resumes).
-// Common practice, no source: a lost sample or two held at the last value leave the feature about as it was; 10
-// ms can hold the steep part of a narrow QRS.
-const ABSENT_RUN_S: f64 = 0.010;
-
-/// The samples over which `lead` is absent from the combined feature: each run of [`ABSENT_RUN_S`] or more of
+/// The samples over which `lead` is absent from the combined feature (bridged by a straight line there, its
+/// feature is near zero, then has a corner where the signal resumes): each run of [`crate::gaps::ABSENT_RUN_S`] or more of
 /// invalid samples, and the feature's reach after it (the integration window and the band-pass settling on the
 /// resumed signal, [`MWI_S`] + 50 ms).
 fn absent_spans(lead: &[f32], fs: f64) -> Vec<std::ops::Range<usize>> {
     let n = lead.len();
-    let min_run = ((ABSENT_RUN_S * fs).ceil() as usize).max(1);
     let reach = ((MWI_S + 0.050) * fs).round() as usize;
     let mut spans: Vec<std::ops::Range<usize>> = Vec::new();
-    for run in crate::gaps::invalid_runs(lead).into_iter().filter(|r| r.len() >= min_run) {
+    for run in crate::gaps::absent_runs(lead, fs) {
         let span = run.start..(run.end + reach).min(n);
         match spans.last_mut() {
             Some(last) if last.end >= span.start => last.end = span.end,
@@ -139,6 +133,12 @@ fn add_lead(combined: &mut [f32], mwi: &[f32], local: &[f32], weight: f64, fs: f
 fn lead_feature(x: &[f32], fs: f64) -> Vec<f32> {
     let hp = Biquad::highpass(5.0, fs);
     let lp = Biquad::lowpass(15.0_f64.min(fs * 0.45), fs);
+    // Invalid samples are bridged by a straight line (as `fill_invalid` does): held at the last valid value,
+    // a lead resuming after a loss stepped, and the step's feature after a stretch with no lead recorded was
+    // taken for a beat (LUDB 24 with every lead lost for 0.4 s: a beat on the T wave of the beat lost, and the
+    // next beat typed other by its short RR).
+    let runs = crate::gaps::invalid_runs(x);
+    let mut run = runs.iter().peekable();
     let first = x.iter().copied().find(|v| v.is_finite()).map_or(0.0, f64::from);
     let mut sh = hp.state_for(first);
     let mut sl = lp.state_for(0.0);
@@ -146,17 +146,19 @@ fn lead_feature(x: &[f32], fs: f64) -> Vec<f32> {
     let mut ring = vec![0.0f64; w];
     let mut sum = 0.0f64;
     let mut hist = [0.0f64; 5];
-    let mut held = first;
     let mut out = Vec::with_capacity(x.len());
     // No division per sample (the ring's slot wraps, the mean multiplies by 1/w): on a 24-h recording each
     // division costs about a tenth of the detector's time.
     let mut slot = 0;
     let inv_w = 1.0 / w as f64;
-    for &v in x {
-        if v.is_finite() {
-            held = f64::from(v);
-        }
-        let y = lp.step(&mut sl, hp.step(&mut sh, held));
+    for (k, &v) in x.iter().enumerate() {
+        let u = if v.is_finite() {
+            f64::from(v)
+        } else {
+            while run.next_if(|r| r.end <= k).is_some() {}
+            run.peek().map_or(0.0, |r| crate::filter::bridged(x, r, k))
+        };
+        let y = lp.step(&mut sl, hp.step(&mut sh, u));
         hist.rotate_left(1);
         hist[4] = y;
         // Derivative centred two samples back: (2x[k−1] + x[k] − x[k−4] − 2x[k−3]) / 8.

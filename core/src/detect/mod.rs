@@ -16,7 +16,7 @@ use crate::recording::Recording;
 use crate::units::Hertz;
 
 /// Half-width of the R peak search around the QRS middle found by the feature, s.
-const R_SEARCH_S: f64 = 0.100;
+pub const R_SEARCH_S: f64 = 0.100;
 
 /// Detects beats on every lead together. Returns R peaks in time order with their kind; boundaries are
 /// empty (see [`crate::delineate::delineate_beats`]). Works on raw or filtered recordings (it band-passes
@@ -116,14 +116,14 @@ fn invalid_run_lengths(x: &[f32]) -> Vec<usize> {
 }
 
 /// RR interval to the previous beat, ms: `None` for the first beat and where one of `gaps` (stretches where no
-/// lead was recorded, see [`crate::gaps`]) lies between the two.
+/// lead was recorded, see [`crate::gaps`]) lies between the two or cuts into either QRS ([`gaps::breaks_rr`]).
 #[must_use]
 pub fn rr_ms(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Option<f64>> {
     let mut out = Vec::with_capacity(beats.len());
     out.extend(beats.first().map(|_| None));
     out.extend(beats.windows(2).map(|w| {
         let (a, b) = (w[0].r, w[1].r);
-        (b > a && !gaps::overlaps(gaps, a, b)).then(|| fs.ms_from_samples((b - a) as f64))
+        (b > a && !gaps::breaks_rr(gaps, a, b, fs.hz())).then(|| fs.ms_from_samples((b - a) as f64))
     }));
     out
 }
@@ -181,11 +181,16 @@ mod tests {
         let rr = rr_ms(&beats, hz, &[]);
         assert_eq!(rr[0], None);
         assert!(rr[1..].iter().all(|v| v.is_some_and(|ms| (ms - 800.0).abs() <= 8.0)));
-        // A stretch of the recording with no valid sample between beats 3 and 4: no RR across it.
-        let gap = beats[3].r + 20..beats[4].r - 20;
+        // A stretch of the recording with no valid sample between beats 3 and 4: no RR across it. Beats 3 and 4
+        // are 240 ms from it, beyond the R peak search's reach (2 × 100 ms), so their other RRs stand; 80 ms from
+        // it, they go too.
+        let gap = beats[3].r + 60..beats[4].r - 60;
         let rr = rr_ms(&beats, hz, std::slice::from_ref(&gap));
         assert_eq!(rr[4], None);
         assert!(rr[3].is_some() && rr[5].is_some());
+        let near = beats[3].r + 20..beats[4].r - 20;
+        let rr = rr_ms(&beats, hz, std::slice::from_ref(&near));
+        assert!(rr[3..=5].iter().all(Option::is_none) && rr[2].is_some() && rr[6].is_some());
     }
 
     #[test]

@@ -83,7 +83,7 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64, gaps
     if close.len() * 3 >= pool.len() {
         template = median_template(&close, len);
     }
-    let premature = premature_beats(r, gaps);
+    let premature = premature_beats(r, gaps, fs);
     snippets
         .iter()
         .zip(r)
@@ -174,11 +174,11 @@ pub fn correlation(x: &[f32], y: &[f32]) -> f64 {
 /// the 8 RRs before and 8 after, AND — when enough ordinary RRs surround it — more than [`OUTLIER_SD`] SDs
 /// (of the 16 RRs before and 16 after) below that median. So in a regular rhythm a 15 % early beat is
 /// premature, while in atrial fibrillation or an irregular sinus rhythm, where short RRs are ordinary, a beat
-/// is `other` only by its shape. An interval across one of `gaps` is no RR: it is left out of the medians and
-/// spreads, and the beat it ends is not judged by it.
-fn premature_beats(r: &[usize], gaps: &[Range<usize>]) -> Vec<bool> {
+/// is `other` only by its shape. An interval across one of `gaps` (or next to one, [`gaps::breaks_rr`]; R peaks
+/// at `fs` Hz) is no RR: it is left out of the medians and spreads, and the beat it ends is not judged by it.
+fn premature_beats(r: &[usize], gaps: &[Range<usize>], fs: f64) -> Vec<bool> {
     let rr: Vec<Option<f64>> =
-        r.windows(2).map(|w| (!gaps::overlaps(gaps, w[0], w[1])).then(|| (w[1] - w[0]) as f64)).collect();
+        r.windows(2).map(|w| (!gaps::breaks_rr(gaps, w[0], w[1], fs)).then(|| (w[1] - w[0]) as f64)).collect();
     let mut buf = Vec::with_capacity(17);
     let mut ordinary = Vec::with_capacity(33);
     (0..r.len())
@@ -282,6 +282,9 @@ mod tests {
         assert!(dom.iter().all(|&d| d), "{} of {} beats dominant", dom.iter().filter(|&&d| d).count(), dom.len());
     }
 
+    /// Sampling rate of the R peaks built by [`peaks`], Hz.
+    const FS_TEST: f64 = 250.0;
+
     /// R peaks from RRs (samples), starting at 200.
     fn peaks(rr: &[usize]) -> Vec<usize> {
         let mut r = vec![200];
@@ -296,7 +299,7 @@ mod tests {
         let mut rr: Vec<usize> = (0..30).map(|k| 200 + k % 3).collect();
         rr[15] = 160; // 20 % early
         rr[16] = 240; // compensatory pause
-        let p = premature_beats(&peaks(&rr), &[]);
+        let p = premature_beats(&peaks(&rr), &[], FS_TEST);
         assert_eq!(p.iter().filter(|&&b| b).count(), 1);
         assert!(p[16]);
     }
@@ -312,14 +315,14 @@ mod tests {
             })
             .collect();
         assert!(rr.iter().filter(|&&v| v < 170).count() >= 5, "the pattern must hold short RRs");
-        assert!(premature_beats(&peaks(&rr), &[]).iter().all(|&b| !b));
+        assert!(premature_beats(&peaks(&rr), &[], FS_TEST).iter().all(|&b| !b));
     }
 
     #[test]
     fn trigeminy_stays_premature() {
         // Normal, short, pause, normal, short, pause…: the early beats stand out from the steady normal RRs.
         let rr: Vec<usize> = (0..30).map(|k| [200, 140, 250][k % 3]).collect();
-        let p = premature_beats(&peaks(&rr), &[]);
+        let p = premature_beats(&peaks(&rr), &[], FS_TEST);
         let expected: Vec<bool> = (0..p.len()).map(|i| i > 0 && (i - 1) % 3 == 1).collect();
         assert_eq!(p, expected);
     }
@@ -333,7 +336,7 @@ mod tests {
         let r = peaks(&rr);
         let gaps: Vec<Range<usize>> =
             r.windows(2).filter(|w| w[1] - w[0] == 400).map(|w| w[0] + 150..w[0] + 250).collect();
-        assert!(premature_beats(&r, &gaps).iter().all(|&p| !p));
-        assert!(premature_beats(&r, &[]).iter().filter(|&&p| p).count() >= 3);
+        assert!(premature_beats(&r, &gaps, FS_TEST).iter().all(|&p| !p));
+        assert!(premature_beats(&r, &[], FS_TEST).iter().filter(|&&p| p).count() >= 3);
     }
 }

@@ -119,42 +119,30 @@ pub fn filtfilt(sections: &[Biquad], x: &[f64], pad: usize) -> Vec<f64> {
 }
 
 /// Copies samples to f64, replacing invalid (NaN or infinite) samples by linear interpolation between the
-/// nearest valid neighbours (held flat at the ends). A lead with no valid sample becomes all zeros.
+/// nearest valid neighbours (held flat at the ends; see [`bridged`]). A lead with no valid sample becomes all zeros.
 #[must_use]
 pub fn fill_invalid(samples: &[f32]) -> Vec<f64> {
     let mut out: Vec<f64> = samples.iter().map(|&v| f64::from(v)).collect();
-    let mut last_valid: Option<usize> = None;
-    let mut i = 0;
-    while i < out.len() {
-        if out[i].is_finite() {
-            last_valid = Some(i);
-            i += 1;
-            continue;
-        }
-        let start = i;
-        while i < out.len() && !out[i].is_finite() {
-            i += 1;
-        }
-        let next = (i < out.len()).then_some(i);
-        match (last_valid, next) {
-            (Some(a), Some(b)) => {
-                let (va, vb) = (out[a], out[b]);
-                for (k, v) in out.iter_mut().enumerate().take(i).skip(start) {
-                    *v = va + (vb - va) * (k - a) as f64 / (b - a) as f64;
-                }
-            }
-            (Some(a), None) => {
-                let va = out[a];
-                out[start..i].fill(va);
-            }
-            (None, Some(b)) => {
-                let vb = out[b];
-                out[start..i].fill(vb);
-            }
-            (None, None) => out[start..i].fill(0.0),
+    for run in crate::gaps::invalid_runs(samples) {
+        for k in run.clone() {
+            out[k] = bridged(samples, &run, k);
         }
     }
     out
+}
+
+/// The value [`fill_invalid`] gives sample `k` of `run`, a whole run of invalid samples of `x`: on the straight
+/// line from the last valid sample before the run to the first after it; the one valid neighbour's value at an
+/// end of the lead; 0 in a lead with none. One sample at a time, for passes that stream a long lead.
+#[must_use]
+pub fn bridged(x: &[f32], run: &std::ops::Range<usize>, k: usize) -> f64 {
+    let before = run.start.checked_sub(1).map(|a| (a, f64::from(x[a])));
+    let after = x.get(run.end).map(|&v| (run.end, f64::from(v)));
+    match (before, after) {
+        (Some((a, va)), Some((b, vb))) => va + (vb - va) * (k - a) as f64 / (b - a) as f64,
+        (Some((_, v)), None) | (None, Some((_, v))) => v,
+        (None, None) => 0.0,
+    }
 }
 
 #[cfg(test)]

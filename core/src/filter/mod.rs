@@ -7,7 +7,7 @@
 mod iir;
 mod mains;
 
-pub use iir::{Biquad, BiquadState, fill_invalid, filtfilt};
+pub use iir::{Biquad, BiquadState, bridged, fill_invalid, filtfilt};
 pub use mains::detect_mains;
 
 use crate::recording::{Lead, Recording};

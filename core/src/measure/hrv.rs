@@ -86,21 +86,22 @@ impl Rhythm {
 /// recording (`gaps`, sorted) lies between two beats.
 #[must_use]
 pub fn nn_runs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<f64>> {
-    nn_pairs(beats, gaps)
+    nn_pairs(beats, fs, gaps)
         .into_iter()
         .map(|run| run.into_iter().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect())
         .collect()
 }
 
-/// The NN intervals of [`nn_runs`] as the R peaks (samples) that bound them, first and second, in the same runs.
+/// The NN intervals of [`nn_runs`] as the R peaks (samples at `fs`) that bound them, first and second, in the
+/// same runs; none where a gap lies between two beats or cuts into either's QRS ([`gaps::breaks_rr`]).
 #[must_use]
-pub fn nn_pairs(beats: &[Beat], gaps: &[Range<usize>]) -> Vec<Vec<(usize, usize)>> {
+pub fn nn_pairs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<(usize, usize)>> {
     let mut runs: Vec<Vec<(usize, usize)>> = Vec::new();
     let mut current = Vec::new();
     for w in beats.windows(2) {
         let (a, b) = (&w[0], &w[1]);
-        if a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant && b.r > a.r && !gaps::overlaps(gaps, a.r, b.r)
-        {
+        let ordinary = a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant;
+        if ordinary && b.r > a.r && !gaps::breaks_rr(gaps, a.r, b.r, fs.hz()) {
             current.push((a.r, b.r));
         } else if !current.is_empty() {
             runs.push(std::mem::take(&mut current));
@@ -142,7 +143,7 @@ pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
         vec![
             beats
                 .windows(2)
-                .filter(|w| w[1].r > w[0].r && !gaps::overlaps(gaps, w[0].r, w[1].r))
+                .filter(|w| w[1].r > w[0].r && !gaps::breaks_rr(gaps, w[0].r, w[1].r, fs.hz()))
                 .map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64))
                 .collect(),
         ]
@@ -186,11 +187,11 @@ mod tests {
     #[test]
     #[allow(clippy::single_range_in_vec_init)] // one gap: a list of one range, as `Recording::gaps` gives
     fn an_interval_across_a_gap_is_not_an_rr_interval() {
-        // Beats every 800 ms; nothing recorded from 2500 to 4000 (the beats at 3.2 s were lost): the 2400-ms
+        // Beats every 800 ms; nothing recorded from 2700 to 4000 (the beats at 3.2 s were lost): the 2400-ms
         // interval from 2.4 s to 4.8 s is left out, and the runs on either side stay apart for RMSSD.
         let rs = [0usize, 800, 1600, 2400, 4800, 5600, 6400, 7200];
         let b: Vec<Beat> = rs.iter().map(|&r| Beat::at(r, BeatKind::Dominant)).collect();
-        let gaps = [2500..4000];
+        let gaps = [2700..4000];
         assert_eq!(nn_runs(&b, fs(), &gaps), vec![vec![800.0; 3], vec![800.0; 3]]);
         let s = rr_stats(&b, fs(), &gaps);
         assert_eq!((s.nn_count, s.rr_ms, s.sdnn_ms), (6, Some(800.0), Some(0.0)));

@@ -351,9 +351,14 @@ fn no_boundary_is_placed_across_a_gap() {
     // Beats clear of the gaps keep their boundaries.
     assert!(kept.iter().all(|&k| k >= 5), "{kept:?}");
     let rr = isoline_core::detect::rr_ms(&a.beats, cut.sample_rate, &cut.gaps());
+    // No RR spans a gap, and every RR whose beats lie clear of the gaps is given: 200 ms from them, beyond the R
+    // peak search's reach (an R peak is sought within 100 ms of a QRS middle found within 100 ms of it).
+    let reach = (0.200 * fs) as usize;
     for (w, rr) in a.beats.windows(2).zip(&rr[1..]) {
         let across = cut.gaps().iter().any(|g| g.start < w[1].r && g.end > w[0].r);
-        assert_eq!(rr.is_none(), across, "RR from {} to {}: {rr:?}", w[0].r, w[1].r);
+        let clear = cut.gaps().iter().all(|g| g.start >= w[1].r + reach || g.end + reach <= w[0].r);
+        assert!(!(across && rr.is_some()), "RR from {} to {} across a gap: {rr:?}", w[0].r, w[1].r);
+        assert!(!(clear && rr.is_none()), "no RR from {} to {}, clear of the gaps", w[0].r, w[1].r);
     }
 }
 
@@ -457,4 +462,76 @@ fn a_lost_sample_near_an_r_peak_keeps_the_beat_on_its_lead() {
     }
     let (x, y) = (a.measurements.rr.rmssd_ms, whole.measurements.rr.rmssd_ms);
     assert!(x.zip(y).is_some_and(|(x, y)| (x - y).abs() <= 1.0), "RMSSD {x:?} vs {y:?}");
+}
+
+#[test]
+fn p_waves_are_found_on_the_leads_left() {
+    // LUDB 24 with its six limb leads missing from 2.5 to 7.5 s (limb electrodes off, chest ones on). Before, the
+    // P model's median PR window held the limb leads' interpolated straight stretch in half the beats, the beats
+    // no longer resembled it, and every P wave was lost (no PR). Now a lead missing in a beat is left out of that
+    // beat: each beat keeps its P wave within 4 samples of the complete recording's (measured: 3), and the PR
+    // within 4 ms. Source of the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
+    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
+        .unwrap_or_else(|e| panic!("{e}"));
+    let whole = analyze(&opened.recording, &FilterSettings::default());
+    let fs = opened.recording.sample_rate.hz();
+    let mut off = opened.recording.clone();
+    for name in ["I", "II", "III", "aVR", "aVL", "aVF"] {
+        let i = off.lead_index(&isoline_core::recording::LeadName::parse(name)).unwrap_or_else(|| panic!("{name}"));
+        off.leads[i].samples[(2.5 * fs) as usize..(7.5 * fs) as usize].fill(f32::NAN);
+    }
+    let a = analyze(&off, &FilterSettings::default());
+    let with_p = whole.beats.iter().filter(|w| w.bounds.p_on.is_some()).count();
+    assert!(with_p >= 7, "{with_p} beats with a P wave in the complete recording");
+    for w in whole.beats.iter().filter(|w| w.bounds.p_on.is_some()) {
+        let b = a.beats.iter().find(|b| b.r.abs_diff(w.r) <= 10).unwrap_or_else(|| panic!("beat at {}", w.r));
+        for (name, got, want) in [("P onset", b.bounds.p_on, w.bounds.p_on), ("P end", b.bounds.p_end, w.bounds.p_end)]
+        {
+            let near = got.zip(want).is_some_and(|(g, w)| g.abs_diff(w) <= 4);
+            assert!(near, "beat at {}: {name} {got:?} where the complete recording has {want:?}", w.r);
+        }
+    }
+    let (pr, want) = (a.measurements.intervals.pr_ms, whole.measurements.intervals.pr_ms);
+    println!("PR {pr:?} ms, complete recording {want:?} ms");
+    assert!(pr.zip(want).is_some_and(|(p, w)| (p - w).abs() <= 4.0), "PR {pr:?} for {want:?}");
+}
+
+#[test]
+fn a_beat_lost_in_a_gap_leaves_no_false_beat_or_rr() {
+    // LUDB 24 (RR ≈ 1.2 s) with every lead lost over one beat, at several places around its R peak (8.434 s).
+    // Before: lost 8.30–8.70 s, the resumed leads' step was taken for a beat on the lost beat's T wave, and the
+    // next beat was typed other by its 786 ms RR; lost 8.40–8.48 s, the beat was placed on the first sample after
+    // the loss and the next RR read 1160 ms for 1208; lost 8.48–8.56 s, its R peak was placed 70 ms early and its
+    // RR read 1154 ms for 1224. Now every beat found is one of the complete recording's, and every RR given
+    // joins two beats that follow each other there, within 2 samples of its RR. Source of the record: LUDB
+    // (Kalyakulina et al. 2020, PhysioNet).
+    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
+        .unwrap_or_else(|e| panic!("{e}"));
+    let whole = analyze(&opened.recording, &FilterSettings::default());
+    let fs = opened.recording.sample_rate.hz();
+    let rs: Vec<usize> = whole.beats.iter().map(|b| b.r).collect();
+    for (from, to) in [(8.30, 8.70), (8.36, 8.60), (8.40, 8.48), (8.44, 8.52), (8.48, 8.56), (8.20, 8.50)] {
+        let mut cut = opened.recording.clone();
+        for lead in &mut cut.leads {
+            lead.samples[(from * fs) as usize..(to * fs) as usize].fill(f32::NAN);
+        }
+        let a = analyze(&cut, &FilterSettings::default());
+        let rr = isoline_core::detect::rr_ms(&a.beats, cut.sample_rate, &cut.gaps());
+        // The complete recording's beat each beat found is (within 150 ms), by index.
+        let index: Vec<usize> = a
+            .beats
+            .iter()
+            .map(|b| {
+                let near = rs.iter().position(|&r| r.abs_diff(b.r) as f64 <= 0.150 * fs);
+                near.unwrap_or_else(|| panic!("lost {from}–{to} s: a beat at {} that the recording has not", b.r))
+            })
+            .collect();
+        for (i, rr) in rr.iter().enumerate() {
+            let Some(rr) = rr else { continue };
+            let (j, k) = (index[i - 1], index[i]);
+            let want = (rs[k] - rs[j]) as f64 * 1000.0 / fs;
+            assert!(k == j + 1, "lost {from}–{to} s: an RR of {rr} ms across the lost beat");
+            assert!((rr - want).abs() <= 2000.0 / fs, "lost {from}–{to} s: RR {rr} ms for {want}");
+        }
+    }
 }
