@@ -21,20 +21,7 @@ pub fn find(leads: &[&[f32]], fs: f64) -> Vec<Range<usize>> {
         return Vec::new();
     }
     let min_len = ((MIN_GAP_S * fs).ceil() as usize).max(1);
-    let mut gaps = Vec::new();
-    let mut start = None;
-    for k in 0..n {
-        let silent = leads.iter().all(|l| !l[k].is_finite());
-        match (silent, start) {
-            (true, None) => start = Some(k),
-            (false, Some(a)) => {
-                gaps.push(a..k);
-                start = None;
-            }
-            _ => {}
-        }
-    }
-    gaps.extend(start.map(|a| a..n));
+    let mut gaps = runs_where(n, |k| leads.iter().all(|l| !l[k].is_finite()));
     gaps.retain(|g| g.len() >= min_len);
     gaps
 }
@@ -42,15 +29,21 @@ pub fn find(leads: &[&[f32]], fs: f64) -> Vec<Range<usize>> {
 /// The runs of invalid (NaN or infinite) samples of one lead, in order.
 #[must_use]
 pub fn invalid_runs(x: &[f32]) -> Vec<Range<usize>> {
+    runs_where(x.len(), |k| !x[k].is_finite())
+}
+
+/// The maximal runs of consecutive indices `0..n` where `hit` holds, in order.
+#[must_use]
+pub fn runs_where(n: usize, hit: impl Fn(usize) -> bool) -> Vec<Range<usize>> {
     let mut runs = Vec::new();
     let mut k = 0;
-    while k < x.len() {
-        if x[k].is_finite() {
+    while k < n {
+        if !hit(k) {
             k += 1;
             continue;
         }
         let start = k;
-        while k < x.len() && !x[k].is_finite() {
+        while k < n && hit(k) {
             k += 1;
         }
         runs.push(start..k);

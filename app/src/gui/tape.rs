@@ -129,20 +129,7 @@ fn jump(
 
 /// The runs of consecutive columns whose minimum `lo` is a number (columns with no valid sample are NaN).
 fn recorded_runs(lo: &[f64]) -> Vec<std::ops::Range<usize>> {
-    let mut runs = Vec::new();
-    let mut start = None;
-    for (i, v) in lo.iter().enumerate() {
-        match (v.is_finite(), start) {
-            (true, None) => start = Some(i),
-            (false, Some(a)) => {
-                runs.push(a..i);
-                start = None;
-            }
-            _ => {}
-        }
-    }
-    runs.extend(start.map(|a| a..lo.len()));
-    runs
+    isoline_core::gaps::runs_where(lo.len(), |i| lo[i].is_finite())
 }
 
 /// Merges envelope buckets down to at most `columns`, returning bucket centre times (s) and min/max in mV (NaN for

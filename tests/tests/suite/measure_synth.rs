@@ -441,15 +441,21 @@ fn beats_are_found_on_the_leads_left() {
     );
 }
 
+/// LUDB record 24 (10 s, 12 leads, 500 Hz; a wide QRS, RR ≈ 1.2 s) as opened, and its analysis.
+fn ludb_24() -> (isoline_core::io::Opened, isoline_core::analysis::Analysis) {
+    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
+        .unwrap_or_else(|e| panic!("{e}"));
+    let whole = analyze(&opened.recording, &FilterSettings::default());
+    (opened, whole)
+}
+
 #[test]
 fn a_lost_sample_near_an_r_peak_keeps_the_beat_on_its_lead() {
     // LUDB 24 (a wide QRS) with one sample lost in each of V5, II and I, 6-120 ms from the R peak of the beat at
     // 6.05 s. Before, that beat moved to the next clearest lead whole there, whose largest deflection is another
     // wave: R 66 ms later, RR 1172 -> 1238 and 1154 -> 1088 ms, RMSSD 37 -> 84 ms. Now the beats and the rate
     // variability are the complete recording's. Source of the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
-    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
-        .unwrap_or_else(|e| panic!("{e}"));
-    let whole = analyze(&opened.recording, &FilterSettings::default());
+    let (opened, whole) = ludb_24();
     let mut lossy = opened.recording.clone();
     for (name, k) in [("V5", 3033), ("II", 3067), ("I", 3090)] {
         let i = lossy.lead_index(&isoline_core::recording::LeadName::parse(name)).unwrap_or_else(|| panic!("{name}"));
@@ -471,9 +477,7 @@ fn p_waves_are_found_on_the_leads_left() {
     // no longer resembled it, and every P wave was lost (no PR). Now a lead missing in a beat is left out of that
     // beat: each beat keeps its P wave within 4 samples of the complete recording's (measured: 3), and the PR
     // within 4 ms. Source of the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
-    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
-        .unwrap_or_else(|e| panic!("{e}"));
-    let whole = analyze(&opened.recording, &FilterSettings::default());
+    let (opened, whole) = ludb_24();
     let fs = opened.recording.sample_rate.hz();
     let mut off = opened.recording.clone();
     for name in ["I", "II", "III", "aVR", "aVL", "aVF"] {
@@ -505,9 +509,7 @@ fn a_beat_lost_in_a_gap_leaves_no_false_beat_or_rr() {
     // RR read 1154 ms for 1224. Now every beat found is one of the complete recording's, and every RR given
     // joins two beats that follow each other there, within 2 samples of its RR. Source of the record: LUDB
     // (Kalyakulina et al. 2020, PhysioNet).
-    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
-        .unwrap_or_else(|e| panic!("{e}"));
-    let whole = analyze(&opened.recording, &FilterSettings::default());
+    let (opened, whole) = ludb_24();
     let fs = opened.recording.sample_rate.hz();
     let rs: Vec<usize> = whole.beats.iter().map(|b| b.r).collect();
     for (from, to) in [(8.30, 8.70), (8.36, 8.60), (8.40, 8.48), (8.44, 8.52), (8.48, 8.56), (8.20, 8.50)] {
