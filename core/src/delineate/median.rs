@@ -180,15 +180,21 @@ fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, 
         .collect()
 }
 
-/// The median beat `leads` (R at sample `before`) delineated as one beat of a record with median RR `rr`.
+/// The median beat `leads` (R at sample `before`) delineated as one beat of a record with median RR `rr`. A lead
+/// whose median is missing anywhere in the span (fewer than [`MIN_BEATS`] beats had it there) is left out whole:
+/// its waves would otherwise be delineated and measured on the part of them that is left. (LUDB 24 with its limb
+/// leads off from 2.5 to 7.5 s kept them only before R in the QRS: QRS axis 41° for 27°, QRS 192 ms for 180.)
 fn delineated(
-    leads: Vec<Vec<f32>>,
+    mut leads: Vec<Vec<f32>>,
     sample_rate: Hertz,
     before: usize,
     rr: usize,
     p_model: Option<&PModel>,
     n_beats: usize,
 ) -> RepresentativeBeat {
+    for lead in leads.iter_mut().filter(|l| l.iter().any(|v| !v.is_finite())) {
+        lead.fill(f32::NAN);
+    }
     let len = leads.first().map_or(0, Vec::len);
     let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
     let sig = Signals::new(&refs, sample_rate.hz());
