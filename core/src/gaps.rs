@@ -1,6 +1,8 @@
 //! Gaps: stretches of a recording, at least [`MIN_GAP_S`] long, where no lead has a valid sample. Nothing was
-//! recorded there, so two beats on either side are not neighbours (no RR interval spans a gap) and no wave
-//! boundary is sought across one. Shorter losses (a dropped sample, a lost packet) are bridged by interpolation.
+//! recorded there, so two beats on either side are not neighbours (no RR interval spans a gap, nor ends at a beat
+//! whose R peak search it reaches, [`breaks_rr`]) and no wave boundary is sought across one. Shorter losses (a
+//! dropped sample, a lost packet) are bridged by interpolation. Also here: the runs of missing samples of one lead
+//! ([`invalid_runs`], [`absent_runs`]).
 
 use std::ops::Range;
 

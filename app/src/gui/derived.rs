@@ -113,8 +113,9 @@ pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Bea
 
 /// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats, in
 /// runs: a run breaks where another beat interrupts the dominant beats, or at a gap of the recording (`gaps`,
-/// see [`isoline_core::Recording::gaps`]), so the trend is not drawn across a premature beat and its pause, or
-/// across time nothing was recorded, as if a rate had been measured there.
+/// see [`isoline_core::Recording::gaps`]; also within 200 ms of either beat, [`isoline_core::gaps::breaks_rr`]),
+/// so the trend is not drawn across a premature beat and its pause, or across time nothing was recorded, as if a
+/// rate had been measured there.
 ///
 /// Source: references.md §10 (HR = 60 / RR in s).
 #[must_use]
@@ -128,7 +129,8 @@ pub fn rate_trend(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<[
         .collect()
 }
 
-/// Median RR of consecutive dominant beats (the NN intervals of [`hrv::nn_pairs`], none across `gaps`), ms.
+/// Median RR of consecutive dominant beats (the NN intervals of [`hrv::nn_pairs`], none across or next to `gaps`),
+/// ms.
 #[must_use]
 pub fn median_rr_ms(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Option<f64> {
     let mut rr: Vec<f64> =

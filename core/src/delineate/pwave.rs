@@ -83,8 +83,9 @@ pub(super) const READ_BEFORE_S: f64 = LONG_WINDOW_S + MAX_LAG_S;
 /// A lead enters a median of PR windows when it is present in at least this many of them (see [`median_of`]).
 // Common practice, no source: a median of one or two beats is mostly their noise.
 const MIN_PRESENT: usize = 3;
-/// A lead is left out of a beat's PR window when it misses samples within this time of the window, s: the
-/// zero-phase low-passes spread the interpolated stretch into the samples around it.
+/// A lead is left out of a beat's PR window when it misses samples ([`crate::gaps::ABSENT_RUN_S`] or more)
+/// within this time of the part read, s: the zero-phase low-passes spread the interpolated stretch into the
+/// samples around it.
 // Common practice, no source: about half the impulse response of the 12 Hz low-pass.
 const SETTLE_S: f64 = 0.040;
 /// How far the P-band and 40 Hz zero-phase low-passes and the 16 ms envelope smoothing spread an abrupt start
@@ -119,9 +120,9 @@ pub struct PModel {
 }
 
 /// The PR window of one beat (per lead, relative to the PR-segment level), `w` samples long, if its last `need`
-/// samples lie inside the recording (any earlier ones outside it read 0). A lead with a run of missing samples
-/// within the window or [`SETTLE_S`] of it reads NaN throughout (see [`Signals::lead_absent`]): its interpolated
-/// stretch would flatten the median P wave and lower the beat's resemblance to it.
+/// samples lie inside the recording (any earlier ones outside it read 0). A lead missing samples where the beat's
+/// window is read ([`absent_leads`]) reads NaN throughout: its interpolated stretch would flatten the median P
+/// wave and lower the beat's resemblance to it.
 fn segment(sig: &Signals, qrs_on: usize, lag: isize, w: usize, need: usize) -> Option<Vec<Vec<f32>>> {
     segment_of(sig, &sig.slow, qrs_on, lag, w, need)
 }
@@ -142,14 +143,13 @@ fn segment_of<L: AsRef<[f32]>>(
     let end = end as usize;
     let ref_a = end - sig.samples(0.012).max(1);
     let lead_in = w.saturating_sub(end);
-    let settle = sig.samples(SETTLE_S);
-    let (a, b) = ((end + lead_in - w).saturating_sub(settle), end + settle);
+    let absent = absent_leads(sig, qrs_on, need.min(w));
     Some(
         leads
             .iter()
-            .enumerate()
-            .map(|(l, x)| {
-                if sig.lead_absent(l, a, b) {
+            .zip(absent)
+            .map(|(x, absent)| {
+                if absent {
                     return vec![f32::NAN; w];
                 }
                 let x = x.as_ref();
@@ -160,6 +160,17 @@ fn segment_of<L: AsRef<[f32]>>(
             })
             .collect(),
     )
+}
+
+/// Which leads are left out of the beat with QRS onset `qrs_on` whose last `span` samples of PR window are read:
+/// those with a run of at least [`crate::gaps::ABSENT_RUN_S`] of missing samples within [`SETTLE_S`] of that
+/// span at any lag tried ([`MAX_LAG_S`]), so the same leads are compared at every lag. None when every lead would
+/// be: the leads as bridged are then compared, as with a loss in each lead at times of its own.
+fn absent_leads(sig: &Signals, qrs_on: usize, span: usize) -> Vec<bool> {
+    let reach = sig.samples(MAX_LAG_S + SETTLE_S);
+    let (a, b) = (qrs_on.saturating_sub(span + reach), qrs_on + reach);
+    let absent: Vec<bool> = (0..sig.slow.len()).map(|l| sig.lead_absent(l, a, b)).collect();
+    if absent.iter().all(|&x| x) { vec![false; absent.len()] } else { absent }
 }
 
 /// True when a lead of a PR window (or of a median of them) holds samples: see [`segment`].
@@ -257,7 +268,11 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     let (on, end) = edges(sig, &aligned, w, (start, peak, stop)).unwrap_or((on, end));
     let cut = on <= start + sig.samples(CUT_S);
     let mut m = PModel { on_rel: on as isize - w as isize, end_rel: end as isize - w as isize, ..first };
-    let corrs: Vec<f64> = segs.iter().map(|(s, _)| m.similarity(s)).collect();
+    // Beats holding no lead the template has cannot be compared and are left out.
+    let corrs: Vec<f64> = segs.iter().filter_map(|(s, _)| m.similarity(s)).collect();
+    if corrs.is_empty() {
+        return None;
+    }
     m.consistency = corrs.iter().sum::<f64>() / corrs.len() as f64;
     (m.consistency >= MIN_CONSISTENCY).then_some((m, cut))
 }
@@ -390,14 +405,15 @@ fn refine(
 }
 
 /// Sample-by-sample median over segments (per lead), over the segments where the lead is present (see
-/// [`segment`]); a lead present in fewer than [`MIN_PRESENT`] of them (or in none, when there are fewer) reads NaN.
+/// [`segment`]); a lead present in fewer than [`MIN_PRESENT`] of them (or in fewer than all of them, when there
+/// are fewer) reads NaN.
 fn median_of(segs: &[&Vec<Vec<f32>>], w: usize) -> Vec<Vec<f32>> {
     let leads = segs.first().map_or(0, |s| s.len());
     let mut col = Vec::with_capacity(segs.len());
     (0..leads)
         .map(|l| {
             let with: Vec<&Vec<f32>> = segs.iter().map(|s| &s[l]).filter(|t| present(t)).collect();
-            if with.is_empty() || with.len() < MIN_PRESENT.min(segs.len()) {
+            if with.len() < MIN_PRESENT.min(segs.len()) {
                 return vec![f32::NAN; w];
             }
             (0..w)
@@ -413,22 +429,22 @@ fn median_of(segs: &[&Vec<Vec<f32>>], w: usize) -> Vec<Vec<f32>> {
 }
 
 impl PModel {
-    /// Correlation of a beat's PR window with the template over the P wave (±20 ms), all leads both hold together.
-    fn similarity(&self, seg: &[Vec<f32>]) -> f64 {
+    /// Correlation of a beat's PR window with the template over the P wave (±20 ms), over the leads both hold
+    /// together; `None` when they hold none in common.
+    fn similarity(&self, seg: &[Vec<f32>]) -> Option<f64> {
         let w = self.template.first().map_or(0, Vec::len) as isize;
         let margin = self.margin as isize;
         let a = (w + self.on_rel - margin).clamp(0, w - 1) as usize;
         let b = (w + self.end_rel + margin).clamp(0, w) as usize;
         if b <= a + 2 {
-            return 0.0;
+            return Some(0.0);
         }
-        // Over the leads both hold (see `segment`); none in common compares nothing.
         let (mut x, mut y) = (Vec::new(), Vec::new());
         for (s, t) in seg.iter().zip(&self.template).filter(|(s, t)| present(s) && present(t)) {
             x.extend_from_slice(&s[a..b]);
             y.extend_from_slice(&t[a..b]);
         }
-        correlation(&x, &y)
+        (!x.is_empty()).then(|| correlation(&x, &y))
     }
 
     /// A model of the median PR window `template` with no edges yet, compared with beats over the P wave and
@@ -454,11 +470,9 @@ impl PModel {
         let mut best: Option<(isize, f64)> = None;
         let mut lag = -max_lag;
         while lag <= max_lag {
-            if let Some(seg) = segment(sig, qrs_on, lag, w, need) {
-                let c = self.similarity(&seg);
-                if best.is_none_or(|(_, b)| c > b) {
-                    best = Some((lag, c));
-                }
+            let c = segment(sig, qrs_on, lag, w, need).and_then(|seg| self.similarity(&seg));
+            if let Some(c) = c.filter(|&c| best.is_none_or(|(_, b)| c > b)) {
+                best = Some((lag, c));
             }
             lag += step;
         }

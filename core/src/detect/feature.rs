@@ -94,9 +94,9 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
 }
 
 /// The samples over which `lead` is absent from the combined feature (bridged by a straight line there, its
-/// feature is near zero, then has a corner where the signal resumes): each run of [`crate::gaps::ABSENT_RUN_S`] or more of
-/// invalid samples, and the feature's reach after it (the integration window and the band-pass settling on the
-/// resumed signal, [`MWI_S`] + 50 ms).
+/// feature is near zero, then has a corner where the signal resumes): each run of
+/// [`crate::gaps::ABSENT_RUN_S`] or more of invalid samples, and the feature's reach after it (the integration
+/// window and the band-pass settling on the resumed signal, [`MWI_S`] + 50 ms).
 fn absent_spans(lead: &[f32], fs: f64) -> Vec<std::ops::Range<usize>> {
     let n = lead.len();
     let reach = ((MWI_S + 0.050) * fs).round() as usize;

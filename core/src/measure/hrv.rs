@@ -83,7 +83,7 @@ impl Rhythm {
 }
 
 /// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts or a gap of the
-/// recording (`gaps`, sorted) lies between two beats.
+/// recording (`gaps`, sorted) lies between two beats or near either ([`gaps::breaks_rr`]).
 #[must_use]
 pub fn nn_runs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<f64>> {
     nn_pairs(beats, fs, gaps)
@@ -132,7 +132,8 @@ pub fn rmssd_runs(runs: &[Vec<f64>]) -> Option<f64> {
     mean(&sq).map(f64::sqrt)
 }
 
-/// Regularity of the underlying rhythm (see [`Rhythm`]), leaving out intervals across `gaps` (sorted).
+/// Regularity of the underlying rhythm (see [`Rhythm`]), leaving out intervals across or next to `gaps` (sorted;
+/// see [`gaps::breaks_rr`]).
 #[must_use]
 pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
     let other_beats = beats.iter().filter(|b| b.kind != BeatKind::Dominant).count();
@@ -156,7 +157,8 @@ pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
     Rhythm { rr_count: rr.len(), rr_cv, successive, regular, other_beats }
 }
 
-/// All RR statistics of a beat list at rate `fs`, leaving out intervals across `gaps` (sorted).
+/// All RR statistics of a beat list at rate `fs`, leaving out intervals across or next to `gaps` (sorted; see
+/// [`gaps::breaks_rr`]).
 #[must_use]
 pub fn rr_stats(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> RrStats {
     let runs = nn_runs(beats, fs, gaps);
