@@ -45,32 +45,104 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
     // Leads with a QRS (weight above 0) from the clearest down (the first listed wins a tie). A beat is placed on
     // the first whose search window holds no run of invalid samples wider than the running median bridges, and
     // at most a tenth of them invalid: on a lead missing there, every beat of the gap would land on the window's
-    // first sample, while a lost sample or two must not send the beat to another lead, whose largest deflection may be another wave (three lost
-    // samples in three leads of LUDB 24 moved an R peak 66 ms). With none usable there, the clearest lead's valid
-    // samples are used.
+    // first sample, while a lost sample or two must not send the beat to another lead, whose largest deflection
+    // may be another wave (three lost samples in three leads of LUDB 24 moved an R peak 66 ms). With none usable
+    // there, the clearest lead's valid samples are used.
     let mut order: Vec<usize> = (0..leads.len()).filter(|&i| weights[i] > 0.0).collect();
     order.sort_by(|&a, &b| weights[b].total_cmp(&weights[a]).then(a.cmp(&b)));
     let Some(&best) = order.first() else { return Vec::new() };
-    let n = leads.first().map_or(0, |l| l.len());
-    let h = (R_SEARCH_S * fs) as usize;
-    let lag = (feature::lag_s() * fs).round() as usize;
-    // Half-width of the running median: ±4 ms, at least 2 samples, but 1 sample where 2 would span over ±8 ms
-    // (below 250 Hz): at 100 Hz two samples either side span 40 ms, wider than a narrow R wave, whose median then
-    // fell below the S wave's and put R on the S wave on some beats (every third beat of a steady 100 Hz demo:
-    // RR 800/870 ms for 833). 250 Hz and above are unchanged.
-    let hm = ((0.004 * fs).round() as usize).max(2).min(((0.008 * fs) as usize).max(1));
-    let mut out: Vec<usize> = Vec::with_capacity(peaks.len());
-    for &p in peaks {
-        let c = p.saturating_sub(lag);
-        let (a, b) = (c.saturating_sub(h), (c + h + 1).min(n));
-        if a >= b {
+    let search = RSearch::new(leads, fs);
+    let placed: Vec<Option<(usize, usize)>> = peaks
+        .iter()
+        .map(|&p| {
+            let lead = order.iter().copied().find(|&i| search.usable(i, p)).unwrap_or(best);
+            search.peak(lead, p).map(|r| (lead, r))
+        })
+        .collect();
+    // A beat placed on another lead than the clearest is moved by that lead's usual offset from the clearest
+    // (median over the beats where both are usable): in a wide or notched QRS the leads' largest deflections lie
+    // apart, and the RRs into and out of a stretch where the clearest lead is missing would read the difference
+    // (LUDB 24 with its limb leads off for 5 s: R peaks 2–8 samples early there, RMSSD 42 ms for 37).
+    let mut offsets: Vec<Option<isize>> = vec![None; leads.len()];
+    for lead in order.iter().copied().filter(|&l| l != best) {
+        if !placed.iter().flatten().any(|&(l, _)| l == lead) {
             continue;
         }
-        let usable = |&&i: &&usize| {
-            let w = &leads[i][a..b];
-            longest_invalid_run(w) <= hm && w.iter().filter(|v| !v.is_finite()).count() * 10 <= w.len()
-        };
-        let lead = leads[order.iter().find(usable).copied().unwrap_or(best)];
+        let mut d: Vec<isize> = peaks
+            .iter()
+            .zip(&placed)
+            .filter_map(|(&p, at)| {
+                let (l, r) = (*at)?;
+                (l == best && search.usable(lead, p)).then(|| Some(search.peak(lead, p)? as isize - r as isize))?
+            })
+            .collect();
+        if d.len() >= MIN_OFFSET_BEATS {
+            let mid = d.len() / 2;
+            offsets[lead] = Some(*d.select_nth_unstable(mid).1);
+        }
+    }
+    let mut out: Vec<usize> = Vec::with_capacity(peaks.len());
+    for &(lead, r) in placed.iter().flatten() {
+        let r = offsets[lead].map_or(r, |d| r.saturating_add_signed(-d).min(search.n.saturating_sub(1)));
+        if out.last().is_none_or(|&l| r > l) {
+            out.push(r);
+        }
+    }
+    out
+}
+
+/// Fewest beats, placed on the clearest lead and usable on another, from which that lead's offset is taken.
+// Common practice, no source: a median of a handful of beats is steady against one odd beat.
+const MIN_OFFSET_BEATS: usize = 3;
+
+/// The R peak search of [`place_r`] on a recording's leads.
+struct RSearch<'a> {
+    leads: &'a [&'a [f32]],
+    n: usize,
+    /// Half-width of the search, samples.
+    h: usize,
+    /// How far the feature's peak lags the QRS middle, samples.
+    lag: usize,
+    /// Half-width of the running median, samples.
+    hm: usize,
+}
+
+impl<'a> RSearch<'a> {
+    fn new(leads: &'a [&'a [f32]], fs: f64) -> Self {
+        // Half-width of the running median: ±4 ms, at least 2 samples, but 1 sample where 2 would span over ±8 ms
+        // (below 250 Hz): at 100 Hz two samples either side span 40 ms, wider than a narrow R wave, whose median
+        // then fell below the S wave's and put R on the S wave on some beats (every third beat of a steady 100 Hz
+        // demo: RR 800/870 ms for 833). 250 Hz and above are unchanged.
+        let hm = ((0.004 * fs).round() as usize).max(2).min(((0.008 * fs) as usize).max(1));
+        Self {
+            leads,
+            n: leads.first().map_or(0, |l| l.len()),
+            h: (R_SEARCH_S * fs) as usize,
+            lag: (feature::lag_s() * fs).round() as usize,
+            hm,
+        }
+    }
+
+    /// The search window around feature peak `p`, and its centre; `None` when empty.
+    fn window(&self, p: usize) -> Option<(usize, usize, usize)> {
+        let c = p.saturating_sub(self.lag);
+        let (a, b) = (c.saturating_sub(self.h), (c + self.h + 1).min(self.n));
+        (a < b).then_some((a, b, c))
+    }
+
+    /// True when `lead`'s samples in the window of `p` hold no invalid run wider than the running median bridges
+    /// and at most a tenth of them are invalid.
+    fn usable(&self, lead: usize, p: usize) -> bool {
+        self.window(p).is_some_and(|(a, b, _)| {
+            let w = &self.leads[lead][a..b];
+            longest_invalid_run(w) <= self.hm && w.iter().filter(|v| !v.is_finite()).count() * 10 <= w.len()
+        })
+    }
+
+    /// The R peak of the beat at feature peak `p` on `lead`; `None` when the window is empty.
+    fn peak(&self, lead: usize, p: usize) -> Option<usize> {
+        let (a, b, c) = self.window(p)?;
+        let (lead, n, hm) = (self.leads[lead], self.n, self.hm);
         let valid = lead[a..b].iter().filter(|v| v.is_finite());
         let count = valid.clone().count();
         let mean = if count > 0 { valid.sum::<f32>() / count as f32 } else { 0.0 };
@@ -92,12 +164,8 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
             (*buf.select_nth_unstable_by(mid, f32::total_cmp).1 - mean).abs()
         };
         let devs: Vec<f32> = (a..b).map(&mut dev).collect();
-        let r = devs.iter().enumerate().max_by(|x, y| x.1.total_cmp(y.1)).map_or(c, |(i, _)| a + i);
-        if out.last().is_none_or(|&l| r > l) {
-            out.push(r);
-        }
+        Some(devs.iter().enumerate().max_by(|x, y| x.1.total_cmp(y.1)).map_or(c, |(i, _)| a + i))
     }
-    out
 }
 
 /// Length of the longest run of invalid samples in `x`.
