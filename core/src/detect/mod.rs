@@ -33,15 +33,17 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
         return Vec::new();
     }
     let peaks = peaks::pick(&f.combined, fs);
-    let r = place_r(&leads, &f.weights, &peaks, fs);
-    let dominant = typing::dominant(&leads, &f.weights, &r, fs, &gaps::find(&leads, fs));
+    let (r, unsure): (Vec<usize>, Vec<bool>) = place_r(&leads, &f.weights, &peaks, fs).into_iter().unzip();
+    let dominant = typing::dominant(&leads, &f.weights, &r, &unsure, fs, &gaps::find(&leads, fs));
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
 }
 
 /// Places each R peak on the lead with the clearest QRS that is valid around it: the sample of largest absolute
 /// deflection (of a short running median, which ignores pacing spikes) from the local mean within
 /// ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks strictly increasing.
-fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<usize> {
+/// Each R peak comes with a flag: true where no lead was usable ([`RSearch::usable`]) and the peak was taken from
+/// the clearest lead's valid samples, so it may lie on another part of the QRS.
+fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<(usize, bool)> {
     // Leads with a QRS (weight above 0) from the clearest down (the first listed wins a tie). A beat is placed on
     // the first whose search window holds no run of invalid samples wider than the running median bridges, and
     // at most a tenth of them invalid: on a lead missing there, every beat of the gap would land on the window's
@@ -52,11 +54,11 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
     order.sort_by(|&a, &b| weights[b].total_cmp(&weights[a]).then(a.cmp(&b)));
     let Some(&best) = order.first() else { return Vec::new() };
     let search = RSearch::new(leads, fs);
-    let placed: Vec<Option<(usize, usize)>> = peaks
+    let placed: Vec<Option<(usize, usize, bool)>> = peaks
         .iter()
         .map(|&p| {
-            let lead = order.iter().copied().find(|&i| search.usable(i, p)).unwrap_or(best);
-            search.peak(lead, p).map(|r| (lead, r))
+            let lead = order.iter().copied().find(|&i| search.usable(i, p));
+            search.peak(lead.unwrap_or(best), p).map(|r| (lead.unwrap_or(best), r, lead.is_none()))
         })
         .collect();
     // A beat placed on another lead than the clearest is moved by that lead's usual offset from the clearest
@@ -65,15 +67,16 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
     // (LUDB 24 with its limb leads off for 5 s: R peaks 2–8 samples early there, RMSSD 42 ms for 37).
     let mut offsets: Vec<Option<isize>> = vec![None; leads.len()];
     for lead in order.iter().copied().filter(|&l| l != best) {
-        if !placed.iter().flatten().any(|&(l, _)| l == lead) {
+        if !placed.iter().flatten().any(|&(l, _, _)| l == lead) {
             continue;
         }
         let mut d: Vec<isize> = peaks
             .iter()
             .zip(&placed)
             .filter_map(|(&p, at)| {
-                let (l, r) = (*at)?;
-                (l == best && search.usable(lead, p)).then(|| Some(search.peak(lead, p)? as isize - r as isize))?
+                let (l, r, unsure) = (*at)?;
+                (l == best && !unsure && search.usable(lead, p))
+                    .then(|| Some(search.peak(lead, p)? as isize - r as isize))?
             })
             .collect();
         if d.len() >= MIN_OFFSET_BEATS {
@@ -81,11 +84,11 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<u
             offsets[lead] = Some(*d.select_nth_unstable(mid).1);
         }
     }
-    let mut out: Vec<usize> = Vec::with_capacity(peaks.len());
-    for &(lead, r) in placed.iter().flatten() {
+    let mut out: Vec<(usize, bool)> = Vec::with_capacity(peaks.len());
+    for &(lead, r, unsure) in placed.iter().flatten() {
         let r = offsets[lead].map_or(r, |d| r.saturating_add_signed(-d).min(search.n.saturating_sub(1)));
-        if out.last().is_none_or(|&l| r > l) {
-            out.push(r);
+        if out.last().is_none_or(|&(l, _)| r > l) {
+            out.push((r, unsure));
         }
     }
     out

@@ -49,8 +49,17 @@ const COARSE_HZ: f64 = 200.0;
 /// Types each beat: `true` = dominant. `leads` are the samples (µV, NaN = invalid), `weights` the leads'
 /// detection weights (leads of weight 0 are not compared), `gaps` the stretches where no lead was recorded (see
 /// [`crate::gaps`]): an RR across one is not an RR, so it neither makes a beat premature nor sets the local
-/// median.
-pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64, gaps: &[Range<usize>]) -> Vec<bool> {
+/// median. A beat flagged in `unsure` (its R peak placed with no lead recorded throughout the search, next to a
+/// gap) is not judged by its shape, as a beat whose window misses samples is not: its window may not be where its
+/// QRS is (LUDB 24 with every lead lost 46–66 ms after an R peak: R placed 70 ms early, and the beat typed other).
+pub fn dominant(
+    leads_in: &[&[f32]],
+    weights: &[f64],
+    r: &[usize],
+    unsure: &[bool],
+    fs: f64,
+    gaps: &[Range<usize>],
+) -> Vec<bool> {
     let n = leads_in.first().map_or(0, |l| l.len());
     let (a, b) = ((WIN_S.0 * fs) as usize, (WIN_S.1 * fs) as usize);
     let reach = (ALIGN_S * fs).round() as usize;
@@ -73,7 +82,11 @@ pub fn dominant(leads_in: &[&[f32]], weights: &[f64], r: &[usize], fs: f64, gaps
         }
         Some(s)
     };
-    let snippets: Vec<Option<Vec<f32>>> = r.iter().map(|&p| snippet(p)).collect();
+    let snippets: Vec<Option<Vec<f32>>> = r
+        .iter()
+        .zip(unsure.iter().chain(std::iter::repeat(&false)))
+        .map(|(&p, &u)| snippet(p).filter(|_| !u))
+        .collect();
     let len = leads.len() * (a + b + 1);
     let step = (r.len() / TEMPLATE_BEATS).max(1);
     let pool: Vec<&Vec<f32>> = snippets.iter().step_by(step).flatten().collect();
@@ -256,7 +269,7 @@ mod tests {
         for (i, &p) in r.iter().enumerate() {
             add_gaussian(&mut lead, p, 1000.0, if i == 10 { 12.0 } else { 4.0 }, 25);
         }
-        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs, &[]);
+        let dom = dominant(&[lead.as_slice()], &[1.0], &r, &[], fs, &[]);
         assert!(!dom[10]);
         assert_eq!(dom.iter().filter(|&&d| d).count(), r.len() - 1);
     }
@@ -278,7 +291,7 @@ mod tests {
             t += 220 + (k % 2) * 4;
             k += 1;
         }
-        let dom = dominant(&[lead.as_slice()], &[1.0], &r, fs, &[]);
+        let dom = dominant(&[lead.as_slice()], &[1.0], &r, &[], fs, &[]);
         assert!(dom.iter().all(|&d| d), "{} of {} beats dominant", dom.iter().filter(|&&d| d).count(), dom.len());
     }
 

@@ -552,9 +552,9 @@ fn a_beat_lost_in_a_gap_leaves_no_false_beat_or_rr() {
     // Before: lost 8.30–8.70 s, the resumed leads' step was taken for a beat on the lost beat's T wave, and the
     // next beat was typed other by its 786 ms RR; lost 8.40–8.48 s, the beat was placed on the first sample after
     // the loss and the next RR read 1160 ms for 1208; lost 8.48–8.56 s, its R peak was placed 70 ms early and its
-    // RR read 1154 ms for 1224. Now every beat found is one of the complete recording's, and every RR given
-    // joins two beats that follow each other there, within 2 samples of its RR. Source of the record: LUDB
-    // (Kalyakulina et al. 2020, PhysioNet).
+    // RR read 1154 ms for 1224, and the beat was typed other. Now every beat found is one of the complete
+    // recording's, of the same kind, and every RR given joins two beats that follow each other there, within 2
+    // samples of its RR. Source of the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
     let (opened, whole) = ludb_24();
     let fs = opened.recording.sample_rate.hz();
     let rs: Vec<usize> = whole.beats.iter().map(|b| b.r).collect();
@@ -574,6 +574,9 @@ fn a_beat_lost_in_a_gap_leaves_no_false_beat_or_rr() {
                 near.unwrap_or_else(|| panic!("lost {from}–{to} s: a beat at {} that the recording has not", b.r))
             })
             .collect();
+        for (b, &i) in a.beats.iter().zip(&index) {
+            assert_eq!(b.kind, whole.beats[i].kind, "lost {from}–{to} s: beat at {}", b.r);
+        }
         for (i, rr) in rr.iter().enumerate() {
             let Some(rr) = rr else { continue };
             let (j, k) = (index[i - 1], index[i]);
