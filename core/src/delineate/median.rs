@@ -182,8 +182,10 @@ fn median_leads(n_leads: usize, len: usize, count: usize, value: impl Fn(usize, 
 
 /// The median beat `leads` (R at sample `before`) delineated as one beat of a record with median RR `rr`. A lead
 /// whose median is missing anywhere in the span (fewer than [`MIN_BEATS`] beats had it there) is left out whole:
-/// its waves would otherwise be delineated and measured on the part of them that is left. (LUDB 24 with its limb
-/// leads off from 2.5 to 7.5 s kept them only before R in the QRS: QRS axis 41° for 27°, QRS 192 ms for 180.)
+/// its waves would otherwise be delineated and measured on the part of them that is left, and its filtered signal
+/// near the missing part is not its own. (LUDB 24 with its limb leads off from 2.5 to 7.5 s kept them only before
+/// R in the QRS: QRS axis 41° for 27°, QRS 192 ms for 180. Keeping such a lead where it is whole, with each
+/// boundary search and net value skipping it where it is not, read PR 154 ms for 132 there.)
 fn delineated(
     mut leads: Vec<Vec<f32>>,
     sample_rate: Hertz,

@@ -89,15 +89,19 @@ pub fn axis_from_limb_leads(values: &[(StandardLead, f64)]) -> Option<f64> {
 }
 
 /// Net deflection of `samples[start..=end]` relative to `reference` (µV·samples for area, µV for amplitude);
-/// invalid samples are left out, and `None` when none is valid.
+/// `None` when any of them is invalid: a lead missing over part of the wave (a channel absent from the file, a
+/// representative beat whose lead too few beats held there) has no net value, rather than that of the part left
+/// (LUDB 24 with its limb leads off for 5 s read the QRS axis 41° for 27° from the part before R).
 #[must_use]
 pub fn net_deflection(samples: &[f32], start: usize, end: usize, reference: f64, basis: AxisBasis) -> Option<f64> {
     if start > end || end >= samples.len() {
         return None;
     }
-    let mut seg = samples[start..=end].iter().map(|&x| f64::from(x) - reference).filter(|x| x.is_finite()).peekable();
-    // A lead with no valid sample over the wave (a channel missing from the file) has no deflection, not zero.
-    seg.peek()?;
+    let wave = &samples[start..=end];
+    if !wave.iter().all(|x| x.is_finite()) {
+        return None;
+    }
+    let seg = wave.iter().map(|&x| f64::from(x) - reference);
     match basis {
         AxisBasis::NetArea => Some(seg.sum()),
         AxisBasis::NetAmplitude => {
@@ -246,7 +250,9 @@ mod tests {
         for basis in [AxisBasis::NetAmplitude, AxisBasis::NetArea, AxisBasis::WaveSum] {
             assert_eq!(net_deflection(&missing, 0, 3, 0.0, basis), None, "{basis:?}");
         }
-        assert_eq!(net_deflection(&[f32::NAN, 30.0, -10.0, f32::NAN], 0, 3, 0.0, AxisBasis::NetAmplitude), Some(20.0));
+        // Nor has one missing over part of it: the part left is not the wave.
+        assert_eq!(net_deflection(&[f32::NAN, 30.0, -10.0, f32::NAN], 0, 3, 0.0, AxisBasis::NetAmplitude), None);
+        assert_eq!(net_deflection(&[f32::NAN, 30.0, -10.0, f32::NAN], 1, 2, 0.0, AxisBasis::NetAmplitude), Some(20.0));
     }
 
     /// Limb leads of a beat whose QRS vector swings through `deg` (slow, obvious: hexaxial projections), with
