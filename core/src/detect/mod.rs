@@ -33,8 +33,9 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
         return Vec::new();
     }
     let peaks = peaks::pick(&f.combined, fs);
-    let (r, unsure): (Vec<usize>, Vec<bool>) = place_r(&leads, &f.weights, &peaks, fs).into_iter().unzip();
-    let dominant = typing::dominant(&leads, &f.weights, &r, &unsure, fs, &gaps::find(&leads, fs));
+    let gaps = gaps::find(&leads, fs);
+    let (r, unsure): (Vec<usize>, Vec<bool>) = place_r(&leads, &f.weights, &peaks, fs, &gaps).into_iter().unzip();
+    let dominant = typing::dominant(&leads, &f.weights, &r, &unsure, fs, &gaps);
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
 }
 
@@ -43,22 +44,24 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
 /// ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks strictly increasing.
 /// Each R peak comes with a flag: true where no lead was usable ([`RSearch::usable`]) and the peak was taken from
 /// the clearest lead's valid samples, so it may lie on another part of the QRS.
-fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<(usize, bool)> {
+fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64, gaps: &[Range<usize>]) -> Vec<(usize, bool)> {
     // Leads with a QRS (weight above 0) from the clearest down (the first listed wins a tie). A beat is placed on
     // the first whose search window holds no run of invalid samples wider than the running median bridges, and
     // at most a tenth of them invalid: on a lead missing there, every beat of the gap would land on the window's
     // first sample, while a lost sample or two must not send the beat to another lead, whose largest deflection
-    // may be another wave (three lost samples in three leads of LUDB 24 moved an R peak 66 ms). With none usable
-    // there, the clearest lead's valid samples are used.
+    // may be another wave (three lost samples in three leads of LUDB 24 moved an R peak 66 ms). A lead missing
+    // more there still places the beat when the peak of its valid samples lies clear of what it misses
+    // ([`RSearch::clear_peak`]), so leads each losing short runs at times of their own still place every beat. With
+    // none able to, the clearest lead's valid samples are used.
     let mut order: Vec<usize> = (0..leads.len()).filter(|&i| weights[i] > 0.0).collect();
     order.sort_by(|&a, &b| weights[b].total_cmp(&weights[a]).then(a.cmp(&b)));
     let Some(&best) = order.first() else { return Vec::new() };
-    let search = RSearch::new(leads, fs);
+    let search = RSearch::new(leads, fs, gaps);
     let placed: Vec<Option<(usize, usize, bool)>> = peaks
         .iter()
-        .map(|&p| {
-            let lead = order.iter().copied().find(|&i| search.usable(i, p));
-            search.peak(lead.unwrap_or(best), p).map(|r| (lead.unwrap_or(best), r, lead.is_none()))
+        .map(|&p| match order.iter().copied().find_map(|i| search.clear_peak(i, p).map(|r| (i, r))) {
+            Some((lead, r)) => Some((lead, r, false)),
+            None => search.peak(best, p).map(|r| (best, r, true)),
         })
         .collect();
     // A beat placed on another lead than the clearest is moved by that lead's usual offset from the clearest
@@ -75,8 +78,7 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<(
             .zip(&placed)
             .filter_map(|(&p, at)| {
                 let (l, r, unsure) = (*at)?;
-                (l == best && !unsure && search.usable(lead, p))
-                    .then(|| Some(search.peak(lead, p)? as isize - r as isize))?
+                (l == best && !unsure).then(|| Some(search.clear_peak(lead, p)? as isize - r as isize))?
             })
             .collect();
         if d.len() >= MIN_OFFSET_BEATS {
@@ -94,6 +96,11 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64) -> Vec<(
     out
 }
 
+/// A lead missing samples in a beat's R search places the beat only when it misses none within this time of the
+/// peak of its valid samples, s: a peak next to a loss may be the edge of a larger deflection lost there.
+// Common practice, no source: about half a QRS, so an S or Q wave beside a lost R wave is not taken for it.
+const CLEAR_S: f64 = 0.020;
+
 /// Fewest beats, placed on the clearest lead and usable on another, from which that lead's offset is taken.
 // Common practice, no source: a median of a handful of beats is steady against one odd beat.
 const MIN_OFFSET_BEATS: usize = 3;
@@ -108,10 +115,14 @@ struct RSearch<'a> {
     lag: usize,
     /// Half-width of the running median, samples.
     hm: usize,
+    /// [`CLEAR_S`] in samples.
+    clear: usize,
+    /// The recording's gaps ([`gaps::find`]).
+    gaps: &'a [Range<usize>],
 }
 
 impl<'a> RSearch<'a> {
-    fn new(leads: &'a [&'a [f32]], fs: f64) -> Self {
+    fn new(leads: &'a [&'a [f32]], fs: f64, gaps: &'a [Range<usize>]) -> Self {
         // Half-width of the running median: ±4 ms, at least 2 samples, but 1 sample where 2 would span over ±8 ms
         // (below 250 Hz): at 100 Hz two samples either side span 40 ms, wider than a narrow R wave, whose median
         // then fell below the S wave's and put R on the S wave on some beats (every third beat of a steady 100 Hz
@@ -123,6 +134,8 @@ impl<'a> RSearch<'a> {
             h: (R_SEARCH_S * fs) as usize,
             lag: (feature::lag_s() * fs).round() as usize,
             hm,
+            clear: (CLEAR_S * fs).round() as usize,
+            gaps,
         }
     }
 
@@ -140,6 +153,24 @@ impl<'a> RSearch<'a> {
             let w = &self.leads[lead][a..b];
             longest_invalid_run(w) <= self.hm && w.iter().filter(|v| !v.is_finite()).count() * 10 <= w.len()
         })
+    }
+
+    /// The R peak of the beat at feature peak `p` on `lead` when that lead can place it: it is usable
+    /// ([`Self::usable`]), or at least half its samples in the window are valid, none within [`CLEAR_S`] of the
+    /// peak of those is missing, and the window holds no gap (where every lead misses the same samples, no lead
+    /// is clearer than another, and the beat is left to the clearest, flagged unsure).
+    fn clear_peak(&self, lead: usize, p: usize) -> Option<usize> {
+        if self.usable(lead, p) {
+            return self.peak(lead, p);
+        }
+        let (a, b, _) = self.window(p)?;
+        let x = self.leads[lead];
+        if gaps::overlaps(self.gaps, a, b) || x[a..b].iter().filter(|v| v.is_finite()).count() * 2 < b - a {
+            return None;
+        }
+        let r = self.peak(lead, p)?;
+        let (lo, hi) = (r.saturating_sub(self.clear), (r + self.clear + 1).min(self.n));
+        x[lo..hi].iter().all(|v| v.is_finite()).then_some(r)
     }
 
     /// The R peak of the beat at feature peak `p` on `lead`; `None` when the window is empty.
