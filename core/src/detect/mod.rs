@@ -42,8 +42,9 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
 /// Places each R peak on the lead with the clearest QRS that is valid around it: the sample of largest absolute
 /// deflection (of a short running median, which ignores pacing spikes) from the local mean within
 /// ± [`R_SEARCH_S`] of the QRS middle (the feature peak moved back by its lag). Keeps peaks strictly increasing.
-/// Each R peak comes with a flag: true where no lead was usable ([`RSearch::usable`]) and the peak was taken from
-/// the clearest lead's valid samples, so it may lie on another part of the QRS.
+/// Each R peak comes with a flag: true where no lead could place it ([`RSearch::clear_peak`]; a gap reaches into
+/// the search) and the peak was taken from the clearest lead's valid samples, so it may lie on another part of the
+/// QRS.
 fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64, gaps: &[Range<usize>]) -> Vec<(usize, bool)> {
     // Leads with a QRS (weight above 0) from the clearest down (the first listed wins a tie). A beat is placed on
     // the first whose search window holds no run of invalid samples wider than the running median bridges, and
@@ -65,7 +66,7 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64, gaps: &[
         })
         .collect();
     // A beat placed on another lead than the clearest is moved by that lead's usual offset from the clearest
-    // (median over the beats where both are usable): in a wide or notched QRS the leads' largest deflections lie
+    // (median over the beats that both place): in a wide or notched QRS the leads' largest deflections lie
     // apart, and the RRs into and out of a stretch where the clearest lead is missing would read the difference
     // (LUDB 24 with its limb leads off for 5 s: R peaks 2–8 samples early there, RMSSD 42 ms for 37).
     let mut offsets: Vec<Option<isize>> = vec![None; leads.len()];
@@ -98,10 +99,12 @@ fn place_r(leads: &[&[f32]], weights: &[f64], peaks: &[usize], fs: f64, gaps: &[
 
 /// A lead missing samples in a beat's R search places the beat only when it misses none within this time of the
 /// peak of its valid samples, s: a peak next to a loss may be the edge of a larger deflection lost there.
-// Common practice, no source: about half a QRS, so an S or Q wave beside a lost R wave is not taken for it.
+// Common practice, no source: the Q and S waves lie some 20–40 ms from the R wave, so one beside a lost R wave is
+// not taken for it. Measured on 21 LUDB files with each lead missing 10–15 ms every 150–300 ms at times of its own
+// (RRs more than 4 ms off the complete records', of 225): 65 at 40 ms, 37 at 25, 32 at 20, 19 at 15, 13 at 8.
 const CLEAR_S: f64 = 0.020;
 
-/// Fewest beats, placed on the clearest lead and usable on another, from which that lead's offset is taken.
+/// Fewest beats, placed on the clearest lead and placeable on another, from which that lead's offset is taken.
 // Common practice, no source: a median of a handful of beats is steady against one odd beat.
 const MIN_OFFSET_BEATS: usize = 3;
 

@@ -49,9 +49,9 @@ const COARSE_HZ: f64 = 200.0;
 /// Types each beat: `true` = dominant. `leads` are the samples (µV, NaN = invalid), `weights` the leads'
 /// detection weights (leads of weight 0 are not compared), `gaps` the stretches where no lead was recorded (see
 /// [`crate::gaps`]): an RR across one is not an RR, so it neither makes a beat premature nor sets the local
-/// median. A beat flagged in `unsure` (its R peak placed with no lead recorded throughout the search, next to a
-/// gap) is not judged by its shape, as a beat whose window misses samples is not: its window may not be where its
-/// QRS is (LUDB 24 with every lead lost 46–66 ms after an R peak: R placed 70 ms early, and the beat typed other).
+/// median. A beat flagged in `unsure` (its R peak placed with no lead able to place it, a gap reaching into the
+/// search; see `place_r`) is not judged by its shape, as a beat whose window misses samples is not: its window may
+/// not be where its QRS is (LUDB 24 with every lead lost 46–66 ms after an R peak: R placed 70 ms early, and the beat typed other).
 pub fn dominant(
     leads_in: &[&[f32]],
     weights: &[f64],
