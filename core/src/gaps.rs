@@ -63,8 +63,13 @@ pub const ABSENT_RUN_S: f64 = 0.010;
 /// The runs of at least [`ABSENT_RUN_S`] of invalid samples of one lead sampled at `fs` Hz, in order.
 #[must_use]
 pub fn absent_runs(x: &[f32], fs: f64) -> Vec<Range<usize>> {
+    absent_among(invalid_runs(x), fs)
+}
+
+/// Those of a lead's runs of invalid samples ([`invalid_runs`], at `fs` Hz) that last [`ABSENT_RUN_S`] or more.
+#[must_use]
+pub fn absent_among(mut runs: Vec<Range<usize>>, fs: f64) -> Vec<Range<usize>> {
     let min_run = ((ABSENT_RUN_S * fs).ceil() as usize).max(1);
-    let mut runs = invalid_runs(x);
     runs.retain(|r| r.len() >= min_run);
     runs
 }

@@ -3,6 +3,8 @@
 //! original, computed in one streaming pass per lead. Each lead is normalised by its local typical QRS
 //! height and clipped, and the leads are averaged with weights that fall for leads without a clear QRS.
 
+use std::ops::Range;
+
 use crate::filter::Biquad;
 
 /// Length of a normalisation block, seconds.
@@ -49,19 +51,21 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
     let mut combined = vec![0.0f32; n];
     let mut weights = Vec::with_capacity(leads.len());
     let prepare = |lead: &&[f32]| {
-        let mwi = lead_feature(lead, fs);
+        // Each lead's runs of invalid samples are found once, for its feature and for where it is absent.
+        let runs = crate::gaps::invalid_runs(lead);
+        let mwi = lead_feature(lead, &runs, fs);
         let (local, weight) = normalise(&mwi, fs);
-        (mwi, local, weight)
+        (mwi, local, weight, runs)
     };
     let at_once = if n >= PARALLEL_FROM { rayon::current_num_threads().clamp(1, AT_ONCE) } else { 1 };
     // Where some lead is absent somewhere: the weight of the leads absent at each sample, and what they would
     // have added (bridged), used where no lead is present.
     let mut absent: Option<(Vec<f32>, Vec<f32>)> = None;
     for group in leads.chunks(at_once) {
-        let prepared: Vec<(Vec<f32>, Vec<f32>, f64)> =
+        let prepared: Vec<_> =
             if group.len() > 1 { group.par_iter().map(prepare).collect() } else { group.iter().map(prepare).collect() };
-        for (lead, (mut mwi, local, weight)) in group.iter().zip(prepared) {
-            let spans = absent_spans(lead, fs);
+        for (mut mwi, local, weight, runs) in prepared {
+            let spans = absent_spans(runs, n, fs);
             if weight > 0.0 && !spans.is_empty() {
                 let (missing, hidden) = absent.get_or_insert_with(|| (vec![0.0; n], vec![0.0; n]));
                 let mut part = vec![0.0f32; n];
@@ -96,12 +100,12 @@ pub fn features(leads: &[&[f32]], fs: f64) -> Features {
 /// The samples over which `lead` is absent from the combined feature (bridged by a straight line there, its
 /// feature is near zero, then has a corner where the signal resumes): each run of
 /// [`crate::gaps::ABSENT_RUN_S`] or more of invalid samples, and the feature's reach after it (the integration
-/// window and the band-pass settling on the resumed signal, [`MWI_S`] + 50 ms).
-fn absent_spans(lead: &[f32], fs: f64) -> Vec<std::ops::Range<usize>> {
-    let n = lead.len();
+/// window and the band-pass settling on the resumed signal, [`MWI_S`] + 50 ms). `runs` are the lead's runs of
+/// invalid samples ([`crate::gaps::invalid_runs`]), `n` its length.
+fn absent_spans(runs: Vec<Range<usize>>, n: usize, fs: f64) -> Vec<Range<usize>> {
     let reach = ((MWI_S + 0.050) * fs).round() as usize;
-    let mut spans: Vec<std::ops::Range<usize>> = Vec::new();
-    for run in crate::gaps::absent_runs(lead, fs) {
+    let mut spans: Vec<Range<usize>> = Vec::new();
+    for run in crate::gaps::absent_among(runs, fs) {
         let span = run.start..(run.end + reach).min(n);
         match spans.last_mut() {
             Some(last) if last.end >= span.start => last.end = span.end,
@@ -129,15 +133,15 @@ fn add_lead(combined: &mut [f32], mwi: &[f32], local: &[f32], weight: f64, fs: f
 }
 
 /// Band-pass 5–15 Hz (causal second-order Butterworth sections), five-point derivative, squaring and a
-/// trailing moving-window mean of 150 ms, in one pass.
-fn lead_feature(x: &[f32], fs: f64) -> Vec<f32> {
+/// trailing moving-window mean of 150 ms, in one pass. `runs` are the lead's runs of invalid samples
+/// ([`crate::gaps::invalid_runs`]).
+fn lead_feature(x: &[f32], runs: &[Range<usize>], fs: f64) -> Vec<f32> {
     let hp = Biquad::highpass(5.0, fs);
     let lp = Biquad::lowpass(15.0_f64.min(fs * 0.45), fs);
     // Invalid samples are bridged by a straight line (as `fill_invalid` does): held at the last valid value,
     // a lead resuming after a loss stepped, and the step's feature after a stretch with no lead recorded was
     // taken for a beat (LUDB 24 with every lead lost for 0.4 s: a beat on the T wave of the beat lost, and the
     // next beat typed other by its short RR).
-    let runs = crate::gaps::invalid_runs(x);
     let mut run = runs.iter().peekable();
     let first = x.iter().copied().find(|v| v.is_finite()).map_or(0.0, f64::from);
     let mut sh = hp.state_for(first);
@@ -225,7 +229,7 @@ mod tests {
     fn streaming_feature_matches_step_by_step_computation() {
         let fs = 250.0;
         let x: Vec<f32> = (0..2000).map(|k| (k as f32 * 0.21).sin() * 300.0 + ((k * 37) % 17) as f32 * 5.0).collect();
-        let fast = lead_feature(&x, fs);
+        let fast = lead_feature(&x, &[], fs);
         // Slow and obvious: filter the whole lead, then derivative, square, trailing mean of 38 samples.
         let mut y: Vec<f64> = x.iter().map(|&v| f64::from(v)).collect();
         Biquad::highpass(5.0, fs).run(&mut y);
