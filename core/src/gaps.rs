@@ -69,9 +69,16 @@ pub fn absent_runs(x: &[f32], fs: f64) -> Vec<Range<usize>> {
 /// Those of a lead's runs of invalid samples ([`invalid_runs`], at `fs` Hz) that last [`ABSENT_RUN_S`] or more.
 #[must_use]
 pub fn absent_among(mut runs: Vec<Range<usize>>, fs: f64) -> Vec<Range<usize>> {
-    let min_run = ((ABSENT_RUN_S * fs).ceil() as usize).max(1);
+    let min_run = absent_run_len(fs);
     runs.retain(|r| r.len() >= min_run);
     runs
+}
+
+/// [`ABSENT_RUN_S`] in samples at `fs` Hz (at least 1): the shortest run of invalid samples that leaves a lead
+/// absent.
+#[must_use]
+pub fn absent_run_len(fs: f64) -> usize {
+    ((ABSENT_RUN_S * fs).ceil() as usize).max(1)
 }
 
 /// True when R peaks `a` < `b` (samples, at `fs` Hz) bound no RR interval: one of `gaps` lies between them or

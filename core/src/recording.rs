@@ -274,7 +274,12 @@ fn share(part: usize, whole: usize) -> String {
 
 /// Lead names as prose: "I, II and V1".
 fn join_names(leads: &[&Lead]) -> String {
-    let names: Vec<String> = leads.iter().map(|l| l.name.to_string()).collect();
+    spoken_list(leads.iter().map(|l| &l.name))
+}
+
+/// Items as said in a sentence: `I`, `I and II`, `V1, V2 and V3`.
+pub(crate) fn spoken_list<T: std::fmt::Display>(items: impl IntoIterator<Item = T>) -> String {
+    let names: Vec<String> = items.into_iter().map(|x| x.to_string()).collect();
     match names.split_last() {
         Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
         _ => names.concat(),

@@ -85,6 +85,11 @@ pub struct Measurements {
     /// computed after rescaling them ([`einthoven`]): the relative residual before rescaling, %.
     #[serde(default)]
     pub limb_gain_mismatch_pct: Option<f64>,
+    /// Leads that hold a signal but not in the representative beat: missing samples in too many of the beats it
+    /// is made of (see `delineate::median`). Its boundaries, hence PR, QRS and QT, axes and ST, come from the
+    /// other leads. Empty without a representative beat.
+    #[serde(default)]
+    pub leads_left_out: Vec<LeadName>,
 }
 
 /// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
@@ -112,7 +117,7 @@ pub fn measure_with(
         None if beat_medians != Intervals::default() => (beat_medians, IntervalSource::BeatMedians),
         None => (Intervals::default(), IntervalSource::None),
     };
-    let (axes, st, limb_gain_mismatch_pct) = match template {
+    let (axes, st, limb_gain_mismatch_pct, leads_left_out) = match template {
         Some(t) => {
             // A flat lead (an electrode off) shows no wave: it would pull the axis towards the leads it lies at
             // right angles to, and read an ST level of 0.
@@ -136,9 +141,15 @@ pub fn measure_with(
             let mismatch = axis::qrs_limb_gains(&limb, &t.bounds, t.sample_rate)
                 .filter(einthoven::LimbGains::applies)
                 .map(|g| 100.0 * g.residual_before);
-            (axis::axes(&limb, &t.bounds, t.sample_rate, basis), st, mismatch)
+            // A lead with a signal whose median beat is missing was left out of the representative beat.
+            let left_out = leads
+                .iter()
+                .filter(|(_, x, flat)| !flat && x.iter().any(|v| !v.is_finite()))
+                .map(|(n, _, _)| (*n).clone())
+                .collect();
+            (axis::axes(&limb, &t.bounds, t.sample_rate, basis), st, mismatch, left_out)
         }
-        None => (Axes::default(), Vec::new(), None),
+        None => (Axes::default(), Vec::new(), None, Vec::new()),
     };
     Measurements {
         beats: beats.len(),
@@ -152,6 +163,7 @@ pub fn measure_with(
         st,
         sex: ranges::Sex::parse(recording.meta.sex.as_deref()),
         limb_gain_mismatch_pct,
+        leads_left_out,
     }
 }
 
@@ -180,8 +192,9 @@ impl Measurements {
 
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
-    /// its own; then the note that a PR or QRS of the representative beat disagrees with the single beats
-    /// ([`ranges::beats_disagree`]) where that row carries a range note of its own.
+    /// its own; then the note that leads were left out of the representative beat ([`ranges::leads_left_out`])
+    /// where the QT row does not carry it; then the note that a PR or QRS of the representative beat disagrees
+    /// with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
@@ -192,6 +205,9 @@ impl Measurements {
             && !notes.contains(&gain)
         {
             notes.push(gain);
+        }
+        if let Some(n) = ranges::leads_left_out(&self.leads_left_out).filter(|n| !notes.contains(n)) {
+            notes.push(n);
         }
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {

@@ -69,6 +69,8 @@ pub const SOURCE_RR_IRREGULAR: &str = "Dash et al. 2009, Ann Biomed Eng 37:1701-
 
 /// Source of the note that two estimates of one interval disagree ([`beats_disagree`]): Isoline's own check.
 pub const SOURCE_CONSISTENCY: &str = "representative beat against single beats";
+/// Source of the note that leads were left out of the representative beat ([`leads_left_out`]).
+pub const SOURCE_LEADS_LEFT_OUT: &str = "representative beat";
 /// Source of the no-beat note: the detector itself.
 pub const SOURCE_NO_BEATS: &str = "beat detection";
 
@@ -280,6 +282,27 @@ pub fn limb_gain_mismatch(pct: f64) -> Option<RangeNote> {
         frontal axes computed after rescaling the limb leads to one scale ({SOURCE_EINTHOVEN})"
         ),
         SOURCE_EINTHOVEN,
+    )
+}
+
+/// `leads` hold a signal but were left out of the representative beat (missing samples in too many of its
+/// beats): its boundaries come from the other leads. Said on the QT row, the interval a lead's late T end
+/// lengthens most; the text names every interval and the axes. LUDB 24 with its chest leads off for 5 of its
+/// 10 s reads QT 478 ms on the limb leads for 544 on all twelve.
+#[must_use]
+pub fn leads_left_out(leads: &[crate::recording::LeadName]) -> Option<RangeNote> {
+    if leads.is_empty() {
+        return None;
+    }
+    let who = if leads.len() == 1 { "lead" } else { "leads" };
+    note(
+        "qt_ms",
+        format!(
+            "PR, QRS, QT, axes and ST measured without {who} {} (samples missing in too many beats for the \
+             representative beat); intervals on fewer leads may read shorter",
+            crate::recording::spoken_list(leads)
+        ),
+        SOURCE_LEADS_LEFT_OUT,
     )
 }
 

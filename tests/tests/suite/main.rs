@@ -19,6 +19,7 @@ mod io_fuzz;
 mod io_holter;
 mod io_wfdb;
 mod measure_formulas;
+mod measure_losses;
 mod measure_ludb;
 mod measure_synth;
 mod measure_synth_long_pr;
