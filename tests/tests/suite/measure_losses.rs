@@ -456,7 +456,8 @@ fn a_lead_losing_a_few_samples_each_beat_stays_in_the_representative_beat() {
     let a = analyze(&lossy, &FilterSettings::default());
     assert!(a.measurements.leads_left_out.is_empty(), "{:?}", a.measurements.leads_left_out);
     let (got, want) = (a.measurements.intervals, whole.measurements.intervals);
-    for (name, g, w) in [("PR", got.pr_ms, want.pr_ms), ("QRS", got.qrs_ms, want.qrs_ms), ("QT", got.qt_ms, want.qt_ms)] {
+    let pairs = [("PR", got.pr_ms, want.pr_ms), ("QRS", got.qrs_ms, want.qrs_ms), ("QT", got.qt_ms, want.qt_ms)];
+    for (name, g, w) in pairs {
         assert!(g.zip(w).is_some_and(|(g, w)| (g - w).abs() <= 2.0), "{name} {g:?} for {w:?}");
     }
 }
