@@ -61,9 +61,27 @@ fn detection_holds_in_noise() -> Result<(), String> {
     // Goal of the measurement-engine issue (≥ 99.5 % pooled) held down to 6 dB. Measured: 100 % / 100 % at
     // 12 dB, 99.99 % / 99.99 % at 6 dB (one beat of sel14046 missed and one extra).
     for snr in [12.0, 6.0] {
-        let (d, _) = run(snr)?;
+        let (d, b) = run(snr)?;
         assert!(d.se() >= 99.5 && d.ppv() >= 99.5, "{snr} dB: Se {:.3} +P {:.3}", d.se(), d.ppv());
+        if snr < 10.0 {
+            qrs_edges_stay_near_the_qrs(&b)?;
+        }
     }
+    Ok(())
+}
+
+/// At 6 dB no boundary goal holds, but the QRS edges must not run off to noise bursts: the steep part of the
+/// QRS each lead's edge is walked from is the run around the slope envelope's peak, not the first steep stretch
+/// within 120 ms before R or the last within 150 ms after it. Measured: QRS onset +11.3 ± 20.9 ms, J point +7.6 ±
+/// 24.1, T end found on 171 of 181 beats (+4.4 ± 29.5, +21.4 ± 41.0 and 160 when the first and last steep
+/// samples were taken). Limits: two and a half times the issue's SD goals (10 and 12 ms); T ends for nine beats
+/// in ten.
+fn qrs_edges_stay_near_the_qrs(b: &BoundaryErrors) -> Result<(), String> {
+    for (k, sd_limit) in [(1, 25.0), (2, 30.0)] {
+        let (m, s) = b.mean_sd(k).ok_or("no errors")?;
+        assert!(s <= sd_limit, "6 dB {}: {m:+.1} ± {s:.1} ms", KEYS[k]);
+    }
+    assert!(b.found(3) >= 0.9, "6 dB T end found for {:.1} %", 100.0 * b.found(3));
     Ok(())
 }
 
