@@ -24,7 +24,8 @@ pub struct LedgerRow {
     /// Where the reviewed value came from.
     pub origin: Option<Origin>,
     /// Notes with their sources: the range note when the reviewed value is outside the usual range, and, on an
-    /// automatic value, the note that the single beats disagree with it (`ranges::beats_disagree`).
+    /// automatic value, the note that the single beats disagree with it (`ranges::beats_disagree`); on the QT
+    /// row, the note that leads were left out of the representative beat (`ranges::leads_left_out`).
     pub notes: Vec<RangeNote>,
 }
 
@@ -75,7 +76,10 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
                 auto: a.value,
                 reviewed: r.value,
                 origin,
-                notes: row_notes(r.note.as_ref(), origin, an.measurements.beats_disagree(a.key)),
+                notes: row_notes(r.note.as_ref(), origin, an.measurements.beats_disagree(a.key))
+                    .into_iter()
+                    .chain(representative_note(a.key, &an.measurements))
+                    .collect(),
             }
         })
         .collect()
@@ -93,6 +97,13 @@ fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<R
         notes.push(n);
     }
     notes
+}
+
+/// The note that leads were left out of the representative beat (`ranges::leads_left_out`), shown on the QT row:
+/// the note is on no value's row in the measurements, as it concerns every value measured on that beat, and the
+/// QT is the one a late T end in the leads left out lengthens most. It stays whatever the reader changes.
+fn representative_note(key: &str, m: &measure::Measurements) -> Option<RangeNote> {
+    (key == "qt_ms").then(|| ranges::leads_left_out(&m.leads_left_out)).flatten()
 }
 
 /// Puts typed and caliper values in place and recomputes what depends on them (rate from RR, QTc from QT and RR).

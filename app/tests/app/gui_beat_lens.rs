@@ -3,13 +3,15 @@
 
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
-use crate::gui_support::{click_at, drag, harness, settle};
+use crate::gui_support::{click_at, data, drag, harness, settle};
 use egui::Pos2;
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use isoline::gui::IsolineApp;
+use isoline::gui::command::Command;
 use isoline::gui::state::Origin;
 use isoline_core::beat::MarkKind;
+use isoline_core::measure::ranges;
 
 fn lens_point(h: &Harness<'static, IsolineApp>, sample: usize) -> Pos2 {
     let geo = h.state().ui_state.lens.unwrap();
@@ -129,4 +131,30 @@ fn typing_a_reviewed_qt_recomputes_qtc_and_undoes() {
     h.get_by_label("Undo").click();
     settle(&mut h);
     assert_eq!(row(&h, "qt_ms").origin, Some(Origin::Auto));
+}
+
+#[test]
+fn leads_left_out_of_the_representative_beat_are_said_on_the_qt_row() {
+    // LUDB 24 with its chest leads off from 2.5 to 7.5 s: the representative beat leaves V1–V6 out, and the QT
+    // row says so, also once the reader has typed a QT (the other values stay measured without them). Source of
+    // the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
+    let opened = isoline_core::io::open(&data("ludb/24.hea"), &isoline_core::io::OpenOptions::default()).unwrap();
+    let mut rec = opened.recording;
+    let fs = rec.sample_rate.hz();
+    for lead in rec.leads.iter_mut().filter(|l| l.name.to_string().starts_with('V')) {
+        lead.samples[(2.5 * fs) as usize..(7.5 * fs) as usize].fill(f32::NAN);
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("chest-off.csv");
+    isoline_core::io::csv::write(&path, &rec).unwrap();
+    let mut h = harness(Some(path.to_str().unwrap()));
+    let said = |h: &Harness<'static, IsolineApp>| {
+        let notes = row(h, "qt_ms").notes;
+        notes.iter().any(|n| n.source == ranges::SOURCE_LEADS_LEFT_OUT && n.text.contains("V1, V2, V3, V4, V5 and V6"))
+    };
+    assert!(said(&h), "{:?}", row(&h, "qt_ms").notes);
+    h.state_mut().run_cmd(Command::SetReviewed("qt_ms".into(), Some(540.0)));
+    settle(&mut h);
+    assert_eq!(row(&h, "qt_ms").reviewed, Some(540.0));
+    assert!(said(&h), "{:?}", row(&h, "qt_ms").notes);
 }

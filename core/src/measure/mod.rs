@@ -192,8 +192,8 @@ impl Measurements {
 
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
-    /// its own; then the note that leads were left out of the representative beat ([`ranges::leads_left_out`])
-    /// where the QT row does not carry it; then the note that a PR or QRS of the representative beat disagrees
+    /// its own; then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
+    /// on no value's row); then the note that a PR or QRS of the representative beat disagrees
     /// with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
@@ -206,9 +206,7 @@ impl Measurements {
         {
             notes.push(gain);
         }
-        if let Some(n) = ranges::leads_left_out(&self.leads_left_out).filter(|n| !notes.contains(n)) {
-            notes.push(n);
-        }
+        notes.extend(ranges::leads_left_out(&self.leads_left_out));
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
             if !notes.contains(&n) {

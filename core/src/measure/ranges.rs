@@ -29,7 +29,8 @@ impl Sex {
 /// A value outside its usual range.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct RangeNote {
-    /// Key of the value (as in [`super::MeasuredValue::key`]).
+    /// Key of the value (as in [`super::MeasuredValue::key`]), or [`KEY_REPRESENTATIVE`] for a note on the
+    /// representative beat as a whole.
     pub key: String,
     /// The note for people, e.g. `QTc (Bazett) 478 ms — above the usual upper limit of 460 ms for women
     /// (Rautaharju et al. 2009)`.
@@ -285,10 +286,14 @@ pub fn limb_gain_mismatch(pct: f64) -> Option<RangeNote> {
     )
 }
 
+/// Key of the note that leads were left out of the representative beat ([`leads_left_out`]): no value's key, as
+/// the note concerns every value measured on that beat and stays when the reader changes one of them.
+pub const KEY_REPRESENTATIVE: &str = "representative_beat";
+
 /// `leads` hold a signal but were left out of the representative beat (missing samples in too many of its
-/// beats): its boundaries come from the other leads. Said on the QT row, the interval a lead's late T end
-/// lengthens most; the text names every interval and the axes. LUDB 24 with its chest leads off for 5 of its
-/// 10 s reads QT 478 ms on the limb leads for 544 on all twelve.
+/// beats): its boundaries and axes come from the other leads, and those leads have no ST level. LUDB 24 with its
+/// chest leads off for 5 of its 10 s reads QT 478 ms on the limb leads for 544 on all twelve (QTc by Bazett 437
+/// for 500) and PR 146 for 132.
 #[must_use]
 pub fn leads_left_out(leads: &[crate::recording::LeadName]) -> Option<RangeNote> {
     if leads.is_empty() {
@@ -296,10 +301,11 @@ pub fn leads_left_out(leads: &[crate::recording::LeadName]) -> Option<RangeNote>
     }
     let who = if leads.len() == 1 { "lead" } else { "leads" };
     note(
-        "qt_ms",
+        KEY_REPRESENTATIVE,
         format!(
-            "PR, QRS, QT, axes and ST measured without {who} {} (samples missing in too many beats for the \
-             representative beat); intervals on fewer leads may read shorter",
+            "P duration, PR, QRS, QT, QTc and axes measured without {who} {} (samples missing in too many beats for \
+             the representative beat; no ST level there): they may differ from those on all leads, QRS and QT \
+             mostly shorter",
             crate::recording::spoken_list(leads)
         ),
         SOURCE_LEADS_LEFT_OUT,

@@ -66,15 +66,6 @@ impl Measurements {
         m
     }
 
-    /// `m` (the QT) with the note that leads were left out of the representative beat, unless `m` already
-    /// carries a note or has no value.
-    fn or_leads_left_out(&self, mut m: MeasuredValue) -> MeasuredValue {
-        if m.note.is_none() && m.value.is_some() {
-            m.note = ranges::leads_left_out(&self.leads_left_out);
-        }
-        m
-    }
-
     /// The values in a fixed order: rate, RR statistics, intervals, QTc ×5, axes, then ST at J and J+60 ms
     /// for each lead. Keys are listed in [`KEYS`].
     #[must_use]
@@ -96,7 +87,7 @@ impl Measurements {
             v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
             self.or_beats_disagree(with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr)),
             self.or_beats_disagree(with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs)),
-            self.or_leads_left_out(self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms"))),
+            self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms")),
         ];
         let formulas: [(&'static str, &str, Option<f64>); 5] = [
             ("qtc_bazett_ms", "Bazett", q.map(|q| q.bazett)),
@@ -171,12 +162,13 @@ mod tests {
             leads_left_out: chest,
             ..Measurements::default()
         };
-        let qt = m.values().into_iter().find(|v| v.key == "qt_ms").and_then(|v| v.note);
-        assert!(qt.as_ref().is_some_and(|n| n.source == ranges::SOURCE_LEADS_LEFT_OUT), "{qt:?}");
-        assert!(qt.is_some_and(|n| n.text.contains("without leads V1, V2 and V3 (")));
-        let said = m.notes().into_iter().filter(|n| n.source == ranges::SOURCE_LEADS_LEFT_OUT).count();
-        assert_eq!(said, 1);
-        // Said without a QT too (PR and QRS were measured without them), and never when every lead was kept.
+        let said: Vec<RangeNote> =
+            m.notes().into_iter().filter(|n| n.source == ranges::SOURCE_LEADS_LEFT_OUT).collect();
+        assert_eq!(said.len(), 1, "{said:?}");
+        assert!(said[0].text.contains("without leads V1, V2 and V3 ("), "{}", said[0].text);
+        // Its key is no value's: a value the reader changes never takes it away.
+        assert!(m.values().iter().all(|v| v.key != said[0].key && v.note.as_ref() != Some(&said[0])));
+        // Said without a QT too, and never when every lead was kept.
         let no_qt = Measurements { intervals: Intervals::default(), ..m.clone() };
         assert!(no_qt.notes().iter().any(|n| n.source == ranges::SOURCE_LEADS_LEFT_OUT));
         let one = Measurements { leads_left_out: vec![LeadName::parse("II")], ..m.clone() };
