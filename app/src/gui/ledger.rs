@@ -103,7 +103,7 @@ fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<R
 /// the note is on no value's row in the measurements, as it concerns every value measured on that beat, and the
 /// QT is the one a late T end in the leads left out lengthens most. It stays whatever the reader changes.
 fn representative_note(key: &str, m: &measure::Measurements) -> Option<RangeNote> {
-    (key == "qt_ms").then(|| ranges::leads_left_out(&m.leads_left_out)).flatten()
+    (key == "qt_ms").then(|| m.leads_left_out_note()).flatten()
 }
 
 /// Puts typed and caliper values in place and recomputes what depends on them (rate from RR, QTc from QT and RR).

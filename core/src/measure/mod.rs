@@ -190,6 +190,13 @@ impl Measurements {
         ranges::beats_disagree(key, label, a, b)
     }
 
+    /// The note that leads were left out of the representative beat ([`ranges::leads_left_out`]), if any were.
+    #[must_use]
+    pub fn leads_left_out_note(&self) -> Option<RangeNote> {
+        let a = &self.axes;
+        ranges::leads_left_out(&self.leads_left_out, a.p_deg.is_some() || a.qrs_deg.is_some() || a.t_deg.is_some())
+    }
+
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
     /// its own; then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
@@ -206,7 +213,7 @@ impl Measurements {
         {
             notes.push(gain);
         }
-        notes.extend(ranges::leads_left_out(&self.leads_left_out));
+        notes.extend(self.leads_left_out_note());
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
             if !notes.contains(&n) {

@@ -295,17 +295,19 @@ pub const KEY_REPRESENTATIVE: &str = "representative_beat";
 /// chest leads off for 5 of its 10 s reads QT 478 ms on the limb leads for 544 on all twelve (QTc by Bazett 437
 /// for 500) and PR 146 for 132.
 #[must_use]
-pub fn leads_left_out(leads: &[crate::recording::LeadName]) -> Option<RangeNote> {
+/// `with_axes`: whether any frontal axis was measured (with every limb lead left out, none is, and the note does
+/// not name them).
+pub fn leads_left_out(leads: &[crate::recording::LeadName], with_axes: bool) -> Option<RangeNote> {
     if leads.is_empty() {
         return None;
     }
     let who = if leads.len() == 1 { "lead" } else { "leads" };
+    let values = if with_axes { "P duration, PR, QRS, QT, QTc and axes" } else { "P duration, PR, QRS, QT and QTc" };
     note(
         KEY_REPRESENTATIVE,
         format!(
-            "P duration, PR, QRS, QT, QTc and axes measured without {who} {} (samples missing in too many beats for \
-             the representative beat; no ST level there): they may differ from those on all leads, QRS and QT \
-             mostly shorter",
+            "{values} measured without {who} {} (samples missing in too many beats for the representative beat; no \
+             ST level there): they may differ from those on all leads, QRS and QT mostly shorter",
             crate::recording::spoken_list(leads)
         ),
         SOURCE_LEADS_LEFT_OUT,

@@ -173,6 +173,11 @@ mod tests {
         assert!(no_qt.notes().iter().any(|n| n.source == ranges::SOURCE_LEADS_LEFT_OUT));
         let one = Measurements { leads_left_out: vec![LeadName::parse("II")], ..m.clone() };
         assert!(one.notes().iter().any(|n| n.text.contains("without lead II (")));
+        // Axes are named only where one was measured.
+        assert!(said[0].text.starts_with("P duration, PR, QRS, QT and QTc measured without"), "{}", said[0].text);
+        let axes = super::super::Axes { qrs_deg: Some(20.0), ..super::super::Axes::default() };
+        let with_axis = Measurements { axes, ..m.clone() };
+        assert!(with_axis.notes().iter().any(|n| n.text.starts_with("P duration, PR, QRS, QT, QTc and axes measured")));
         let all = Measurements { leads_left_out: Vec::new(), ..m };
         assert!(all.notes().iter().all(|n| n.source != ranges::SOURCE_LEADS_LEFT_OUT), "{:?}", all.notes());
     }
