@@ -293,10 +293,9 @@ pub const KEY_REPRESENTATIVE: &str = "representative_beat";
 /// `leads` hold a signal but were left out of the representative beat (missing samples in too many of its
 /// beats): its boundaries and axes come from the other leads, and those leads have no ST level. LUDB 24 with its
 /// chest leads off for 5 of its 10 s reads QT 478 ms on the limb leads for 544 on all twelve (QTc by Bazett 437
-/// for 500) and PR 146 for 132.
+/// for 498) and PR 146 for 132. `with_axes`: whether any frontal axis was measured (with every limb lead left
+/// out, none is, and the note does not name them).
 #[must_use]
-/// `with_axes`: whether any frontal axis was measured (with every limb lead left out, none is, and the note does
-/// not name them).
 pub fn leads_left_out(leads: &[crate::recording::LeadName], with_axes: bool) -> Option<RangeNote> {
     if leads.is_empty() {
         return None;
