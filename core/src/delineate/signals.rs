@@ -1,5 +1,6 @@
 //! Signals shared by the boundary finders: each lead low-passed for the QRS (40 Hz) and for P and T (12 Hz),
-//! the multi-lead QRS slope envelope, and the pacing spikes found in the unfiltered leads.
+//! the multi-lead QRS slope envelope, and the pacing spikes found in the unfiltered leads. Every signal here is
+//! made from the leads with their pacing spikes bridged ([`without_spikes`]); the spikes' places are kept.
 
 use std::borrow::Cow;
 use std::ops::Range;
@@ -24,7 +25,7 @@ const SPIKE_MEDIAN_S: f64 = 0.010;
 const WAVE_LP_HZ: f64 = 12.0;
 
 /// Prepared signals of a multi-lead recording (or of a representative beat); `'a` is the life of the leads
-/// given to [`Signals::new`], which `wide` borrows when they hold no invalid sample.
+/// given to [`Signals::new`], which `wide` borrows when they hold no invalid sample and no pacing spike.
 pub struct Signals<'a> {
     /// Sampling rate, Hz.
     pub fs: f64,
@@ -32,10 +33,10 @@ pub struct Signals<'a> {
     pub qrs: Vec<Vec<f32>>,
     /// Each lead low-passed at 12 Hz, µV.
     pub slow: Vec<Vec<f32>>,
-    /// Each lead as given (no low-pass; invalid samples interpolated), µV: where a lead is clean it shows the
-    /// instant a wave leaves the baseline, which the zero-phase low-pass spreads a few samples either way.
-    /// Borrowed from the caller's leads unless a lead has invalid samples to interpolate (no copy of a 24-h
-    /// recording).
+    /// Each lead as given (no low-pass; invalid samples interpolated, pacing spikes bridged), µV: where a lead is
+    /// clean it shows the instant a wave leaves the baseline, which the zero-phase low-pass spreads a few samples
+    /// either way. Borrowed from the caller's leads unless a lead has samples to interpolate or bridge (no copy
+    /// of a 24-h recording).
     pub wide: Vec<Cow<'a, [f32]>>,
     /// Largest over the leads of |slope| of the 40 Hz signals, each lead divided by its typical QRS slope (so
     /// the first lead to start and the last to finish set the edges), smoothed over ≈ 10 ms. Dimensionless.
@@ -51,7 +52,7 @@ pub struct Signals<'a> {
 }
 
 impl<'a> Signals<'a> {
-    /// Prepares `leads` (µV, NaN = invalid; interpolated here).
+    /// Prepares `leads` (µV, NaN = invalid; interpolated here, and pacing spikes bridged).
     #[must_use]
     pub fn new(leads: &[&'a [f32]], fs: f64) -> Self {
         let n = leads.first().map_or(0, |l| l.len());
@@ -64,15 +65,17 @@ impl<'a> Signals<'a> {
         let mut spikes = Vec::new();
         let absent = leads.iter().map(|l| gaps::absent_runs(l, fs)).collect();
         for &lead in leads {
-            let x = fill_invalid(lead);
-            spikes.extend(pacing_spikes(&x, fs));
+            let filled = fill_invalid(lead);
+            let own = pacing_spikes(&filled, fs);
+            let x = without_spikes(&filled, &own);
             qrs.push(filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect::<Vec<f32>>());
             slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
-            wide.push(if lead.iter().all(|v| v.is_finite()) {
+            wide.push(if own.is_empty() && lead.iter().all(|v| v.is_finite()) {
                 Cow::Borrowed(lead)
             } else {
                 Cow::Owned(x.iter().map(|&v| v as f32).collect())
             });
+            spikes.extend(own);
         }
         // Each lead's slope in units of its typical QRS slope; a lead with a small QRS is raised at most
         // MAX_GAIN times relative to the largest, so its noise cannot start the QRS early.
@@ -157,6 +160,41 @@ fn slope_scale(q: &[f32]) -> f32 {
     *v.select_nth_unstable_by(idx, f32::total_cmp).1
 }
 
+/// `x` with each of its pacing `spikes` (sorted sample indices) and the sample on either side bridged by a
+/// straight line. A low-pass spreads a spike of a few samples into a bump of tens of ms and tens of µV, the size
+/// of a P wave, and the P wave's edges are found on the 40 Hz and unfiltered leads too: LUDB 45 (ventricular
+/// pacing, no P wave marked by the experts) read P waves of 204 ms, their ends on the spike before each QRS, and
+/// PR 224 ms; now no P wave, as the experts. On LUDB 8 and 15 one T end moves 1–4 samples; on the other shared
+/// records nothing moves.
+fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> std::borrow::Cow<'x, [f64]> {
+    if spikes.is_empty() {
+        return std::borrow::Cow::Borrowed(x);
+    }
+    let n = x.len();
+    // Each spike with a sample on either side, overlapping ones merged.
+    let mut covered: Vec<std::ops::Range<usize>> = Vec::new();
+    for &k in spikes {
+        let run = k.saturating_sub(1)..(k + 2).min(n);
+        match covered.last_mut() {
+            Some(last) if run.start <= last.end => last.end = last.end.max(run.end),
+            _ => covered.push(run),
+        }
+    }
+    let mut y = x.to_vec();
+    for run in covered {
+        let (a, b) = (run.start.checked_sub(1), (run.end < n).then_some(run.end));
+        for k in run {
+            y[k] = match (a, b) {
+                (Some(a), Some(b)) => x[a] + (x[b] - x[a]) * (k - a) as f64 / (b - a) as f64,
+                (Some(a), None) => x[a],
+                (None, Some(b)) => x[b],
+                (None, None) => 0.0,
+            };
+        }
+    }
+    std::borrow::Cow::Owned(y)
+}
+
 /// Pacing spikes of one unfiltered lead `x` (µV) at `fs` Hz: samples that stand more than [`SPIKE_FACTOR`] times
 /// the lead's 99th percentile sample-to-sample step away from the running median over [`SPIKE_MEDIAN_S`] (a
 /// spike of one or two samples; a QRS limb, however steep, follows the median). Only samples next to such a step
@@ -184,4 +222,29 @@ pub fn pacing_spikes(x: &[f64], fs: f64) -> Vec<usize> {
             (x[k] - *buf.select_nth_unstable_by(mid, f64::total_cmp).1).abs() > limit
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn pacing_spikes_are_bridged_with_a_sample_either_side() {
+        // A two-sample spike at 4–5 on a ramp: samples 3–6 lie on the straight line from 2 to 7 again. A spike at
+        // the first sample is held at the first value after it; no spike, no copy.
+        let mut x: Vec<f64> = (0..10).map(f64::from).collect();
+        x[4] += 1000.0;
+        x[5] += 1000.0;
+        let y = without_spikes(&x, &[4, 5]);
+        assert_eq!(y.as_ref(), (0..10).map(f64::from).collect::<Vec<_>>().as_slice());
+        let mut z = vec![5.0; 6];
+        z[0] = 900.0;
+        assert_eq!(without_spikes(&z, &[0]).as_ref(), &[5.0; 6]);
+        assert!(matches!(without_spikes(&x, &[]), Cow::Borrowed(_)));
+        // The spike test finds the two samples themselves on a steady lead (4 s at 500 Hz).
+        let mut flat: Vec<f64> = (0..2000).map(|k| f64::from(k % 3)).collect();
+        flat[1000] = 2000.0;
+        flat[1001] = 2000.0;
+        assert_eq!(pacing_spikes(&flat, 500.0), vec![1000, 1001]);
+    }
 }
