@@ -5,7 +5,7 @@
 use std::borrow::Cow;
 use std::ops::Range;
 
-use crate::filter::{Biquad, fill_invalid, filtfilt};
+use crate::filter::{Biquad, bridged, fill_invalid, filtfilt};
 use crate::gaps;
 
 /// Low-pass cutoff for QRS boundaries, Hz.
@@ -166,13 +166,13 @@ fn slope_scale(q: &[f32]) -> f32 {
 /// pacing, no P wave marked by the experts) read P waves of 204 ms, their ends on the spike before each QRS, and
 /// PR 224 ms; now no P wave, as the experts. On LUDB 8 and 15 one T end moves 1–4 samples; on the other shared
 /// records nothing moves.
-fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> std::borrow::Cow<'x, [f64]> {
+fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> Cow<'x, [f64]> {
     if spikes.is_empty() {
-        return std::borrow::Cow::Borrowed(x);
+        return Cow::Borrowed(x);
     }
     let n = x.len();
     // Each spike with a sample on either side, overlapping ones merged.
-    let mut covered: Vec<std::ops::Range<usize>> = Vec::new();
+    let mut covered: Vec<Range<usize>> = Vec::new();
     for &k in spikes {
         let run = k.saturating_sub(1)..(k + 2).min(n);
         match covered.last_mut() {
@@ -182,17 +182,11 @@ fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> std::borrow::Cow<'x, [f
     }
     let mut y = x.to_vec();
     for run in covered {
-        let (a, b) = (run.start.checked_sub(1), (run.end < n).then_some(run.end));
-        for k in run {
-            y[k] = match (a, b) {
-                (Some(a), Some(b)) => x[a] + (x[b] - x[a]) * (k - a) as f64 / (b - a) as f64,
-                (Some(a), None) => x[a],
-                (None, Some(b)) => x[b],
-                (None, None) => 0.0,
-            };
+        for k in run.clone() {
+            y[k] = bridged(x, &run, k);
         }
     }
-    std::borrow::Cow::Owned(y)
+    Cow::Owned(y)
 }
 
 /// Pacing spikes of one unfiltered lead `x` (µV) at `fs` Hz: samples that stand more than [`SPIKE_FACTOR`] times

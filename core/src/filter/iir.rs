@@ -133,11 +133,12 @@ pub fn fill_invalid(samples: &[f32]) -> Vec<f64> {
 
 /// The value [`fill_invalid`] gives sample `k` of `run`, a whole run of invalid samples of `x`: on the straight
 /// line from the last valid sample before the run to the first after it; the one valid neighbour's value at an
-/// end of the lead; 0 in a lead with none. One sample at a time, for passes that stream a long lead.
+/// end of the lead; 0 in a lead with none. One sample at a time, for passes that stream a long lead. Also for
+/// any other run of `x` to be bridged (a pacing spike in a lead already filled, `f64`).
 #[must_use]
-pub fn bridged(x: &[f32], run: &std::ops::Range<usize>, k: usize) -> f64 {
-    let before = run.start.checked_sub(1).map(|a| (a, f64::from(x[a])));
-    let after = x.get(run.end).map(|&v| (run.end, f64::from(v)));
+pub fn bridged<T: Copy + Into<f64>>(x: &[T], run: &std::ops::Range<usize>, k: usize) -> f64 {
+    let before = run.start.checked_sub(1).map(|a| (a, x[a].into()));
+    let after = x.get(run.end).map(|&v| (run.end, v.into()));
     match (before, after) {
         (Some((a, va)), Some((b, vb))) => va + (vb - va) * (k - a) as f64 / (b - a) as f64,
         (Some((_, v)), None) | (None, Some((_, v))) => v,
