@@ -11,6 +11,7 @@ mod accuracy_hrv;
 mod accuracy_intervals;
 mod accuracy_invariance;
 mod accuracy_noise;
+mod accuracy_pauses;
 mod accuracy_rhythm;
 mod accuracy_typing;
 mod accuracy_windowed;
