@@ -461,3 +461,49 @@ fn a_lead_losing_a_few_samples_each_beat_stays_in_the_representative_beat() {
         assert!(g.zip(w).is_some_and(|(g, w)| (g - w).abs() <= 2.0), "{name} {g:?} for {w:?}");
     }
 }
+
+#[test]
+fn ectopic_beats_where_leads_are_off_are_typed_on_the_leads_left() {
+    // LUDB 8 (paced, with three beats of another shape at 3.1–4.8 s) and LUDB 43 (sinus rhythm with three ectopic
+    // beats): with leads off for a few seconds, every beat is typed as on the complete record. Before, a beat whose
+    // window missed samples in any lead was not judged by its shape, and two ectopic beats of either record were
+    // typed dominant in each case below. (LUDB 43 with all six chest leads off still types one of its ectopic
+    // beats dominant: on the limb leads alone it correlates with the others above the limit.) Source of the
+    // records: LUDB (Kalyakulina et al. 2020, PhysioNet).
+    let chest = ["V1", "V2", "V3", "V4", "V5", "V6"];
+    let cases: [(u32, &[&str], (f64, f64)); 5] = [
+        (8, &chest, (2.5, 7.5)),
+        (8, &["II"], (3.0, 6.0)),
+        (8, &["V1"], (3.0, 6.0)),
+        (43, &["II"], (3.0, 6.0)),
+        (43, &["V1"], (3.0, 6.0)),
+    ];
+    for (n, names, (a, b)) in cases {
+        let recording = isoline_core::io::open(
+            &isoline_tests::data(&format!("ludb/{n}.hea")),
+            &isoline_core::io::OpenOptions::default(),
+        )
+        .unwrap_or_else(|e| panic!("LUDB {n}: {e}"))
+        .recording;
+        let kinds = |r: &isoline_core::Recording| -> Vec<_> {
+            analyze(r, &FilterSettings::default()).beats.iter().map(|b| (b.r, b.kind)).collect()
+        };
+        let whole = kinds(&recording);
+        let others = whole.iter().filter(|(_, k)| *k == isoline_core::beat::BeatKind::Other).count();
+        assert!(others >= 3, "LUDB {n}: {others} beats typed other on the complete record");
+        let fs = recording.sample_rate.hz();
+        let mut lossy = recording.clone();
+        for name in names {
+            let i =
+                lossy.lead_index(&isoline_core::recording::LeadName::parse(name)).unwrap_or_else(|| panic!("{name}"));
+            lossy.leads[i].samples[(a * fs) as usize..(b * fs) as usize].fill(f32::NAN);
+        }
+        let got = kinds(&lossy);
+        let what = format!("LUDB {n} with {} off from {a} to {b} s", names.join(", "));
+        assert_eq!(got.len(), whole.len(), "{what}: beats");
+        for ((r, k), (wr, wk)) in got.iter().zip(&whole) {
+            assert!(r.abs_diff(*wr) <= 5, "{what}: R at {r} instead of {wr}");
+            assert_eq!(k, wk, "{what}: beat at {r}");
+        }
+    }
+}
