@@ -21,35 +21,58 @@ const P_FROM_S: f64 = 0.25;
 /// …to this long before it (before the QRS onset).
 const P_TO_S: f64 = 0.08;
 
-/// The record with pauses: every `(first, count)` run of beats (indices into `r`) removed. Returns the recording
-/// and the R peaks left. With `keep_p`, each removed beat's P wave is put back on the line.
-fn with_pauses(recording: &Recording, r: &[usize], runs: &[(usize, usize)], keep_p: bool) -> (Recording, Vec<usize>) {
+/// Where a beat's P wave lies (samples): from [`P_FROM_S`] to [`P_TO_S`] before its R peak `beat`.
+fn p_window(beat: usize, fs: f64) -> std::ops::Range<usize> {
+    beat - (P_FROM_S * fs).round() as usize..beat - (P_TO_S * fs).round() as usize
+}
+
+/// The record with pauses: every `(first, count)` run of beats (indices into `r`, with `first` ≥ 1 and a beat after
+/// the run) removed, the stretch from [`CUT_AFTER_S`] after the beat before to [`CUT_BEFORE_S`] before the beat after
+/// drawn as a straight line. With `keep_p`, each removed beat's P wave that lies wholly on that line is put back on
+/// it. Returns the recording, the R peaks left and the R peaks of the P waves put back.
+fn with_pauses(
+    recording: &Recording,
+    r: &[usize],
+    runs: &[(usize, usize)],
+    keep_p: bool,
+) -> (Recording, Vec<usize>, Vec<usize>) {
     let fs = recording.sample_rate.hz();
     let s = |secs: f64| (secs * fs).round() as usize;
+    // Value at `k` of the straight line through (`a`, `va`) and (`b`, `vb`).
+    let line =
+        |k: usize, (a, va): (usize, f32), (b, vb): (usize, f32)| va + (vb - va) * (k - a) as f32 / (b - a) as f32;
     let mut out = recording.clone();
-    for lead in &mut out.leads {
+    let mut p_put_back = Vec::new();
+    for (lead_index, lead) in out.leads.iter_mut().enumerate() {
         let orig = lead.samples.clone();
         for &(first, count) in runs {
             let (a, b) = (r[first - 1] + s(CUT_AFTER_S), r[first + count] - s(CUT_BEFORE_S));
-            let (va, vb) = (orig[a], orig[b]);
+            assert!(a < b, "run {first}: no room for a pause");
             for k in a..b {
-                lead.samples[k] = va + (vb - va) * (k - a) as f32 / (b - a) as f32;
+                lead.samples[k] = line(k, (a, orig[a]), (b, orig[b]));
             }
-            if keep_p {
-                for &beat in &r[first..first + count] {
-                    // The P wave as recorded, less the straight line between its ends, added onto the pause line.
-                    let (p0, p1) = (beat - s(P_FROM_S), beat - s(P_TO_S));
-                    for k in p0..p1 {
-                        let base = orig[p0] + (orig[p1] - orig[p0]) * (k - p0) as f32 / (p1 - p0) as f32;
-                        lead.samples[k] += orig[k] - base;
-                    }
+            if !keep_p {
+                continue;
+            }
+            for &beat in &r[first..first + count] {
+                let w = p_window(beat, fs);
+                if w.start < a || w.end > b {
+                    continue;
+                }
+                // The P wave as recorded, less the straight line between its ends, added onto the pause line.
+                let ends = ((w.start, orig[w.start]), (w.end, orig[w.end]));
+                for k in w.clone() {
+                    lead.samples[k] += orig[k] - line(k, ends.0, ends.1);
+                }
+                if lead_index == 0 {
+                    p_put_back.push(beat);
                 }
             }
         }
     }
     let removed = |i: usize| runs.iter().any(|&(f, c)| (f..f + c).contains(&i));
     let left = r.iter().enumerate().filter(|&(i, _)| !removed(i)).map(|(_, &v)| v).collect();
-    (out, left)
+    (out, left, p_put_back)
 }
 
 #[test]
@@ -60,27 +83,30 @@ fn pauses_and_blocked_p_waves_add_no_beats() -> Result<(), String> {
         .recording;
     let r: Vec<usize> =
         read_reference_csv(&data("mitdb-100/100.beats.csv"))?.iter().map(|b| b.r.round() as usize).collect();
-    // Runs of 2, 3, 4, 5 beats in turn, one run every 25 beats: pauses of about 2.4 to 5 s (RR ≈ 0.8 s).
+    // Runs of 2, 3, 4, 5 beats in turn, one run every 25 beats: pauses of 2.2 to 5.0 s (RR ≈ 0.8 s; the shortest
+    // after an atrial premature beat).
     let runs: Vec<(usize, usize)> =
         (0..).map(|i| (20 + 25 * i, 2 + i % 4)).take_while(|&(f, c)| f + c + 20 < r.len()).collect();
     let fs = recording.sample_rate.hz();
-    // The blocked P waves are there: in lead MLII each stands out from the pause line by a P wave's height.
-    let (bare, _) = with_pauses(&recording, &r, &runs, false);
-    let (blocked, _) = with_pauses(&recording, &r, &runs, true);
+    let longest = runs.iter().map(|&(f, c)| (r[f + c] - r[f - 1]) as f64 / fs).fold(0.0, f64::max);
+    let (bare, left, _) = with_pauses(&recording, &r, &runs, false);
+    let (blocked, _, put_back) = with_pauses(&recording, &r, &runs, true);
+    // The blocked P waves are there: nearly every removed beat's P wave lies wholly on its pause line (measured
+    // today 310 of 313), and in lead MLII each stands out from the line by a P wave's height (115–250 µV).
+    let removed: usize = runs.iter().map(|&(_, c)| c).sum();
+    assert!(put_back.len() * 10 >= removed * 9, "{} of {removed} P waves put back", put_back.len());
     let p_height = |beat: usize| {
-        let span = beat - (P_FROM_S * fs) as usize..beat - (P_TO_S * fs) as usize;
-        span.map(|k| (blocked.leads[0].samples[k] - bare.leads[0].samples[k]).abs()).fold(0.0f32, f32::max)
+        p_window(beat, fs)
+            .map(|k| (blocked.leads[0].samples[k] - bare.leads[0].samples[k]).abs())
+            .fold(0.0f32, f32::max)
     };
-    let heights: Vec<f32> = runs.iter().map(|&(f, _)| p_height(r[f])).collect();
-    assert!(heights.iter().all(|&h| h >= 50.0), "P waves put back (µV): {heights:?}");
-    for keep_p in [false, true] {
-        let (paused, left) = with_pauses(&recording, &r, &runs, keep_p);
-        let longest = runs.iter().map(|&(f, c)| (r[f + c] - r[f - 1]) as f64 / fs).fold(0.0, f64::max);
-        let (_, beats) = beats_of_recording(&paused);
+    let low: Vec<(usize, f32)> = put_back.iter().map(|&b| (b, p_height(b))).filter(|&(_, h)| h < 50.0).collect();
+    assert!(low.is_empty(), "P waves under 50 µV on the line (R peak, µV): {low:?}");
+    for (what, paused) in [("pauses", &bare), ("blocked P waves", &blocked)] {
+        let (_, beats) = beats_of_recording(paused);
         let reference: Vec<f64> = left.iter().map(|&v| v as f64).collect();
         let detected: Vec<f64> = beats.iter().map(|b| b.r as f64).collect();
         let d = score_detection(&reference, &detected, fs);
-        let what = if keep_p { "blocked P waves" } else { "pauses" };
         println!(
             "{rec} with {} {what} (longest {longest:.1} s): TP {} FN {} FP {}  Se {:.3} % +P {:.3} %",
             runs.len(),
@@ -91,8 +117,8 @@ fn pauses_and_blocked_p_waves_add_no_beats() -> Result<(), String> {
             d.ppv()
         );
         // Measured today: no beat missed and none added in either case (90 pauses, longest 5.0 s). Allowed: one
-        // beat in a thousand either way.
-        assert!(d.se() >= 99.9 && d.ppv() >= 99.9, "{what}: Se {:.3} % +P {:.3} %", d.se(), d.ppv());
+        // beat either way.
+        assert!(d.fn_ <= 1 && d.fp <= 1, "{what}: {} missed, {} added", d.fn_, d.fp);
     }
     Ok(())
 }

@@ -463,12 +463,12 @@ fn a_lead_losing_a_few_samples_each_beat_stays_in_the_representative_beat() {
 }
 
 #[test]
-fn ectopic_beats_where_leads_are_off_are_typed_on_the_leads_left() {
-    // LUDB 8 (paced, with three beats of another shape at 3.1–4.8 s) and LUDB 43 (sinus rhythm with three ectopic
-    // beats): with leads off for a few seconds, every beat is typed as on the complete record. Before, a beat whose
-    // window missed samples in any lead was not judged by its shape, and two ectopic beats of either record were
-    // typed dominant in each case below. (LUDB 43 with all six chest leads off still types one of its ectopic
-    // beats dominant: on the limb leads alone it correlates with the others above the limit.) Source of the
+fn beats_of_another_shape_where_leads_are_off_are_typed_on_the_leads_left() {
+    // LUDB 8 (paced; three beats of another shape at 2.9–4.6 s) and LUDB 43 (sinus rhythm; three beats typed other
+    // on the complete record, at 1.4, 5.4 and 8.3 s): with leads off for a few seconds, every beat is typed as on
+    // the complete record. Before, a beat whose window missed samples in any lead was not judged by its shape, and
+    // two of those beats were typed dominant in each case below. (LUDB 43 with all six chest leads off still types
+    // one of them dominant: on the limb leads alone it correlates with the others above the limit.) Source of the
     // records: LUDB (Kalyakulina et al. 2020, PhysioNet).
     let chest = ["V1", "V2", "V3", "V4", "V5", "V6"];
     let cases: [(u32, &[&str], (f64, f64)); 5] = [
