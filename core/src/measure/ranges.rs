@@ -173,6 +173,18 @@ pub fn qtc(key: &str, formula: &str, ms: f64, sex: Sex) -> Option<RangeNote> {
     })
 }
 
+/// `note` (a QTc note of [`qtc`]) for a QTc corrected from a QT that the individual beats do not confirm (see
+/// [`beats_disagree`]): the finding says so, so that a QTc called long or short is not read apart from that doubt.
+#[must_use]
+pub fn qtc_from_doubtful_qt(mut note: RangeNote) -> RangeNote {
+    const DOUBT: &str = "; corrected from a QT the individual beats do not confirm";
+    note.text.push_str(DOUBT);
+    if let Some(q) = note.qtc.as_mut() {
+        q.finding.push_str(DOUBT);
+    }
+    note
+}
+
 /// The QTc limit `ms` breaks, as text with its source, and the source.
 fn qtc_finding(ms: f64, sex: Sex) -> Option<(String, &'static str)> {
     if ms > 500.0 {

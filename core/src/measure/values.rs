@@ -96,8 +96,14 @@ impl Measurements {
             ("qtc_hodges_ms", "Hodges", q.map(|q| q.hodges)),
             ("qtc_rautaharju_ms", "Rautaharju", q.map(|q| q.rautaharju)),
         ];
+        // A QTc note on a QT that the single beats do not confirm says so.
+        let doubtful_qt = self.beats_disagree("qt_ms").is_some();
         for (key, name, value) in formulas {
-            out.push(with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex)));
+            let mut m = with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex));
+            if doubtful_qt {
+                m.note = m.note.map(ranges::qtc_from_doubtful_qt);
+            }
+            out.push(m);
         }
         out.push(v("axis_p_deg", "P axis", self.axes.p_deg, "deg"));
         // The QRS axis row carries its range note, or else the note that the limb leads were rescaled.
@@ -151,6 +157,32 @@ mod tests {
         // Intervals that are the beats' medians themselves are not compared with themselves.
         let own = Measurements { intervals_source: IntervalSource::BeatMedians, ..m };
         assert!(own.notes().iter().all(|n| n.source != ranges::SOURCE_CONSISTENCY));
+    }
+
+    #[test]
+    fn a_qtc_from_a_qt_the_single_beats_do_not_confirm_says_so() {
+        // sele0104 of the QT Database (15 min): QT 352 ms on the representative beat, 404 as the median of the
+        // beats, RR 1121 ms. Every QTc is called short (≤ 390 ms); each such note now says the QT is in doubt, also
+        // in the condensed line of a page. With the beats agreeing, the notes are as before.
+        use super::super::{IntervalSource, Intervals, qtc};
+        let m = Measurements {
+            intervals: Intervals { qt_ms: Some(352.0), ..Intervals::default() },
+            beat_medians: Intervals { qt_ms: Some(404.0), ..Intervals::default() },
+            intervals_source: IntervalSource::Representative,
+            qtc: Some(qtc::qtc(352.0, 1121.0)),
+            ..Measurements::default()
+        };
+        let qtc_notes = |m: &Measurements| -> Vec<RangeNote> {
+            m.values().into_iter().filter(|v| v.key.starts_with("qtc_")).filter_map(|v| v.note).collect()
+        };
+        let doubtful = qtc_notes(&m);
+        assert_eq!(doubtful.len(), 5);
+        assert!(doubtful.iter().all(|n| n.text.contains("lower limit") && n.text.contains("do not confirm")));
+        let lines = ranges::condensed(&m.notes());
+        assert!(lines.iter().any(|l| l.starts_with("QTc") && l.contains("do not confirm")), "{lines:?}");
+        let agreed = Measurements { beat_medians: Intervals { qt_ms: Some(360.0), ..Intervals::default() }, ..m };
+        assert!(qtc_notes(&agreed).iter().all(|n| !n.text.contains("do not confirm")));
+        assert_eq!(qtc_notes(&agreed).len(), 5);
     }
 
     #[test]
