@@ -230,22 +230,13 @@ pub fn condensed(notes: &[RangeNote]) -> Vec<String> {
         let names: Vec<&str> = same.iter().map(|x| x.formula.as_str()).collect();
         let one_value = same.iter().all(|x| x.ms.round() == q.ms.round());
         out.push(if one_value {
-            format!("QTc {:.0} ms by {} — {}", q.ms, listed(&names), q.finding)
+            format!("QTc {:.0} ms by {} — {}", q.ms, crate::recording::spoken_list(&names), q.finding)
         } else {
             let each: Vec<String> = same.iter().map(|x| format!("{} {:.0} ms", x.formula, x.ms)).collect();
-            format!("QTc by {} — {}", listed(&each), q.finding)
+            format!("QTc by {} — {}", crate::recording::spoken_list(&each), q.finding)
         });
     }
     out
-}
-
-/// `a`, `a and b`, `a, b and c`.
-fn listed<S: std::borrow::Borrow<str>>(items: &[S]) -> String {
-    match items {
-        [] => String::new(),
-        [one] => one.borrow().to_string(),
-        [head @ .., last] => format!("{} and {}", head.join(", "), last.borrow()),
-    }
 }
 
 /// QRS axis outside −30° to +90° (references.md §4: textbook frontal axis ranges).

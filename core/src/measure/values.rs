@@ -73,6 +73,9 @@ impl Measurements {
         let i = &self.intervals;
         let q = self.qtc;
         let sex = self.sex;
+        // The QT row has no range note of its own: a note there is the single beats' disagreement.
+        let qt = self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms"));
+        let doubtful_qt = qt.note.is_some();
         let mut out = vec![
             with_note(v("heart_rate_bpm", "Heart rate", self.rr.heart_rate_bpm, "bpm"), ranges::heart_rate),
             v("rr_ms", "RR", self.rr.rr_ms, "ms"),
@@ -87,7 +90,7 @@ impl Measurements {
             v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
             self.or_beats_disagree(with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr)),
             self.or_beats_disagree(with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs)),
-            self.or_beats_disagree(v("qt_ms", "QT", i.qt_ms, "ms")),
+            qt,
         ];
         let formulas: [(&'static str, &str, Option<f64>); 5] = [
             ("qtc_bazett_ms", "Bazett", q.map(|q| q.bazett)),
@@ -97,7 +100,6 @@ impl Measurements {
             ("qtc_rautaharju_ms", "Rautaharju", q.map(|q| q.rautaharju)),
         ];
         // A QTc note on a QT that the single beats do not confirm says so.
-        let doubtful_qt = self.beats_disagree("qt_ms").is_some();
         for (key, name, value) in formulas {
             let mut m = with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex));
             if doubtful_qt {
