@@ -243,10 +243,15 @@ fn beats_are_found_on_the_leads_left() {
     );
 }
 
+/// A shared record (`rel` under the test data) as opened.
+fn opened(rel: &str) -> isoline_core::io::Opened {
+    isoline_core::io::open(&isoline_tests::data(rel), &isoline_core::io::OpenOptions::default())
+        .unwrap_or_else(|e| panic!("{rel}: {e}"))
+}
+
 /// LUDB record 24 (10 s, 12 leads, 500 Hz; a wide QRS, RR ≈ 1.2 s) as opened, and its analysis.
 fn ludb_24() -> (isoline_core::io::Opened, isoline_core::analysis::Analysis) {
-    let opened = isoline_core::io::open(&isoline_tests::data("ludb/24.hea"), &isoline_core::io::OpenOptions::default())
-        .unwrap_or_else(|e| panic!("{e}"));
+    let opened = opened("ludb/24.hea");
     let whole = analyze(&opened.recording, &FilterSettings::default());
     (opened, whole)
 }
@@ -272,13 +277,17 @@ fn a_lost_sample_near_an_r_peak_keeps_the_beat_on_its_lead() {
     assert!(x.zip(y).is_some_and(|(x, y)| (x - y).abs() <= 1.0), "RMSSD {x:?} vs {y:?}");
 }
 
-/// `recording` (LUDB 24) with its six limb leads missing from 2.5 to 7.5 s: limb electrodes off, chest ones on.
-fn limb_leads_off(recording: &isoline_core::Recording) -> isoline_core::Recording {
+/// The six limb leads and the six chest leads of a standard 12-lead recording.
+const LIMB: [&str; 6] = ["I", "II", "III", "aVR", "aVL", "aVF"];
+const CHEST: [&str; 6] = ["V1", "V2", "V3", "V4", "V5", "V6"];
+
+/// `recording` with the leads `names` missing from `a` to `b` s: their electrodes off, the others on.
+fn leads_off(recording: &isoline_core::Recording, names: &[&str], (a, b): (f64, f64)) -> isoline_core::Recording {
     let fs = recording.sample_rate.hz();
     let mut off = recording.clone();
-    for name in ["I", "II", "III", "aVR", "aVL", "aVF"] {
+    for name in names {
         let i = off.lead_index(&isoline_core::recording::LeadName::parse(name)).unwrap_or_else(|| panic!("{name}"));
-        off.leads[i].samples[(2.5 * fs) as usize..(7.5 * fs) as usize].fill(f32::NAN);
+        off.leads[i].samples[(a * fs) as usize..(b * fs) as usize].fill(f32::NAN);
     }
     off
 }
@@ -291,7 +300,7 @@ fn r_peaks_keep_the_clearest_leads_time_where_it_is_missing() {
     // placed on another lead is moved by that lead's usual offset: within 5 samples (measured 0–5), RMSSD within 2
     // ms. Source of the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
     let (opened, whole) = ludb_24();
-    let a = analyze(&limb_leads_off(&opened.recording), &FilterSettings::default());
+    let a = analyze(&leads_off(&opened.recording, &LIMB, (2.5, 7.5)), &FilterSettings::default());
     assert_eq!(a.beats.len(), whole.beats.len());
     for (b, w) in a.beats.iter().zip(&whole.beats) {
         assert!(b.r.abs_diff(w.r) <= 5, "R at {} instead of {}", b.r, w.r);
@@ -327,8 +336,7 @@ fn r_peaks_stay_put_when_each_lead_loses_short_runs() {
     // every R peak within 1 sample of the complete recording's. Source of the records: LUDB (Kalyakulina et al.
     // 2020, PhysioNet).
     for record in ["ludb/1.hea", "ludb/24.hea"] {
-        let opened = isoline_core::io::open(&isoline_tests::data(record), &isoline_core::io::OpenOptions::default())
-            .unwrap_or_else(|e| panic!("{e}"));
+        let opened = opened(record);
         let whole = analyze(&opened.recording, &FilterSettings::default());
         let a = analyze(&staggered_losses(&opened.recording), &FilterSettings::default());
         assert_eq!(a.beats.len(), whole.beats.len(), "{record}");
@@ -346,7 +354,7 @@ fn p_waves_are_found_on_the_leads_left() {
     // beat: each beat keeps its P wave within 4 samples of the complete recording's (measured: 3), and the PR
     // within 4 ms. Source of the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
     let (opened, whole) = ludb_24();
-    let a = analyze(&limb_leads_off(&opened.recording), &FilterSettings::default());
+    let a = analyze(&leads_off(&opened.recording, &LIMB, (2.5, 7.5)), &FilterSettings::default());
     let with_p = whole.beats.iter().filter(|w| w.bounds.p_on.is_some()).count();
     assert!(with_p >= 7, "{with_p} beats with a P wave in the complete recording");
     let same_p_waves = |a: &isoline_core::analysis::Analysis, case: &str| {
@@ -424,11 +432,7 @@ fn leads_left_out_of_the_representative_beat_are_named() {
     // the record: LUDB (Kalyakulina et al. 2020, PhysioNet).
     let (opened, whole) = ludb_24();
     assert!(whole.measurements.leads_left_out.is_empty(), "{:?}", whole.measurements.leads_left_out);
-    let fs = opened.recording.sample_rate.hz();
-    let mut off = opened.recording.clone();
-    for lead in off.leads.iter_mut().filter(|l| l.name.to_string().starts_with('V')) {
-        lead.samples[(2.5 * fs) as usize..(7.5 * fs) as usize].fill(f32::NAN);
-    }
+    let off = leads_off(&opened.recording, &CHEST, (2.5, 7.5));
     let m = analyze(&off, &FilterSettings::default()).measurements;
     let names: Vec<String> = m.leads_left_out.iter().map(ToString::to_string).collect();
     assert_eq!(names, ["V1", "V2", "V3", "V4", "V5", "V6"]);
@@ -443,8 +447,7 @@ fn a_lead_losing_a_few_samples_each_beat_stays_in_the_representative_beat() {
     // the representative beat whole; now such short holes in the median are bridged as in the lead itself, and
     // the intervals are the complete recording's within 2 ms. Source of the record: LUDB (Kalyakulina et al.
     // 2020, PhysioNet).
-    let opened = isoline_core::io::open(&isoline_tests::data("ludb/1.hea"), &isoline_core::io::OpenOptions::default())
-        .unwrap_or_else(|e| panic!("{e}"));
+    let opened = opened("ludb/1.hea");
     let whole = analyze(&opened.recording, &FilterSettings::default());
     let fs = opened.recording.sample_rate.hz();
     let mut lossy = opened.recording.clone();
@@ -470,34 +473,22 @@ fn beats_of_another_shape_where_leads_are_off_are_typed_on_the_leads_left() {
     // two of those beats were typed dominant in each case below. (LUDB 43 with all six chest leads off still types
     // one of them dominant: on the limb leads alone it correlates with the others above the limit.) Source of the
     // records: LUDB (Kalyakulina et al. 2020, PhysioNet).
-    let chest = ["V1", "V2", "V3", "V4", "V5", "V6"];
     let cases: [(u32, &[&str], (f64, f64)); 5] = [
-        (8, &chest, (2.5, 7.5)),
+        (8, &CHEST, (2.5, 7.5)),
         (8, &["II"], (3.0, 6.0)),
         (8, &["V1"], (3.0, 6.0)),
         (43, &["II"], (3.0, 6.0)),
         (43, &["V1"], (3.0, 6.0)),
     ];
     for (n, names, (a, b)) in cases {
-        let recording = isoline_core::io::open(
-            &isoline_tests::data(&format!("ludb/{n}.hea")),
-            &isoline_core::io::OpenOptions::default(),
-        )
-        .unwrap_or_else(|e| panic!("LUDB {n}: {e}"))
-        .recording;
+        let recording = opened(&format!("ludb/{n}.hea")).recording;
         let kinds = |r: &isoline_core::Recording| -> Vec<_> {
             analyze(r, &FilterSettings::default()).beats.iter().map(|b| (b.r, b.kind)).collect()
         };
         let whole = kinds(&recording);
         let others = whole.iter().filter(|(_, k)| *k == isoline_core::beat::BeatKind::Other).count();
         assert!(others >= 3, "LUDB {n}: {others} beats typed other on the complete record");
-        let fs = recording.sample_rate.hz();
-        let mut lossy = recording.clone();
-        for name in names {
-            let i =
-                lossy.lead_index(&isoline_core::recording::LeadName::parse(name)).unwrap_or_else(|| panic!("{name}"));
-            lossy.leads[i].samples[(a * fs) as usize..(b * fs) as usize].fill(f32::NAN);
-        }
+        let lossy = leads_off(&recording, names, (a, b));
         let got = kinds(&lossy);
         let what = format!("LUDB {n} with {} off from {a} to {b} s", names.join(", "));
         assert_eq!(got.len(), whole.len(), "{what}: beats");
