@@ -9,6 +9,7 @@
 //! Biol 2001;20(3):45-50); scored as in ANSI/AAMI EC57 practice (150 ms match window, Se and +P).
 
 use isoline_core::Recording;
+use isoline_core::filter::bridged;
 use isoline_tests::data;
 use isoline_tests::score::{beats_of_recording, read_reference_csv, score_detection};
 
@@ -38,9 +39,8 @@ fn with_pauses(
 ) -> (Recording, Vec<usize>, Vec<usize>) {
     let fs = recording.sample_rate.hz();
     let s = |secs: f64| (secs * fs).round() as usize;
-    // Value at `k` of the straight line through (`a`, `va`) and (`b`, `vb`).
-    let line =
-        |k: usize, (a, va): (usize, f32), (b, vb): (usize, f32)| va + (vb - va) * (k - a) as f32 / (b - a) as f32;
+    // Sample `k` of the straight line from sample `a` to sample `b` of `x` (as the readers bridge a lost run).
+    let line = |x: &[f32], (a, b): (usize, usize), k: usize| bridged(x, &(a + 1..b), k) as f32;
     let mut out = recording.clone();
     let mut p_put_back = Vec::new();
     for (lead_index, lead) in out.leads.iter_mut().enumerate() {
@@ -49,7 +49,7 @@ fn with_pauses(
             let (a, b) = (r[first - 1] + s(CUT_AFTER_S), r[first + count] - s(CUT_BEFORE_S));
             assert!(a < b, "run {first}: no room for a pause");
             for k in a..b {
-                lead.samples[k] = line(k, (a, orig[a]), (b, orig[b]));
+                lead.samples[k] = line(&orig, (a, b), k);
             }
             if !keep_p {
                 continue;
@@ -60,9 +60,8 @@ fn with_pauses(
                     continue;
                 }
                 // The P wave as recorded, less the straight line between its ends, added onto the pause line.
-                let ends = ((w.start, orig[w.start]), (w.end, orig[w.end]));
                 for k in w.clone() {
-                    lead.samples[k] += orig[k] - line(k, ends.0, ends.1);
+                    lead.samples[k] += orig[k] - line(&orig, (w.start, w.end), k);
                 }
                 if lead_index == 0 {
                     p_put_back.push(beat);
