@@ -27,10 +27,6 @@ pub struct MeasuredValue {
 pub const KEYS: [&str; 20] = [
     "heart_rate_bpm",
     "rr_ms",
-    "rr_sdnn_ms",
-    "rr_rmssd_ms",
-    "rr_cv_pct",
-    "rr_successive_pct",
     "p_duration_ms",
     "pr_ms",
     "qrs_ms",
@@ -43,6 +39,10 @@ pub const KEYS: [&str; 20] = [
     "axis_p_deg",
     "axis_qrs_deg",
     "axis_t_deg",
+    "rr_sdnn_ms",
+    "rr_rmssd_ms",
+    "rr_cv_pct",
+    "rr_successive_pct",
     "st_j_uv",
     "st_j60_uv",
 ];
@@ -66,8 +66,9 @@ impl Measurements {
         m
     }
 
-    /// The values in a fixed order: rate, RR statistics, intervals, QTc ×5, axes, then ST at J and J+60 ms
-    /// for each lead. Keys are listed in [`KEYS`].
+    /// The values in the order a reader takes them: rate and RR, intervals, QTc ×5, axes, then the RR
+    /// statistics (rate variability, regularity) and ST at J and J+60 ms for each lead. Keys are listed in
+    /// [`KEYS`].
     #[must_use]
     pub fn values(&self) -> Vec<MeasuredValue> {
         let i = &self.intervals;
@@ -79,14 +80,6 @@ impl Measurements {
         let mut out = vec![
             with_note(v("heart_rate_bpm", "Heart rate", self.rr.heart_rate_bpm, "bpm"), ranges::heart_rate),
             v("rr_ms", "RR", self.rr.rr_ms, "ms"),
-            v("rr_sdnn_ms", "SDNN", self.rr.sdnn_ms, "ms"),
-            v("rr_rmssd_ms", "RMSSD", self.rr.rmssd_ms, "ms"),
-            v("rr_cv_pct", "RR variation", self.rr.rhythm.rr_cv.map(|c| c * 100.0), "%"),
-            with_note(
-                v("rr_successive_pct", "RR beat-to-beat variation", self.rr.rhythm.successive.map(|c| c * 100.0), "%"),
-                // Only a regularity call with enough intervals makes a note.
-                |p| self.rr.rhythm.regular.and_then(|_| ranges::rr_irregular(p / 100.0)),
-            ),
             v("p_duration_ms", "P duration", i.p_duration_ms, "ms"),
             self.or_beats_disagree(with_note(v("pr_ms", "PR", i.pr_ms, "ms"), ranges::pr)),
             self.or_beats_disagree(with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs)),
@@ -115,6 +108,16 @@ impl Measurements {
         }
         out.push(qrs_axis);
         out.push(v("axis_t_deg", "T axis", self.axes.t_deg, "deg"));
+        out.extend([
+            v("rr_sdnn_ms", "SDNN", self.rr.sdnn_ms, "ms"),
+            v("rr_rmssd_ms", "RMSSD", self.rr.rmssd_ms, "ms"),
+            v("rr_cv_pct", "RR variation", self.rr.rhythm.rr_cv.map(|c| c * 100.0), "%"),
+            with_note(
+                v("rr_successive_pct", "RR beat-to-beat variation", self.rr.rhythm.successive.map(|c| c * 100.0), "%"),
+                // Only a regularity call with enough intervals makes a note.
+                |p| self.rr.rhythm.regular.and_then(|_| ranges::rr_irregular(p / 100.0)),
+            ),
+        ]);
         for s in &self.st {
             let mut a = v("st_j_uv", &format!("ST at J ({})", s.lead), s.j_uv, "µV");
             a.lead = Some(s.lead.clone());
