@@ -200,7 +200,7 @@ pub fn correlation(x: &[f32], y: &[f32]) -> f64 {
 }
 
 /// Which beats are premature for their rhythm: the RR ending at the beat is below [`PREMATURE`] × the median of
-/// the 8 RRs before and 8 after, AND — when enough ordinary RRs surround it — more than [`OUTLIER_SD`] SDs
+/// the 17 RRs around it (its own, 8 before and 8 after), AND — when enough ordinary RRs surround it — more than [`OUTLIER_SD`] SDs
 /// (of the 16 RRs before and 16 after) below that median. So in a regular rhythm a 15 % early beat is
 /// premature, while in atrial fibrillation or an irregular sinus rhythm, where short RRs are ordinary, a beat
 /// is `other` only by its shape. An interval across one of `gaps` (or next to one, [`gaps::breaks_rr`]; R peaks

@@ -45,8 +45,10 @@ pub struct RrStats {
 }
 
 /// Regularity of the underlying rhythm: of the NN intervals (between consecutive dominant beats), so that a
-/// premature beat and the pause after it do not make a steady rhythm irregular; of all RR intervals when too few
-/// NN intervals are left for a call (few or no dominant beats). A measurement, not a diagnosis.
+/// premature beat and the pause after it do not make a steady rhythm irregular; when other beats leave too few
+/// NN intervals side by side (bigeminy, trigeminy), of the NN intervals each compared with the next one; of all
+/// RR intervals when too few NN intervals are left for a call (few or no dominant beats). Differences are never
+/// taken across a gap of the recording. A measurement, not a diagnosis.
 #[derive(Debug, Clone, Copy, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Rhythm {
     /// Number of intervals the regularity is judged on.
@@ -82,28 +84,51 @@ impl Rhythm {
     }
 }
 
+/// True when a beat-to-beat variation (a fraction) calls the rhythm irregular: at or above
+/// [`IRREGULAR_SUCCESSIVE`], judged as printed, in whole percent, so the call and the figure shown beside it
+/// never disagree (9.6 % prints as 10 % and is irregular).
+#[must_use]
+pub fn is_irregular(variation: f64) -> bool {
+    (variation * 100.0).round() / 100.0 >= IRREGULAR_SUCCESSIVE
+}
+
 /// Runs of consecutive NN intervals (ms): a run breaks where a non-dominant beat interrupts or a gap of the
 /// recording (`gaps`, sorted) lies between two beats or near either ([`gaps::breaks_rr`]).
 #[must_use]
 pub fn nn_runs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<f64>> {
-    nn_pairs(beats, fs, gaps)
-        .into_iter()
-        .map(|run| run.into_iter().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect())
-        .collect()
+    as_ms(nn_pairs(beats, fs, gaps), fs)
 }
 
 /// The NN intervals of [`nn_runs`] as the R peaks (samples at `fs`) that bound them, first and second, in the
 /// same runs; none where a gap lies between two beats or cuts into either's QRS ([`gaps::breaks_rr`]).
 #[must_use]
 pub fn nn_pairs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<(usize, usize)>> {
+    pairs(beats, fs, gaps, Kept::Nn)
+}
+
+/// Which intervals [`pairs`] keeps, and where a run of them breaks besides at gaps of the recording.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Kept {
+    /// NN intervals; a beat of another kind breaks the run.
+    Nn,
+    /// NN intervals; a run goes on across beats of another kind (each NN interval followed by the next one).
+    NnAcrossOther,
+    /// Every RR interval.
+    Rr,
+}
+
+/// Runs of the intervals `kept` as the R peaks that bound them; every run breaks where a gap lies between two
+/// beats or cuts into either's QRS ([`gaps::breaks_rr`]).
+fn pairs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>], kept: Kept) -> Vec<Vec<(usize, usize)>> {
     let mut runs: Vec<Vec<(usize, usize)>> = Vec::new();
     let mut current = Vec::new();
     for w in beats.windows(2) {
         let (a, b) = (&w[0], &w[1]);
-        let ordinary = a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant;
-        if ordinary && b.r > a.r && !gaps::breaks_rr(gaps, a.r, b.r, fs.hz()) {
+        let gap = b.r <= a.r || gaps::breaks_rr(gaps, a.r, b.r, fs.hz());
+        let nn = a.kind == BeatKind::Dominant && b.kind == BeatKind::Dominant;
+        if !gap && (nn || kept == Kept::Rr) {
             current.push((a.r, b.r));
-        } else if !current.is_empty() {
+        } else if (gap || kept == Kept::Nn) && !current.is_empty() {
             runs.push(std::mem::take(&mut current));
         }
     }
@@ -111,6 +136,11 @@ pub fn nn_pairs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<(us
         runs.push(current);
     }
     runs
+}
+
+/// Runs of (first, second) R peaks as the intervals between them, ms.
+fn as_ms(runs: Vec<Vec<(usize, usize)>>, fs: Hertz) -> Vec<Vec<f64>> {
+    runs.into_iter().map(|run| run.into_iter().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect()).collect()
 }
 
 /// SDNN of NN intervals (ms); `None` for fewer than two.
@@ -137,23 +167,24 @@ pub fn rmssd_runs(runs: &[Vec<f64>]) -> Option<f64> {
 #[must_use]
 pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
     let other_beats = beats.iter().filter(|b| b.kind != BeatKind::Dominant).count();
+    // Enough to judge on: as many successive differences as MIN_RR_FOR_REGULARITY intervals in one run give.
+    let enough =
+        |runs: &[Vec<f64>]| runs.iter().map(|r| r.len().saturating_sub(1)).sum::<usize>() + 1 >= MIN_RR_FOR_REGULARITY;
     let nn = nn_runs(beats, fs, gaps);
-    let runs: Vec<Vec<f64>> = if nn.iter().map(Vec::len).sum::<usize>() >= MIN_RR_FOR_REGULARITY {
+    let runs = if enough(&nn) {
         nn
     } else {
-        vec![
-            beats
-                .windows(2)
-                .filter(|w| w[1].r > w[0].r && !gaps::breaks_rr(gaps, w[0].r, w[1].r, fs.hz()))
-                .map(|w| fs.ms_from_samples((w[1].r - w[0].r) as f64))
-                .collect(),
-        ]
+        // Other beats so frequent that dominant beats seldom follow each other (trigeminy, bigeminy): each NN
+        // interval still shows the underlying rhythm, and one compared with the next NN interval (across the
+        // other beat between them) shows its regularity; with fewer NN intervals still, all RR intervals.
+        let joined = as_ms(pairs(beats, fs, gaps, Kept::NnAcrossOther), fs);
+        if enough(&joined) { joined } else { as_ms(pairs(beats, fs, gaps, Kept::Rr), fs) }
     };
     let rr: Vec<f64> = runs.iter().flatten().copied().collect();
     let m = mean(&rr).filter(|&m| m > 0.0);
     let rr_cv = m.zip(sample_sd(&rr)).map(|(m, sd)| sd / m);
     let successive = m.zip(rmssd_runs(&runs)).map(|(m, d)| d / m);
-    let regular = successive.filter(|_| rr.len() >= MIN_RR_FOR_REGULARITY).map(|v| v < IRREGULAR_SUCCESSIVE);
+    let regular = successive.filter(|_| enough(&runs)).map(|v| !is_irregular(v));
     Rhythm { rr_count: rr.len(), rr_cv, successive, regular, other_beats }
 }
 
@@ -240,6 +271,45 @@ mod tests {
         // With no dominant beat, all RR intervals are judged.
         let all_other: Vec<Beat> = beats(&b).into_iter().map(|x| Beat::at(x.r, O)).collect();
         assert_eq!(rhythm(&all_other, fs(), &[]).regular, Some(false));
+    }
+
+    #[test]
+    fn trigeminy_is_judged_on_the_dominant_beats() {
+        use BeatKind::{Dominant as D, Other as O};
+        // Sinus rhythm at 800 ms with every third beat premature (500 ms) and a compensatory pause, 30 times:
+        // no two NN intervals side by side, but each NN interval is 800 ms, so the underlying rhythm is regular.
+        let mut b = Vec::new();
+        for k in 0..30 {
+            let t = k * 2400;
+            b.extend([(t, D), (t + 800, D), (t + 1300, O)]);
+        }
+        let r = rhythm(&beats(&b), fs(), &[]);
+        assert_eq!((r.regular, r.other_beats, r.rr_count), (Some(true), 30, 30), "{r:?}");
+        assert_eq!(r.describe(), "regular, 30 other beats");
+        // Bigeminy leaves no NN interval at all: all RR intervals are judged, short and long alternating.
+        let b: Vec<(usize, BeatKind)> = (0..20).flat_map(|k| [(k * 1600, D), (k * 1600 + 600, O)]).collect();
+        assert_eq!(rhythm(&beats(&b), fs(), &[]).regular, Some(false));
+    }
+
+    #[test]
+    #[allow(clippy::single_range_in_vec_init)] // one gap: a list of one range, as `Recording::gaps` gives
+    fn the_fallback_to_all_intervals_takes_no_difference_across_a_gap() {
+        use BeatKind::{Dominant as D, Other as O};
+        // Too few NN intervals, so all RR intervals are judged: 800, 800 before the gap and 600 four times after
+        // it. Taken as one run they would read 13 % beat to beat (irregular); in two runs they differ by nothing.
+        let b = beats(&[(0, D), (800, D), (1600, D), (4000, D), (4600, O), (5200, D), (5800, O), (6400, D)]);
+        let r = rhythm(&b, fs(), &[2000..3000]);
+        assert_eq!((r.rr_count, r.successive), (6, Some(0.0)), "{r:?}");
+        assert_eq!(r.regular, Some(true));
+    }
+
+    #[test]
+    fn the_call_and_the_printed_variation_agree() {
+        // 9.6 % prints as 10 %: irregular, and the note says so; 9.4 % prints as 9 %: regular, no note.
+        assert!(is_irregular(0.096));
+        assert!(super::super::ranges::rr_irregular(0.096).is_some());
+        assert!(!is_irregular(0.094));
+        assert!(super::super::ranges::rr_irregular(0.094).is_none());
     }
 
     #[test]

@@ -27,21 +27,22 @@ pub fn intervals(bounds: &Boundaries, fs: Hertz) -> Intervals {
         (Some(a), Some(b)) if b > a => Some(fs.ms_from_samples((b - a) as f64)),
         _ => None,
     };
-    // A T end must lie after the J point when both are known.
-    let t_end = match (bounds.qrs_end, bounds.t_end) {
-        (Some(j), Some(t)) if t <= j => None,
-        _ => bounds.t_end,
-    };
-    // A P wave must end no later than the QRS starts.
-    let p_ok = match (bounds.p_end, bounds.qrs_on) {
-        (Some(pe), Some(q)) => pe <= q,
+    // Two marks, where both are known, in order (`a` before `b`, or at the same sample when `same` is allowed).
+    let ordered = |a: Option<usize>, b: Option<usize>, same: bool| match (a, b) {
+        (Some(a), Some(b)) => b > a || (same && b == a),
         _ => true,
     };
+    // The P wave ends after it starts and no later than the QRS starts; the QRS ends after it starts
+    // (a QRS onset after the J point is wrong, or the J point is, so no interval from the QRS onset stands); a
+    // T end lies after the J point. Marks out of this order (placed by hand, say) give no interval they bound.
+    let p_ok = ordered(bounds.p_on, bounds.p_end, false) && ordered(bounds.p_end, bounds.qrs_on, true);
+    let qrs_ok = ordered(bounds.qrs_on, bounds.qrs_end, false);
+    let t_ok = ordered(bounds.qrs_end, bounds.t_end, false);
     Intervals {
         p_duration_ms: if p_ok { span(bounds.p_on, bounds.p_end) } else { None },
-        pr_ms: if p_ok { span(bounds.p_on, bounds.qrs_on) } else { None },
+        pr_ms: if p_ok && qrs_ok { span(bounds.p_on, bounds.qrs_on) } else { None },
         qrs_ms: span(bounds.qrs_on, bounds.qrs_end),
-        qt_ms: span(bounds.qrs_on, t_end),
+        qt_ms: if qrs_ok && t_ok { span(bounds.qrs_on, bounds.t_end) } else { None },
     }
 }
 
@@ -88,6 +89,14 @@ mod tests {
         assert_eq!(i.qt_ms, None);
         let b = Boundaries { p_on: Some(100), p_end: Some(190), qrs_on: Some(180), ..Boundaries::default() };
         assert_eq!(intervals(&b, fs()).pr_ms, None);
+        // A P onset dragged past the P end: neither P duration nor PR.
+        let b = Boundaries { p_on: Some(170), p_end: Some(150), qrs_on: Some(180), ..Boundaries::default() };
+        assert_eq!((intervals(&b, fs()).p_duration_ms, intervals(&b, fs()).pr_ms), (None, None));
+        // A QRS onset dragged past the J point: no QRS, and neither PR nor QT from that onset.
+        let b =
+            Boundaries { p_on: Some(100), p_end: Some(150), qrs_on: Some(200), qrs_end: Some(190), t_end: Some(400) };
+        let i = intervals(&b, fs());
+        assert_eq!((i.p_duration_ms, i.pr_ms, i.qrs_ms, i.qt_ms), (Some(100.0), None, None, None));
     }
 
     #[test]

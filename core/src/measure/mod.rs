@@ -207,6 +207,8 @@ impl Measurements {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();
         if self.beats == 0 && self.rr.rr_ms.is_none() {
             notes.extend(ranges::no_beats());
+        } else if self.beats >= 2 && self.rr.rr_ms.is_none() && self.rr.rhythm.other_beats > 0 {
+            notes.extend(ranges::no_nn_intervals());
         }
         if let Some(gain) = self.limb_gain_mismatch_pct.and_then(ranges::limb_gain_mismatch)
             && !notes.contains(&gain)
@@ -287,6 +289,13 @@ mod tests {
         let beats: Vec<Beat> =
             [500, 1000, 1500].map(|r| Beat { r, kind: BeatKind::Dominant, bounds: Boundaries::default() }).to_vec();
         assert!(measure(&rec, &beats, None).notes().iter().all(|n| n.source != ranges::SOURCE_NO_BEATS));
+        // Bigeminy: beats, but no two dominant ones in a row, so no heart rate; the note says why.
+        let kinds = [BeatKind::Dominant, BeatKind::Other];
+        let bigeminy: Vec<Beat> =
+            (0..8).map(|k| Beat { r: 300 + 500 * k, kind: kinds[k % 2], bounds: Boundaries::default() }).collect();
+        let m = measure(&rec, &bigeminy, None);
+        assert_eq!(m.rr.heart_rate_bpm, None);
+        assert_eq!(m.notes(), ranges::no_nn_intervals().into_iter().collect::<Vec<_>>());
         Ok(())
     }
 }

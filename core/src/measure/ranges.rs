@@ -275,6 +275,20 @@ pub fn no_beats() -> Option<RangeNote> {
     )
 }
 
+/// Beats were found but no two dominant beats follow each other (bigeminy, or most beats of another kind): the
+/// heart rate, RR statistics and QTc, which are taken from the intervals between dominant beats, are absent.
+/// Said so the empty rows are not read as a failure to find beats.
+#[must_use]
+pub fn no_nn_intervals() -> Option<RangeNote> {
+    note(
+        "heart_rate_bpm",
+        "No two dominant beats in a row: heart rate, RR, rate variability and QTc are not measured (the intervals \
+         around beats of another kind do not give the underlying rate); count the rate on the strip"
+            .to_string(),
+        SOURCE_NO_BEATS,
+    )
+}
+
 /// Limb leads that break Einthoven's law by `pct` % (see [`super::einthoven`]): the frontal axes were computed
 /// after rescaling the limb leads to one scale, and the reader should check the recording's lead gains.
 #[must_use]
@@ -321,9 +335,7 @@ pub fn leads_left_out(leads: &[crate::recording::LeadName], with_axes: bool) -> 
 #[must_use]
 pub fn rr_irregular(variation: f64) -> Option<RangeNote> {
     let limit = super::hrv::IRREGULAR_SUCCESSIVE;
-    // Judged as printed, in whole percent.
-    let variation = (variation * 100.0).round() / 100.0;
-    (variation >= limit).then(|| RangeNote {
+    super::hrv::is_irregular(variation).then(|| RangeNote {
         key: "rr_successive_pct".into(),
         text: format!(
             "RR intervals between dominant beats irregular: beat-to-beat variation {:.0} % of the mean RR (regular \
