@@ -55,9 +55,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         AgreementFormat::Json => {
             let files: Vec<String> = args.files.iter().map(|f| f.display().to_string()).collect();
             let v = serde_json::json!({ "files": files, "agreement": a, "caution": CAUTION });
-            println!("{}", serde_json::to_string_pretty(&v)?);
+            super::to_stdout(&(serde_json::to_string_pretty(&v)? + "\n"))?;
         }
-        AgreementFormat::Table => print!("{}", table(&a)),
+        AgreementFormat::Table => super::to_stdout(&table(&a))?,
     }
     Ok(ExitCode::SUCCESS)
 }

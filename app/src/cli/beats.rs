@@ -1,11 +1,9 @@
 //! `isoline beats FILE [--format csv|json]`: one row per detected beat with its wave boundaries.
 
 use std::fmt::Write as _;
-use std::io::Write as _;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use anyhow::Context as _;
 use isoline_core::{analysis, delineate, detect, filter, io};
 
 /// Output format of `beats`.
@@ -109,9 +107,6 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
             out.push('\n');
         }
     }
-    match std::io::stdout().lock().write_all(out.as_bytes()) {
-        // A reader that stops early (`| head`) is not an error.
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(ExitCode::SUCCESS),
-        r => r.context("writing to stdout").map(|()| ExitCode::SUCCESS),
-    }
+    super::to_stdout(&out)?;
+    Ok(ExitCode::SUCCESS)
 }

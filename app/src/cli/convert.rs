@@ -51,12 +51,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         eprintln!("isoline: warning: {w}");
     }
     if !matches!(target, Target::Stdout) {
-        // Never overwrite the recording being read.
-        if let Ok(out) = args.out.canonicalize()
-            && opened.files.iter().any(|f| f.canonicalize().is_ok_and(|f| f == out))
-        {
-            bail!("{}: the output would overwrite the input recording", args.out.display());
-        }
+        super::refuse_to_overwrite(&args.out, &opened.files)?;
     }
     let rec = &opened.recording;
     if !matches!(target, Target::Edf) && !rec.annotations.is_empty() {

@@ -38,7 +38,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     let r = &opened.recording;
     let leads: Vec<String> = r.leads.iter().map(|l| l.name.to_string()).collect();
-    match args.format {
+    let text = match args.format {
         InfoFormat::Json => {
             let v = serde_json::json!({
                 "file": args.file.display().to_string(),
@@ -49,17 +49,21 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
                 "leads": leads,
                 "annotations": r.annotations.len(),
             });
-            println!("{}", serde_json::to_string_pretty(&v)?);
+            serde_json::to_string_pretty(&v)? + "\n"
         }
-        InfoFormat::Text => {
-            println!("file:         {}", args.file.display());
-            println!("format:       {}", opened.format);
-            println!("sample rate:  {} Hz", r.sample_rate.hz());
-            println!("samples:      {} per lead", r.len());
-            println!("duration:     {:.3} s", r.duration_s());
-            println!("leads:        {} ({})", leads.len(), leads.join(", "));
-            println!("annotations:  {}", r.annotations.len());
-        }
-    }
+        InfoFormat::Text => format!(
+            "file:         {}\nformat:       {}\nsample rate:  {} Hz\nsamples:      {} per lead\nduration:     {:.3} s\n\
+             leads:        {} ({})\nannotations:  {}\n",
+            args.file.display(),
+            opened.format,
+            r.sample_rate.hz(),
+            r.len(),
+            r.duration_s(),
+            leads.len(),
+            leads.join(", "),
+            r.annotations.len()
+        ),
+    };
+    super::to_stdout(&text)?;
     Ok(ExitCode::SUCCESS)
 }

@@ -9,3 +9,26 @@ pub mod measure;
 pub mod render;
 pub mod review;
 pub mod synth;
+
+/// Writes `text` to standard output. A reader that stops early (`| head`) is not an error; any other failure
+/// (a full disk, a closed descriptor) is reported, never a panic as `print!` gives.
+pub fn to_stdout(text: &str) -> anyhow::Result<()> {
+    use anyhow::Context as _;
+    use std::io::Write as _;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        r => r.context("writing to standard output"),
+    }
+}
+
+/// Refuses an output path that is one of the files a recording was read from (its header, signal file or
+/// annotations): writing there would destroy the recording.
+pub fn refuse_to_overwrite(out: &std::path::Path, inputs: &[std::path::PathBuf]) -> anyhow::Result<()> {
+    if let Ok(out_canonical) = out.canonicalize()
+        && inputs.iter().any(|f| f.canonicalize().is_ok_and(|f| f == out_canonical))
+    {
+        anyhow::bail!("{}: the output would overwrite the input recording", out.display());
+    }
+    Ok(())
+}

@@ -56,6 +56,7 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
         bail!("{}: a review already exists (use --force to replace it; the old one is kept as .bak)", out.display());
     }
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
+    super::refuse_to_overwrite(&out, &opened.files)?;
     for w in &opened.warnings {
         eprintln!("isoline: warning: {w}");
     }

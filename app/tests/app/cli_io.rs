@@ -165,6 +165,13 @@ fn bad_input_exits_2_naming_the_file() -> TestResult {
     std::fs::write(dir.path().join("ok.csv"), "time_s,I\n0,1\n0.004,2\n")?;
     assert_bad(&["convert", &d("ok.csv"), "--out", &d("ok.csv")], "ok.csv")?;
     assert_eq!(std::fs::read_to_string(dir.path().join("ok.csv"))?, "time_s,I\n0,1\n0.004,2\n", "input untouched");
+    // Nor does `measure --out` or `review new --out … --force` write over a recording it reads.
+    let wave: String = (0..2500).map(|k| format!("{},{}\n", k as f64 / 250.0, (k % 200 == 0) as u8)).collect();
+    let recording = format!("time_s,II\n{wave}");
+    std::fs::write(dir.path().join("strip.csv"), &recording)?;
+    assert_bad(&["measure", &d("strip.csv"), "--format", "csv", "--out", &d("strip.csv")], "strip.csv")?;
+    assert_bad(&["review", "new", &d("strip.csv"), "--reader", "T", "--out", &d("strip.csv"), "--force"], "strip.csv")?;
+    assert_eq!(std::fs::read_to_string(dir.path().join("strip.csv"))?, recording, "recording untouched");
     // A failed conversion leaves no output file, partial or whole.
     assert_bad(&["convert", &d("junk.edf"), "--out", &d("out.edf")], "junk.edf")?;
     let left: Vec<String> = std::fs::read_dir(dir.path())?
@@ -173,5 +180,30 @@ fn bad_input_exits_2_naming_the_file() -> TestResult {
         .filter(|n| n.contains("out.edf"))
         .collect();
     assert!(left.is_empty(), "{left:?}");
+    Ok(())
+}
+
+#[test]
+fn an_unwritable_standard_output_is_an_error_not_a_panic() -> TestResult {
+    // Standard output on a full device (Linux /dev/full): every subcommand that prints reports the failure and
+    // exits with 2; `print!` would panic (exit 101). A reader that stops early (a closed pipe) is no error.
+    if !Path::new("/dev/full").exists() {
+        return Ok(());
+    }
+    let rec = path_str(&data("ludb/1.hea"));
+    for args in [vec!["info", rec.as_str()], vec!["measure", rec.as_str()], vec!["beats", rec.as_str()]] {
+        let full = std::fs::OpenOptions::new().write(true).open("/dev/full")?;
+        let out = Command::new(env!("CARGO_BIN_EXE_isoline")).args(&args).stdout(full).output()?;
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        assert!(err.contains("writing to standard output") && !err.contains("panicked"), "{args:?}: {err}");
+        let mut child = Command::new(env!("CARGO_BIN_EXE_isoline"))
+            .args(&args)
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::null())
+            .spawn()?;
+        drop(child.stdout.take()); // the reader goes away before the first line
+        assert_eq!(child.wait()?.code(), Some(0), "{args:?} into a closed pipe");
+    }
     Ok(())
 }

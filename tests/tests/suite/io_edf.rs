@@ -136,9 +136,28 @@ fn identify_keeps_patient_fields() -> TestResult {
     assert_eq!(field(&b, 8, 80), "W7-0042 F 01-JAN-1960 Made_Up_Person");
     assert_eq!(field(&b, 88, 80), "Startdate 14-MAR-2026 X X Bench_rig");
     let back = io::open(&path, &io::OpenOptions::default())?.recording;
-    // EDF header fields of plain EDF are free text: the whole patient field is kept as the patient id.
+    // Plain EDF (no annotations), its patient and recording fields written the EDF+ way: read back the same way.
     assert_eq!(back.start, rec.start);
-    assert!(back.meta.patient_id.is_some_and(|p| p.contains("Made_Up_Person")));
+    let m = &back.meta;
+    assert_eq!(m.patient_id.as_deref(), Some("W7-0042"));
+    assert_eq!(m.patient_name.as_deref(), Some("Made Up Person"));
+    assert_eq!((m.sex.as_deref(), m.birth_date.as_deref()), (Some("F"), Some("01-JAN-1960")));
+    assert_eq!(m.device.as_deref(), Some("Bench rig"));
+    Ok(())
+}
+
+#[test]
+fn a_de_identified_plain_edf_keeps_the_sex_and_no_made_up_start() -> TestResult {
+    // The QTc limits depend on the sex: a converted recording without annotations (plain EDF, de-identified)
+    // must give it back; its withheld start date (01.01.85, "Startdate X") is no start at all, not 1 January 1985.
+    let dir = tempfile::tempdir()?;
+    let rec = demo(500, 500.0, Vec::new())?;
+    let path = dir.path().join("plain.edf");
+    edf::write(&path, &rec, &edf::EdfWriteOptions::default())?;
+    let back = io::open(&path, &io::OpenOptions::default())?;
+    assert_eq!(back.format, Format::Edf);
+    assert_eq!(back.recording.meta.sex.as_deref(), Some("F"));
+    assert_eq!((back.recording.start, back.recording.meta.patient_id.clone()), (None, None));
     Ok(())
 }
 

@@ -52,8 +52,8 @@ fn analyze(recording: &Recording) -> Measurements {
     isoline_core::analysis::analyze(recording, &FilterSettings::default()).measurements
 }
 
-/// A measured row with the reader's warnings, or why the file could not be measured.
-type Outcome = anyhow::Result<(Row, Vec<String>)>;
+/// A measured row with the reader's warnings and the files it was read from, or why it could not be measured.
+type Outcome = anyhow::Result<(Row, Vec<String>, Vec<PathBuf>)>;
 
 fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
     let opened = io::open(path, &io::OpenOptions { csv_rate_hz: rate })?;
@@ -67,7 +67,7 @@ fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
         leads: r.leads.iter().map(|l| l.name.clone()).collect(),
         m,
     };
-    Ok((row, opened.warnings))
+    Ok((row, opened.warnings, opened.files))
 }
 
 /// Writes `bytes` to `path` through a temporary file in the same folder, synced, then renamed over `path`:
@@ -118,9 +118,11 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
 
     let mut rows = Vec::new();
     let mut failures: Vec<(PathBuf, String)> = found.errors;
+    let mut inputs: Vec<PathBuf> = found.files.clone();
     for (path, result) in results {
         match result {
-            Ok((row, warnings)) => {
+            Ok((row, warnings, files)) => {
+                inputs.extend(files);
                 // Each warning names its file already (the header or the signal file it is about).
                 for w in warnings {
                     eprintln!("isoline: warning: {w}");
@@ -141,8 +143,11 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let single_failed = !as_array && rows.is_empty();
     match &args.out {
         _ if single_failed => {}
-        Some(path) => write_atomically(path, text.as_bytes())?,
-        None => print!("{text}"),
+        Some(path) => {
+            super::refuse_to_overwrite(path, &inputs)?;
+            write_atomically(path, text.as_bytes())?;
+        }
+        None => super::to_stdout(&text)?,
     }
     if args.format != MeasureFormat::Table {
         eprintln!("isoline: {}", isoline_core::CAUTION);

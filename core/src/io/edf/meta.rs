@@ -12,12 +12,20 @@ fn subfield(s: Option<&str>) -> Option<String> {
     s.filter(|v| *v != "X" && !v.is_empty()).map(|v| v.replace('_', " "))
 }
 
-/// Fills `Meta` from the patient and recording fields. `plus` = the file is EDF+ (structured subfields).
+/// True when a plain EDF patient field is written the EDF+ way (`code sex birthdate name`, sex `M`, `F` or `X`),
+/// as many writers do, Isoline among them (a recording without annotations is written as plain EDF).
+fn plus_style_patient(patient: &str) -> bool {
+    let p: Vec<&str> = patient.split_whitespace().collect();
+    p.len() >= 4 && matches!(p[1], "M" | "F" | "X")
+}
+
+/// Fills `Meta` from the patient and recording fields. `plus` = the file is EDF+ (structured subfields); a plain
+/// EDF file whose patient field is written the EDF+ way is read the same way.
 #[must_use]
 pub fn parse_meta(patient: &str, recording: &str, plus: bool) -> Meta {
     let mut meta = Meta::default();
     let recording_info = (!recording.is_empty()).then(|| recording.to_string());
-    if plus {
+    if plus || plus_style_patient(patient) {
         let p: Vec<&str> = patient.split_whitespace().collect();
         meta.patient_id = subfield(p.first().copied());
         meta.sex = subfield(p.get(1).copied());
@@ -51,9 +59,13 @@ fn startdate_subfield(recording: &str) -> Option<time::Date> {
 }
 
 /// Start of the recording from the header's date and time fields (and the EDF+ `Startdate` subfield, which
-/// carries the full year). `None` when the fields do not parse.
+/// carries the full year). `None` when the fields do not parse, or when the recording field says the date is
+/// unknown (`Startdate X`: the header's date fields then hold a placeholder, 01.01.85).
 #[must_use]
 pub fn parse_start(start_date: &str, start_time: &str, recording: &str) -> Option<time::PrimitiveDateTime> {
+    if recording.split_whitespace().take(2).eq(["Startdate", "X"]) {
+        return None;
+    }
     let nums = |s: &str| -> Option<[u8; 3]> {
         let v: Vec<u8> = s.split(['.', ':']).map(|x| x.trim().parse().ok()).collect::<Option<_>>()?;
         <[u8; 3]>::try_from(v).ok()
@@ -140,6 +152,19 @@ mod tests {
         assert_eq!(parse_start("01.01.99", "00.00.00", "").map(|s| s.year()), Some(1999));
         assert_eq!(parse_start("01.01.84", "00.00.00", "").map(|s| s.year()), Some(2084));
         assert_eq!(parse_start("31.02.99", "00.00.00", ""), None);
+        // An unknown start date: the header's 01.01.85 is a placeholder, not a date.
+        assert_eq!(parse_start("01.01.85", "00.00.00", "Startdate X X X X"), None);
+    }
+
+    #[test]
+    fn a_plain_edf_patient_field_written_the_edf_plus_way_is_read_that_way() {
+        // A converted recording without annotations is plain EDF, its patient field "X F X X": the sex read back
+        // (the QTc limits depend on it), not the whole field taken as a patient code.
+        let m = parse_meta("X F X X", "Startdate X X X X", false);
+        assert_eq!((m.sex.as_deref(), m.patient_id), (Some("F"), None));
+        // A free-text patient field of a plain EDF file stays the patient code.
+        let m = parse_meta("Ward 3 bed 9", "", false);
+        assert_eq!((m.sex, m.patient_id.as_deref()), (None, Some("Ward 3 bed 9")));
     }
 
     #[test]

@@ -197,7 +197,7 @@ pub fn read(path: &Path) -> Result<Opened, ReadError> {
     let recording = Recording {
         leads,
         sample_rate,
-        start: meta::parse_start(&fixed.start_date, &fixed.start_time, if plus { &fixed.recording } else { "" }),
+        start: meta::parse_start(&fixed.start_date, &fixed.start_time, &fixed.recording),
         meta: meta::parse_meta(&fixed.patient, &fixed.recording, plus),
         annotations,
     };
