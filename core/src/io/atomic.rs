@@ -34,14 +34,31 @@ fn folder(path: &Path) -> PathBuf {
 
 /// Writes `path` atomically: `fill` writes into a new temporary file beside it, which is synced and renamed
 /// over `path`; then the folder is synced (best effort: not every platform can). On any error the temporary
-/// file is removed and `path` is left as it was.
+/// file is removed and `path` is left as it was. A symbolic link is followed and the file it names replaced. A
+/// path that is no regular file (a pipe, a terminal, a device) is written through as a shell's `>` would:
+/// there is no file to replace, and renaming over it would put a file in its place.
 ///
 /// # Errors
-/// The first I/O error (creating, writing, syncing or renaming); the caller names the file.
+/// The first I/O error (creating, writing, syncing or renaming); the caller names the file. A folder is refused.
 pub fn write_with(path: &Path, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
     if path.file_name().is_none() {
         return Err(io::Error::new(io::ErrorKind::InvalidInput, "not a file name"));
     }
+    // What the path names, links followed: a regular file is replaced where it lies (the link, if any, kept).
+    let real;
+    let path = match std::fs::metadata(path) {
+        Ok(m) if m.is_dir() => return Err(io::Error::new(io::ErrorKind::InvalidInput, "a folder, not a file")),
+        Ok(m) if !m.is_file() => {
+            let mut w = BufWriter::new(OpenOptions::new().write(true).open(path)?);
+            fill(&mut w)?;
+            return w.flush();
+        }
+        Ok(_) => {
+            real = std::fs::canonicalize(path)?;
+            real.as_path()
+        }
+        Err(_) => path,
+    };
     let tmp = temp_path(path);
     let result = (|| {
         let file = OpenOptions::new().write(true).create_new(true).open(&tmp)?;
@@ -103,7 +120,7 @@ mod tests {
     #[test]
     fn failed_rename_leaves_nothing() -> Result<(), Box<dyn std::error::Error>> {
         let dir = tempfile::tempdir()?;
-        // The target is an existing non-empty folder: the rename fails, and the temporary file must go.
+        // The target is an existing non-empty folder: refused, and no temporary file is left.
         let target = dir.path().join("taken");
         std::fs::create_dir(&target)?;
         std::fs::write(target.join("keep"), b"x")?;
@@ -113,6 +130,35 @@ mod tests {
         // A missing folder: nothing is created.
         assert!(write_bytes(&dir.path().join("no/such/page.png"), b"data").is_err());
         assert!(!dir.path().join("no").exists());
+        Ok(())
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn a_link_stays_a_link_and_a_pipe_stays_a_pipe() -> Result<(), Box<dyn std::error::Error>> {
+        use std::os::unix::fs::FileTypeExt as _;
+        let dir = tempfile::tempdir()?;
+        // Writing to a symbolic link replaces the file it names; the link still names it.
+        let file = dir.path().join("results.csv");
+        std::fs::write(&file, b"old")?;
+        let link = dir.path().join("latest.csv");
+        std::os::unix::fs::symlink("results.csv", &link)?;
+        write_bytes(&link, b"new")?;
+        assert!(std::fs::symlink_metadata(&link)?.file_type().is_symlink());
+        assert_eq!(std::fs::read(&file)?, b"new");
+        // A named pipe is written through to its reader, not replaced by a file (skipped without mkfifo).
+        let fifo = dir.path().join("pipe");
+        if std::process::Command::new("mkfifo").arg(&fifo).status().is_ok_and(|s| s.success()) {
+            let reader = std::thread::spawn({
+                let fifo = fifo.clone();
+                move || std::fs::read(fifo)
+            });
+            write_bytes(&fifo, b"through")?;
+            assert_eq!(reader.join().map_err(|_| "reader panicked")??, b"through");
+            assert!(std::fs::symlink_metadata(&fifo)?.file_type().is_fifo());
+        }
+        // A folder is refused.
+        assert!(write_bytes(dir.path(), b"x").is_err());
         Ok(())
     }
 

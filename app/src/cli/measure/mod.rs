@@ -4,7 +4,6 @@
 mod output;
 mod walk;
 
-use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -70,24 +69,6 @@ fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
     Ok((row, opened.warnings, opened.files))
 }
 
-/// Writes `bytes` to `path` through a temporary file in the same folder, synced, then renamed over `path`:
-/// readers never see a half-written file, and a failure leaves any old file untouched.
-fn write_atomically(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let name = path.file_name().with_context(|| format!("{}: not a file name", path.display()))?;
-    let tmp = dir.join(format!(".{}.{}.tmp", name.to_string_lossy(), std::process::id()));
-    let result = (|| -> std::io::Result<()> {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result.with_context(|| format!("{}: cannot write", path.display()))
-}
-
 /// Runs the command. Exit code 2 when any file failed (after measuring and writing all the others).
 pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let found = walk::find_recordings(&args.paths);
@@ -145,7 +126,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         _ if single_failed => {}
         Some(path) => {
             super::refuse_to_overwrite(path, &inputs)?;
-            write_atomically(path, text.as_bytes())?;
+            isoline_core::io::atomic::write_bytes(path, text.as_bytes())
+                .with_context(|| format!("{}: cannot write", path.display()))?;
         }
         None => super::to_stdout(&text)?,
     }
@@ -162,21 +144,4 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         if e.starts_with(&shown) { eprintln!("  {e}") } else { eprintln!("  {shown}: {e}") }
     }
     Ok(ExitCode::from(2))
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn atomic_write_replaces_whole_file() -> anyhow::Result<()> {
-        let dir = tempfile::tempdir()?;
-        let path = dir.path().join("table.csv");
-        std::fs::write(&path, "old")?;
-        write_atomically(&path, b"new contents")?;
-        assert_eq!(std::fs::read_to_string(&path)?, "new contents");
-        assert_eq!(std::fs::read_dir(dir.path())?.count(), 1);
-        assert!(write_atomically(&dir.path().join("missing/x.csv"), b"x").is_err());
-        Ok(())
-    }
 }
