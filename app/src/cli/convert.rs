@@ -80,6 +80,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         Target::Csv => csv::write(&args.out, rec)?,
         Target::Edf => {
             edf::write(&args.out, rec, &edf::EdfWriteOptions { identify: args.identify })?;
+            for w in edf::coarse_leads(rec) {
+                eprintln!("isoline: warning: {}: {w}", args.out.display());
+            }
             let withheld = rec.annotations.iter().filter(|a| a.shareable_label().is_none()).count();
             if !args.identify && withheld > 0 {
                 eprintln!(

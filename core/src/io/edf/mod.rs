@@ -18,7 +18,7 @@ pub mod tal;
 mod write;
 
 pub use header::{ANNOTATION_LABEL, Fixed, Signal};
-pub use write::{EdfWriteOptions, write};
+pub use write::{COARSE_STEP_UV, EdfWriteOptions, coarse_leads, write};
 
 /// Raw bytes decoded per chunk of data records (about 4 MiB).
 const CHUNK_BYTES: u64 = 4 << 20;

@@ -59,14 +59,47 @@ fn label(name: &LeadName) -> String {
     s.chars().map(|c| if c.is_ascii_graphic() || c == ' ' { c } else { '_' }).take(16).collect()
 }
 
-fn plan_lead(path: &Path, name: &LeadName, samples: &[f32]) -> Result<LeadPlan, ReadError> {
-    let (mut lo, mut hi) = samples
+/// Coarsest digital step (µV) a lead is written with before [`coarse_leads`] speaks: each lead's 16-bit range
+/// spans its own smallest to largest sample, so one artefact sample far off the ECG coarsens the whole lead.
+// From memory: the AHA recommendations (Bailey et al., Circulation 1990;81:730-9) ask an amplitude resolution of
+// 5 µV or finer for diagnostic ECGs.
+pub const COARSE_STEP_UV: f64 = 5.0;
+
+/// Smallest and largest finite sample of a lead, µV (`None` when it has none).
+fn extent(samples: &[f32]) -> Option<(f64, f64)> {
+    let (lo, hi) = samples
         .iter()
         .filter(|v| v.is_finite())
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &v| (lo.min(f64::from(v)), hi.max(f64::from(v))));
-    if lo > hi {
-        (lo, hi) = (-1.0, 1.0);
-    }
+    (lo <= hi).then_some((lo, hi))
+}
+
+/// The leads [`write`] would store coarser than [`COARSE_STEP_UV`] per digital step, as warnings naming the
+/// lead, its range and its step: a sample far off the ECG (an artefact, a saturated amplifier) sets the range
+/// and every wave of the lead loses detail. Empty when every lead keeps [`COARSE_STEP_UV`] or finer.
+#[must_use]
+pub fn coarse_leads(rec: &Recording) -> Vec<String> {
+    rec.leads
+        .iter()
+        .filter_map(|l| {
+            let (lo, hi) = extent(&l.samples)?;
+            let step = (hi - lo) / f64::from(DIG_MAX - DIG_MIN);
+            (step > COARSE_STEP_UV).then(|| {
+                format!(
+                    "lead {}: its samples span {:.1} to {:.1} mV, which leaves {step:.0} µV per digital step in \
+                     16-bit EDF ({COARSE_STEP_UV} µV or finer is usual); a sample far off the ECG sets the range. \
+                     CSV keeps every value as it is",
+                    l.name,
+                    lo / 1000.0,
+                    hi / 1000.0
+                )
+            })
+        })
+        .collect()
+}
+
+fn plan_lead(path: &Path, name: &LeadName, samples: &[f32]) -> Result<LeadPlan, ReadError> {
+    let (mut lo, mut hi) = extent(samples).unwrap_or((-1.0, 1.0));
     if hi - lo < 1e-3 {
         (lo, hi) = (lo - 1.0, hi + 1.0);
     }
@@ -205,6 +238,30 @@ pub fn write(path: &Path, rec: &Recording, opts: &EdfWriteOptions) -> Result<(),
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_lead_whose_range_an_artefact_widens_is_named() -> Result<(), Box<dyn std::error::Error>> {
+        use crate::recording::{Lead, Meta};
+        use crate::units::Hertz;
+        // ±2 mV of ECG gives 0.06 µV per step; one sample at 30 000 mV (a saturated input, say) gives 458 µV.
+        let ecg: Vec<f32> = (0..500).map(|k| 2000.0 * (k as f32 * 0.05).sin()).collect();
+        let mut spiked = ecg.clone();
+        spiked[250] = 30_000_000.0;
+        let rec = Recording {
+            leads: vec![
+                Lead { name: LeadName::parse("I"), samples: ecg },
+                Lead { name: LeadName::parse("II"), samples: spiked },
+            ],
+            sample_rate: Hertz::from_hz(500.0)?,
+            start: None,
+            meta: Meta::default(),
+            annotations: Vec::new(),
+        };
+        let w = coarse_leads(&rec);
+        assert_eq!(w.len(), 1, "{w:?}");
+        assert!(w[0].starts_with("lead II:") && w[0].contains("458 µV per digital step"), "{w:?}");
+        Ok(())
+    }
 
     #[test]
     fn record_durations_give_whole_samples() {
