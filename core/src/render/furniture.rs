@@ -41,14 +41,17 @@ pub(super) fn header(input: &RenderInput) -> Header {
     for (k, v) in &input.header {
         fields.push(format!("{k}: {v}"));
     }
-    let (a, b) = (spec.start_s, spec.start_s + spec.seconds);
+    // The window as far as the recording goes: past its end the page is blank, and said to be.
+    let (a, asked) = (spec.start_s, spec.start_s + spec.seconds);
+    let b = asked.min(input.recording_s);
     // In a long recording (an hour or more), the elapsed clock time too: 43200 s is hard to place in a Holter day.
     let clock = if input.recording_s >= LONG_RECORDING_S {
         format!(" ({}\u{2013}{})", clock(a), clock(b))
     } else {
         String::new()
     };
-    fields.push(format!("Window: {a:.2}\u{2013}{b:.2} s{clock}"));
+    let ends = if b < asked { ", where the recording ends" } else { "" };
+    fields.push(format!("Window: {a:.2}\u{2013}{b:.2} s{clock}{ends}"));
     fields.push(format!("Layout: {} ({})", spec.layout, spec.order.as_str()));
     fields.push(format!("{} Hz", rec.sample_rate.hz()));
     let meta = if input.identify { rec.meta.clone() } else { rec.meta.deidentified() };
@@ -160,5 +163,9 @@ mod tests {
         let short = recording(10);
         let line = header_lines(&RenderInput::new(&short, spec, 100.0))[1].clone();
         assert!(line.contains("Window: 0.00\u{2013}10.00 s   "), "{line}");
+        // A window running past the end names the end, not a time that was never recorded.
+        let spec = PageSpec { start_s: 5.0, seconds: 10.0, ..PageSpec::default() };
+        let line = header_lines(&RenderInput::new(&short, spec, 100.0))[1].clone();
+        assert!(line.contains("Window: 5.00\u{2013}10.00 s, where the recording ends   "), "{line}");
     }
 }
