@@ -51,6 +51,10 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
     if reader.is_empty() {
         bail!("--reader: give the reader's name or initials");
     }
+    // The name is printed in every history line and on exported pages: no terminal control codes in it.
+    if reader.chars().any(char::is_control) {
+        bail!("--reader: the name holds a control character (a tab, a line break or an escape code)");
+    }
     let out = args.out.clone().unwrap_or_else(|| default_review_path(&args.file));
     if out.exists() && !args.force {
         bail!("{}: a review already exists (use --force to replace it; the old one is kept as .bak)", out.display());

@@ -191,11 +191,24 @@ pub fn ledger_ui(
                             ui.add(egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key)));
                         let (enter, escape) =
                             ui.input(|i| (i.key_pressed(egui::Key::Enter), i.key_pressed(egui::Key::Escape)));
-                        if enter {
+                        // A value no ECG shows (a slip: −500 bpm) is not taken; the field stays open and says why.
+                        let refused = match text.trim() {
+                            "" => None,
+                            t => t.parse::<f64>().map_or_else(
+                                |_| Some("not a number".to_string()),
+                                |v| isoline_core::measure::implausible(r.key, v),
+                            ),
+                        };
+                        if let Some(why) = &refused {
+                            ui.colored_label(ui.visuals().error_fg_color, why);
+                        }
+                        if enter && refused.is_none() {
                             if let Ok(v) = text.trim().parse::<f64>() {
-                                out.push(Command::SetReviewed(r.key.to_string(), Some(v).filter(|v| v.is_finite())));
+                                out.push(Command::SetReviewed(r.key.to_string(), Some(v)));
                             }
                             *editing = None;
+                        } else if enter {
+                            resp.request_focus();
                         } else if escape || resp.lost_focus() {
                             *editing = None;
                         } else if !resp.has_focus() {

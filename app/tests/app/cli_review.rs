@@ -231,4 +231,9 @@ fn review_new_refuses_bad_input() {
     let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("  ")]);
     assert_eq!(o.status.code(), Some(2));
     assert!(!dir.path().join("1.review.ron").exists());
+    // A name with a terminal escape code would be replayed raw in every history line.
+    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("A\u{1b}[31mB")]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("control character"), "{}", stderr(&o));
+    assert!(!dir.path().join("1.review.ron").exists());
 }

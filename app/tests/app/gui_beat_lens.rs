@@ -134,6 +134,28 @@ fn typing_a_reviewed_qt_recomputes_qtc_and_undoes() {
 }
 
 #[test]
+fn a_typed_value_no_ecg_shows_is_refused_with_its_reason() {
+    // A slip of the sign (−500 bpm) is not taken: the field stays open and names the bounds; 72 then is taken.
+    let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
+    let shown = format!("{:.0}", row(&h, "heart_rate_bpm").reviewed.unwrap());
+    h.get_by_role_and_label(egui::accesskit::Role::Button, &shown).click();
+    settle(&mut h);
+    h.state_mut().ui_state.ledger_edit = Some(("heart_rate_bpm".into(), "-500".into()));
+    settle(&mut h);
+    h.key_press(egui::Key::Enter);
+    settle(&mut h);
+    assert_eq!(row(&h, "heart_rate_bpm").origin, Some(Origin::Auto));
+    assert_eq!(h.state().ui_state.ledger_edit.as_ref().map(|e| e.0.as_str()), Some("heart_rate_bpm"));
+    h.get_by_label("-500 is outside 1 to 600");
+    h.state_mut().ui_state.ledger_edit = Some(("heart_rate_bpm".into(), "72".into()));
+    settle(&mut h);
+    h.key_press(egui::Key::Enter);
+    settle(&mut h);
+    assert_eq!(row(&h, "heart_rate_bpm").reviewed, Some(72.0));
+    assert_eq!(h.state().ui_state.ledger_edit, None);
+}
+
+#[test]
 fn leads_left_out_of_the_representative_beat_are_said_on_the_qt_row() {
     // LUDB 24 with its chest leads off from 2.5 to 7.5 s: the representative beat leaves V1–V6 out, and the QT
     // row says so, also once the reader has typed a QT (the other values stay measured without them). Source of

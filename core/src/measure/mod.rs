@@ -28,7 +28,7 @@ pub use intervals::{Intervals, intervals, median_intervals};
 pub use qtc::{Qtc, qtc_checked};
 pub use ranges::{RangeNote, Sex};
 pub use st::StLevel;
-pub use values::{KEYS, MeasuredValue};
+pub use values::{KEYS, MeasuredValue, implausible, plausible_range};
 
 use crate::beat::{Beat, BeatKind, Boundaries};
 use crate::recording::{LeadName, Recording, StandardLead};

@@ -47,6 +47,37 @@ pub const KEYS: [&str; 20] = [
     "st_j60_uv",
 ];
 
+/// The values a reader may give for a measurement `key`, in its unit: wide bounds that refuse only what no ECG
+/// shows (a negative duration, a rate of 5000 bpm, an axis beyond ±180°), that is typing slips, not judgement.
+/// `None` for a key without bounds (one the reader placed under a name of their own).
+// Common practice, no source: ventricular rates stay well under 600 bpm (RR 100 ms); no wave or interval of one
+// beat lasts 2 s; ST levels beyond ±10 mV are artefact.
+#[must_use]
+pub fn plausible_range(key: &str) -> Option<std::ops::RangeInclusive<f64>> {
+    Some(match key {
+        "heart_rate_bpm" => 1.0..=600.0,
+        "rr_ms" => 100.0..=60_000.0,
+        "rr_sdnn_ms" | "rr_rmssd_ms" => 0.0..=60_000.0,
+        "rr_cv_pct" | "rr_successive_pct" => 0.0..=1000.0,
+        "p_duration_ms" | "pr_ms" | "qrs_ms" | "qt_ms" => 1.0..=2000.0,
+        k if k.starts_with("qtc_") => 1.0..=2000.0,
+        k if k.starts_with("axis_") => -180.0..=180.0,
+        k if k.starts_with("st_") => -10_000.0..=10_000.0,
+        _ => return None,
+    })
+}
+
+/// Why `value` cannot be a value of `key` (not a finite number, or outside [`plausible_range`]), in words
+/// naming the bounds; `None` when it can.
+#[must_use]
+pub fn implausible(key: &str, value: f64) -> Option<String> {
+    if !value.is_finite() {
+        return Some("not a finite number".to_string());
+    }
+    let r = plausible_range(key)?;
+    (!r.contains(&value)).then(|| format!("{value} is outside {} to {}", r.start(), r.end()))
+}
+
 fn v(key: &'static str, label: &str, value: Option<f64>, unit: &'static str) -> MeasuredValue {
     MeasuredValue { key, label: label.to_string(), value, unit, note: None, lead: None }
 }
@@ -132,6 +163,22 @@ impl Measurements {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn every_key_has_bounds_that_hold_its_usual_values() {
+        // The bounds refuse slips only: the usual adult values and the extremes seen on real records pass.
+        for key in KEYS {
+            assert!(plausible_range(key).is_some(), "{key}");
+        }
+        for (key, ok) in
+            [("heart_rate_bpm", 35.0), ("heart_rate_bpm", 250.0), ("qt_ms", 620.0), ("axis_qrs_deg", -90.0)]
+        {
+            assert_eq!(implausible(key, ok), None, "{key} {ok}");
+        }
+        assert_eq!(implausible("heart_rate_bpm", -500.0).as_deref(), Some("-500 is outside 1 to 600"));
+        assert!(implausible("qrs_ms", 1e308).is_some() && implausible("axis_t_deg", f64::NAN).is_some());
+        assert_eq!(implausible("my_own_key", -3.0), None);
+    }
 
     #[test]
     fn every_key_is_listed() {

@@ -70,11 +70,16 @@ impl Review {
     /// automatic value exists, `placed` when not (a new key is added with an empty label and unit).
     ///
     /// # Errors
-    /// [`ReviewError::Final`] on a final review; [`ReviewError::NotFinite`] for NaN or infinite values.
+    /// [`ReviewError::Final`] on a final review; [`ReviewError::NotFinite`] for NaN or infinite values;
+    /// [`ReviewError::Implausible`] for a value outside the key's bounds
+    /// ([`crate::measure::plausible_range`]).
     pub fn set_measurement(&mut self, key: &str, value: f64, reader: &str) -> Result<(), ReviewError> {
         self.writable()?;
         if !value.is_finite() {
             return Err(ReviewError::NotFinite { what: format!("measurement {key}") });
+        }
+        if let Some(why) = crate::measure::implausible(key, value) {
+            return Err(ReviewError::Implausible { what: format!("measurement {key}"), why });
         }
         let idx = match self.measurements.iter().position(|m| m.key == key) {
             Some(i) => i,

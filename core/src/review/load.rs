@@ -71,6 +71,7 @@ pub fn from_ron(path: &Path, text: &str) -> Result<Review, ReviewError> {
 
 /// Values RON accepts but a review cannot hold.
 fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewError> {
+    use crate::measure::implausible;
     // Point at the `nth` line (from 0) that sets the field: the entry at fault, where every entry writes it.
     let at_nth = |field: &str, nth: usize, message: String| {
         let needle = format!("{field}:");
@@ -98,6 +99,12 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
         for (field, v) in [("auto_value", m.auto_value), ("reviewed_value", m.reviewed_value)] {
             if let Some(v) = v.filter(|v| !v.is_finite()) {
                 return at_nth(field, i, format!("`{field}` of `{}` must be a finite number, found {v}", m.key));
+            }
+            // A reviewed value no ECG shows is a slip (or a hand edit) that would be drawn and exported as read.
+            if let Some(why) =
+                m.reviewed_value.filter(|_| field == "reviewed_value").and_then(|v| implausible(&m.key, v))
+            {
+                return at_nth(field, i, format!("`{field}` of `{}`: {why}", m.key));
             }
         }
     }

@@ -125,6 +125,14 @@ pub enum ReviewError {
         /// Which value.
         what: String,
     },
+    /// A value no ECG shows (see [`crate::measure::plausible_range`]): a typing slip.
+    #[error("{what}: {why}")]
+    Implausible {
+        /// Which value.
+        what: String,
+        /// Why, with the bounds.
+        why: String,
+    },
     /// The review could not be written as RON.
     #[error("cannot write the review: {0}")]
     Encode(String),

@@ -159,6 +159,11 @@ fn impossible_values_are_named() {
         assert_eq!(named.as_deref(), Some(field), "{msg}");
         assert!(msg.contains("finite number"), "{msg}");
     }
+    // A reviewed value no ECG shows (a hand edit: QT −412 ms) is named with its bounds, not drawn as read.
+    let p = write(dir.path(), &text.replacen("reviewed_value: Some(412.0)", "reviewed_value: Some(-412.0)", 1));
+    let (_, _, named, msg) = parse_err(&p);
+    assert_eq!(named.as_deref(), Some("reviewed_value"), "{msg}");
+    assert!(msg.contains("`qt_ms`: -412 is outside 1 to 2000"), "{msg}");
 }
 
 #[test]

@@ -72,6 +72,7 @@ fn origins_and_history_follow_the_reader() {
     assert!(r.measurement("pr_ms").is_none());
     assert!(matches!(r.revert_measurement("pr_ms", "CD"), Err(ReviewError::UnknownMeasurement(_))));
     assert!(matches!(r.set_measurement("qt_ms", f64::NAN, "CD"), Err(ReviewError::NotFinite { .. })));
+    assert!(matches!(r.set_measurement("heart_rate_bpm", -500.0, "CD"), Err(ReviewError::Implausible { .. })));
     assert!(r.modified >= r.created);
     assert!(r.history.windows(2).all(|w| w[0].at <= w[1].at));
 }
