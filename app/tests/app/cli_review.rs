@@ -112,6 +112,12 @@ fn agreement_refuses_one_reader_and_duplicates() {
     let c = write_review(dir.path(), "c.review.ron", "AB", '1', 401.0);
     let o = run(&[Path::new("agreement"), &a, &b]);
     assert_eq!(o.status.code(), Some(2), "one reader only");
+    // A missing review is named once, with the system's reason once (it was printed twice, as message and cause).
+    let missing = dir.path().join("missing.review.ron");
+    let o = run(&[Path::new("agreement"), &missing, &a]);
+    assert_eq!(o.status.code(), Some(2));
+    assert_eq!(stderr(&o).matches("missing.review.ron").count(), 1, "{}", stderr(&o));
+    assert_eq!(stderr(&o).matches("(os error").count(), 1, "{}", stderr(&o));
     let o = run(&[Path::new("agreement"), &a, &c]);
     assert_eq!(o.status.code(), Some(2));
     let e = stderr(&o);

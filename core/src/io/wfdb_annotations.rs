@@ -74,13 +74,17 @@ pub fn parse(path: &Path, bytes: &[u8]) -> Result<Vec<Annotation>, ReadError> {
     let mut t: u64 = 0;
     let (mut num, mut chan) = (0i32, 0i32);
     let mut at = 0usize;
+    let mut ended = false;
     while at + 1 < bytes.len() {
         let w = word(at)?;
         let (a, i) = (w >> 10, w & 0x3FF);
         let here = at;
         at += 2;
         match a {
-            0 if i == 0 => break,
+            0 if i == 0 => {
+                ended = true;
+                break;
+            }
             0 => {
                 // A zero code with an interval: a time advance without an annotation (NOTQRS-free skip).
                 t += u64::from(i);
@@ -135,6 +139,14 @@ pub fn parse(path: &Path, bytes: &[u8]) -> Result<Vec<Annotation>, ReadError> {
             }
         }
     }
+    // Every annotation file ends with a zero word; without it the file was cut short, and the annotations read
+    // so far are not all there are.
+    if !ended {
+        return Err(ReadError::invalid(
+            path,
+            format!("ends at byte {} without the end-of-annotations word: the file is cut short", bytes.len()),
+        ));
+    }
     Ok(out)
 }
 
@@ -174,5 +186,18 @@ mod tests {
         b.extend(w(59, 0));
         b.extend([1]);
         assert!(parse(Path::new("t.atr"), &b).is_err());
+    }
+
+    #[test]
+    fn a_file_cut_between_annotations_is_an_error_not_a_shorter_list() {
+        // Whole annotations but no end-of-annotations word (a copy cut short): not read as if complete.
+        let mut b = Vec::new();
+        b.extend(w(1, 100));
+        b.extend(w(1, 200));
+        let e = parse(Path::new("t.atr"), &b).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(e.contains("cut short"), "{e}");
+        assert!(parse(Path::new("t.atr"), &[]).is_err(), "an empty file holds no end word either");
+        b.extend([0, 0]);
+        assert_eq!(parse(Path::new("t.atr"), &b).map(|a| a.len()).ok(), Some(2));
     }
 }

@@ -32,7 +32,7 @@ fn present<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u64>, D::Err
 /// [`ReviewError::Io`] when unreadable; [`ReviewError::Parse`] naming line, column and field for bad RON or
 /// an unknown or missing field; [`ReviewError::UnsupportedVersion`] for a version this program does not read.
 pub fn load(path: &Path) -> Result<Review, ReviewError> {
-    let io = |source| ReviewError::Io { path: path.to_path_buf(), source };
+    let io = |source| ReviewError::Io { path: path.to_path_buf(), cause: source };
     let meta = std::fs::metadata(path).map_err(io)?;
     if !meta.is_file() {
         // A named pipe would wait for a writer; a folder or device is no review.

@@ -61,13 +61,12 @@ pub fn default_review_path(recording: &std::path::Path) -> PathBuf {
 #[non_exhaustive]
 pub enum ReviewError {
     /// The operating system refused (missing file, permission, disk full, …).
-    #[error("{}: {source}", path.display())]
+    #[error("{}: {cause}", path.display())]
     Io {
         /// File concerned.
         path: PathBuf,
-        /// Underlying error.
-        #[source]
-        source: std::io::Error,
+        /// Underlying error (shown in the message, so not chained again as a source: it was printed twice).
+        cause: std::io::Error,
     },
     /// The file is not a readable review: bad RON, an unknown or missing field, a wrong value.
     #[error("{}:{line}:{column}: {message}", path.display())]

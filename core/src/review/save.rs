@@ -34,7 +34,7 @@ fn with_suffix(path: &Path, suffix: &str) -> PathBuf {
 }
 
 fn io_err(path: &Path) -> impl FnOnce(std::io::Error) -> ReviewError + '_ {
-    move |source| ReviewError::Io { path: path.to_path_buf(), source }
+    move |source| ReviewError::Io { path: path.to_path_buf(), cause: source }
 }
 
 impl Review {
