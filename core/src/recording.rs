@@ -346,6 +346,16 @@ impl Recording {
         notes
     }
 
+    /// Every note about the signal itself, for exports and tables: samples missing ([`Self::invalid_sample_notes`]),
+    /// flat leads ([`Self::flat_lead_notes`]) and a doubt about the amplitude ([`Self::amplitude_doubt`]).
+    #[must_use]
+    pub fn signal_notes(&self) -> Vec<String> {
+        let mut notes = self.invalid_sample_notes();
+        notes.extend(self.flat_lead_notes());
+        notes.extend(self.amplitude_doubt());
+        notes
+    }
+
     /// A doubt about the recording's amplitude, said once when it is opened: every lead flat, or the largest
     /// lead's span (0.5th to 99.5th percentile of its samples, so a few spikes do not count) far outside what an
     /// ECG spans. Either usually means a wrong unit or gain in the header, or a file that holds no ECG; the

@@ -102,11 +102,8 @@ pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec
 /// the page is then not read as the heart's own; the notes name leads, never the patient.
 #[must_use]
 pub fn signal_notes(recording: &Recording) -> Vec<String> {
-    let mut notes = recording.invalid_sample_notes();
-    notes.extend(recording.flat_lead_notes());
-    notes.extend(recording.amplitude_doubt());
     // They describe the whole recording, of which the page may show a window.
-    notes.into_iter().map(|n| format!("whole recording: {n}")).collect()
+    recording.signal_notes().into_iter().map(|n| format!("whole recording: {n}")).collect()
 }
 
 /// Header fields naming the reader (when known) and the stage: `Reader: AB`, `Stage: checked`.

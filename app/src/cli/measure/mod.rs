@@ -65,6 +65,7 @@ fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
         duration_s: r.duration_s(),
         leads: r.leads.iter().map(|l| l.name.clone()).collect(),
         m,
+        signal_notes: r.signal_notes(),
     };
     Ok((row, opened.warnings, opened.files))
 }

@@ -21,6 +21,18 @@ pub struct Row {
     pub leads: Vec<LeadName>,
     /// The measurements.
     pub m: Measurements,
+    /// Notes about the signal itself (samples missing, flat leads, a doubtful amplitude), said with the
+    /// measurements' notes so that a table written to a file carries them too.
+    pub signal_notes: Vec<String>,
+}
+
+impl Row {
+    /// The measurements' notes (condensed), then the notes about the signal.
+    fn notes(&self) -> Vec<String> {
+        let mut notes = ranges::condensed(&self.m.notes());
+        notes.extend(self.signal_notes.iter().cloned());
+        notes
+    }
 }
 
 /// Rounds to 0.01 (ms, µV, degrees): the tables carry no false precision, and nothing is made up.
@@ -62,7 +74,7 @@ pub fn json_value(row: &Row) -> serde_json::Value {
         },
         "axis_deg": { "p": r2(m.axes.p_deg), "qrs": r2(m.axes.qrs_deg), "t": r2(m.axes.t_deg) },
         "st_uv": st,
-        "notes": ranges::condensed(&m.notes()),
+        "notes": row.notes(),
     })
 }
 
@@ -169,7 +181,7 @@ pub fn to_csv(rows: &[Row]) -> String {
             num(m.axes.t_deg),
         ];
         cells.extend(leads.iter().map(|l| num(m.st_j60(l))));
-        cells.push(csv_field(&ranges::condensed(&m.notes()).join("; ")));
+        cells.push(csv_field(&row.notes().join("; ")));
         out.push_str(&cells.join(","));
         out.push('\n');
     }
@@ -215,7 +227,7 @@ pub fn to_table(rows: &[Row]) -> String {
         );
     }
     for r in rows {
-        let notes = ranges::condensed(&r.m.notes());
+        let notes = r.notes();
         if !notes.is_empty() {
             let _ = writeln!(out, "\n{}: rhythm {}", r.file, r.m.rr.rhythm.describe());
             for n in notes {
@@ -250,6 +262,7 @@ mod tests {
             duration_s: 10.0,
             leads: vec![LeadName::parse("V2"), LeadName::parse("MLII")],
             m,
+            signal_notes: Vec::new(),
         }
     }
 
@@ -286,6 +299,17 @@ mod tests {
         assert_eq!(v["st_uv"]["V2"], serde_json::json!(120.0));
         assert!(v["st_uv"]["MLII"].is_null());
         assert!(v["notes"][0].as_str().is_some_and(|n| n.starts_with("PR 240 ms")));
+    }
+
+    #[test]
+    fn notes_about_the_signal_follow_the_measurements_notes_in_every_format() {
+        // A lead without a valid sample is said in the table written to a file, not only on stderr.
+        let said = "lead I holds no valid sample: it is drawn blank and left out of the measurements";
+        let r = Row { signal_notes: vec![said.into()], ..row() };
+        let notes = json_value(&r)["notes"].as_array().cloned().unwrap_or_default();
+        assert!(notes.len() >= 2 && notes.last().and_then(|n| n.as_str()) == Some(said), "{notes:?}");
+        assert!(to_csv(std::slice::from_ref(&r)).contains(said));
+        assert!(to_table(std::slice::from_ref(&r)).contains(said));
     }
 
     #[test]
