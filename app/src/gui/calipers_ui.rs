@@ -292,7 +292,14 @@ pub fn caliper_list_ui(ui: &mut egui::Ui, doc: &Document, selected: Option<(u32,
                 }
                 ui.menu_button(format!("To Ledger #{}", c.id), |ui| {
                     for (key, name) in super::ledger::CALIPER_KEYS {
-                        if ui.button(format!("as {name}")).clicked() {
+                        // A span that no such interval can be (60 ms as an RR) is offered greyed, with the bounds.
+                        let refused = c.interval_ms().and_then(|ms| isoline_core::measure::implausible(key, ms));
+                        let button = ui.add_enabled(refused.is_none(), egui::Button::new(format!("as {name}")));
+                        let button = match &refused {
+                            Some(why) => button.on_disabled_hover_text(why.as_str()),
+                            None => button,
+                        };
+                        if button.clicked() {
                             out.push(Command::TakeCaliper { id: c.id, key: key.to_string() });
                             ui.close();
                         }

@@ -32,33 +32,56 @@ fn folder(path: &Path) -> PathBuf {
     }
 }
 
-/// Writes `path` atomically: `fill` writes into a new temporary file beside it, which is synced and renamed
-/// over `path`; then the folder is synced (best effort: not every platform can). On any error the temporary
-/// file is removed and `path` is left as it was. A symbolic link is followed and the file it names replaced. A
-/// path that is no regular file (a pipe, a terminal, a device) is written through as a shell's `>` would:
-/// there is no file to replace, and renaming over it would put a file in its place.
+/// Where a write to a path lands ([`landing`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Landing {
+    /// A regular file (or none yet), replaced through a temporary file beside it: the path itself, or the file
+    /// a symbolic link names (the link stays a link).
+    Replace(PathBuf),
+    /// No file to replace: a pipe, a terminal, a device or the process's own standard output or error
+    /// (`/dev/stdout`), written through and appended to, as a shell's `>>` would.
+    Through(PathBuf),
+}
+
+/// Where a write to `path` lands. Paths under `/dev` and `/proc` are written through: `/dev/stdout` names
+/// whatever the shell redirected standard output to, and replacing that file would lose what it held.
 ///
 /// # Errors
-/// The first I/O error (creating, writing, syncing or renaming); the caller names the file. A folder is refused.
-pub fn write_with(path: &Path, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
+/// No file name; a folder; a symbolic link to a missing file (replacing the link would cut it from its file).
+pub fn landing(path: &Path) -> io::Result<Landing> {
     if path.file_name().is_none() {
         return Err(io::Error::new(io::ErrorKind::InvalidInput, "not a file name"));
     }
-    // What the path names, links followed: a regular file is replaced where it lies (the link, if any, kept).
-    let real;
-    let path = match std::fs::metadata(path) {
-        Ok(m) if m.is_dir() => return Err(io::Error::new(io::ErrorKind::InvalidInput, "a folder, not a file")),
-        Ok(m) if !m.is_file() => {
-            let mut w = BufWriter::new(OpenOptions::new().write(true).open(path)?);
+    if path.starts_with("/dev") || path.starts_with("/proc") {
+        return Ok(Landing::Through(path.to_path_buf()));
+    }
+    let link = std::fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
+    match std::fs::metadata(path) {
+        Ok(m) if m.is_dir() => Err(io::Error::new(io::ErrorKind::InvalidInput, "a folder, not a file")),
+        Ok(m) if !m.is_file() => Ok(Landing::Through(path.to_path_buf())),
+        Ok(_) if link => Ok(Landing::Replace(std::fs::canonicalize(path)?)),
+        Err(_) if link => Err(io::Error::new(io::ErrorKind::NotFound, "a symbolic link to a missing file")),
+        Ok(_) | Err(_) => Ok(Landing::Replace(path.to_path_buf())),
+    }
+}
+
+/// Writes `path` atomically: `fill` writes into a new temporary file beside it, which is synced and renamed
+/// over `path`; then the folder is synced (best effort: not every platform can). On any error the temporary
+/// file is removed and `path` is left as it was. Where the write lands is [`landing`]'s: a symbolic link is
+/// followed and the file it names replaced; a pipe, a terminal or a device is written through.
+///
+/// # Errors
+/// As [`landing`]; then the first I/O error (creating, writing, syncing or renaming); the caller names the file.
+pub fn write_with(path: &Path, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
+    let path = match landing(path)? {
+        Landing::Through(p) => {
+            let mut w = BufWriter::new(OpenOptions::new().append(true).open(p)?);
             fill(&mut w)?;
             return w.flush();
         }
-        Ok(_) => {
-            real = std::fs::canonicalize(path)?;
-            real.as_path()
-        }
-        Err(_) => path,
+        Landing::Replace(p) => p,
     };
+    let path = path.as_path();
     let tmp = temp_path(path);
     let result = (|| {
         let file = OpenOptions::new().write(true).create_new(true).open(&tmp)?;
@@ -118,7 +141,7 @@ mod tests {
     }
 
     #[test]
-    fn failed_rename_leaves_nothing() -> Result<(), Box<dyn std::error::Error>> {
+    fn a_folder_or_a_missing_folder_is_refused_and_leaves_nothing() -> Result<(), Box<dyn std::error::Error>> {
         let dir = tempfile::tempdir()?;
         // The target is an existing non-empty folder: refused, and no temporary file is left.
         let target = dir.path().join("taken");
@@ -157,8 +180,16 @@ mod tests {
             assert_eq!(reader.join().map_err(|_| "reader panicked")??, b"through");
             assert!(std::fs::symlink_metadata(&fifo)?.file_type().is_fifo());
         }
-        // A folder is refused.
+        // A folder is refused, and so is a link to a missing file (replacing the link would cut it off).
         assert!(write_bytes(dir.path(), b"x").is_err());
+        let dangling = dir.path().join("dangling.csv");
+        std::os::unix::fs::symlink("nowhere/x.csv", &dangling)?;
+        assert!(write_bytes(&dangling, b"x").is_err());
+        assert!(std::fs::symlink_metadata(&dangling)?.file_type().is_symlink());
+        // The process's own descriptors are written through: /dev/stdout may name a file a shell appends to.
+        assert_eq!(landing(Path::new("/dev/stdout"))?, Landing::Through(PathBuf::from("/dev/stdout")));
+        assert_eq!(landing(&file)?, Landing::Replace(file.clone()));
+        assert_eq!(landing(&link)?, Landing::Replace(std::fs::canonicalize(&file)?));
         Ok(())
     }
 

@@ -126,10 +126,7 @@ pub struct OpenOptions {
 pub fn open(path: &Path, options: &OpenOptions) -> Result<Opened, ReadError> {
     let mut opened = open_as_written(path, options)?;
     let renamed = opened.recording.name_leads_uniquely();
-    let doubt = opened.recording.amplitude_doubt();
-    let missing = opened.recording.invalid_sample_notes();
-    let flat = opened.recording.flat_lead_notes();
-    let notes = renamed.into_iter().chain(doubt).chain(missing).chain(flat);
+    let notes = renamed.into_iter().chain(opened.recording.signal_notes());
     opened.warnings.extend(notes.map(|r| format!("{}: {r}", path.display())));
     Ok(opened)
 }

@@ -32,15 +32,15 @@ pub fn intervals(bounds: &Boundaries, fs: Hertz) -> Intervals {
         (Some(a), Some(b)) => b > a || (same && b == a),
         _ => true,
     };
-    // The P wave ends after it starts and no later than the QRS starts; the QRS ends after it starts
-    // (a QRS onset after the J point is wrong, or the J point is, so no interval from the QRS onset stands); a
-    // T end lies after the J point. Marks out of this order (placed by hand, say) give no interval they bound.
-    let p_ok = ordered(bounds.p_on, bounds.p_end, false) && ordered(bounds.p_end, bounds.qrs_on, true);
+    // The P wave ends no earlier than it starts and no later than the QRS starts; the QRS ends after it starts
+    // (a QRS onset after the J point is wrong, or the J point is, so neither QRS nor QT stands); a T end lies
+    // after the J point. Marks out of this order (placed by hand, say) give no interval they bound.
+    let p_ok = ordered(bounds.p_on, bounds.p_end, true) && ordered(bounds.p_end, bounds.qrs_on, true);
     let qrs_ok = ordered(bounds.qrs_on, bounds.qrs_end, false);
     let t_ok = ordered(bounds.qrs_end, bounds.t_end, false);
     Intervals {
         p_duration_ms: if p_ok { span(bounds.p_on, bounds.p_end) } else { None },
-        pr_ms: if p_ok && qrs_ok { span(bounds.p_on, bounds.qrs_on) } else { None },
+        pr_ms: if p_ok { span(bounds.p_on, bounds.qrs_on) } else { None },
         qrs_ms: span(bounds.qrs_on, bounds.qrs_end),
         qt_ms: if qrs_ok && t_ok { span(bounds.qrs_on, bounds.t_end) } else { None },
     }
@@ -92,11 +92,12 @@ mod tests {
         // A P onset dragged past the P end: neither P duration nor PR.
         let b = Boundaries { p_on: Some(170), p_end: Some(150), qrs_on: Some(180), ..Boundaries::default() };
         assert_eq!((intervals(&b, fs()).p_duration_ms, intervals(&b, fs()).pr_ms), (None, None));
-        // A QRS onset dragged past the J point: no QRS, and neither PR nor QT from that onset.
+        // A QRS onset dragged past the J point: neither QRS nor QT; the PR, which the J point does not bound,
+        // stands.
         let b =
             Boundaries { p_on: Some(100), p_end: Some(150), qrs_on: Some(200), qrs_end: Some(190), t_end: Some(400) };
         let i = intervals(&b, fs());
-        assert_eq!((i.p_duration_ms, i.pr_ms, i.qrs_ms, i.qt_ms), (Some(100.0), None, None, None));
+        assert_eq!((i.p_duration_ms, i.pr_ms, i.qrs_ms, i.qt_ms), (Some(100.0), Some(200.0), None, None));
     }
 
     #[test]

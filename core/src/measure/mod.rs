@@ -289,10 +289,12 @@ mod tests {
         let beats: Vec<Beat> =
             [500, 1000, 1500].map(|r| Beat { r, kind: BeatKind::Dominant, bounds: Boundaries::default() }).to_vec();
         assert!(measure(&rec, &beats, None).notes().iter().all(|n| n.source != ranges::SOURCE_NO_BEATS));
-        // Bigeminy: beats, but no two dominant ones in a row, so no heart rate; the note says why.
+        // Bigeminy: beats, but no two dominant ones in a row, so no heart rate; the note says why, and only it
+        // (the short and long RR intervals alternating are not called irregular as between dominant beats).
         let kinds = [BeatKind::Dominant, BeatKind::Other];
-        let bigeminy: Vec<Beat> =
-            (0..8).map(|k| Beat { r: 300 + 500 * k, kind: kinds[k % 2], bounds: Boundaries::default() }).collect();
+        let bigeminy: Vec<Beat> = (0..8)
+            .map(|k| Beat { r: 300 + 500 * k - 100 * (k % 2), kind: kinds[k % 2], bounds: Boundaries::default() })
+            .collect();
         let m = measure(&rec, &bigeminy, None);
         assert_eq!(m.rr.heart_rate_bpm, None);
         assert_eq!(m.notes(), ranges::no_nn_intervals().into_iter().collect::<Vec<_>>());

@@ -131,18 +131,22 @@ pub fn discard_autosave(path: &Path) -> Result<(), ReviewError> {
 /// earlier crashed save of the same file left behind. With `interrupt_at = Some(n)` it only writes the first
 /// `n` bytes to a temporary file and returns it (a simulated crash); otherwise `None`.
 fn write_atomic(path: &Path, bytes: &[u8], interrupt_at: Option<usize>) -> Result<Option<PathBuf>, ReviewError> {
+    // Temporary files lie beside the file the write replaces (a link's target, not the link).
+    let target = match atomic::landing(path).map_err(io_err(path))? {
+        atomic::Landing::Replace(p) | atomic::Landing::Through(p) => p,
+    };
     if let Some(at) = interrupt_at.filter(|&at| at < bytes.len()) {
-        let tmp = atomic::temp_path(path);
+        let tmp = atomic::temp_path(&target);
         let mut file = OpenOptions::new().write(true).create_new(true).open(&tmp).map_err(io_err(&tmp))?;
         file.write_all(&bytes[..at]).map_err(io_err(&tmp))?;
         return Ok(Some(tmp));
     }
     atomic::write_bytes(path, bytes).map_err(io_err(path))?;
-    let dir = match path.parent() {
+    let dir = match target.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),
     };
-    remove_stale_temps(dir, &atomic::temp_prefix(path));
+    remove_stale_temps(dir, &atomic::temp_prefix(&target));
     Ok(None)
 }
 

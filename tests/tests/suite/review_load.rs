@@ -164,6 +164,14 @@ fn impossible_values_are_named() {
     let (_, _, named, msg) = parse_err(&p);
     assert_eq!(named.as_deref(), Some("reviewed_value"), "{msg}");
     assert!(msg.contains("`qt_ms`: -412 is outside 1 to 2000"), "{msg}");
+    // An extreme but real reviewed rate (12 bpm) with the QTc values computed from it (Framingham below zero)
+    // saves and loads again: computed values are never refused.
+    let mut r = crate::review_support::sample_review("AB");
+    r.set_measurement("heart_rate_bpm", 12.0, "AB").unwrap();
+    let framingham = r.measurement("qtc_framingham_ms").and_then(|m| m.reviewed_value);
+    assert!(framingham.is_some_and(|v| v < 0.0), "{framingham:?}");
+    let p = write(dir.path(), &r.to_ron().unwrap());
+    assert_eq!(load(&p).unwrap().measurement("qtc_framingham_ms").and_then(|m| m.reviewed_value), framingham);
 }
 
 #[test]

@@ -12,11 +12,21 @@ fn subfield(s: Option<&str>) -> Option<String> {
     s.filter(|v| *v != "X" && !v.is_empty()).map(|v| v.replace('_', " "))
 }
 
-/// True when a plain EDF patient field is written the EDF+ way (`code sex birthdate name`, sex `M`, `F` or `X`),
-/// as many writers do, Isoline among them (a recording without annotations is written as plain EDF).
+/// True when a plain EDF patient field is written the EDF+ way, as many writers do, Isoline among them (a
+/// recording without annotations is written as plain EDF): at least four subfields, the sex `M`, `F` or `X`
+/// and the birth date `dd-MMM-yyyy` or `X`. Free text such as "John F Smith 1950" is not taken for it.
 fn plus_style_patient(patient: &str) -> bool {
     let p: Vec<&str> = patient.split_whitespace().collect();
-    p.len() >= 4 && matches!(p[1], "M" | "F" | "X")
+    let date = |d: &str| {
+        let f: Vec<&str> = d.split('-').collect();
+        d == "X"
+            || (f.len() == 3
+                && f[0].len() == 2
+                && MONTHS.contains(&f[1].to_ascii_uppercase().as_str())
+                && f[2].len() == 4
+                && [f[0], f[2]].iter().all(|n| n.bytes().all(|b| b.is_ascii_digit())))
+    };
+    p.len() >= 4 && matches!(p[1], "M" | "F" | "X") && date(p[2])
 }
 
 /// Fills `Meta` from the patient and recording fields. `plus` = the file is EDF+ (structured subfields); a plain
@@ -162,9 +172,13 @@ mod tests {
         // (the QTc limits depend on it), not the whole field taken as a patient code.
         let m = parse_meta("X F X X", "Startdate X X X X", false);
         assert_eq!((m.sex.as_deref(), m.patient_id), (Some("F"), None));
-        // A free-text patient field of a plain EDF file stays the patient code.
-        let m = parse_meta("Ward 3 bed 9", "", false);
-        assert_eq!((m.sex, m.patient_id.as_deref()), (None, Some("Ward 3 bed 9")));
+        // A free-text patient field of a plain EDF file stays the patient code, also where a word is M or F.
+        for text in ["Ward 3 bed 9", "John F Smith 1950", "Ana F 1990 de la Cruz"] {
+            let m = parse_meta(text, "", false);
+            assert_eq!((m.sex, m.patient_id.as_deref()), (None, Some(text)));
+        }
+        let m = parse_meta("W7-0042 M 01-JAN-1960 Made_Up_Person", "", false);
+        assert_eq!((m.sex.as_deref(), m.birth_date.as_deref()), (Some("M"), Some("01-JAN-1960")));
     }
 
     #[test]

@@ -139,12 +139,11 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
     let atr = hea.with_extension("atr");
     if atr.is_file() {
         match super::wfdb_annotations::read(&atr) {
-            Ok(a) => {
-                files.push(atr);
-                recording.annotations = a;
-            }
+            Ok(a) => recording.annotations = a,
             Err(e) => warnings.push(format!("annotations not loaded: {e}")),
         }
+        // Read from either way: no output may be written over it.
+        files.push(atr);
     }
     Ok(Opened { recording, format: Format::Wfdb, files, warnings })
 }
