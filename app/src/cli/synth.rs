@@ -69,6 +69,17 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         }
         spec.noise.mains_hz = m;
     }
+    // The truth and the recording are two files: one written over the other would leave a recording that is not.
+    // (Neither need exist yet: the folders are resolved, the names compared.)
+    let resolved = |p: &std::path::Path| {
+        let dir = p.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(std::path::Path::new("."));
+        dir.canonicalize().ok().zip(p.file_name()).map(|(d, n)| d.join(n))
+    };
+    if let Some(t) = &args.truth
+        && (t == &args.out || resolved(t).is_some_and(|t| Some(t) == resolved(&args.out)))
+    {
+        bail!("{}: --truth and --out name the same file", t.display());
+    }
     let demo = synth::generate(&spec).with_context(|| format!("scenario {}", scenario.name()))?;
     let mut rec = demo.recording;
     if let Some(p) = &args.patient {
@@ -81,7 +92,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     if let Some(t) = &args.truth {
         let json = demo.truth.to_json().context("serialising the truth")?;
-        std::fs::write(t, json + "\n").with_context(|| format!("{}: cannot write the truth", t.display()))?;
+        isoline_core::io::atomic::write_bytes(t, (json + "\n").as_bytes())
+            .with_context(|| format!("{}: cannot write the truth", t.display()))?;
     }
     eprintln!(
         "isoline: wrote {} ({} lead{}, {} Hz, {:.0} s, {} beats) — synthetic demo data. {}",

@@ -64,12 +64,16 @@ fn synth_csv_has_the_asked_leads_rate_and_length() -> TestResult {
 fn synth_bad_input_exits_2_with_one_line() -> TestResult {
     let dir = tempfile::tempdir()?;
     let out_edf = s(&dir.path().join("x.edf"));
+    let same_by_another_name = s(&dir.path().join(".").join("x.edf"));
     for args in [
         vec!["synth", "--scenario", "nonsense", "--out", &out_edf],
         vec!["synth", "--scenario", "normal", "--out", "x.wav"],
         vec!["synth", "--scenario", "normal", "--out", &out_edf, "--leads", "5"],
         vec!["synth", "--scenario", "normal", "--out", &out_edf, "--rate=-5"],
         vec!["synth", "--scenario", "normal", "--out", &out_edf, "--seconds", "0.2"],
+        // The truth written over the recording it describes.
+        vec!["synth", "--scenario", "normal", "--out", &out_edf, "--truth", &out_edf],
+        vec!["synth", "--scenario", "normal", "--out", &out_edf, "--truth", &same_by_another_name],
     ] {
         let out = isoline(&args)?;
         assert_eq!(out.status.code(), Some(2), "{args:?}");

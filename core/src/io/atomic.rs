@@ -32,6 +32,39 @@ fn folder(path: &Path) -> PathBuf {
     }
 }
 
+/// Most symbolic links followed from one path, as the usual system limit.
+// Common practice, no source: Linux allows 40 links in one path lookup.
+const MAX_LINKS: usize = 40;
+
+/// True when `path` is, or leads by symbolic links to, one of the process's own descriptors (`/dev/stdout`,
+/// `/dev/stderr`, `/dev/fd/N`, anything under `/proc`): by a relative path (`../../dev/stdout`), a folder link
+/// or a link to it alike. (Devices are no regular files and are written through anyway.)
+fn reaches_system_path(path: &Path) -> bool {
+    let system = |p: &Path| {
+        p.starts_with("/proc")
+            || p.starts_with("/dev/fd")
+            || p == Path::new("/dev/stdout")
+            || p == Path::new("/dev/stderr")
+    };
+    // The folder with its links resolved, then the name: the name itself may be a link to follow.
+    let resolve = |p: &Path| -> Option<PathBuf> { Some(std::fs::canonicalize(folder(p)).ok()?.join(p.file_name()?)) };
+    let mut p = path.to_path_buf();
+    for _ in 0..MAX_LINKS {
+        if system(&p) {
+            return true;
+        }
+        let Some(real) = resolve(&p) else { return false };
+        if system(&real) {
+            return true;
+        }
+        match std::fs::read_link(&real) {
+            Ok(target) => p = folder(&real).join(target),
+            Err(_) => return false,
+        }
+    }
+    false
+}
+
 /// Where a write to a path lands ([`landing`]).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub enum Landing {
@@ -43,7 +76,7 @@ pub enum Landing {
     Through(PathBuf),
 }
 
-/// Where a write to `path` lands. Paths under `/dev` and `/proc` are written through: `/dev/stdout` names
+/// Where a write to `path` lands. The process's own descriptors are written through: `/dev/stdout` names
 /// whatever the shell redirected standard output to, and replacing that file would lose what it held.
 ///
 /// # Errors
@@ -52,7 +85,7 @@ pub fn landing(path: &Path) -> io::Result<Landing> {
     if path.file_name().is_none() {
         return Err(io::Error::new(io::ErrorKind::InvalidInput, "not a file name"));
     }
-    if path.starts_with("/dev") || path.starts_with("/proc") {
+    if reaches_system_path(path) {
         return Ok(Landing::Through(path.to_path_buf()));
     }
     let link = std::fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
@@ -73,7 +106,25 @@ pub fn landing(path: &Path) -> io::Result<Landing> {
 /// # Errors
 /// As [`landing`]; then the first I/O error (creating, writing, syncing or renaming); the caller names the file.
 pub fn write_with(path: &Path, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
-    let path = match landing(path)? {
+    write_to(landing(path)?, fill)
+}
+
+/// [`write_bytes`] for a program's own side file (a backup, an autosave): the path itself is replaced, a
+/// symbolic link there included, never followed, so a link planted under that name (to a recording, say)
+/// cannot turn the side file's write into a write over what it names.
+///
+/// # Errors
+/// As [`write_with`]; a folder at `path` is refused.
+pub fn replace_bytes(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    if path.file_name().is_none() || std::fs::symlink_metadata(path).is_ok_and(|m| m.is_dir()) {
+        return Err(io::Error::new(io::ErrorKind::InvalidInput, "not a file name, or a folder"));
+    }
+    write_to(Landing::Replace(path.to_path_buf()), |w| w.write_all(bytes))
+}
+
+/// Writes where [`landing`] said: through, or by a temporary file renamed over the path.
+fn write_to(landing: Landing, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
+    let path = match landing {
         Landing::Through(p) => {
             let mut w = BufWriter::new(OpenOptions::new().append(true).open(p)?);
             fill(&mut w)?;
@@ -180,14 +231,26 @@ mod tests {
             assert_eq!(reader.join().map_err(|_| "reader panicked")??, b"through");
             assert!(std::fs::symlink_metadata(&fifo)?.file_type().is_fifo());
         }
+        // A side file's write replaces a link planted under its name; the file the link names is untouched.
+        let side = dir.path().join("results.csv.bak");
+        std::os::unix::fs::symlink("results.csv", &side)?;
+        replace_bytes(&side, b"backup")?;
+        assert!(!std::fs::symlink_metadata(&side)?.file_type().is_symlink());
+        assert_eq!((std::fs::read(&side)?, std::fs::read(&file)?), (b"backup".to_vec(), b"new".to_vec()));
         // A folder is refused, and so is a link to a missing file (replacing the link would cut it off).
         assert!(write_bytes(dir.path(), b"x").is_err());
         let dangling = dir.path().join("dangling.csv");
         std::os::unix::fs::symlink("nowhere/x.csv", &dangling)?;
         assert!(write_bytes(&dangling, b"x").is_err());
         assert!(std::fs::symlink_metadata(&dangling)?.file_type().is_symlink());
-        // The process's own descriptors are written through: /dev/stdout may name a file a shell appends to.
+        // The process's own descriptors are written through: /dev/stdout may name a file a shell appends to,
+        // also when reached by a relative path or through a link.
         assert_eq!(landing(Path::new("/dev/stdout"))?, Landing::Through(PathBuf::from("/dev/stdout")));
+        let up = Path::new("../../../../../../../../dev/stdout");
+        assert_eq!(landing(up)?, Landing::Through(up.to_path_buf()));
+        let to_stdout = dir.path().join("out.csv");
+        std::os::unix::fs::symlink("/dev/stdout", &to_stdout)?;
+        assert_eq!(landing(&to_stdout)?, Landing::Through(to_stdout.clone()));
         assert_eq!(landing(&file)?, Landing::Replace(file.clone()));
         assert_eq!(landing(&link)?, Landing::Replace(std::fs::canonicalize(&file)?));
         Ok(())

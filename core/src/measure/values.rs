@@ -49,9 +49,9 @@ pub const KEYS: [&str; 20] = [
 
 /// The values a reader may give for a measurement `key`, in its unit: wide bounds that refuse only what no ECG
 /// shows (a negative duration, a rate of 5000 bpm, an axis beyond a full turn), that is typing slips, not
-/// judgement. `None` for a key without bounds: one the reader placed under a name of their own, and the QTc
-/// values, which are computed from QT and RR (both bounded) and which the linear formulas (Framingham, Hodges)
-/// take below zero at extreme rates.
+/// judgement. The QTc values are computed from QT and RR (both bounded), and the linear formulas (Framingham,
+/// Hodges) take them below zero at extreme rates, so their bounds only keep them finite (±10 s: Framingham at
+/// 1 bpm and QT 2 s gives −7.1 s). `None` for a key the reader placed under a name of their own.
 // Common practice, no source: ventricular rates stay well under 600 bpm (RR 100 ms); no wave or interval of one
 // beat lasts 2 s; axes are written from -180 to +180 or from 0 to 360 degrees; ST levels beyond ±10 mV are
 // artefact.
@@ -63,6 +63,7 @@ pub fn plausible_range(key: &str) -> Option<std::ops::RangeInclusive<f64>> {
         "rr_sdnn_ms" | "rr_rmssd_ms" => 0.0..=60_000.0,
         "rr_cv_pct" | "rr_successive_pct" => 0.0..=1000.0,
         "p_duration_ms" | "pr_ms" | "qrs_ms" | "qt_ms" => 1.0..=2000.0,
+        k if k.starts_with("qtc_") => -10_000.0..=10_000.0,
         k if k.starts_with("axis_") => -180.0..=360.0,
         k if k.starts_with("st_") => -10_000.0..=10_000.0,
         _ => return None,
@@ -174,7 +175,7 @@ mod tests {
     #[test]
     fn every_key_has_bounds_that_hold_its_usual_values() {
         // The bounds refuse slips only: the usual adult values and the extremes seen on real records pass.
-        for key in KEYS.iter().filter(|k| !k.starts_with("qtc_")) {
+        for key in KEYS {
             assert!(plausible_range(key).is_some(), "{key}");
         }
         // Extremes a real ECG shows: a 15-s pause, 12 bpm, a neonate's 220 bpm, a QT of 700 ms, an axis written
@@ -193,6 +194,10 @@ mod tests {
         }
         assert_eq!(implausible("heart_rate_bpm", -500.0).as_deref(), Some("-500 is outside 1 to 600"));
         assert!(implausible("qrs_ms", 1e308).is_some() && implausible("axis_t_deg", f64::NAN).is_some());
+        assert!(implausible("qtc_bazett_ms", 1e308).is_some(), "a hand-edited QTc of 1e308 read as inf by agreement");
+        // The lowest QTc the formulas give within the bounds of QT and rate: Framingham at 1 bpm and QT 2 s.
+        let q = super::super::qtc::qtc(2000.0, 60_000.0);
+        assert_eq!(implausible("qtc_framingham_ms", q.framingham), None, "{}", q.framingham);
         assert_eq!(implausible("my_own_key", -3.0), None);
     }
 

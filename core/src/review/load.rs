@@ -88,6 +88,14 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
     if sha.len() != 64 || !sha.bytes().all(|b| b.is_ascii_hexdigit()) {
         return at("sha256", format!("`sha256` must be 64 hexadecimal digits, found {sha:?}"));
     }
+    // Reader names are printed in history lines, tables and on pages: no terminal control codes in them (a
+    // hand-edited escape sequence was replayed raw by `agreement`).
+    if review.reader.chars().any(char::is_control) {
+        return at("reader", "`reader` holds a control character (a line break, a tab or an escape code)".into());
+    }
+    if let Some(i) = review.history.iter().position(|c| c.by.chars().any(char::is_control)) {
+        return at_nth("by", i, "`by` of a history entry holds a control character".into());
+    }
     let fs = review.recording.sample_rate_hz;
     if !(fs.is_finite() && fs > 0.0) {
         return at("sample_rate_hz", format!("`sample_rate_hz` must be a positive number, found {fs}"));

@@ -41,8 +41,16 @@ impl Review {
     /// The review as RON text in the current format version.
     ///
     /// # Errors
-    /// [`ReviewError::Encode`] when serialisation fails (it does not for a well-formed review).
+    /// [`ReviewError::Encode`] when serialisation fails (it does not for a well-formed review);
+    /// [`ReviewError::Implausible`] for a reader name holding a control character, which loading would refuse.
     pub fn to_ron(&self) -> Result<String, ReviewError> {
+        let names = std::iter::once(&self.reader).chain(self.history.iter().map(|c| &c.by));
+        if let Some(n) = names.into_iter().find(|n| n.chars().any(char::is_control)) {
+            return Err(ReviewError::Implausible {
+                what: format!("reader {n:?}"),
+                why: "a name holds no control character (a line break, a tab or an escape code)".to_owned(),
+            });
+        }
         let mut current = self.clone();
         current.format_version = FORMAT_VERSION;
         let config = PrettyConfig::new().struct_names(false).indentor("  ".to_owned());
@@ -72,7 +80,10 @@ impl Review {
     /// # Errors
     /// [`ReviewError::Io`] naming the sidecar.
     pub fn autosave(&self, path: &Path) -> Result<(), ReviewError> {
-        write_atomic(&autosave_path(path), self.to_ron()?.as_bytes(), None).map(|_| ())
+        let sidecar = autosave_path(path);
+        atomic::replace_bytes(&sidecar, self.to_ron()?.as_bytes()).map_err(io_err(&sidecar))?;
+        remove_stale_temps(folder_of(&sidecar), &atomic::temp_prefix(&sidecar));
+        Ok(())
     }
 
     /// Test hook: runs [`Review::save`] up to a crash after `at_byte` bytes of the new text reached the
@@ -91,7 +102,11 @@ impl Review {
 
     fn backup_previous(&self, path: &Path) -> Result<(), ReviewError> {
         match fs::read(path) {
-            Ok(previous) => write_atomic(&backup_path(path), &previous, None).map(|_| ()),
+            // The backup replaces whatever lies under its name, a link included (never written through).
+            Ok(previous) => {
+                let bak = backup_path(path);
+                atomic::replace_bytes(&bak, &previous).map_err(io_err(&bak))
+            }
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => Ok(()),
             Err(e) => Err(io_err(path)(e)),
         }
@@ -142,12 +157,16 @@ fn write_atomic(path: &Path, bytes: &[u8], interrupt_at: Option<usize>) -> Resul
         return Ok(Some(tmp));
     }
     atomic::write_bytes(path, bytes).map_err(io_err(path))?;
-    let dir = match target.parent() {
+    remove_stale_temps(folder_of(&target), &atomic::temp_prefix(&target));
+    Ok(None)
+}
+
+/// The folder holding `path` (`.` for a bare file name).
+fn folder_of(path: &Path) -> &Path {
+    match path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),
-    };
-    remove_stale_temps(dir, &atomic::temp_prefix(&target));
-    Ok(None)
+    }
 }
 
 /// Removes temporary files an earlier crashed save of the same file left behind.

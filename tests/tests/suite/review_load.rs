@@ -164,6 +164,11 @@ fn impossible_values_are_named() {
     let (_, _, named, msg) = parse_err(&p);
     assert_eq!(named.as_deref(), Some("reviewed_value"), "{msg}");
     assert!(msg.contains("`qt_ms`: -412 is outside 1 to 2000"), "{msg}");
+    // A reader name with a terminal escape code, hand-edited in.
+    let p = write(dir.path(), &text.replacen("reader: \"AB\"", "reader: \"A\\u{1b}[31mB\"", 1));
+    let (_, _, named, msg) = parse_err(&p);
+    assert_eq!(named.as_deref(), Some("reader"), "{msg}");
+    assert!(msg.contains("control character"), "{msg}");
     // An extreme but real reviewed rate (12 bpm) with the QTc values computed from it (Framingham below zero)
     // saves and loads again: computed values are never refused.
     let mut r = crate::review_support::sample_review("AB");

@@ -13,6 +13,11 @@ fn text() -> impl Strategy<Value = String> {
     prop_oneof!["[ -~]{0,16}", "\\PC{0,12}", Just("line one\nline \"two\"\t\\ end".to_owned())]
 }
 
+/// A reader's name: any printable text (a name holds no control character; saving and loading refuse one).
+fn name() -> impl Strategy<Value = String> {
+    prop_oneof!["[ -~]{0,16}", "\\PC{0,12}"]
+}
+
 fn number() -> impl Strategy<Value = f64> {
     prop_oneof![-1.0e4..1.0e4f64, prop::num::f64::NORMAL, Just(0.0)]
 }
@@ -76,14 +81,14 @@ fn measurement() -> impl Strategy<Value = Measurement> {
 }
 
 fn change() -> impl Strategy<Value = Change> {
-    (stamp(), text(), text(), prop::option::of(text()), prop::option::of(text()))
+    (stamp(), name(), text(), prop::option::of(text()), prop::option::of(text()))
         .prop_map(|(at, by, what, old, new)| Change { at, by, what, old, new })
 }
 
 prop_compose! {
     fn review()(
         recording in identity(),
-        reader in text(),
+        reader in name(),
         stage in prop_oneof![Just(Stage::Draft), Just(Stage::Checked), Just(Stage::Final)],
         created in stamp(),
         modified in stamp(),
