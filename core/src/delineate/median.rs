@@ -152,10 +152,34 @@ fn aligned_median(
     median_leads(n_leads, len, count, |lead, k, b| value(lead, b, shifts[b] + k))
 }
 
-/// The beats the median is taken over: the dominant ones, or all when none is dominant.
+/// A beat whose next beat is of another kind and comes before this fraction of the median RR is followed by a
+/// premature beat, which lies in its span: its T wave, or what follows it, is not its own.
+// Common practice, no source: QT is measured on beats not followed by an ectopic beat. (Measured: a 60-s
+// trigeminy, every third beat premature at 500 ms, read QT 654 ms for 382, the median of the dominant beats
+// switching between the T wave and the premature QRS where half of them held it.)
+const FOLLOWED_EARLY: f64 = 0.9;
+
+/// The beats the median is taken over: the dominant ones, or all when none is dominant; of those, the beats a
+/// premature beat of another kind follows ([`FOLLOWED_EARLY`]) are left out while at least half of them and
+/// [`MIN_BEATS`] remain.
 fn median_beats(beats: &[Beat]) -> impl Iterator<Item = &Beat> {
     let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
-    beats.iter().filter(move |b| !any_dominant || b.kind == BeatKind::Dominant)
+    let pool: Vec<(usize, &Beat)> =
+        beats.iter().enumerate().filter(|(_, b)| !any_dominant || b.kind == BeatKind::Dominant).collect();
+    let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+    let rr = super::median_rr(&rs).unwrap_or(0) as f64;
+    let followed_early = |i: usize| {
+        beats.get(i + 1).is_some_and(|next| {
+            next.kind != BeatKind::Dominant && ((next.r.saturating_sub(beats[i].r)) as f64) < FOLLOWED_EARLY * rr
+        })
+    };
+    let kept: Vec<&Beat> = pool.iter().filter(|(i, _)| !followed_early(*i)).map(|(_, b)| *b).collect();
+    let chosen = if kept.len() >= MIN_BEATS && kept.len() * 2 >= pool.len() {
+        kept
+    } else {
+        pool.into_iter().map(|(_, b)| b).collect()
+    };
+    chosen.into_iter()
 }
 
 /// Per lead, the sample-by-sample median over `count` beats of `len` samples, `value(lead, k, beat)` giving

@@ -151,7 +151,7 @@ fn drop_outlying_t_ends(sig: &Signals, beats: &mut [Beat]) {
 }
 
 /// Median RR of R peaks, samples.
-fn median_rr(rs: &[usize]) -> Option<usize> {
+pub(super) fn median_rr(rs: &[usize]) -> Option<usize> {
     let mut rr: Vec<usize> = rs.windows(2).map(|w| w[1] - w[0]).collect();
     if rr.is_empty() {
         return None;
