@@ -192,7 +192,7 @@ fn cell(v: Option<f64>) -> String {
     v.filter(|x| x.is_finite()).map_or_else(|| "—".to_string(), |x| format!("{x:.0}"))
 }
 
-/// A table for people: one line per recording with the main values, then each recording's range notes.
+/// A table for people: one line per recording with the main values, then each recording's rhythm call and notes.
 #[must_use]
 pub fn to_table(rows: &[Row]) -> String {
     let width = rows.iter().map(|r| r.file.chars().count()).max().unwrap_or(4).clamp(4, 60);
@@ -227,12 +227,10 @@ pub fn to_table(rows: &[Row]) -> String {
         );
     }
     for r in rows {
-        let notes = r.notes();
-        if !notes.is_empty() {
-            let _ = writeln!(out, "\n{}: rhythm {}", r.file, r.m.rr.rhythm.describe());
-            for n in notes {
-                let _ = writeln!(out, "  {n}");
-            }
+        // The automatic rhythm call for every recording (not only those with notes), then its notes.
+        let _ = writeln!(out, "\n{}: rhythm {}", r.file, r.m.rr.rhythm.describe());
+        for n in r.notes() {
+            let _ = writeln!(out, "  {n}");
         }
     }
     out
@@ -310,6 +308,10 @@ mod tests {
         assert!(notes.len() >= 2 && notes.last().and_then(|n| n.as_str()) == Some(said), "{notes:?}");
         assert!(to_csv(std::slice::from_ref(&r)).contains(said));
         assert!(to_table(std::slice::from_ref(&r)).contains(said));
+        // The rhythm call is in the table also for a recording without any note.
+        let quiet = Row { m: Measurements { beats: 10, dominant_beats: 10, ..Measurements::default() }, ..row() };
+        assert!(quiet.notes().is_empty());
+        assert!(to_table(&[quiet]).contains("ward 4, bed 2.hea: rhythm not enough beats"));
     }
 
     #[test]
