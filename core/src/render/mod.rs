@@ -181,12 +181,12 @@ pub enum RenderError {
     #[error("{}: a page is written as PNG only; name the file .png", .0.display())]
     NotPng(std::path::PathBuf),
     /// Writing the file failed.
-    #[error("cannot write {path}: {source}")]
+    #[error("cannot write {path}: {cause}")]
     Write {
         /// Target path.
         path: std::path::PathBuf,
-        /// Cause.
-        source: std::io::Error,
+        /// Cause (shown in the message, so not chained again as a source: it was printed twice).
+        cause: std::io::Error,
     },
 }
 

@@ -54,7 +54,7 @@ pub fn encode_png(pixmap: &Pixmap, dpi: f64) -> Result<Vec<u8>, RenderError> {
 /// naming `path`.
 pub fn write_png_atomic(path: &Path, bytes: &[u8]) -> Result<(), RenderError> {
     check_png_name(path)?;
-    let write_error = |source| RenderError::Write { path: path.to_path_buf(), source };
+    let write_error = |cause| RenderError::Write { path: path.to_path_buf(), cause };
     crate::io::atomic::write_bytes(path, bytes).map_err(write_error)
 }
 
