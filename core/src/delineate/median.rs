@@ -72,7 +72,18 @@ pub fn representative_beat_with(
     let value = |lead: usize, b: usize, k: usize| recording.leads[lead].samples[chosen[b].0 + k - before - reach];
     let room = |b: usize| chosen[b].1;
     let leads = aligned_median(recording.leads.len(), (before, after), reach, chosen.len(), fs, room, value);
-    Some(delineated(leads, recording.sample_rate, before, rr, p_model, chosen.len()))
+    // The T wave is sought before the next beat: the one that follows the beats chosen, which in bigeminy is the
+    // premature beat at the short RR, not the record's median RR (demo bigeminy 30 s: QT 654 ms for 380, the
+    // T end found on the premature QRS).
+    let mut next: Vec<usize> =
+        chosen.iter().filter_map(|&(r, _)| rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r)).collect();
+    let rr_next = if next.is_empty() {
+        rr
+    } else {
+        let mid = next.len() / 2;
+        *next.select_nth_unstable(mid).1
+    };
+    Some(delineated(leads, recording.sample_rate, before, rr_next.min(rr), p_model, chosen.len()))
 }
 
 /// Fewest beats a representative beat is made of, and fewest valid values a sample of it is the median of.

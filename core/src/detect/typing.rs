@@ -102,12 +102,18 @@ pub fn dominant(
         .collect();
     let len = leads.len() * (a + b + 1);
     let step = (r.len() / TEMPLATE_BEATS).max(1);
-    let pool: Vec<&Vec<f32>> = snippets.iter().step_by(step).flatten().collect();
+    let pool_at: Vec<usize> = (0..r.len()).step_by(step).filter(|&i| snippets[i].is_some()).collect();
+    let pool: Vec<&Vec<f32>> = pool_at.iter().filter_map(|&i| snippets[i].as_ref()).collect();
     let mut template = median_template(&pool, len);
     // Second pass: the template from the beats that resemble the first one.
     let close: Vec<&Vec<f32>> = pool.iter().copied().filter(|s| correlation(s, &template) >= MIN_CORR).collect();
     if close.len() * 3 >= pool.len() {
         template = median_template(&close, len);
+    } else if let Some(cluster) = dominant_cluster(&pool, &pool_at, r) {
+        // Two shapes about as common (bigeminy: every other beat ventricular): the median of all is a blend
+        // that resembles neither, and every beat was typed other. The template is then the shape of the group
+        // of alike beats that is largest and least premature.
+        template = median_template(&cluster, len);
     }
     let premature = premature_beats(r, gaps, fs);
     snippets
@@ -134,6 +140,30 @@ pub fn dominant(
             shape_ok && !premature
         })
         .collect()
+}
+
+/// Most beats tried as the centre of a group of alike beats in [`dominant_cluster`].
+const CLUSTER_CANDIDATES: usize = 40;
+
+/// Where the beats' median resembles too few of them (two shapes about as common), the group of beats alike
+/// (correlation at least [`MIN_CORR`] with one of them) whose size times its members' mean preceding RR is
+/// largest: in bigeminy the sinus beats, which follow the long RR, not the ventricular ones, which come early;
+/// with rarer ectopy the larger group wins anyway. `pool` holds the windows of beats `pool_at` (indices into the
+/// R peaks `r`). `None` when no group holds 3 beats and a quarter of the pool.
+fn dominant_cluster<'a>(pool: &[&'a Vec<f32>], pool_at: &[usize], r: &[usize]) -> Option<Vec<&'a Vec<f32>>> {
+    let prev_rr = |i: usize| (i > 0).then(|| r[i].saturating_sub(r[i - 1]) as f64);
+    let step = (pool.len() / CLUSTER_CANDIDATES).max(1);
+    let (members, _) = (0..pool.len())
+        .step_by(step)
+        .map(|c| {
+            let members: Vec<usize> = (0..pool.len()).filter(|&j| correlation(pool[j], pool[c]) >= MIN_CORR).collect();
+            let rrs: Vec<f64> = members.iter().filter_map(|&j| prev_rr(pool_at[j])).collect();
+            let mean_rr = if rrs.is_empty() { 0.0 } else { rrs.iter().sum::<f64>() / rrs.len() as f64 };
+            let score = members.len() as f64 * mean_rr;
+            (members, score)
+        })
+        .max_by(|x, y| x.1.total_cmp(&y.1))?;
+    (members.len() >= 3 && members.len() * 4 >= pool.len()).then(|| members.iter().map(|&j| pool[j]).collect())
 }
 
 /// Appends `window` less its own mean to `out`: a beat's window as typing compares it, one lead after another,
