@@ -22,12 +22,22 @@ pub fn to_stdout(text: &str) -> anyhow::Result<()> {
     }
 }
 
+/// True when `a` and `b` name the same file: resolved through their links where they exist, else by their folder
+/// resolved and their name (neither need exist yet).
+pub fn same_file(a: &std::path::Path, b: &std::path::Path) -> bool {
+    let resolved = |p: &std::path::Path| {
+        p.canonicalize().ok().or_else(|| {
+            let folder = isoline_core::io::atomic::folder(p).canonicalize().ok()?;
+            Some(folder.join(p.file_name()?))
+        })
+    };
+    a == b || resolved(a).is_some_and(|x| Some(x) == resolved(b))
+}
+
 /// Refuses an output path that is one of the files a recording was read from (its header, signal file or
 /// annotations): writing there would destroy the recording.
 pub fn refuse_to_overwrite(out: &std::path::Path, inputs: &[std::path::PathBuf]) -> anyhow::Result<()> {
-    if let Ok(out_canonical) = out.canonicalize()
-        && inputs.iter().any(|f| f.canonicalize().is_ok_and(|f| f == out_canonical))
-    {
+    if inputs.iter().any(|f| same_file(out, f)) {
         anyhow::bail!("{}: the output would overwrite the input recording", out.display());
     }
     Ok(())

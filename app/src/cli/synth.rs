@@ -70,13 +70,8 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         spec.noise.mains_hz = m;
     }
     // The truth and the recording are two files: one written over the other would leave a recording that is not.
-    // (Neither need exist yet: the folders are resolved, the names compared.)
-    let resolved = |p: &std::path::Path| {
-        let dir = p.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(std::path::Path::new("."));
-        dir.canonicalize().ok().zip(p.file_name()).map(|(d, n)| d.join(n))
-    };
     if let Some(t) = &args.truth
-        && (t == &args.out || resolved(t).is_some_and(|t| Some(t) == resolved(&args.out)))
+        && super::same_file(t, &args.out)
     {
         bail!("{}: --truth and --out name the same file", t.display());
     }

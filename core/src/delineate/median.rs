@@ -59,7 +59,7 @@ pub fn representative_beat_with(
     // edge with no room joins as placed, even if it would match better moved: one beat among the rest bends the
     // median little. (Long recordings gather their beats with the full room, `BeatStack::gather`.)
     let gaps = recording.gaps();
-    let chosen: Vec<(usize, Room)> = median_beats(beats)
+    let chosen: Vec<(usize, Room)> = median_beats(beats, rr)
         .map(|b| b.r)
         .filter(|&r| r >= before && r + after <= n)
         .map(|r| (r, (reach.min(r - before), reach.min(n - r - after))))
@@ -75,14 +75,8 @@ pub fn representative_beat_with(
     // The T wave is sought before the next beat: the one that follows the beats chosen, which in bigeminy is the
     // premature beat at the short RR, not the record's median RR (demo bigeminy 30 s: QT 654 ms for 380, the
     // T end found on the premature QRS).
-    let mut next: Vec<usize> =
-        chosen.iter().filter_map(|&(r, _)| rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r)).collect();
-    let rr_next = if next.is_empty() {
-        rr
-    } else {
-        let mid = next.len() / 2;
-        *next.select_nth_unstable(mid).1
-    };
+    let next = chosen.iter().filter_map(|&(r, _)| rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r));
+    let rr_next = super::median_samples(next.collect()).unwrap_or(rr);
     Some(delineated(leads, recording.sample_rate, before, rr_next.min(rr), p_model, chosen.len()))
 }
 
@@ -173,12 +167,12 @@ const FOLLOWED_EARLY: f64 = 0.9;
 /// The beats the median is taken over: the dominant ones, or all when none is dominant; of those, the beats a
 /// premature beat of another kind follows ([`FOLLOWED_EARLY`]) are left out while at least half of them and
 /// [`MIN_BEATS`] remain.
-fn median_beats(beats: &[Beat]) -> impl Iterator<Item = &Beat> {
+/// `rr` is the beats' median RR, samples.
+fn median_beats(beats: &[Beat], rr: usize) -> impl Iterator<Item = &Beat> {
     let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
     let pool: Vec<(usize, &Beat)> =
         beats.iter().enumerate().filter(|(_, b)| !any_dominant || b.kind == BeatKind::Dominant).collect();
-    let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
-    let rr = super::median_rr(&rs).unwrap_or(0) as f64;
+    let rr = rr as f64;
     let followed_early = |i: usize| {
         beats.get(i + 1).is_some_and(|next| {
             next.kind != BeatKind::Dominant && ((next.r.saturating_sub(beats[i].r)) as f64) < FOLLOWED_EARLY * rr
@@ -318,7 +312,8 @@ impl BeatStack {
         let n = part.len();
         let (before, after) = (self.before, self.after);
         let gaps = part.gaps();
-        let usable: Vec<usize> = median_beats(beats)
+        let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+        let usable: Vec<usize> = median_beats(beats, median_rr(&rs).unwrap_or(0))
             .map(|b| b.r)
             .filter(|r| own.contains(r) && *r >= before && r + after < n)
             .filter(|&r| has_signal(&gaps, r - before..r + after))

@@ -152,12 +152,16 @@ fn drop_outlying_t_ends(sig: &Signals, beats: &mut [Beat]) {
 
 /// Median RR of R peaks, samples.
 pub(super) fn median_rr(rs: &[usize]) -> Option<usize> {
-    let mut rr: Vec<usize> = rs.windows(2).map(|w| w[1] - w[0]).collect();
-    if rr.is_empty() {
+    median_samples(rs.windows(2).map(|w| w[1] - w[0]).collect())
+}
+
+/// Median of sample counts (the upper one of an even count); `None` when empty.
+pub(super) fn median_samples(mut v: Vec<usize>) -> Option<usize> {
+    if v.is_empty() {
         return None;
     }
-    let mid = rr.len() / 2;
-    Some(*rr.select_nth_unstable(mid).1)
+    let mid = v.len() / 2;
+    Some(*v.select_nth_unstable(mid).1)
 }
 
 #[cfg(test)]

@@ -25,7 +25,8 @@ pub fn temp_path(path: &Path) -> PathBuf {
 }
 
 /// The folder holding `path` (`.` for a bare file name).
-fn folder(path: &Path) -> PathBuf {
+#[must_use]
+pub fn folder(path: &Path) -> PathBuf {
     match path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
         _ => PathBuf::from("."),
@@ -123,7 +124,10 @@ pub fn replace_bytes(path: &Path, bytes: &[u8]) -> io::Result<()> {
 }
 
 /// Writes where [`landing`] said: through, or by a temporary file renamed over the path.
-fn write_to(landing: Landing, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
+///
+/// # Errors
+/// As [`write_with`], after the landing.
+pub fn write_to(landing: Landing, fill: impl FnOnce(&mut BufWriter<File>) -> io::Result<()>) -> io::Result<()> {
     let path = match landing {
         Landing::Through(p) => {
             let mut w = BufWriter::new(OpenOptions::new().append(true).open(p)?);

@@ -109,9 +109,7 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
                 return at_nth(field, i, format!("`{field}` of `{}` must be a finite number, found {v}", m.key));
             }
             // A reviewed value no ECG shows is a slip (or a hand edit) that would be drawn and exported as read.
-            if let Some(why) =
-                m.reviewed_value.filter(|_| field == "reviewed_value").and_then(|v| implausible(&m.key, v))
-            {
+            if let Some(why) = v.filter(|_| field == "reviewed_value").and_then(|v| implausible(&m.key, v)) {
                 return at_nth(field, i, format!("`{field}` of `{}`: {why}", m.key));
             }
         }

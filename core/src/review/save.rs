@@ -82,7 +82,7 @@ impl Review {
     pub fn autosave(&self, path: &Path) -> Result<(), ReviewError> {
         let sidecar = autosave_path(path);
         atomic::replace_bytes(&sidecar, self.to_ron()?.as_bytes()).map_err(io_err(&sidecar))?;
-        remove_stale_temps(folder_of(&sidecar), &atomic::temp_prefix(&sidecar));
+        remove_stale_temps(&atomic::folder(&sidecar), &atomic::temp_prefix(&sidecar));
         Ok(())
     }
 
@@ -147,8 +147,9 @@ pub fn discard_autosave(path: &Path) -> Result<(), ReviewError> {
 /// `n` bytes to a temporary file and returns it (a simulated crash); otherwise `None`.
 fn write_atomic(path: &Path, bytes: &[u8], interrupt_at: Option<usize>) -> Result<Option<PathBuf>, ReviewError> {
     // Temporary files lie beside the file the write replaces (a link's target, not the link).
-    let target = match atomic::landing(path).map_err(io_err(path))? {
-        atomic::Landing::Replace(p) | atomic::Landing::Through(p) => p,
+    let landing = atomic::landing(path).map_err(io_err(path))?;
+    let target = match &landing {
+        atomic::Landing::Replace(p) | atomic::Landing::Through(p) => p.clone(),
     };
     if let Some(at) = interrupt_at.filter(|&at| at < bytes.len()) {
         let tmp = atomic::temp_path(&target);
@@ -156,17 +157,9 @@ fn write_atomic(path: &Path, bytes: &[u8], interrupt_at: Option<usize>) -> Resul
         file.write_all(&bytes[..at]).map_err(io_err(&tmp))?;
         return Ok(Some(tmp));
     }
-    atomic::write_bytes(path, bytes).map_err(io_err(path))?;
-    remove_stale_temps(folder_of(&target), &atomic::temp_prefix(&target));
+    atomic::write_to(landing, |w| w.write_all(bytes)).map_err(io_err(path))?;
+    remove_stale_temps(&atomic::folder(&target), &atomic::temp_prefix(&target));
     Ok(None)
-}
-
-/// The folder holding `path` (`.` for a bare file name).
-fn folder_of(path: &Path) -> &Path {
-    match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d,
-        _ => Path::new("."),
-    }
 }
 
 /// Removes temporary files an earlier crashed save of the same file left behind.
