@@ -41,7 +41,8 @@ pub struct Args {
     /// Write to this file (atomically) instead of stdout.
     #[arg(long)]
     pub out: Option<PathBuf>,
-    /// Sampling rate for CSV files without a time_s column.
+    /// Sampling rate for CSV files without a time_s column (folders are then searched for CSV files whose header
+    /// names standard leads only, too).
     #[arg(long)]
     pub rate: Option<f64>,
 }
@@ -72,7 +73,14 @@ fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
 
 /// Runs the command. Exit code 2 when any file failed (after measuring and writing all the others).
 pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
-    let found = walk::find_recordings(&args.paths);
+    let found = walk::find_recordings(&args.paths, args.rate.is_some());
+    // With a rate given, the user has recordings without a time_s column: say which files in folders were not
+    // taken as recordings, so none is left out unsaid.
+    if args.rate.is_some() {
+        for path in &found.passed_over {
+            eprintln!("isoline: note: {}: {}", path.display(), walk::PASSED_OVER);
+        }
+    }
     if found.files.is_empty() {
         // Nothing to measure (e.g. an empty folder): say why, one line per path, and write no table.
         for (path, e) in &found.errors {
