@@ -15,6 +15,23 @@ use crate::paper::{Page, Palette, margins, px_per_mm};
 const LABEL_PT: f64 = 9.0;
 /// Narrowest sheet, mm: room for the header and the caution on one or two lines.
 const MIN_WIDTH_MM: f64 = 160.0;
+/// Narrowest trace cell, mm: room for a lead label (`aVR` at [`LABEL_PT`] is about 6 mm) beside the next cell's.
+/// At 25 mm/s a 3x4 cell of a 10-s page is 62.5 mm; at 1 mm/s the labels of a row were drawn over each other.
+const MIN_CELL_MM: f64 = 8.0;
+
+/// [`RenderError::Spec`] when a cell of `page` is narrower than [`MIN_CELL_MM`].
+fn check_cells(page: &Page, seconds: f64) -> Result<(), RenderError> {
+    let narrowest = page.rows.iter().flat_map(|r| &r.cells).map(|c| c.width_mm).fold(f64::INFINITY, f64::min);
+    if narrowest < MIN_CELL_MM {
+        return Err(RenderError::Spec(format!(
+            "a lead's stretch of paper would be {narrowest:.1} mm wide ({seconds} s at {} mm/s), under the \
+             {MIN_CELL_MM} mm its label needs: lengthen the window, raise the speed or choose a layout with \
+             fewer columns",
+            page.paper.speed_mm_per_s
+        )));
+    }
+    Ok(())
+}
 
 fn check(input: &RenderInput) -> Result<(), RenderError> {
     if !input.dpi.is_finite() || input.dpi <= 0.0 || input.dpi > MAX_DPI {
@@ -67,6 +84,7 @@ pub(super) fn render(input: &RenderInput) -> Result<Pixmap, RenderError> {
     let fonts = Fonts::load()?;
     let ppm = px_per_mm(input.dpi);
     let page = input.spec.page(input.recording);
+    check_cells(&page, input.spec.seconds)?;
     let pal = input.scheme.palette();
     let area = grid_area(&page);
     // Page size first (cheap), so an absurd request fails before any drawing.

@@ -2,7 +2,7 @@
 //! caution. Also the renderer's guards against unusable requests.
 
 use crate::render_common::{Res, render_png};
-use isoline_core::paper::{Layout, PageSpec};
+use isoline_core::paper::{Layout, PageSpec, Paper};
 use isoline_core::recording::{Lead, Meta, Recording, StandardLead};
 use isoline_core::render::{RenderError, RenderInput, header_lines, render_page};
 use isoline_core::units::Hertz;
@@ -84,6 +84,16 @@ fn absurd_requests_are_refused() -> Res {
     assert!(matches!(render_page(&RenderInput::new(&rec, long, 1200.0)), Err(RenderError::TooLarge { .. })));
     let bad = PageSpec { seconds: -1.0, ..spec() };
     assert!(matches!(render_page(&RenderInput::new(&rec, bad, 100.0)), Err(RenderError::Spec(_))));
+    // Paper too short for the lead labels (before, they were drawn over each other): 10 s at 0.5 mm/s, and
+    // 0.2 s at 25 mm/s. 10 s at 5 mm/s (12.5 mm a column of 3x4) is still drawn.
+    for (seconds, speed) in [(10.0, 0.5), (0.2, 25.0)] {
+        let paper = Paper { speed_mm_per_s: speed, ..spec().paper };
+        let short = PageSpec { seconds, paper, layout: Layout::default(), ..spec() };
+        let got = render_page(&RenderInput::new(&rec, short, 100.0));
+        assert!(matches!(&got, Err(RenderError::Spec(m)) if m.contains("label")), "{seconds} s at {speed}: {got:?}");
+    }
+    let slow = PageSpec { paper: Paper { speed_mm_per_s: 5.0, ..spec().paper }, layout: Layout::default(), ..spec() };
+    assert!(render_page(&RenderInput::new(&rec, slow, 100.0)).is_ok());
     let empty = Recording { leads: vec![], ..rec.clone() };
     assert!(matches!(render_page(&RenderInput::new(&empty, spec(), 100.0)), Err(RenderError::NoLeads)));
     Ok(())
