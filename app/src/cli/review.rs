@@ -51,9 +51,8 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
     if reader.is_empty() {
         bail!("--reader: give the reader's name or initials");
     }
-    // The name is printed in every history line and on exported pages: no terminal control codes in it.
-    if reader.chars().any(char::is_control) {
-        bail!("--reader: the name holds a control character (a tab, a line break or an escape code)");
+    if let Some(why) = isoline_core::review::reader_name_problem(reader) {
+        bail!("--reader: the name {why}");
     }
     let out = args.out.clone().unwrap_or_else(|| default_review_path(&args.file));
     if out.exists() && !args.force {

@@ -227,15 +227,21 @@ pub fn review_windows_ui(ctx: &egui::Context, session: &mut ReviewSession) -> Ve
         egui::Window::new("Reader").collapsible(false).show(ctx, |ui| {
             ui.label("Your name or initials, recorded with every change of this review:");
             ui.add(egui::TextEdit::singleline(&mut session.reader_input).hint_text("reader"));
+            let name = session.reader_input.trim().to_string();
+            let problem = isoline_core::review::reader_name_problem(&name);
             ui.horizontal(|ui| {
-                let name = session.reader_input.trim().to_string();
-                if ui.add_enabled(!name.is_empty(), egui::Button::new("Save as this reader")).clicked() {
+                let save =
+                    ui.add_enabled(!name.is_empty() && problem.is_none(), egui::Button::new("Save as this reader"));
+                if save.clicked() {
                     out.push(Command::SetReader(name));
                 }
                 if ui.button("Cancel").clicked() {
                     session.asking_reader = None;
                 }
             });
+            if let Some(why) = problem {
+                ui.colored_label(ui.visuals().error_fg_color, format!("The name {why}."));
+            }
         });
     }
     if let Some((path, review)) = &session.mismatch {

@@ -182,3 +182,26 @@ fn a_saved_review_carries_qtc_from_the_reviewed_qt_and_rr() {
     let h2 = open(&rec);
     assert!(ledger(&h2).is_some_and(|v| (v - q.bazett).abs() < 1e-9));
 }
+
+#[test]
+fn a_reader_name_with_a_control_character_is_refused_in_the_reader_window() {
+    // A tab pasted into the name: the window says why and the review is not saved until the name is mended.
+    let dir = tempfile::tempdir().unwrap();
+    let rec = copy_record(dir.path());
+    let mut h = open(&rec);
+    h.get_by_label("Save review").click();
+    settle(&mut h);
+    h.state_mut().review.reader_input = "A\tB".into();
+    settle(&mut h);
+    h.get_by_label("The name holds a control character (a line break, a tab or an escape code).");
+    h.get_by_label("Save as this reader").click();
+    settle(&mut h);
+    let review_path = dir.path().join("s0010_re.review.ron");
+    assert!(!review_path.exists(), "saved under a name with a tab");
+    assert!(h.state().settings.reader.is_none());
+    h.state_mut().review.reader_input = "A B".into();
+    settle(&mut h);
+    h.get_by_label("Save as this reader").click();
+    settle(&mut h);
+    assert!(review_path.exists(), "{:?}", h.state().ui_state.error);
+}

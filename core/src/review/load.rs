@@ -88,13 +88,13 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
     if sha.len() != 64 || !sha.bytes().all(|b| b.is_ascii_hexdigit()) {
         return at("sha256", format!("`sha256` must be 64 hexadecimal digits, found {sha:?}"));
     }
-    // Reader names are printed in history lines, tables and on pages: no terminal control codes in them (a
-    // hand-edited escape sequence was replayed raw by `agreement`).
-    if review.reader.chars().any(char::is_control) {
-        return at("reader", "`reader` holds a control character (a line break, a tab or an escape code)".into());
+    if let Some(why) = super::reader_name_problem(&review.reader) {
+        return at("reader", format!("`reader` {why}"));
     }
-    if let Some(i) = review.history.iter().position(|c| c.by.chars().any(char::is_control)) {
-        return at_nth("by", i, "`by` of a history entry holds a control character".into());
+    if let Some((i, why)) =
+        review.history.iter().enumerate().find_map(|(i, c)| Some((i, super::reader_name_problem(&c.by)?)))
+    {
+        return at_nth("by", i, format!("`by` of a history entry {why}"));
     }
     let fs = review.recording.sample_rate_hz;
     if !(fs.is_finite() && fs > 0.0) {

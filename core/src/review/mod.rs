@@ -45,6 +45,22 @@ pub use load::{load, load_for};
 pub use model::{FORMAT_VERSION, Mark, MarkOn, Measurement, Origin, Review, Stage};
 pub use save::{autosave_path, backup_path, discard_autosave, recover};
 
+/// Why a reader's name cannot be recorded, or `None` when it can. Names are printed in every history line, in
+/// tables and on pages: a control character (a line break, a tab, a terminal escape code) would break a line or
+/// be replayed raw by a terminal (a hand-edited escape sequence was, by `agreement`). Checked where a name is
+/// given (`review new`, the workstation's reader window), saved and loaded.
+///
+/// ```
+/// use isoline_core::review::reader_name_problem;
+/// assert_eq!(reader_name_problem("Dr Ó Briain (AB)"), None);
+/// assert!(reader_name_problem("AB\tCD").is_some());
+/// assert!(reader_name_problem("AB\u{1b}[2J").is_some());
+/// ```
+#[must_use]
+pub fn reader_name_problem(name: &str) -> Option<&'static str> {
+    name.chars().any(char::is_control).then_some("holds a control character (a line break, a tab or an escape code)")
+}
+
 /// Suffix of review files.
 pub const REVIEW_SUFFIX: &str = ".review.ron";
 

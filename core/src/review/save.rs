@@ -45,11 +45,8 @@ impl Review {
     /// [`ReviewError::Implausible`] for a reader name holding a control character, which loading would refuse.
     pub fn to_ron(&self) -> Result<String, ReviewError> {
         let names = std::iter::once(&self.reader).chain(self.history.iter().map(|c| &c.by));
-        if let Some(n) = names.into_iter().find(|n| n.chars().any(char::is_control)) {
-            return Err(ReviewError::Implausible {
-                what: format!("reader {n:?}"),
-                why: "a name holds no control character (a line break, a tab or an escape code)".to_owned(),
-            });
+        if let Some((n, why)) = names.into_iter().find_map(|n| Some((n, super::reader_name_problem(n)?))) {
+            return Err(ReviewError::Implausible { what: format!("reader {n:?}"), why: why.to_owned() });
         }
         let mut current = self.clone();
         current.format_version = FORMAT_VERSION;
