@@ -187,11 +187,9 @@ pub fn ledger_ui(
             ui.horizontal(|ui| {
                 match editing {
                     Some((key, text)) if key == r.key => {
-                        let resp =
-                            ui.add(egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key)));
-                        let (enter, escape) =
-                            ui.input(|i| (i.key_pressed(egui::Key::Enter), i.key_pressed(egui::Key::Escape)));
-                        // A value no ECG shows (a slip: −500 bpm) is not taken; the field stays open and says why.
+                        // A value no ECG shows (a slip: −500 bpm) is not taken; the field stays open, its text
+                        // red, and the reason shows under it (beside it, it widened the Reviewed column and pushed
+                        // the range notes off a narrow panel).
                         let refused = match text.trim() {
                             "" => None,
                             t => t.parse::<f64>().map_or_else(
@@ -199,8 +197,16 @@ pub fn ledger_ui(
                                 |v| isoline_core::measure::implausible(r.key, v),
                             ),
                         };
+                        let mut field =
+                            egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key));
+                        if refused.is_some() {
+                            field = field.text_color(ui.visuals().error_fg_color);
+                        }
+                        let resp = ui.add(field);
+                        let (enter, escape) =
+                            ui.input(|i| (i.key_pressed(egui::Key::Enter), i.key_pressed(egui::Key::Escape)));
                         if let Some(why) = &refused {
-                            ui.colored_label(ui.visuals().error_fg_color, why);
+                            resp.show_tooltip_text(egui::RichText::new(why).color(ui.visuals().error_fg_color));
                         }
                         if enter && refused.is_none() {
                             if let Ok(v) = text.trim().parse::<f64>() {
