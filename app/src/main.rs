@@ -5,6 +5,15 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+/// `eprintln!` that never panics: a message to stderr is dropped when stderr cannot be written (`2>/dev/full`, a
+/// closed terminal), where `eprintln!` panicked (exit 101) after the work was done.
+macro_rules! to_stderr {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr(), $($arg)*);
+    }};
+}
+
 mod cli;
 use isoline::gui;
 
@@ -61,7 +70,7 @@ fn main() -> ExitCode {
     match result {
         Ok(code) => code,
         Err(e) => {
-            eprintln!("isoline: {e:#}");
+            to_stderr!("isoline: {e:#}");
             ExitCode::from(2)
         }
     }
@@ -86,6 +95,6 @@ fn usage_error(e: &clap::Error) -> ExitCode {
     let first = first.join(" ");
     let first = first.strip_prefix("error:").map_or(first.as_str(), str::trim_start);
     let first = if first.is_empty() { "invalid arguments" } else { first };
-    eprintln!("isoline: {first} (see isoline --help)");
+    to_stderr!("isoline: {first} (see isoline --help)");
     ExitCode::from(2)
 }

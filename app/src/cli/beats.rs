@@ -33,7 +33,7 @@ pub struct Args {
 pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
     for w in &opened.warnings {
-        eprintln!("isoline: warning: {w}");
+        to_stderr!("isoline: warning: {w}");
     }
     let raw = &opened.recording;
     if raw.leads.is_empty() || raw.is_empty() {
@@ -59,7 +59,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     match args.format {
         BeatsFormat::Csv => {
             // The table stays plain CSV for other programs; the caution goes beside it, on stderr.
-            eprintln!("isoline: {}", isoline_core::CAUTION);
+            to_stderr!("isoline: {}", isoline_core::CAUTION);
             out.push_str("sample,time_s,kind,rr_ms,p_on,p_end,qrs_on,qrs_end,t_end\n");
             let opt = |v: Option<usize>| v.map_or(String::new(), |x| x.to_string());
             for (b, rr) in beats.iter().zip(&rr) {

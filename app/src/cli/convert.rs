@@ -48,7 +48,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let target = target(&args.out)?;
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
     for w in &opened.warnings {
-        eprintln!("isoline: warning: {w}");
+        to_stderr!("isoline: warning: {w}");
     }
     if !matches!(target, Target::Stdout) {
         super::refuse_to_overwrite(&args.out, &opened.files)?;
@@ -57,7 +57,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if !matches!(target, Target::Edf) && !rec.annotations.is_empty() {
         // Said, not silently lost: CSV has no place for annotations.
         let n = rec.annotations.len();
-        eprintln!(
+        to_stderr!(
             "isoline: {}: {n} annotation{} not written (a CSV holds samples only; convert to .edf to keep them)",
             if matches!(target, Target::Stdout) {
                 "standard output".to_owned()
@@ -81,11 +81,11 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         Target::Edf => {
             edf::write(&args.out, rec, &edf::EdfWriteOptions { identify: args.identify })?;
             for w in edf::coarse_leads(rec) {
-                eprintln!("isoline: warning: {}: {w}", args.out.display());
+                to_stderr!("isoline: warning: {}: {w}", args.out.display());
             }
             let withheld = rec.annotations.iter().filter(|a| a.shareable_label().is_none()).count();
             if !args.identify && withheld > 0 {
-                eprintln!(
+                to_stderr!(
                     "isoline: {}: {withheld} free-text annotation{} written as \"annotation\" (free text can name a \
                      person); --identify keeps the words",
                     args.out.display(),

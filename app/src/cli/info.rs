@@ -34,7 +34,7 @@ pub struct Args {
 pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
     for w in &opened.warnings {
-        eprintln!("isoline: warning: {w}");
+        to_stderr!("isoline: warning: {w}");
     }
     let r = &opened.recording;
     let leads: Vec<String> = r.leads.iter().map(|l| l.name.to_string()).collect();

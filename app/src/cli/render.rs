@@ -75,7 +75,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     };
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
     for w in &opened.warnings {
-        eprintln!("isoline: warning: {w}");
+        to_stderr!("isoline: warning: {w}");
     }
     let raw = &opened.recording;
     if raw.leads.is_empty() || raw.is_empty() {
@@ -130,7 +130,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let pixmap = render::render_page(&input).with_context(|| format!("{file}: cannot draw the page"))?;
     let bytes = render::encode_png(&pixmap, args.dpi).with_context(|| format!("{file}: cannot encode PNG"))?;
     render::write_png_atomic(&args.out, &bytes)?;
-    eprintln!(
+    to_stderr!(
         "isoline: wrote {} ({} x {} px at {} dpi)",
         args.out.display(),
         pixmap.width(),

@@ -61,13 +61,13 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
     super::refuse_to_overwrite(&out, &opened.files)?;
     for w in &opened.warnings {
-        eprintln!("isoline: warning: {w}");
+        to_stderr!("isoline: warning: {w}");
     }
     let identity = RecordingIdentity::of(&args.file, &opened.recording, &out)?;
     let mut review = Review::new(identity, reader);
     fill_automatic(&mut review, &opened.recording)?;
     review.save(&out)?;
-    eprintln!(
+    to_stderr!(
         "isoline: wrote {} (draft by {reader}: {} measurements, {} marks)",
         out.display(),
         review.measurements.len(),

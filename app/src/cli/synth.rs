@@ -90,7 +90,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         isoline_core::io::atomic::write_bytes(t, (json + "\n").as_bytes())
             .with_context(|| format!("{}: cannot write the truth", t.display()))?;
     }
-    eprintln!(
+    to_stderr!(
         "isoline: wrote {} ({} lead{}, {} Hz, {:.0} s, {} beats) — synthetic demo data. {}",
         args.out.display(),
         rec.leads.len(),

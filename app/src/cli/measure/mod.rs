@@ -78,13 +78,13 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     // taken as recordings, so none is left out unsaid.
     if args.rate.is_some() {
         for path in &found.passed_over {
-            eprintln!("isoline: note: {}: {}", path.display(), walk::PASSED_OVER);
+            to_stderr!("isoline: note: {}: {}", path.display(), walk::PASSED_OVER);
         }
     }
     if found.files.is_empty() {
         // Nothing to measure (e.g. an empty folder): say why, one line per path, and write no table.
         for (path, e) in &found.errors {
-            eprintln!("isoline: {}: {e}", path.display());
+            to_stderr!("isoline: {}: {e}", path.display());
         }
         return Ok(ExitCode::from(2));
     }
@@ -115,7 +115,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
                 inputs.extend(files);
                 // Each warning names its file already (the header or the signal file it is about).
                 for w in warnings {
-                    eprintln!("isoline: warning: {w}");
+                    to_stderr!("isoline: warning: {w}");
                 }
                 rows.push(row);
             }
@@ -141,16 +141,16 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         None => super::to_stdout(&text)?,
     }
     if args.format != MeasureFormat::Table {
-        eprintln!("isoline: {}", isoline_core::CAUTION);
+        to_stderr!("isoline: {}", isoline_core::CAUTION);
     }
     if failures.is_empty() {
         return Ok(ExitCode::SUCCESS);
     }
-    eprintln!("isoline: {} of {} file(s) could not be measured:", failures.len(), failures.len() + rows.len());
+    to_stderr!("isoline: {} of {} file(s) could not be measured:", failures.len(), failures.len() + rows.len());
     for (path, e) in &failures {
         // ReadError messages already start with the file name.
         let shown = path.display().to_string();
-        if e.starts_with(&shown) { eprintln!("  {e}") } else { eprintln!("  {shown}: {e}") }
+        if e.starts_with(&shown) { to_stderr!("  {e}") } else { to_stderr!("  {shown}: {e}") }
     }
     Ok(ExitCode::from(2))
 }
