@@ -76,8 +76,13 @@ pub fn representative_beat_with(
     // premature beat at the short RR, not the record's median RR (demo bigeminy 30 s: QT 654 ms for 380, the
     // T end found on the premature QRS).
     let next = chosen.iter().filter_map(|&(r, _)| rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r));
-    let rr_next = super::median_samples(next.collect()).unwrap_or(rr);
-    Some(delineated(leads, recording.sample_rate, before, rr_next.min(rr), p_model, chosen.len()))
+    Some(delineated(leads, recording.sample_rate, before, t_search_rr(next.collect(), rr), p_model, chosen.len()))
+}
+
+/// The RR the representative beat's T wave is sought within: the median of `next` (each chosen beat's RR to the
+/// beat after it), at most the record's median RR `rr`; `rr` when no chosen beat has a next one.
+fn t_search_rr(next: Vec<usize>, rr: usize) -> usize {
+    super::median_samples(next).unwrap_or(rr).min(rr)
 }
 
 /// Fewest beats a representative beat is made of, and fewest valid values a sample of it is the median of.
@@ -289,6 +294,9 @@ pub struct BeatStack {
     quota: usize,
     /// Per kept beat, per lead: samples R − `before` .. R + `after`.
     beats: Vec<Vec<Vec<f32>>>,
+    /// Per kept beat, samples from its R peak to the next beat's (when the window holds one): the T wave is
+    /// sought before the beat that follows the kept ones, as in [`representative_beat_with`].
+    next_rr: Vec<usize>,
 }
 
 impl BeatStack {
@@ -302,6 +310,7 @@ impl BeatStack {
             after: (AFTER_S * fs) as usize + align_reach(fs),
             quota: STACK_BEATS.div_ceil(windows.max(1)),
             beats: Vec::new(),
+            next_rr: Vec::new(),
         }
     }
 
@@ -322,6 +331,7 @@ impl BeatStack {
         for i in 0..take {
             let r = usable[i * usable.len() / take];
             self.beats.push(part.leads.iter().map(|l| l.samples[r - before..r + after].to_vec()).collect());
+            self.next_rr.extend(rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r));
         }
     }
 
@@ -329,6 +339,7 @@ impl BeatStack {
     /// after this one's, as if they had been gathered here.
     pub fn append(&mut self, mut other: BeatStack) {
         self.beats.append(&mut other.beats);
+        self.next_rr.append(&mut other.next_rr);
     }
 
     /// Number of beats kept.
@@ -361,7 +372,8 @@ impl BeatStack {
         let value = |lead: usize, b: usize, k: usize| self.beats[b][lead][skip + k];
         let room = |_| (reach, reach);
         let leads = aligned_median(self.beats[0].len(), (before, after), reach, self.beats.len(), fs, room, value);
-        Some(delineated(leads, self.sample_rate, before, rr, p_model, self.beats.len()))
+        let rr_next = t_search_rr(self.next_rr.clone(), rr);
+        Some(delineated(leads, self.sample_rate, before, rr_next, p_model, self.beats.len()))
     }
 }
 
