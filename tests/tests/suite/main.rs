@@ -7,6 +7,7 @@ mod review_support;
 
 mod accuracy_boundaries;
 mod accuracy_detection;
+mod accuracy_fast_rates;
 mod accuracy_hrv;
 mod accuracy_intervals;
 mod accuracy_invariance;
