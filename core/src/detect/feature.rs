@@ -184,6 +184,15 @@ fn median(v: &mut [f32]) -> f32 {
     *v.select_nth_unstable_by(mid, f32::total_cmp).1
 }
 
+/// Lower quartile of `v` (reordered); 0 when empty.
+fn lower_quartile(v: &mut [f32]) -> f32 {
+    if v.is_empty() {
+        return 0.0;
+    }
+    let at = v.len() / 4;
+    *v.select_nth_unstable_by(at, f32::total_cmp).1
+}
+
 /// Samples per normalisation block.
 fn block_len(fs: f64) -> usize {
     ((BLOCK_S * fs) as usize).max(1)
@@ -197,7 +206,7 @@ fn normalise(mwi: &[f32], fs: f64) -> (Vec<f32>, f64) {
     let block = block_len(fs);
     let maxima: Vec<f32> = mwi.chunks(block).map(|c| c.iter().copied().fold(0.0, f32::max)).collect();
     let mut all = maxima.clone();
-    let typical = median(&mut all);
+    let typical = lower_quartile(&mut all);
     let step = (n / 200_000).max(1);
     let mut sub: Vec<f32> = mwi.iter().step_by(step).copied().collect();
     let level = median(&mut sub);
@@ -228,7 +237,7 @@ fn normalise(mwi: &[f32], fs: f64) -> (Vec<f32>, f64) {
     for b in 0..maxima.len() {
         buf.clear();
         buf.extend_from_slice(&maxima[b.saturating_sub(BLOCK_SPAN)..(b + BLOCK_SPAN + 1).min(maxima.len())]);
-        local.push(median(&mut buf).max(typical * 0.05));
+        local.push(lower_quartile(&mut buf).max(typical * 0.05));
     }
     (local, weight)
 }

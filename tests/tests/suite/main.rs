@@ -5,6 +5,7 @@
 mod render_common;
 mod review_support;
 
+mod accuracy_artefacts;
 mod accuracy_boundaries;
 mod accuracy_detection;
 mod accuracy_fast_rates;
