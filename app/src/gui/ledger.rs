@@ -41,14 +41,6 @@ impl LedgerRow {
 pub const CALIPER_KEYS: [(&str, &str); 5] =
     [("rr_ms", "RR"), ("p_duration_ms", "P duration"), ("pr_ms", "PR"), ("qrs_ms", "QRS"), ("qt_ms", "QT")];
 
-const QTC_KEYS: [(&str, &str); 5] = [
-    ("qtc_bazett_ms", "Bazett"),
-    ("qtc_fridericia_ms", "Fridericia"),
-    ("qtc_framingham_ms", "Framingham"),
-    ("qtc_hodges_ms", "Hodges"),
-    ("qtc_rautaharju_ms", "Rautaharju"),
-];
-
 /// Computes the Ledger rows from the automatic measurements, the review's marks and reviewed values.
 #[must_use]
 pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
@@ -140,15 +132,9 @@ fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
     }
     if ["qt_ms", "rr_ms", "heart_rate_bpm"].iter().any(|k| doc.reviewed.contains_key(*k)) {
         let q = measure::qtc_checked(qt, rr);
-        for (key, name) in QTC_KEYS {
+        for (key, name) in measure::qtc::FORMULAS {
             if let Some(v) = rev.iter_mut().find(|v| v.key == key) {
-                v.value = q.map(|q| match key {
-                    "qtc_bazett_ms" => q.bazett,
-                    "qtc_fridericia_ms" => q.fridericia,
-                    "qtc_framingham_ms" => q.framingham,
-                    "qtc_hodges_ms" => q.hodges,
-                    _ => q.rautaharju,
-                });
+                v.value = q.and_then(|q| q.by_key(key));
                 v.note = v.value.and_then(|x| ranges::qtc(key, name, x, sex));
             }
         }

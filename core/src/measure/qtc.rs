@@ -22,6 +22,34 @@ pub struct Qtc {
     pub rautaharju: f64,
 }
 
+/// Each formula's measurement key and name, in the order the values are listed.
+pub const FORMULAS: [(&str, &str); 5] = [
+    ("qtc_bazett_ms", "Bazett"),
+    ("qtc_fridericia_ms", "Fridericia"),
+    ("qtc_framingham_ms", "Framingham"),
+    ("qtc_hodges_ms", "Hodges"),
+    ("qtc_rautaharju_ms", "Rautaharju"),
+];
+
+impl Qtc {
+    /// The value of one formula by its measurement key (`qtc_bazett_ms`, `qtc_fridericia_ms`,
+    /// `qtc_framingham_ms`, `qtc_hodges_ms`, `qtc_rautaharju_ms`); `None` for another key, and where the formula,
+    /// carried far past the rates it was fitted on, gives no positive QTc (Framingham below about 17 bpm: at QT
+    /// 283 ms and RR 3.75 s it gives −140 ms, which is no QT interval).
+    #[must_use]
+    pub fn by_key(&self, key: &str) -> Option<f64> {
+        let v = match key {
+            "qtc_bazett_ms" => self.bazett,
+            "qtc_fridericia_ms" => self.fridericia,
+            "qtc_framingham_ms" => self.framingham,
+            "qtc_hodges_ms" => self.hodges,
+            "qtc_rautaharju_ms" => self.rautaharju,
+            _ => return None,
+        };
+        (v > 0.0).then_some(v)
+    }
+}
+
 /// The five QTc values for a QT and an RR interval, both in milliseconds.
 ///
 /// The inputs must be finite and positive; otherwise the results are NaN or meaningless. Use
@@ -59,6 +87,21 @@ mod tests {
         let q = qtc(412.0, 1000.0);
         for v in [q.bazett, q.fridericia, q.framingham, q.hodges, q.rautaharju] {
             assert!((v - 412.0).abs() < 1e-9, "{v}");
+        }
+    }
+
+    #[test]
+    fn by_key_gives_each_formula_and_no_qtc_below_zero() {
+        // Source: Sagie et al. 1992, Am J Cardiol — Framingham QTc = QT + 154 (1 − RR): 283 + 154 · (1 − 3.75).
+        let q = qtc(283.0, 3750.0);
+        assert!((q.framingham - (283.0 - 154.0 * 2.75)).abs() < 1e-9);
+        assert_eq!(q.by_key("qtc_framingham_ms"), None);
+        assert_eq!(q.by_key("qtc_bazett_ms"), Some(q.bazett));
+        assert_eq!(q.by_key("qtc_rautaharju_ms"), Some(q.rautaharju));
+        assert_eq!(q.by_key("qt_ms"), None);
+        let at_60 = qtc(400.0, 1000.0);
+        for (key, _) in FORMULAS {
+            assert_eq!(at_60.by_key(key), Some(400.0), "{key}");
         }
     }
 

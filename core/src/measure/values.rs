@@ -119,15 +119,11 @@ impl Measurements {
             self.or_beats_disagree(with_note(v("qrs_ms", "QRS", i.qrs_ms, "ms"), ranges::qrs)),
             qt,
         ];
-        let formulas: [(&'static str, &str, Option<f64>); 5] = [
-            ("qtc_bazett_ms", "Bazett", q.map(|q| q.bazett)),
-            ("qtc_fridericia_ms", "Fridericia", q.map(|q| q.fridericia)),
-            ("qtc_framingham_ms", "Framingham", q.map(|q| q.framingham)),
-            ("qtc_hodges_ms", "Hodges", q.map(|q| q.hodges)),
-            ("qtc_rautaharju_ms", "Rautaharju", q.map(|q| q.rautaharju)),
-        ];
-        // A QTc note on a QT that the single beats do not confirm says so.
-        for (key, name, value) in formulas {
+        // A QTc note on a QT that the single beats do not confirm says so. A formula that gives no positive QTc
+        // gives none ([`Qtc::by_key`]): before, an artefact read as 16 bpm printed "QTc −148 ms, at or below the
+        // usual lower limit".
+        for (key, name) in super::qtc::FORMULAS {
+            let value = q.and_then(|q| q.by_key(key));
             let mut m = with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex));
             if doubtful_qt {
                 m.note = m.note.map(ranges::qtc_from_doubtful_qt);
@@ -256,6 +252,24 @@ mod tests {
         let agreed = Measurements { beat_medians: Intervals { qt_ms: Some(360.0), ..Intervals::default() }, ..m };
         assert!(qtc_notes(&agreed).iter().all(|n| !n.text.contains("do not confirm")));
         assert_eq!(qtc_notes(&agreed).len(), 5);
+    }
+
+    #[test]
+    fn a_formula_giving_no_positive_qtc_gives_none() {
+        // QT 283 ms at RR 3750 ms (16 bpm): Framingham gives 283 + 154 · (1 − 3.75) = −140.5 ms
+        // (Sagie et al. 1992, Am J Cardiol), which is no QTc; the other formulas stay positive and are given.
+        use super::super::{Intervals, qtc};
+        let m = Measurements {
+            intervals: Intervals { qt_ms: Some(283.0), ..Intervals::default() },
+            qtc: Some(qtc::qtc(283.0, 3750.0)),
+            ..Measurements::default()
+        };
+        let values = m.values();
+        let get = |k: &str| values.iter().find(|v| v.key == k).and_then(|v| v.value);
+        assert!(qtc::qtc(283.0, 3750.0).framingham < 0.0);
+        assert_eq!(get("qtc_framingham_ms"), None);
+        assert!(values.iter().find(|v| v.key == "qtc_framingham_ms").is_some_and(|v| v.note.is_none()));
+        assert!(get("qtc_bazett_ms").is_some_and(|v| (v - 283.0 / 3.75f64.sqrt()).abs() < 1e-9));
     }
 
     #[test]

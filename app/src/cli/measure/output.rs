@@ -3,7 +3,7 @@
 use std::collections::BTreeSet;
 use std::fmt::Write as _;
 
-use isoline_core::measure::{Measurements, ranges};
+use isoline_core::measure::{self, Measurements, ranges};
 use isoline_core::recording::{LeadName, StandardLead};
 
 /// One measured recording.
@@ -44,7 +44,7 @@ fn r2(v: Option<f64>) -> Option<f64> {
 #[must_use]
 pub fn json_value(row: &Row) -> serde_json::Value {
     let m = &row.m;
-    let q = m.qtc;
+    let q = |key: &str| m.qtc.and_then(|q| q.by_key(key));
     let mut st = serde_json::Map::new();
     for s in &m.st {
         st.insert(s.lead.to_string(), serde_json::json!(r2(s.j60_uv)));
@@ -66,11 +66,11 @@ pub fn json_value(row: &Row) -> serde_json::Value {
         "qrs_ms": r2(m.intervals.qrs_ms),
         "qt_ms": r2(m.intervals.qt_ms),
         "qtc_ms": {
-            "bazett": r2(q.map(|q| q.bazett)),
-            "fridericia": r2(q.map(|q| q.fridericia)),
-            "framingham": r2(q.map(|q| q.framingham)),
-            "hodges": r2(q.map(|q| q.hodges)),
-            "rautaharju": r2(q.map(|q| q.rautaharju)),
+            "bazett": r2(q("qtc_bazett_ms")),
+            "fridericia": r2(q("qtc_fridericia_ms")),
+            "framingham": r2(q("qtc_framingham_ms")),
+            "hodges": r2(q("qtc_hodges_ms")),
+            "rautaharju": r2(q("qtc_rautaharju_ms")),
         },
         "axis_deg": { "p": r2(m.axes.p_deg), "qrs": r2(m.axes.qrs_deg), "t": r2(m.axes.t_deg) },
         "st_uv": st,
@@ -153,7 +153,6 @@ pub fn to_csv(rows: &[Row]) -> String {
     out.push_str(",notes\n");
     for row in rows {
         let m = &row.m;
-        let q = m.qtc;
         let lead_names: Vec<String> = row.leads.iter().map(ToString::to_string).collect();
         let mut cells = vec![
             csv_field(&row.file),
@@ -171,15 +170,9 @@ pub fn to_csv(rows: &[Row]) -> String {
             num(m.intervals.pr_ms),
             num(m.intervals.qrs_ms),
             num(m.intervals.qt_ms),
-            num(q.map(|q| q.bazett)),
-            num(q.map(|q| q.fridericia)),
-            num(q.map(|q| q.framingham)),
-            num(q.map(|q| q.hodges)),
-            num(q.map(|q| q.rautaharju)),
-            num(m.axes.p_deg),
-            num(m.axes.qrs_deg),
-            num(m.axes.t_deg),
         ];
+        cells.extend(measure::qtc::FORMULAS.iter().map(|(key, _)| num(m.qtc.and_then(|q| q.by_key(key)))));
+        cells.extend([num(m.axes.p_deg), num(m.axes.qrs_deg), num(m.axes.t_deg)]);
         cells.extend(leads.iter().map(|l| num(m.st_j60(l))));
         cells.push(csv_field(&row.notes().join("; ")));
         out.push_str(&cells.join(","));
@@ -219,8 +212,8 @@ pub fn to_table(rows: &[Row]) -> String {
             cell(m.intervals.pr_ms),
             cell(m.intervals.qrs_ms),
             cell(m.intervals.qt_ms),
-            cell(m.qtc.map(|q| q.bazett)),
-            cell(m.qtc.map(|q| q.fridericia)),
+            cell(m.qtc.and_then(|q| q.by_key("qtc_bazett_ms"))),
+            cell(m.qtc.and_then(|q| q.by_key("qtc_fridericia_ms"))),
             cell(m.axes.qrs_deg),
             cell(m.rr.sdnn_ms),
             cell(m.rr.rmssd_ms),
