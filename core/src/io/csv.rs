@@ -2,7 +2,8 @@
 //!
 //! Reading: lines starting with `#` and blank lines before the header are skipped; lead names are matched to the
 //! standard names case-insensitively (`avr` → aVR); the rate comes from an evenly spaced `time_s` column or is
-//! given. An empty cell or `NaN` is an invalid sample. Writing: `time_s` (6 decimals), then one column per lead
+//! given (evenly spaced within the rounding of the times as written: 3 decimals at 360 Hz step 0.003 and 0.002 s).
+//! An empty cell, `NaN` or `NA` is an invalid sample. Writing: `time_s` (6 decimals), then one column per lead
 //! in mV with 4 decimals (0.1 µV), an empty cell for an invalid sample.
 
 use std::io::{BufRead, Write};
@@ -19,13 +20,15 @@ fn cells(line: &str) -> impl Iterator<Item = &str> {
     line.split(',').map(|c| c.trim().trim_matches('"').trim())
 }
 
-/// Parses one value cell; `Ok(None)` for an invalid (empty or NaN) sample.
+/// Parses one value cell; `Ok(None)` for an invalid sample (empty, `NaN`, or `NA` as R and spreadsheets write a
+/// missing value). A number beyond what a sample holds in µV (±3.4e35 mV, `1e308`) is an error, not a sample
+/// silently lost.
 fn value(cell: &str) -> Result<Option<f64>, ()> {
-    if cell.is_empty() || cell.eq_ignore_ascii_case("nan") {
+    if cell.is_empty() || cell.eq_ignore_ascii_case("nan") || cell.eq_ignore_ascii_case("na") {
         return Ok(None);
     }
     match cell.parse::<f64>() {
-        Ok(v) if v.is_finite() => Ok(Some(v)),
+        Ok(v) if ((v * 1000.0) as f32).is_finite() => Ok(Some(v)),
         _ => Err(()),
     }
 }
@@ -121,6 +124,10 @@ fn read_inner(
     }
     let mut samples: Vec<Vec<f32>> = vec![Vec::new(); lead_names.len()];
     let (mut t_first, mut t_prev, mut dt0) = (None::<f64>, 0.0f64, None::<f64>);
+    // The rounding of the time stamps, s: 10^−(the most decimals written so far; a writer that drops trailing
+    // zeros writes 0.5 for 0.500). A device writing 3 decimals at 360 Hz writes steps of 0.003 and 0.002 s for
+    // 2.78 ms. Until a time with decimals comes, 6 decimals, as Isoline writes.
+    let mut decimals: Option<usize> = None;
     let mut rows = 0usize;
     while next_line(&mut raw, &mut line_no)? {
         let text = std::str::from_utf8(&raw).map_err(|_| err(line_no, "not UTF-8 text".into()))?;
@@ -156,6 +163,8 @@ fn read_inner(
         };
         if let Some(tc) = time_col {
             let t = value(row[tc]).ok().flatten().ok_or_else(|| bad(tc))?;
+            decimals = decimals.max(decimals_written(row[tc]));
+            let t_unit = 10f64.powi(-(decimals.unwrap_or(6).min(12) as i32));
             match (t_first, dt0) {
                 (None, _) => t_first = Some(t),
                 (Some(_), None) => {
@@ -165,12 +174,15 @@ fn read_inner(
                     dt0 = Some(t - t_prev);
                 }
                 (Some(_), Some(dt)) => {
-                    // Tolerance: 1 % of the step plus the rounding of 6-decimal times.
-                    if ((t - t_prev) - dt).abs() > 0.01 * dt + 2e-6 {
+                    // Tolerance: 1 % of the step plus the rounding of the times (each step and the first step
+                    // may each be off by one unit of the last decimal written).
+                    if t <= t_prev || ((t - t_prev) - dt).abs() > 0.01 * dt + 2.0 * t_unit + 1e-9 {
                         return Err(err(
                             line_no,
                             format!(
-                                "column {} (time_s): step {:.6} s differs from the first step {dt:.6} s",
+                                "column {} (time_s): step {:.6} s differs from the first step {dt:.6} s (the \
+                                 samples must be evenly spaced; for times too coarsely rounded to show it, \
+                                 leave out the time_s column and give the rate)",
                                 tc + 1,
                                 t - t_prev
                             ),
@@ -217,6 +229,15 @@ fn read_inner(
     let leads = lead_names.into_iter().zip(samples).map(|((_, name), samples)| Lead { name, samples }).collect();
     let recording = Recording { leads, sample_rate, start: None, meta: Meta::default(), annotations: Vec::new() };
     Ok(Opened { recording, format: Format::Csv, files: vec![path.to_path_buf()], warnings: Vec::new() })
+}
+
+/// Digits written after the decimal point of a number; `None` without a decimal point (`0`) and in exponent
+/// notation (`1.5e-3`, whose rounding the digits do not tell).
+fn decimals_written(cell: &str) -> Option<usize> {
+    if cell.contains(['e', 'E']) {
+        return None;
+    }
+    cell.split_once('.').map(|(_, f)| f.bytes().take_while(u8::is_ascii_digit).count())
 }
 
 /// Appends `scaled / 10^decimals` in fixed point (`-0.0500` for −500 with 4 decimals).
@@ -295,14 +316,24 @@ mod tests {
         assert!(parse("\u{feff}time_s,I\n0,1\n0.004,2\n", None).is_ok(), "byte-order mark skipped");
         let e = parse("time_s,I\n0,1\n0.004,x\n", None).err().map(|e| e.to_string()).unwrap_or_default();
         assert!(e.contains("line 3") && e.contains("column 2"), "{e}");
-        let e = parse("time_s,I\n0,1\n0.004,1\n0.010,1\n", None).err().map(|e| e.to_string()).unwrap_or_default();
+        // Steps of 4 then 8 ms, written to the ms: more than the rounding of the times can make (2 ms at most).
+        let e = parse("time_s,I\n0,1\n0.004,1\n0.012,1\n", None).err().map(|e| e.to_string()).unwrap_or_default();
         assert!(e.contains("line 4") && e.contains("time_s"), "{e}");
+        // Written to the µs, 4 then 6 ms is uneven too.
+        assert!(parse("time_s,I\n0,1\n0.004000,1\n0.010000,1\n", None).is_err());
         let e = parse("I,II\n1,2\n", None).err().map(|e| e.to_string()).unwrap_or_default();
         assert!(e.contains("--rate"), "{e}");
         assert!(parse("I,II\n1,2\n", Some(500.0)).is_ok());
         assert!(parse("time_s,I\n0,1\n0.004,1\n", Some(500.0)).is_err(), "rates disagree");
         assert!(parse("I,i\n1,2\n", Some(500.0)).is_err(), "duplicate lead");
         assert!(parse("I,II\n1,2,3\n", Some(500.0)).is_err());
+        // NA is a missing sample; 1e308 mV and inf are no samples at all.
+        let o = parse("I,II\nNA,2\nna,3\n", Some(500.0)).map_err(|e| e.to_string());
+        assert!(o.is_ok_and(|o| o.recording.leads[0].samples.iter().all(|v| v.is_nan())));
+        for bad in ["1e308", "inf", "-1e40"] {
+            let e = parse(&format!("I,II\n{bad},2\n"), Some(500.0)).err().map(|e| e.to_string()).unwrap_or_default();
+            assert!(e.contains("line 2") && e.contains(bad), "{bad}: {e}");
+        }
         // A spreadsheet's decimal-comma export: the separator is named, not "'0;0,5' is not a number".
         let cases = [
             ("time_s;I;II\n0;0,5;1\n", "semicolons"),
@@ -314,6 +345,31 @@ mod tests {
             let e = parse(text, None).err().map(|e| e.to_string()).unwrap_or_default();
             assert!(e.contains("line 1") && e.contains(sep) && e.contains("comma-separated"), "{e}");
         }
+    }
+
+    #[test]
+    fn time_stamps_rounded_by_the_device_are_read() -> Result<(), ReadError> {
+        // 360 Hz written with 3 and 4 decimals (steps 0.003/0.002 s for 2.78 ms), 128 Hz with 3 decimals: the
+        // rate comes from the first and last time.
+        for (fs, decimals) in [(360.0, 3), (360.0, 4), (128.0, 3)] {
+            let mut text = String::from("time_s,II\n");
+            for k in 0..720 {
+                text.push_str(&format!("{:.*},{}\n", decimals, f64::from(k) / fs, k % 7));
+            }
+            let o = parse(&text, None)?;
+            assert_eq!(o.recording.sample_rate.hz(), fs, "{decimals} decimals");
+            assert_eq!(o.recording.len(), 720);
+        }
+        // A row missing from such a file is still found: at 360 Hz a double step (5.6 ms) is beyond rounding.
+        let mut text = String::from("time_s,II\n");
+        for k in (0..100).filter(|&k| k != 50) {
+            text.push_str(&format!("{:.3},1\n", f64::from(k) / 360.0));
+        }
+        let e = parse(&text, None).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(e.contains("line 52") && e.contains("evenly spaced"), "{e}");
+        assert_eq!(decimals_written("0.002"), Some(3));
+        assert_eq!((decimals_written("0"), decimals_written("1.5e-3")), (None, None));
+        Ok(())
     }
 
     #[test]
