@@ -70,7 +70,7 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
                 origin,
                 notes: row_notes(r.note.as_ref(), origin, an.measurements.beats_disagree(a.key))
                     .into_iter()
-                    .chain(representative_note(a.key, &an.measurements))
+                    .chain(row_extra_note(a.key, &an.measurements))
                     .collect(),
             }
         })
@@ -91,11 +91,16 @@ fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<R
     notes
 }
 
-/// The note that leads were left out of the representative beat (`ranges::leads_left_out`), shown on the QT row:
-/// the note is on no value's row in the measurements, as it concerns every value measured on that beat, and the
-/// QT is the one a late T end in the leads left out lengthens most. It stays whatever the reader changes.
-fn representative_note(key: &str, m: &measure::Measurements) -> Option<RangeNote> {
-    (key == "qt_ms").then(|| m.leads_left_out_note()).flatten()
+/// Notes on no value's row in the measurements, shown on the row they bear on most; they stay whatever the reader
+/// changes. On the QT row, that leads were left out of the representative beat (`ranges::leads_left_out`): it
+/// concerns every value measured on that beat, and the QT is the one a late T end in the leads left out
+/// lengthens most. On the RR row, a pause (`ranges::pause`), which the mean RR and the rate include.
+fn row_extra_note(key: &str, m: &measure::Measurements) -> Option<RangeNote> {
+    match key {
+        "qt_ms" => m.leads_left_out_note(),
+        "rr_ms" => m.rr.rhythm.longest_rr_ms.and_then(ranges::pause),
+        _ => None,
+    }
 }
 
 /// Puts typed and caliper values in place and recomputes what depends on them (rate from RR, QTc from QT and RR).

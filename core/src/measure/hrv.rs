@@ -64,6 +64,10 @@ pub struct Rhythm {
     /// Beats typed other (premature, wide or unlike the dominant beats), left out of the regularity.
     #[serde(default)]
     pub other_beats: usize,
+    /// The longest RR interval between any two beats (not across a gap of the recording), ms: a pause shows here
+    /// whatever the beats around it are.
+    #[serde(default)]
+    pub longest_rr_ms: Option<f64>,
 }
 
 impl Rhythm {
@@ -185,7 +189,8 @@ pub fn rhythm(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Rhythm {
     let rr_cv = m.zip(sample_sd(&rr)).map(|(m, sd)| sd / m);
     let successive = m.zip(rmssd_runs(&runs)).map(|(m, d)| d / m);
     let regular = successive.filter(|_| enough(&runs)).map(|v| !is_irregular(v));
-    Rhythm { rr_count: rr.len(), rr_cv, successive, regular, other_beats }
+    let longest_rr_ms = as_ms(pairs(beats, fs, gaps, Kept::Rr), fs).into_iter().flatten().reduce(f64::max);
+    Rhythm { rr_count: rr.len(), rr_cv, successive, regular, other_beats, longest_rr_ms }
 }
 
 /// All RR statistics of a beat list at rate `fs`, leaving out intervals across or next to `gaps` (sorted; see
@@ -229,10 +234,13 @@ mod tests {
         let s = rr_stats(&b, fs(), &gaps);
         assert_eq!((s.nn_count, s.rr_ms, s.sdnn_ms), (6, Some(800.0), Some(0.0)));
         assert_eq!(s.rhythm.regular, Some(true));
-        // Without the gap the long interval counts: a slower rate and an irregular rhythm.
+        assert_eq!(s.rhythm.longest_rr_ms, Some(800.0), "no pause across a gap");
+        // Without the gap the long interval counts: a slower rate, an irregular rhythm and a 2.4-s pause.
         let s = rr_stats(&b, fs(), &[]);
         assert_eq!(s.nn_count, 7);
         assert_eq!(s.rhythm.regular, Some(false));
+        assert_eq!(s.rhythm.longest_rr_ms, Some(2400.0));
+        assert!(super::super::ranges::pause(2400.0).is_some_and(|n| n.text.contains("2.4 s")));
     }
 
     #[test]

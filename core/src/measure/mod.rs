@@ -199,7 +199,7 @@ impl Measurements {
 
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
-    /// its own; then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
+    /// its own; then the pause note ([`ranges::pause`]); then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
     /// on no value's row); then the note that a PR or QRS of the representative beat disagrees
     /// with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
@@ -215,6 +215,7 @@ impl Measurements {
         {
             notes.push(gain);
         }
+        notes.extend(self.rr.rhythm.longest_rr_ms.and_then(ranges::pause));
         notes.extend(self.leads_left_out_note());
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {

@@ -68,6 +68,12 @@ pub const SOURCE_EINTHOVEN: &str = "Einthoven's law; Goldberger 1942, Am Heart J
 /// Source of the beat-to-beat irregularity threshold.
 pub const SOURCE_RR_IRREGULAR: &str = "Dash et al. 2009, Ann Biomed Eng 37:1701-9";
 
+/// Source of the pause threshold ([`pause`]).
+// Common practice, no source: Holter and monitoring reports list RR intervals of 2 s or more as pauses.
+pub const SOURCE_PAUSE: &str = "usual reporting threshold";
+/// An RR interval at least this long is a pause, ms (see [`SOURCE_PAUSE`]).
+pub const PAUSE_MS: f64 = 2000.0;
+
 /// Source of the note that two estimates of one interval disagree ([`beats_disagree`]): Isoline's own check.
 pub const SOURCE_CONSISTENCY: &str = "representative beat against single beats";
 /// Source of the note that leads were left out of the representative beat ([`leads_left_out`]).
@@ -330,6 +336,24 @@ pub fn leads_left_out(leads: &[crate::recording::LeadName], with_axes: bool) -> 
     )
 }
 
+/// A pause: the longest RR interval `longest_ms` at or above [`PAUSE_MS`]. The heart rate is the mean over the
+/// dominant beats' intervals, the pause included, so a single pause in a short recording lowers it: the note
+/// says where the rate comes from.
+#[must_use]
+pub fn pause(longest_ms: f64) -> Option<RangeNote> {
+    note(
+        "rr_ms",
+        format!(
+            "Pause: longest RR interval {:.1} s ({:.0} s or more; the heart rate is the mean over all intervals, \
+             the pause included; {SOURCE_PAUSE})",
+            longest_ms / 1000.0,
+            PAUSE_MS / 1000.0
+        ),
+        SOURCE_PAUSE,
+    )
+    .filter(|_| longest_ms >= PAUSE_MS)
+}
+
 /// The underlying rhythm irregular: beat-to-beat variation of the NN intervals at or above
 /// [`super::hrv::IRREGULAR_SUCCESSIVE`] (see [`super::hrv::Rhythm`]). `variation` is a fraction.
 #[must_use]
@@ -418,6 +442,8 @@ mod tests {
         // A negative axis is printed with the minus sign the range uses.
         assert!(qrs_axis(-45.0).is_some_and(|n| n.text.starts_with("QRS axis \u{2212}45° —")));
         assert!(rr_irregular(0.04).is_none() && rr_irregular(0.2).is_some());
+        assert!(pause(1990.0).is_none());
+        assert!(pause(4000.0).is_some_and(|n| n.key == "rr_ms" && n.text.contains("4.0 s")));
         // Two estimates of one interval: twice the IEC 60601-2-25 mean allowance (references.md §6, from memory).
         assert!(beats_disagree("qt_ms", "QT", 352.0, 404.0).is_some_and(|n| n.text.starts_with("QT 352 ms on the")));
         assert!(
