@@ -3,7 +3,8 @@
 //! Reading: lines starting with `#` and blank lines before the header are skipped; lead names are matched to the
 //! standard names case-insensitively (`avr` → aVR); the rate comes from an evenly spaced `time_s` column or is
 //! given (evenly spaced within the rounding of the times as written: 3 decimals at 360 Hz step 0.003 and 0.002 s).
-//! An empty cell, `NaN` or `NA` is an invalid sample. Writing: `time_s` (6 decimals), then one column per lead
+//! An empty cell, `NaN` or `NA` is an invalid sample. Where some columns are named as ECG leads, columns named
+//! otherwise (`PLETH`, `RESP`) are left out with a warning. Writing: `time_s` (6 decimals), then one column per lead
 //! in mV with 4 decimals (0.1 µV), an empty cell for an invalid sample.
 
 use std::io::{BufRead, Write};
@@ -122,6 +123,23 @@ fn read_inner(
     if lead_names.is_empty() {
         return Err(err(header_line, "no lead columns in the header row".into()));
     }
+    // A monitor's export may hold other signals beside the ECG (a pulse wave, respiration): where some columns are
+    // named as ECG leads, the others are left out, and said so (a PLETH column measured as a lead gave QT 706 ms).
+    let mut warnings = Vec::new();
+    if lead_names.iter().any(|(c, _)| crate::io::is_ecg_label(&names[*c])) {
+        lead_names.retain(|(c, _)| {
+            let ecg = crate::io::is_ecg_label(&names[*c]);
+            if !ecg {
+                warnings.push(format!(
+                    "{}: column {} ('{}') skipped: not an ECG lead",
+                    path.display(),
+                    c + 1,
+                    crate::io::printable(&names[*c])
+                ));
+            }
+            ecg
+        });
+    }
     let mut samples: Vec<Vec<f32>> = vec![Vec::new(); lead_names.len()];
     let (mut t_first, mut t_prev, mut dt0) = (None::<f64>, 0.0f64, None::<f64>);
     // The rounding of the time stamps, s: 10^−(the most decimals written so far; a writer that drops trailing
@@ -228,7 +246,7 @@ fn read_inner(
     }
     let leads = lead_names.into_iter().zip(samples).map(|((_, name), samples)| Lead { name, samples }).collect();
     let recording = Recording { leads, sample_rate, start: None, meta: Meta::default(), annotations: Vec::new() };
-    Ok(Opened { recording, format: Format::Csv, files: vec![path.to_path_buf()], warnings: Vec::new() })
+    Ok(Opened { recording, format: Format::Csv, files: vec![path.to_path_buf()], warnings })
 }
 
 /// Digits written after the decimal point of a number; `None` without a decimal point (`0`) and in exponent
@@ -345,6 +363,19 @@ mod tests {
             let e = parse(text, None).err().map(|e| e.to_string()).unwrap_or_default();
             assert!(e.contains("line 1") && e.contains(sep) && e.contains("comma-separated"), "{e}");
         }
+    }
+
+    #[test]
+    fn other_signals_beside_named_leads_are_left_out_and_said() -> Result<(), ReadError> {
+        let o = parse("time_s,II,PLETH,V5,Resp\n0,1,50,2,7\n0.004,1,51,2,7\n", None)?;
+        let names: Vec<String> = o.recording.leads.iter().map(|l| l.name.to_string()).collect();
+        assert_eq!(names, ["II", "V5"]);
+        assert_eq!(o.warnings.len(), 2);
+        assert!(o.warnings[0].contains("column 3 ('PLETH') skipped"), "{:?}", o.warnings);
+        // With no column named as a lead, every column is one (channels numbered by a device).
+        let o = parse("time_s,ch1,ch2\n0,1,2\n0.004,1,2\n", None)?;
+        assert_eq!((o.recording.leads.len(), o.warnings.len()), (2, 0));
+        Ok(())
     }
 
     #[test]

@@ -149,6 +149,18 @@ fn open_as_written(path: &Path, options: &OpenOptions) -> Result<Opened, ReadErr
     }
 }
 
+/// Whether a signal's name names an ECG signal (`ECG …`, `EKG …`, a standard lead name, or MIT-style `MLII`).
+/// Readers whose files mix ECG with other signals (a pulse wave `PLETH`, respiration `RESP`) take the ECG ones
+/// as leads where any is so named.
+#[must_use]
+pub(crate) fn is_ecg_label(label: &str) -> bool {
+    let upper = label.to_ascii_uppercase();
+    upper.contains("ECG")
+        || upper.contains("EKG")
+        || crate::recording::StandardLead::parse(label).is_some()
+        || upper.starts_with("ML")
+}
+
 /// Text quoted from a file, made safe to print in a message: printable ASCII stays as it is, anything else
 /// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`).
 #[must_use]

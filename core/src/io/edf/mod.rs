@@ -9,7 +9,7 @@ use std::io::Read;
 use std::path::Path;
 
 use super::{Format, MAX_TOTAL_SAMPLES, Opened, ReadError, file_len};
-use crate::recording::{Annotation, Lead, LeadName, Recording, StandardLead};
+use crate::recording::{Annotation, Lead, LeadName, Recording};
 use crate::units::Hertz;
 
 pub mod header;
@@ -43,12 +43,6 @@ fn lead_name(label: &str) -> LeadName {
     }
 }
 
-/// Whether a label names an ECG signal (`ECG …`, `EKG …`, a standard lead name, or MIT-style `MLII`).
-fn is_ecg_label(label: &str) -> bool {
-    let upper = label.to_ascii_uppercase();
-    upper.contains("ECG") || upper.contains("EKG") || StandardLead::parse(label).is_some() || upper.starts_with("ML")
-}
-
 /// Which signals become leads (same rate, ECG-like, voltage), with a warning for every other non-annotation
 /// signal.
 fn choose_leads(
@@ -60,7 +54,7 @@ fn choose_leads(
     let voltage: Vec<usize> = (0..signals.len())
         .filter(|&i| !signals[i].is_annotations() && uv_per_unit(&signals[i].physical_dimension).is_some())
         .collect();
-    let ecg: Vec<usize> = voltage.iter().copied().filter(|&i| is_ecg_label(&signals[i].label)).collect();
+    let ecg: Vec<usize> = voltage.iter().copied().filter(|&i| crate::io::is_ecg_label(&signals[i].label)).collect();
     let pool = if ecg.is_empty() { voltage } else { ecg };
     let Some(max_spr) = pool.iter().map(|&i| signals[i].samples_per_record).max() else {
         return Err(ReadError::unsupported(path, "no signal is a voltage (physical dimension uV, mV or V)"));
@@ -341,6 +335,7 @@ fn trim_padding(leads: &mut [Vec<f32>], spr: usize) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::recording::StandardLead;
 
     #[test]
     fn labels_and_units() {
@@ -348,7 +343,7 @@ mod tests {
         assert_eq!(lead_name("ECG avr"), LeadName::Standard(StandardLead::AVR));
         assert_eq!(lead_name("II"), LeadName::Standard(StandardLead::II));
         assert_eq!(lead_name("ECG1"), LeadName::Other("ECG1".into()));
-        assert!(is_ecg_label("ECG1") && !is_ecg_label("EEG Fpz-Cz"));
+        assert!(crate::io::is_ecg_label("ECG1") && !crate::io::is_ecg_label("EEG Fpz-Cz"));
         assert_eq!(uv_per_unit("mV"), Some(1000.0));
         assert_eq!(uv_per_unit("degC"), None);
     }
