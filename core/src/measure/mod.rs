@@ -199,7 +199,8 @@ impl Measurements {
 
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
-    /// its own; then the pause note ([`ranges::pause`]); then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
+    /// its own; then the pause note ([`ranges::pause`]); then that no representative beat was made
+    /// ([`ranges::no_representative_beat`]); then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
     /// on no value's row); then the note that a PR or QRS of the representative beat disagrees
     /// with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
@@ -216,6 +217,9 @@ impl Measurements {
             notes.push(gain);
         }
         notes.extend(self.rr.rhythm.longest_rr_ms.and_then(ranges::pause));
+        if self.intervals_source == IntervalSource::BeatMedians {
+            notes.extend(ranges::no_representative_beat());
+        }
         notes.extend(self.leads_left_out_note());
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
@@ -299,6 +303,22 @@ mod tests {
         let m = measure(&rec, &bigeminy, None);
         assert_eq!(m.rr.heart_rate_bpm, None);
         assert_eq!(m.notes(), ranges::no_nn_intervals().into_iter().collect::<Vec<_>>());
+        // Two beats with their boundaries and no representative beat (a 2-s strip): QRS from the single beats,
+        // and a note that the axes and ST are absent for want of a representative beat.
+        let beat = |r: usize| Beat {
+            r,
+            kind: BeatKind::Dominant,
+            bounds: Boundaries {
+                qrs_on: Some(r - 20),
+                qrs_end: Some(r + 25),
+                t_end: Some(r + 190),
+                ..Boundaries::default()
+            },
+        };
+        let two = [beat(500), beat(900)];
+        let m = measure(&rec, &two, None);
+        assert_eq!(m.intervals_source, IntervalSource::BeatMedians);
+        assert!(m.notes().iter().any(|n| n.key == ranges::KEY_REPRESENTATIVE && n.text.contains("No representative")));
         Ok(())
     }
 }

@@ -281,6 +281,20 @@ pub fn no_beats() -> Option<RangeNote> {
     )
 }
 
+/// Beats were found but no representative beat could be made of them (fewer than 3 beats whose span lies in the
+/// recording, as in a 2-s strip): the axes and ST levels, measured on it, are absent, and the intervals are the
+/// medians of the single beats' own. Said so the empty rows are not read as a failure to find beats.
+#[must_use]
+pub fn no_representative_beat() -> Option<RangeNote> {
+    note(
+        KEY_REPRESENTATIVE,
+        "No representative beat (fewer than 3 whole beats): axes and ST levels are not measured, and the intervals \
+         are medians of the single beats"
+            .to_string(),
+        SOURCE_LEADS_LEFT_OUT,
+    )
+}
+
 /// Beats were found but no two dominant beats follow each other (bigeminy, or most beats of another kind): the
 /// heart rate, RR statistics and QTc, which are taken from the intervals between dominant beats, are absent.
 /// Said so the empty rows are not read as a failure to find beats.
