@@ -18,6 +18,15 @@ use crate::units::Hertz;
 /// Half-width of the R peak search around the QRS middle found by the feature, s.
 pub const R_SEARCH_S: f64 = 0.100;
 
+/// A QRS has a steep limb: the steepest slope within 50 ms of a beat's R peak (over all leads, each slope taken
+/// over 8 ms) must reach this, µV/s, or what was found is no QRS and no beat. P waves alone (ventricular
+/// standstill) were read as a regular rhythm at 75 bpm with a QRS of 104 ms.
+// Common practice, no source: a P or T wave rises a few tenths of a mV in 50–150 ms (2–7 mV/s); a QRS, even of
+// low voltage, at least 0.3 mV in 30 ms (10 mV/s). Measured, the slowest of the shared real records (LUDB
+// 1–50, QT Database, MIT-BIH 100), as the median over a record's beats: 17 mV/s (LUDB 34); P waves alone 6.8
+// mV/s.
+const MIN_QRS_SLOPE_UV_PER_S: f64 = 8000.0;
+
 /// Detects beats on every lead together. Returns R peaks in time order with their kind; boundaries are
 /// empty (see [`crate::delineate::delineate_beats`]). Works on raw or filtered recordings (it band-passes
 /// internally); a flat or noise-only lead gets no weight.
@@ -35,8 +44,33 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     let peaks = peaks::pick(&f.combined, fs);
     let gaps = gaps::find(&leads, fs);
     let (r, unsure): (Vec<usize>, Vec<bool>) = place_r(&leads, &f.weights, &peaks, fs, &gaps).into_iter().unzip();
+    // Peaks without a QRS's steep limb (P or T waves taken for beats where no QRS follows) are no beats.
+    let steep: Vec<bool> = qrs_slopes(&leads, &r, fs).iter().map(|&s| s >= MIN_QRS_SLOPE_UV_PER_S).collect();
+    let (r, unsure): (Vec<usize>, Vec<bool>) =
+        r.into_iter().zip(unsure).zip(&steep).filter(|(_, s)| **s).map(|(b, _)| b).unzip();
     let dominant = typing::dominant(&leads, &f.weights, &r, &unsure, fs, &gaps);
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
+}
+
+/// For each R peak of `r`, the steepest slope within 50 ms of it (over all leads, each slope over about 8 ms: the
+/// difference of the samples 4 ms either side), µV/s.
+fn qrs_slopes(leads: &[&[f32]], r: &[usize], fs: f64) -> Vec<f64> {
+    let h = ((0.004 * fs).round() as usize).max(1);
+    let reach = (0.050 * fs).round() as usize;
+    r.iter()
+        .map(|&p| {
+            let ks = p.saturating_sub(reach).max(h)..(p + reach);
+            leads
+                .iter()
+                .flat_map(|x| {
+                    ks.clone().filter(|&k| k + h < x.len()).map(move |k| f64::from((x[k + h] - x[k - h]).abs()))
+                })
+                .filter(|v| v.is_finite())
+                .fold(0.0, f64::max)
+                * fs
+                / (2 * h) as f64
+        })
+        .collect()
 }
 
 /// Places each R peak on the lead with the clearest QRS that is valid around it: the sample of largest absolute
@@ -296,6 +330,27 @@ mod tests {
         let near = beats[3].r + 20..beats[4].r - 20;
         let rr = rr_ms(&beats, hz, std::slice::from_ref(&near));
         assert!(rr[3..=5].iter().all(Option::is_none) && rr[2].is_some() && rr[6].is_some());
+    }
+
+    #[test]
+    fn waves_too_slow_for_a_qrs_are_no_beats() {
+        // P waves alone every 0.8 s (150 µV, Gaussian of 25 ms SD: at most 3.6 mV/s) in two leads: no beat, where
+        // they were read as a regular rhythm. With two QRS complexes (1.2 mV, 12 ms) among them, those two only.
+        let fs = 500.0;
+        let n = (10.0 * fs) as usize;
+        let p_times: Vec<f64> = (0..12).map(|i| 0.4 + 0.8 * f64::from(i)).collect();
+        let wave = |s: f64, qrs: &[f64]| -> f32 {
+            let p: f64 = p_times.iter().map(|&t| 150.0 * (-((s - t) / 0.025).powi(2) / 2.0).exp()).sum();
+            let q: f64 = qrs.iter().map(|&t| 1200.0 * (-((s - t) / 0.012).powi(2)).exp()).sum();
+            (p + q) as f32
+        };
+        let lead = |qrs: &[f64]| -> Vec<f32> { (0..n).map(|k| wave(k as f64 / fs, qrs)).collect() };
+        assert!(detect_beats(&rec(vec![lead(&[]), lead(&[])], fs)).is_empty());
+        let qrs = [p_times[0] + 0.16, p_times[1] + 0.16];
+        let beats = detect_beats(&rec(vec![lead(&qrs), lead(&qrs)], fs));
+        let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+        assert_eq!(rs.len(), 2, "{rs:?}");
+        assert!(rs.iter().zip(qrs).all(|(&r, t)| r.abs_diff((t * fs) as usize) <= 2), "{rs:?}");
     }
 
     #[test]

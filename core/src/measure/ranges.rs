@@ -274,8 +274,8 @@ pub fn qrs_axis(deg: f64) -> Option<RangeNote> {
 pub fn no_beats() -> Option<RangeNote> {
     note(
         "heart_rate_bpm",
-        "No heartbeat found: every measurement is absent (a flat, noise-only or mostly missing recording, or not an \
-         ECG?)"
+        "No heartbeat found: every measurement is absent (a flat, noise-only or mostly missing recording, waves too \
+         slow for a QRS, or not an ECG?)"
             .to_string(),
         SOURCE_NO_BEATS,
     )
