@@ -9,7 +9,7 @@ use crate::filter::Biquad;
 
 /// Length of a normalisation block, seconds.
 const BLOCK_S: f64 = 2.0;
-/// Blocks on each side over which the typical QRS height is the median of the block maxima (≈ 1 min).
+/// Blocks on each side over which the typical QRS height is the lower quartile of the block maxima (≈ 1 min).
 const BLOCK_SPAN: usize = 15;
 /// A lead's normalised feature is clipped here, so a noise burst in one lead cannot dominate.
 const CLIP: f32 = 2.5;
@@ -185,12 +185,29 @@ fn median(v: &mut [f32]) -> f32 {
 }
 
 /// Lower quartile of `v` (reordered); 0 when empty.
+/// With fewer than four values, the median: the lower quartile of two or three is their least, which in a
+/// recording of a few seconds is a short last block or one with no QRS.
 fn lower_quartile(v: &mut [f32]) -> f32 {
     if v.is_empty() {
         return 0.0;
     }
-    let at = v.len() / 4;
+    let at = if v.len() >= 4 { v.len() / 4 } else { v.len() / 2 };
     *v.select_nth_unstable_by(at, f32::total_cmp).1
+}
+
+/// Per block of `block` samples of `n`, how many fall in `runs` (sorted, not overlapping): one pass over the runs.
+fn missing_per_block(runs: &[Range<usize>], n: usize, block: usize) -> Vec<usize> {
+    let mut missing = vec![0usize; n.div_ceil(block)];
+    for r in runs {
+        let mut k = r.start.min(n);
+        while k < r.end.min(n) {
+            let b = k / block;
+            let e = ((b + 1) * block).min(r.end).min(n);
+            missing[b] += e - k;
+            k = e;
+        }
+    }
+    missing
 }
 
 /// Samples per normalisation block.
@@ -209,14 +226,13 @@ fn block_len(fs: f64) -> usize {
 fn normalise(mwi: &[f32], fs: f64, runs: &[Range<usize>]) -> (Vec<f32>, f64) {
     let n = mwi.len();
     let block = block_len(fs);
-    let missing_in = |b: usize| -> usize {
-        let (a, e) = (b * block, ((b + 1) * block).min(n));
-        runs.iter().map(|r| r.end.min(e).saturating_sub(r.start.max(a))).sum()
-    };
+    let missing = missing_per_block(runs, n, block);
+    // A block counts when at most a tenth of it is missing and it is at least half a block long (a recording's
+    // short last block may hold no QRS).
     let maxima: Vec<Option<f32>> = mwi
         .chunks(block)
-        .enumerate()
-        .map(|(b, c)| (missing_in(b) * 10 <= c.len()).then(|| c.iter().copied().fold(0.0, f32::max)))
+        .zip(&missing)
+        .map(|(c, &m)| (m * 10 <= c.len() && c.len() * 2 >= block).then(|| c.iter().copied().fold(0.0, f32::max)))
         .collect();
     let mut all: Vec<f32> = maxima.iter().flatten().copied().collect();
     if all.is_empty() {
@@ -226,8 +242,18 @@ fn normalise(mwi: &[f32], fs: f64, runs: &[Range<usize>]) -> (Vec<f32>, f64) {
     let step = (n / 200_000).max(1);
     let mut sub: Vec<f32> = mwi.iter().step_by(step).copied().collect();
     let level = median(&mut sub);
-    let decile = sub.len() / 10;
-    let low = if sub.is_empty() { level } else { *sub.select_nth_unstable_by(decile, f32::total_cmp).1 };
+    // The lower decile of the samples recorded (over a bridged stretch the feature is about 0: a lead a tenth
+    // missing would read as clean).
+    let mut recorded: Vec<f32> = Vec::with_capacity(sub.len());
+    let mut run = runs.iter().peekable();
+    for k in (0..n).step_by(step) {
+        while run.next_if(|r| r.end <= k).is_some() {}
+        if run.peek().is_none_or(|r| k < r.start) {
+            recorded.push(mwi[k]);
+        }
+    }
+    let decile = recorded.len() / 10;
+    let low = if recorded.is_empty() { level } else { *recorded.select_nth_unstable_by(decile, f32::total_cmp).1 };
     if typical.is_nan() || typical <= 1e-6 {
         return (Vec::new(), 0.0);
     }
@@ -262,6 +288,17 @@ fn normalise(mwi: &[f32], fs: f64, runs: &[Range<usize>]) -> (Vec<f32>, f64) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn missing_samples_are_counted_per_block() {
+        assert_eq!(missing_per_block(&[2..5, 7..13], 15, 4), vec![2, 2, 4, 1]);
+        assert_eq!(missing_per_block(&[], 8, 4), vec![0, 0]);
+        assert_eq!(missing_per_block(&[6..20], 8, 4), vec![0, 2]);
+        let mut few = [5.0f32, 1.0, 9.0];
+        assert_eq!(lower_quartile(&mut few), 5.0, "the median of three");
+        let mut more = [5.0f32, 1.0, 9.0, 7.0, 3.0];
+        assert_eq!(lower_quartile(&mut more), 3.0);
+    }
 
     #[test]
     fn streaming_feature_matches_step_by_step_computation() {
