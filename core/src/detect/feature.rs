@@ -293,7 +293,7 @@ mod tests {
     fn missing_samples_are_counted_per_block() {
         assert_eq!(missing_per_block(&[2..5, 7..13], 15, 4), vec![2, 2, 4, 1]);
         assert_eq!(missing_per_block(&[], 8, 4), vec![0, 0]);
-        assert_eq!(missing_per_block(&[6..20], 8, 4), vec![0, 2]);
+        assert_eq!(missing_per_block(&[6..20, 30..31], 8, 4), vec![0, 2]);
         let mut few = [5.0f32, 1.0, 9.0];
         assert_eq!(lower_quartile(&mut few), 5.0, "the median of three");
         let mut more = [5.0f32, 1.0, 9.0, 7.0, 3.0];

@@ -74,12 +74,23 @@ fn qrs_slopes(leads: &[&[f32]], r: &[usize], fs: f64) -> Vec<f64> {
                 if b < a + 2 * m + 2 * h + 2 {
                     continue;
                 }
+                // The running sum holds the valid samples; an average with an invalid sample in it is NaN (a lost
+                // sample must not make every later average NaN).
                 avg.clear();
-                let mut sum: f64 = x[a..a + 2 * m + 1].iter().map(|&v| f64::from(v)).sum();
-                avg.push(sum);
-                for k in a + 2 * m + 1..b {
-                    sum += f64::from(x[k]) - f64::from(x[k - 2 * m - 1]);
-                    avg.push(sum);
+                let valid = |v: f32| if v.is_finite() { (f64::from(v), 0) } else { (0.0, 1) };
+                let (mut sum, mut lost) = (0.0f64, 0usize);
+                for k in a..b {
+                    let (v, l) = valid(x[k]);
+                    sum += v;
+                    lost += l;
+                    if k > a + 2 * m {
+                        let (v, l) = valid(x[k - 2 * m - 1]);
+                        sum -= v;
+                        lost -= l;
+                    }
+                    if k >= a + 2 * m {
+                        avg.push(if lost == 0 { sum } else { f64::NAN });
+                    }
                 }
                 let d = avg.windows(2 * h + 1).map(|w| (w[2 * h] - w[0]).abs()).filter(|v| v.is_finite());
                 steepest = steepest.max(d.fold(0.0, f64::max));
