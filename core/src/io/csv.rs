@@ -3,8 +3,8 @@
 //! Reading: lines starting with `#` and blank lines before the header are skipped; lead names are matched to the
 //! standard names case-insensitively (`avr` → aVR); the rate comes from an evenly spaced `time_s` column or is
 //! given (evenly spaced within the rounding of the times as written: 3 decimals at 360 Hz step 0.003 and 0.002 s).
-//! An empty cell, `NaN` or `NA` is an invalid sample. Where some columns are named as ECG leads, columns named
-//! otherwise (`PLETH`, `RESP`) are left out with a warning. Writing: `time_s` (6 decimals), then one column per lead
+//! An empty cell, `NaN` or `NA` is an invalid sample. Columns named as another signal a monitor exports (`PLETH`,
+//! `RESP`, `ABP`…) are left out with a warning. Writing: `time_s` (6 decimals), then one column per lead
 //! in mV with 4 decimals (0.1 µV), an empty cell for an invalid sample.
 
 use std::io::{BufRead, Write};
@@ -60,6 +60,15 @@ fn read_inner(
     size_hint: Option<u64>,
 ) -> Result<Opened, ReadError> {
     let err = |line: usize, what: String| ReadError::invalid(path, format!("line {line}: {what}"));
+    let uneven = |line: usize, step: f64, first: f64| {
+        err(
+            line,
+            format!(
+                "time_s: step {step:.6} s differs from the first step {first:.6} s (the samples must be evenly \
+                 spaced; for times too coarsely rounded to show it, leave out the time_s column and give the rate)"
+            ),
+        )
+    };
     let mut raw = Vec::new();
     let mut line_no = 0usize;
     // Reads the next line into `raw`; false at the end of the input.
@@ -123,22 +132,24 @@ fn read_inner(
     if lead_names.is_empty() {
         return Err(err(header_line, "no lead columns in the header row".into()));
     }
-    // A monitor's export may hold other signals beside the ECG (a pulse wave, respiration): where some columns are
-    // named as ECG leads, the others are left out, and said so (a PLETH column measured as a lead gave QT 706 ms).
+    // A monitor's export may hold other signals beside the ECG (a pulse wave, respiration, pressures): columns
+    // named as one are left out, and said so (a PLETH column measured as a lead gave QT 706 ms). Any other name
+    // is a lead: Frank leads (vx, vy, vz), MCL1, CM5 or a device's channel numbers.
     let mut warnings = Vec::new();
-    if lead_names.iter().any(|(c, _)| crate::io::is_ecg_label(&names[*c])) {
-        lead_names.retain(|(c, _)| {
-            let ecg = crate::io::is_ecg_label(&names[*c]);
-            if !ecg {
-                warnings.push(format!(
-                    "{}: column {} ('{}') skipped: not an ECG lead",
-                    path.display(),
-                    c + 1,
-                    crate::io::printable(&names[*c])
-                ));
-            }
-            ecg
-        });
+    lead_names.retain(|(c, _)| {
+        let other = is_other_signal(&names[*c]);
+        if other {
+            warnings.push(format!(
+                "{}: column {} ('{}') skipped: not an ECG lead",
+                path.display(),
+                c + 1,
+                crate::io::printable(&names[*c])
+            ));
+        }
+        !other
+    });
+    if lead_names.is_empty() {
+        return Err(err(header_line, "no ECG lead columns in the header row".into()));
     }
     let mut samples: Vec<Vec<f32>> = vec![Vec::new(); lead_names.len()];
     let (mut t_first, mut t_prev, mut dt0) = (None::<f64>, 0.0f64, None::<f64>);
@@ -146,6 +157,8 @@ fn read_inner(
     // zeros writes 0.5 for 0.500). A device writing 3 decimals at 360 Hz writes steps of 0.003 and 0.002 s for
     // 2.78 ms. Until a time with decimals comes, 6 decimals, as Isoline writes.
     let mut decimals: Option<usize> = None;
+    // The shortest and longest steps with their lines, for the check at the end.
+    let (mut shortest, mut longest) = ((f64::INFINITY, 0usize), (0.0f64, 0usize));
     let mut rows = 0usize;
     while next_line(&mut raw, &mut line_no)? {
         let text = std::str::from_utf8(&raw).map_err(|_| err(line_no, "not UTF-8 text".into()))?;
@@ -192,20 +205,21 @@ fn read_inner(
                     dt0 = Some(t - t_prev);
                 }
                 (Some(_), Some(dt)) => {
-                    // Tolerance: 1 % of the step plus the rounding of the times (each step and the first step
-                    // may each be off by one unit of the last decimal written).
-                    if t <= t_prev || ((t - t_prev) - dt).abs() > 0.01 * dt + 2.0 * t_unit + 1e-9 {
-                        return Err(err(
-                            line_no,
-                            format!(
-                                "column {} (time_s): step {:.6} s differs from the first step {dt:.6} s (the \
-                                 samples must be evenly spaced; for times too coarsely rounded to show it, \
-                                 leave out the time_s column and give the rate)",
-                                tc + 1,
-                                t - t_prev
-                            ),
-                        ));
+                    // Tolerance: 1 % of the step plus the rounding of the times: a step between rounded times is
+                    // the true step rounded down or up to a whole unit of the last decimal written, so two steps
+                    // differ by at most one unit (see the check after the last row for steps that are whole).
+                    if t <= t_prev || ((t - t_prev) - dt).abs() > 0.01 * dt + t_unit + 1e-9 {
+                        return Err(uneven(line_no, t - t_prev, dt));
                     }
+                }
+            }
+            if t_first.is_some() && dt0.is_some() {
+                let step = t - t_prev;
+                if step < shortest.0 {
+                    shortest = (step, line_no);
+                }
+                if step > longest.0 {
+                    longest = (step, line_no);
                 }
             }
             t_prev = t;
@@ -218,6 +232,21 @@ fn read_inner(
     }
     if rows == 0 {
         return Err(err(line_no, "no data rows".into()));
+    }
+    // Where the true step is a whole number of units of the times as written (2 ms written to the ms), every step
+    // is that step: one twice as long is a missing row, which the one-unit tolerance above lets through at 1000 Hz.
+    // The true step is known from the first and last times to a unit over the number of steps; 20 rows at least.
+    if let (Some(t0), Some(dt)) = (t_first, dt0)
+        && rows >= 20
+    {
+        let unit = 10f64.powi(-(decimals.unwrap_or(6).min(12) as i32));
+        let true_step = (t_prev - t0) / (rows - 1) as f64;
+        let units = true_step / unit;
+        let whole = (units - units.round()).abs() <= 0.05_f64.max(2.0 / (rows - 1) as f64);
+        if whole && longest.0 - shortest.0 > 0.01 * true_step + 1e-9 {
+            let (step, line) = if longest.0 - true_step > true_step - shortest.0 { longest } else { shortest };
+            return Err(uneven(line, step, dt));
+        }
     }
     let from_time = match (t_first, rows) {
         (Some(t0), n) if n >= 2 => {
@@ -247,6 +276,18 @@ fn read_inner(
     let leads = lead_names.into_iter().zip(samples).map(|((_, name), samples)| Lead { name, samples }).collect();
     let recording = Recording { leads, sample_rate, start: None, meta: Meta::default(), annotations: Vec::new() };
     Ok(Opened { recording, format: Format::Csv, files: vec![path.to_path_buf()], warnings })
+}
+
+/// Signals a patient monitor exports beside the ECG, by their column name (compared case-insensitively, a number
+/// may follow: `ART1`): pulse oximetry, respiration, pressures, temperature, CO2, and the heart-rate trend.
+// Common practice, no source: the names monitors and PhysioNet's multi-signal databases use for them.
+const OTHER_SIGNALS: [&str; 15] =
+    ["PLETH", "PPG", "SPO2", "RESP", "ABP", "ART", "CVP", "PAP", "ICP", "NIBP", "TEMP", "CO2", "ETCO2", "PULSE", "HR"];
+
+/// True when a column name names a signal other than an ECG lead ([`OTHER_SIGNALS`]).
+fn is_other_signal(name: &str) -> bool {
+    let word: String = name.trim().to_ascii_uppercase().chars().take_while(char::is_ascii_alphanumeric).collect();
+    OTHER_SIGNALS.iter().any(|o| word.strip_prefix(o).is_some_and(|rest| rest.bytes().all(|b| b.is_ascii_digit())))
 }
 
 /// Digits written after the decimal point of a number; `None` without a decimal point (`0`) and in exponent
@@ -372,9 +413,12 @@ mod tests {
         assert_eq!(names, ["II", "V5"]);
         assert_eq!(o.warnings.len(), 2);
         assert!(o.warnings[0].contains("column 3 ('PLETH') skipped"), "{:?}", o.warnings);
-        // With no column named as a lead, every column is one (channels numbered by a device).
-        let o = parse("time_s,ch1,ch2\n0,1,2\n0.004,1,2\n", None)?;
-        assert_eq!((o.recording.leads.len(), o.warnings.len()), (2, 0));
+        // Any other name is a lead: channels numbered by a device, Frank leads, MCL1, even ARTIFACT (not ART1).
+        let o = parse("time_s,ch1,vx,vz,MCL1,ARTIFACT\n0,1,2,3,4,5\n0.004,1,2,3,4,5\n", None)?;
+        assert_eq!((o.recording.leads.len(), o.warnings.len()), (5, 0), "{:?}", o.warnings);
+        assert!(parse("time_s,ABP,HR\n0,1,2\n0.004,1,2\n", None).is_err(), "no lead at all");
+        assert!(is_other_signal("ART1") && is_other_signal(" SpO2") && is_other_signal("Resp (Ohm)"));
+        assert!(!is_other_signal("ARTIFACT") && !is_other_signal("V1") && !is_other_signal("aVR"));
         Ok(())
     }
 
@@ -391,13 +435,16 @@ mod tests {
             assert_eq!(o.recording.sample_rate.hz(), fs, "{decimals} decimals");
             assert_eq!(o.recording.len(), 720);
         }
-        // A row missing from such a file is still found: at 360 Hz a double step (5.6 ms) is beyond rounding.
-        let mut text = String::from("time_s,II\n");
-        for k in (0..100).filter(|&k| k != 50) {
-            text.push_str(&format!("{:.3},1\n", f64::from(k) / 360.0));
+        // A row missing from such a file is still found: at 360 Hz a double step (5.6 ms) is beyond rounding; at 500
+        // and 1000 Hz written to the ms, where every step is whole, a step of two is one too many.
+        for fs in [360.0, 500.0, 1000.0] {
+            let mut text = String::from("time_s,II\n");
+            for k in (0..100).filter(|&k| k != 50) {
+                text.push_str(&format!("{:.3},1\n", f64::from(k) / fs));
+            }
+            let e = parse(&text, None).err().map(|e| e.to_string()).unwrap_or_default();
+            assert!(e.contains("line 52") && e.contains("evenly spaced"), "{fs} Hz: {e}");
         }
-        let e = parse(&text, None).err().map(|e| e.to_string()).unwrap_or_default();
-        assert!(e.contains("line 52") && e.contains("evenly spaced"), "{e}");
         assert_eq!(decimals_written("0.002"), Some(3));
         assert_eq!((decimals_written("0"), decimals_written("1.5e-3")), (None, None));
         Ok(())
