@@ -135,8 +135,8 @@ fn typing_a_reviewed_qt_recomputes_qtc_and_undoes() {
 
 #[test]
 fn a_typed_value_no_ecg_shows_is_refused_with_its_reason() {
-    // A slip of the sign (−500 bpm) is not taken: the field stays open and the row's note column names the
-    // bounds; 72 then is taken.
+    // A slip of the sign (−500 bpm) is not taken: the field stays open and a tooltip under it names the bounds;
+    // 72 then is taken.
     let mut h = harness(Some("ptb-s0010/s0010_re.hea"));
     let shown = format!("{:.0}", row(&h, "heart_rate_bpm").reviewed.unwrap());
     h.get_by_role_and_label(egui::accesskit::Role::Button, &shown).click();

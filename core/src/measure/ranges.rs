@@ -350,16 +350,17 @@ pub fn leads_left_out(leads: &[crate::recording::LeadName], with_axes: bool) -> 
     )
 }
 
-/// A pause: the longest RR interval `longest_ms` at or above [`PAUSE_MS`]. The heart rate is the mean over the
-/// dominant beats' intervals, the pause included, so a single pause in a short recording lowers it: the note
-/// says where the rate comes from.
+/// Key of the pause note ([`pause`]): no value's key, so the note stays when the reader changes the RR or rate.
+pub const KEY_PAUSE: &str = "pause";
+
+/// A pause: the longest RR interval between any two beats, `longest_ms`, at or above [`PAUSE_MS`]. A pause
+/// between dominant beats is in the mean RR and lowers the heart rate of a short recording.
 #[must_use]
 pub fn pause(longest_ms: f64) -> Option<RangeNote> {
     note(
-        "rr_ms",
+        KEY_PAUSE,
         format!(
-            "Pause: longest RR interval {:.1} s ({:.0} s or more; the heart rate is the mean over all intervals, \
-             the pause included; {SOURCE_PAUSE})",
+            "Pause: longest RR interval {:.1} s ({:.0} s or more, {SOURCE_PAUSE})",
             longest_ms / 1000.0,
             PAUSE_MS / 1000.0
         ),
@@ -457,7 +458,7 @@ mod tests {
         assert!(qrs_axis(-45.0).is_some_and(|n| n.text.starts_with("QRS axis \u{2212}45° —")));
         assert!(rr_irregular(0.04).is_none() && rr_irregular(0.2).is_some());
         assert!(pause(1990.0).is_none());
-        assert!(pause(4000.0).is_some_and(|n| n.key == "rr_ms" && n.text.contains("4.0 s")));
+        assert!(pause(4000.0).is_some_and(|n| n.key == KEY_PAUSE && n.text.contains("4.0 s")));
         // Two estimates of one interval: twice the IEC 60601-2-25 mean allowance (references.md §6, from memory).
         assert!(beats_disagree("qt_ms", "QT", 352.0, 404.0).is_some_and(|n| n.text.starts_with("QT 352 ms on the")));
         assert!(

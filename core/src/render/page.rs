@@ -19,9 +19,11 @@ const MIN_WIDTH_MM: f64 = 160.0;
 /// At 25 mm/s a 3x4 cell of a 10-s page is 62.5 mm; at 1 mm/s the labels of a row were drawn over each other.
 const MIN_CELL_MM: f64 = 8.0;
 
-/// [`RenderError::Spec`] when a cell of `page` is narrower than [`MIN_CELL_MM`].
+/// [`RenderError::Spec`] when a cell of `page` that shares its row with another is narrower than [`MIN_CELL_MM`]
+/// (a strip's single cell has no neighbour's label to run into).
 fn check_cells(page: &Page, seconds: f64) -> Result<(), RenderError> {
-    let narrowest = page.rows.iter().flat_map(|r| &r.cells).map(|c| c.width_mm).fold(f64::INFINITY, f64::min);
+    let shared = page.rows.iter().filter(|r| r.cells.len() > 1).flat_map(|r| &r.cells);
+    let narrowest = shared.map(|c| c.width_mm).fold(f64::INFINITY, f64::min);
     if narrowest < MIN_CELL_MM {
         return Err(RenderError::Spec(format!(
             "a lead's stretch of paper would be {narrowest:.1} mm wide ({seconds} s at {} mm/s), under the \

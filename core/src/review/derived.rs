@@ -3,7 +3,7 @@
 //! review (rendered pages, agreement, the Ledger) shows QTc consistent with the reviewed QT and RR.
 
 use super::model::{Measurement, Origin, Review};
-use crate::measure::qtc::{Qtc, qtc_checked};
+use crate::measure::qtc::qtc_checked;
 
 /// Keys whose reviewed value changes the QTc values.
 pub const QTC_INPUT_KEYS: [&str; 3] = ["qt_ms", "rr_ms", "heart_rate_bpm"];
@@ -16,16 +16,6 @@ pub const QTC_KEYS: [(&str, &str); 5] = [
     ("qtc_hodges_ms", "QTc (Hodges)"),
     ("qtc_rautaharju_ms", "QTc (Rautaharju)"),
 ];
-
-fn pick(q: &Qtc, key: &str) -> f64 {
-    match key {
-        "qtc_bazett_ms" => q.bazett,
-        "qtc_fridericia_ms" => q.fridericia,
-        "qtc_framingham_ms" => q.framingham,
-        "qtc_hodges_ms" => q.hodges,
-        _ => q.rautaharju,
-    }
-}
 
 impl Review {
     fn reviewed(&self, key: &str) -> Option<f64> {
@@ -53,9 +43,9 @@ impl Review {
         let q = if any_reviewed { qtc_checked(qt, self.rr_in_force()) } else { None };
         for (key, label) in QTC_KEYS {
             let idx = self.measurements.iter().position(|m| m.key == key);
-            match (q, idx) {
-                (Some(q), idx) => {
-                    let value = pick(&q, key);
+            // A formula that gives no positive QTc gives none (`Qtc::by_key`): that QTc stays automatic.
+            match (q.and_then(|q| q.by_key(key)), idx) {
+                (Some(value), idx) => {
                     let idx = idx.unwrap_or_else(|| {
                         self.measurements.push(Measurement::automatic(key, label, None, "ms"));
                         self.measurements.len() - 1
@@ -102,7 +92,7 @@ mod tests {
         put(&mut r, "rr_ms", 710.0, "ms").unwrap();
         put(&mut r, "qt_ms", 370.0, "ms").unwrap();
         for (key, _) in QTC_KEYS {
-            put(&mut r, key, pick(&auto, key), "ms").unwrap();
+            put(&mut r, key, auto.by_key(key).unwrap(), "ms").unwrap();
         }
         r
     }

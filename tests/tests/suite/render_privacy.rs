@@ -84,16 +84,21 @@ fn absurd_requests_are_refused() -> Res {
     assert!(matches!(render_page(&RenderInput::new(&rec, long, 1200.0)), Err(RenderError::TooLarge { .. })));
     let bad = PageSpec { seconds: -1.0, ..spec() };
     assert!(matches!(render_page(&RenderInput::new(&rec, bad, 100.0)), Err(RenderError::Spec(_))));
-    // Paper too short for the lead labels (before, they were drawn over each other): 10 s at 0.5 mm/s, and
-    // 0.2 s at 25 mm/s. 10 s at 5 mm/s (12.5 mm a column of 3x4) is still drawn.
+    // Paper too short for the lead labels of a row of cells (before, they were drawn over each other): a 12-lead
+    // 3x4 page of 10 s at 0.5 mm/s, and of 0.2 s at 25 mm/s. At 5 mm/s (12.5 mm a cell) it is drawn, and a strip
+    // (one cell a row, no neighbour's label) at any speed.
+    let leads = StandardLead::ALL.iter().map(|&l| Lead { name: l.into(), samples: rec.leads[0].samples.clone() });
+    let twelve = Recording { leads: leads.collect(), ..rec.clone() };
     for (seconds, speed) in [(10.0, 0.5), (0.2, 25.0)] {
         let paper = Paper { speed_mm_per_s: speed, ..spec().paper };
         let short = PageSpec { seconds, paper, layout: Layout::default(), ..spec() };
-        let got = render_page(&RenderInput::new(&rec, short, 100.0));
+        let got = render_page(&RenderInput::new(&twelve, short, 100.0));
         assert!(matches!(&got, Err(RenderError::Spec(m)) if m.contains("label")), "{seconds} s at {speed}: {got:?}");
+        let strip = PageSpec { seconds, paper, ..spec() };
+        assert!(render_page(&RenderInput::new(&twelve, strip, 100.0)).is_ok(), "strip, {seconds} s at {speed}");
     }
     let slow = PageSpec { paper: Paper { speed_mm_per_s: 5.0, ..spec().paper }, layout: Layout::default(), ..spec() };
-    assert!(render_page(&RenderInput::new(&rec, slow, 100.0)).is_ok());
+    assert!(render_page(&RenderInput::new(&twelve, slow, 100.0)).is_ok());
     let empty = Recording { leads: vec![], ..rec.clone() };
     assert!(matches!(render_page(&RenderInput::new(&empty, spec(), 100.0)), Err(RenderError::NoLeads)));
     Ok(())

@@ -169,14 +169,17 @@ fn impossible_values_are_named() {
     let (_, _, named, msg) = parse_err(&p);
     assert_eq!(named.as_deref(), Some("reader"), "{msg}");
     assert!(msg.contains("control character"), "{msg}");
-    // An extreme but real reviewed rate (12 bpm) with the QTc values computed from it (Framingham below zero)
-    // saves and loads again: computed values are never refused.
+    // An extreme but real reviewed rate (12 bpm) with the QTc values computed from it saves and loads again;
+    // Framingham, which gives no positive QTc there (Sagie et al. 1992, Am J Cardiol: QT + 154 (1 − RR)), gets no
+    // reviewed value (before: a QTc below zero was saved and printed).
     let mut r = crate::review_support::sample_review("AB");
     r.set_measurement("heart_rate_bpm", 12.0, "AB").unwrap();
     let framingham = r.measurement("qtc_framingham_ms").and_then(|m| m.reviewed_value);
-    assert!(framingham.is_some_and(|v| v < 0.0), "{framingham:?}");
+    assert_eq!(framingham, None);
+    let bazett = r.measurement("qtc_bazett_ms").and_then(|m| m.reviewed_value);
+    assert!(bazett.is_some_and(|v| v > 0.0), "{bazett:?}");
     let p = write(dir.path(), &r.to_ron().unwrap());
-    assert_eq!(load(&p).unwrap().measurement("qtc_framingham_ms").and_then(|m| m.reviewed_value), framingham);
+    assert_eq!(load(&p).unwrap().measurement("qtc_bazett_ms").and_then(|m| m.reviewed_value), bazett);
 }
 
 #[test]
