@@ -75,8 +75,13 @@ pub fn representative_beat_with(
     // The T wave is sought before the next beat: the one that follows the beats chosen, which in bigeminy is the
     // premature beat at the short RR, not the record's median RR (demo bigeminy 30 s: QT 654 ms for 380, the
     // T end found on the premature QRS).
-    let next = chosen.iter().filter_map(|&(r, _)| rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r));
+    let next = chosen.iter().filter_map(|&(r, _)| rr_to_next(&rs, r));
     Some(delineated(leads, recording.sample_rate, before, t_search_rr(next.collect(), rr), p_model, chosen.len()))
+}
+
+/// Samples from R peak `r` to the next of the R peaks `rs` (sorted); `None` after the last.
+fn rr_to_next(rs: &[usize], r: usize) -> Option<usize> {
+    rs.get(rs.partition_point(|&x| x <= r)).map(|&next| next - r)
 }
 
 /// The RR the representative beat's T wave is sought within: the median of `next` (each chosen beat's RR to the
@@ -331,7 +336,7 @@ impl BeatStack {
         for i in 0..take {
             let r = usable[i * usable.len() / take];
             self.beats.push(part.leads.iter().map(|l| l.samples[r - before..r + after].to_vec()).collect());
-            self.next_rr.extend(rs.get(rs.partition_point(|&x| x <= r)).map(|&nr| nr - r));
+            self.next_rr.extend(rr_to_next(&rs, r));
         }
     }
 

@@ -264,9 +264,9 @@ fn normalise(mwi: &[f32], fs: f64, runs: &[Range<usize>]) -> (Vec<f32>, f64) {
     // 150 ms of window in every 300 ms), so the median is QRS energy and a clean lead read as noise: a 180-bpm
     // rhythm gave no beat at all. A lead the median calls noise is judged again on the lower decile, which still
     // falls between the complexes up to about 220 bpm; for noise it is about half the median (a white-noise
-    // lead: ratios 2.3 and 4.5), so its limits are doubled. A lead the median accepts keeps its weight: taking
-    // the larger weight everywhere raised wide paced leads (LUDB 45, median ratios 8–17) and moved R peaks
-    // from one lead's peak to another's.
+    // lead: ratios 2.3 and 4.5, measured with the median block maximum as the typical height), so its limits are
+    // doubled. A lead the median accepts keeps its weight: taking the larger weight everywhere raised wide paced
+    // leads (LUDB 45, median ratios 8–17, measured likewise) and moved R peaks from one lead's peak to another's.
     // Common practice, no source.
     let ratio_low = f64::from(typical) / (f64::from(low) + 1e-12);
     let by_median = ((ratio - 4.0) / 16.0).clamp(0.0, 1.0);
