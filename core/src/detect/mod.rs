@@ -19,8 +19,9 @@ use crate::units::Hertz;
 pub const R_SEARCH_S: f64 = 0.100;
 
 /// A QRS has a steep limb: the steepest slope within 50 ms of a beat's R peak (over the leads with a QRS, each
-/// averaged over 10 ms and the slope taken over 16 ms, see [`qrs_slopes`]) must reach this, µV/s, or what was found is no QRS and no beat. P waves alone (ventricular
-/// standstill) were read as a regular rhythm at 75 bpm with a QRS of 104 ms.
+/// averaged over 10 ms and the slope taken over 16 ms, see [`qrs_slopes`]) must reach this, µV/s, or what was
+/// found is no QRS and no beat. P waves alone (ventricular standstill) were read as a regular rhythm at 75 bpm with
+/// a QRS of 104 ms.
 // Common practice, no source: a P or T wave rises a few tenths of a mV in 50–150 ms (2–7 mV/s); a QRS, even of
 // low voltage, at least 0.3 mV in 30 ms (10 mV/s). Measured on the shared real records (LUDB 1–50, QT Database,
 // MIT-BIH 100): the slowest beat 13.8 mV/s (LUDB 34, whose beats' median is 15.7); P waves alone with 15 µV of
