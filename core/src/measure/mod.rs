@@ -200,9 +200,9 @@ impl Measurements {
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
     /// its own; then the pause note ([`ranges::pause`]); then that no representative beat was made
-    /// ([`ranges::no_representative_beat`]); then the note that leads were left out of the representative beat ([`ranges::leads_left_out`],
-    /// on no value's row); then the note that a PR or QRS of the representative beat disagrees
-    /// with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
+    /// ([`ranges::no_representative_beat`]); then the note that leads were left out of the representative beat
+    /// ([`ranges::leads_left_out`], on no value's row); then the note that a PR or QRS of the representative beat
+    /// disagrees with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
         let mut notes: Vec<RangeNote> = self.values().into_iter().filter_map(|v| v.note).collect();

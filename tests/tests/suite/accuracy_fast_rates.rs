@@ -4,8 +4,9 @@
 //! recording gave no beat at all, "not an ECG?".
 //!
 //! Demo recordings from the dynamical model (McSharry, Clifford, Tarassenko & Smith, IEEE Trans Biomed Eng
-//! 2003;50:289-94, as implemented by `isoline_core::synth`): QRS (70 ms), P wave (50 ms), PR (80 ms) and QT (170 ms) shortened so that a
-//! beat fits its RR (the generator keeps 40 ms between T end and the next P wave: 300 ms at 200 bpm).
+//! 2003;50:289-94, as implemented by `isoline_core::synth`): QRS (70 ms), P wave (50 ms), PR (80 ms) and QT
+//! (170 ms) shortened so that a beat fits its RR (the generator keeps 40 ms between T end and the next P wave:
+//! 300 ms at 200 bpm).
 
 use isoline_core::analysis::analyze;
 use isoline_core::filter::FilterSettings;
