@@ -70,7 +70,7 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
                 origin,
                 notes: row_notes(r.note.as_ref(), origin, an.measurements.beats_disagree(a.key))
                     .into_iter()
-                    .chain(row_extra_note(a.key, &an.measurements))
+                    .chain(row_extra_notes(a.key, &an.measurements))
                     .collect(),
             }
         })
@@ -94,12 +94,20 @@ fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<R
 /// Notes on no value's row in the measurements, shown on the row they bear on most; they stay whatever the reader
 /// changes. On the QT row, that leads were left out of the representative beat (`ranges::leads_left_out`): it
 /// concerns every value measured on that beat, and the QT is the one a late T end in the leads left out
-/// lengthens most. On the RR row, a pause (`ranges::pause`), which the mean RR and the rate include.
-fn row_extra_note(key: &str, m: &measure::Measurements) -> Option<RangeNote> {
+/// lengthens most. On the RR row, a pause (`ranges::pause`) and a stretch with no beat at either end of the
+/// recording (`ranges::no_beat_at_edge`).
+fn row_extra_notes(key: &str, m: &measure::Measurements) -> Vec<RangeNote> {
     match key {
-        "qt_ms" => m.leads_left_out_note(),
-        "rr_ms" => m.rr.rhythm.longest_rr_ms.and_then(ranges::pause),
-        _ => None,
+        "qt_ms" => m.leads_left_out_note().into_iter().collect(),
+        "rr_ms" => {
+            let [before, after] = m.beatless_edges_s;
+            let pause = m.rr.rhythm.longest_rr_ms.and_then(ranges::pause);
+            let edges = [(before, false), (after, true)]
+                .into_iter()
+                .filter_map(|(s, end)| s.and_then(|s| ranges::no_beat_at_edge(s, end)));
+            pause.into_iter().chain(edges).collect()
+        }
+        _ => Vec::new(),
     }
 }
 

@@ -90,6 +90,11 @@ pub struct Measurements {
     /// other leads. Empty without a representative beat.
     #[serde(default)]
     pub leads_left_out: Vec<LeadName>,
+    /// Seconds with no beat from the last beat to the end of the recording, when at least
+    /// [`ranges::PAUSE_MS`] and longer than 1.5 times the longest RR (asystole after the last beat); the same
+    /// before the first beat. A stretch reaching into a gap of the recording (no signal) is no such finding.
+    #[serde(default)]
+    pub beatless_edges_s: [Option<f64>; 2],
 }
 
 /// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
@@ -110,7 +115,9 @@ pub fn measure_with(
     basis: AxisBasis,
 ) -> Measurements {
     let fs = recording.sample_rate;
-    let rr = hrv::rr_stats(beats, fs, &recording.gaps());
+    let gaps = recording.gaps();
+    let rr = hrv::rr_stats(beats, fs, &gaps);
+    let beatless_edges_s = beatless_edges(beats, recording.len(), fs, &gaps, rr.rhythm.longest_rr_ms);
     let beat_medians = median_intervals(beats, fs);
     let (intervals, intervals_source) = match template {
         Some(t) => (intervals(&t.bounds, t.sample_rate), IntervalSource::Representative),
@@ -164,7 +171,28 @@ pub fn measure_with(
         sex: ranges::Sex::parse(recording.meta.sex.as_deref()),
         limb_gain_mismatch_pct,
         leads_left_out,
+        beatless_edges_s,
     }
+}
+
+/// Seconds with no beat before the first beat and after the last of a recording of `n` samples (see
+/// [`Measurements::beatless_edges_s`]); `longest_rr_ms` is the longest RR between beats.
+fn beatless_edges(
+    beats: &[Beat],
+    n: usize,
+    fs: crate::units::Hertz,
+    gaps: &[std::ops::Range<usize>],
+    longest_rr_ms: Option<f64>,
+) -> [Option<f64>; 2] {
+    let (Some(first), Some(last)) = (beats.first(), beats.last()) else {
+        return [None, None];
+    };
+    let limit_s = (ranges::PAUSE_MS / 1000.0).max(1.5 * longest_rr_ms.unwrap_or(0.0) / 1000.0);
+    let edge = |a: usize, b: usize| {
+        let s = (b.saturating_sub(a)) as f64 / fs.hz();
+        (s >= limit_s && !crate::gaps::overlaps(gaps, a, b)).then_some(s)
+    };
+    [edge(0, first.r), edge(last.r, n)]
 }
 
 impl Measurements {
@@ -217,6 +245,9 @@ impl Measurements {
             notes.push(gain);
         }
         notes.extend(self.rr.rhythm.longest_rr_ms.and_then(ranges::pause));
+        let [before, after] = self.beatless_edges_s;
+        notes.extend(before.and_then(|s| ranges::no_beat_at_edge(s, false)));
+        notes.extend(after.and_then(|s| ranges::no_beat_at_edge(s, true)));
         if self.intervals_source == IntervalSource::BeatMedians {
             notes.extend(ranges::no_representative_beat());
         }
@@ -297,7 +328,7 @@ mod tests {
         // Bigeminy: beats, but no two dominant ones in a row, so no heart rate; the note says why, and only it
         // (the short and long RR intervals alternating are not called irregular as between dominant beats).
         let kinds = [BeatKind::Dominant, BeatKind::Other];
-        let bigeminy: Vec<Beat> = (0..8)
+        let bigeminy: Vec<Beat> = (0..9)
             .map(|k| Beat { r: 300 + 500 * k - 100 * (k % 2), kind: kinds[k % 2], bounds: Boundaries::default() })
             .collect();
         let m = measure(&rec, &bigeminy, None);
@@ -318,6 +349,12 @@ mod tests {
         let two = [beat(500), beat(900)];
         let m = measure(&rec, &two, None);
         assert_eq!(m.intervals_source, IntervalSource::BeatMedians);
+        // After them the 10-s recording has no beat for 8.2 s (asystole): said; a beat every 0.8 s to the end is
+        // no such finding.
+        assert_eq!(m.beatless_edges_s, [None, Some(8.2)]);
+        assert!(m.notes().iter().any(|n| n.text.starts_with("No beat for 8.2 s after the last beat")));
+        let steady: Vec<Beat> = (0..12).map(|i| beat(300 + 400 * i)).collect();
+        assert_eq!(measure(&rec, &steady, None).beatless_edges_s, [None, None]);
         assert!(m.notes().iter().any(|n| n.key == ranges::KEY_REPRESENTATIVE && n.text.contains("No representative")));
         Ok(())
     }

@@ -369,6 +369,23 @@ pub fn pause(longest_ms: f64) -> Option<RangeNote> {
     .filter(|_| longest_ms >= PAUSE_MS)
 }
 
+/// No beat for `seconds` at the end of the recording (`at_end`) or before its first beat: asystole after the
+/// last beat, or before the first (see `Measurements::beatless_edges_s`). The rate and RR come from the beats
+/// before (after) it only.
+#[must_use]
+pub fn no_beat_at_edge(seconds: f64, at_end: bool) -> Option<RangeNote> {
+    let place = if at_end { "after the last beat, to the end of the recording" } else { "before the first beat" };
+    note(
+        KEY_PAUSE,
+        format!(
+            "No beat for {seconds:.1} s {place} (a pause of {:.0} s or more, {SOURCE_PAUSE}); the heart rate counts \
+             the beats only",
+            PAUSE_MS / 1000.0
+        ),
+        SOURCE_PAUSE,
+    )
+}
+
 /// The underlying rhythm irregular: beat-to-beat variation of the NN intervals at or above
 /// [`super::hrv::IRREGULAR_SUCCESSIVE`] (see [`super::hrv::Rhythm`]). `variation` is a fraction.
 #[must_use]
