@@ -3,19 +3,10 @@
 //! review (rendered pages, agreement, the Ledger) shows QTc consistent with the reviewed QT and RR.
 
 use super::model::{Measurement, Origin, Review};
-use crate::measure::qtc::qtc_checked;
+use crate::measure::qtc::{FORMULAS, qtc_checked};
 
 /// Keys whose reviewed value changes the QTc values.
 pub const QTC_INPUT_KEYS: [&str; 3] = ["qt_ms", "rr_ms", "heart_rate_bpm"];
-
-/// The five QTc keys with their labels, as in `measure::MeasuredValue::values`.
-pub const QTC_KEYS: [(&str, &str); 5] = [
-    ("qtc_bazett_ms", "QTc (Bazett)"),
-    ("qtc_fridericia_ms", "QTc (Fridericia)"),
-    ("qtc_framingham_ms", "QTc (Framingham)"),
-    ("qtc_hodges_ms", "QTc (Hodges)"),
-    ("qtc_rautaharju_ms", "QTc (Rautaharju)"),
-];
 
 impl Review {
     fn reviewed(&self, key: &str) -> Option<f64> {
@@ -41,13 +32,15 @@ impl Review {
         let any_reviewed = QTC_INPUT_KEYS.iter().any(|k| self.reviewed(k).is_some());
         let qt = self.measurement("qt_ms").and_then(Measurement::value);
         let q = if any_reviewed { qtc_checked(qt, self.rr_in_force()) } else { None };
-        for (key, label) in QTC_KEYS {
+        for (key, name) in FORMULAS {
             let idx = self.measurements.iter().position(|m| m.key == key);
             // A formula that gives no positive QTc gives none (`Qtc::by_key`): that QTc stays automatic.
             match (q.and_then(|q| q.by_key(key)), idx) {
                 (Some(value), idx) => {
                     let idx = idx.unwrap_or_else(|| {
-                        self.measurements.push(Measurement::automatic(key, label, None, "ms"));
+                        // Labelled as `measure::Measurements::values` labels it.
+                        let label = format!("QTc ({name})");
+                        self.measurements.push(Measurement::automatic(key, &label, None, "ms"));
                         self.measurements.len() - 1
                     });
                     let m = &mut self.measurements[idx];
@@ -91,14 +84,14 @@ mod tests {
         put(&mut r, "heart_rate_bpm", 60_000.0 / 710.0, "bpm").unwrap();
         put(&mut r, "rr_ms", 710.0, "ms").unwrap();
         put(&mut r, "qt_ms", 370.0, "ms").unwrap();
-        for (key, _) in QTC_KEYS {
+        for (key, _) in FORMULAS {
             put(&mut r, key, auto.by_key(key).unwrap(), "ms").unwrap();
         }
         r
     }
 
     fn qtc_values(r: &Review) -> Vec<(Option<f64>, Origin)> {
-        QTC_KEYS.iter().map(|(k, _)| r.measurement(k).map_or((None, Origin::Auto), |m| (m.value(), m.origin))).collect()
+        FORMULAS.iter().map(|(k, _)| r.measurement(k).map_or((None, Origin::Auto), |m| (m.value(), m.origin))).collect()
     }
 
     #[test]
@@ -150,7 +143,7 @@ mod tests {
     fn other_keys_leave_qtc_alone() {
         let mut r = review_with_auto();
         r.set_measurement("pr_ms", 180.0, "AB").unwrap();
-        assert!(QTC_KEYS.iter().all(|(k, _)| r.measurement(k).is_some_and(|m| m.reviewed_value.is_none())));
+        assert!(FORMULAS.iter().all(|(k, _)| r.measurement(k).is_some_and(|m| m.reviewed_value.is_none())));
         assert_eq!(r.history.len(), 1);
     }
 }
