@@ -1,9 +1,9 @@
 //! The representative beat: the sample-by-sample median of the dominant beats aligned on their R peaks, per
 //! lead, delineated with the same method as single beats (its P wave only when the record's P is consistent).
 
-use super::{PModel, Signals, beat_t_waves, delineate_with, median_rr, qrs, twave};
+use super::{PModel, Signals, baseline, beat_t_waves, delineate_with, median_rr, qrs, twave};
 use crate::beat::{Beat, BeatKind, Boundaries};
-use crate::detect::{ALIGN_S, WIN_S, correlation, matching_shift, push_levelled};
+use crate::detect::{ALIGN_S, WIN_S, correlation, matching_shift, push_levelled, smooth_half};
 use crate::recording::Recording;
 use crate::units::Hertz;
 
@@ -26,8 +26,10 @@ pub struct RepresentativeBeat {
     pub n_beats: usize,
 }
 
-/// Builds and delineates the representative beat from the dominant beats (all beats when none is dominant).
-/// `recording` should be baseline-corrected. `None` with fewer than 3 usable beats. Delineates the whole
+/// Builds and delineates the representative beat from the dominant beats (all beats when none is dominant), each
+/// lead first levelled by a spline through the beats' PR levels where that makes the beats more alike
+/// ([`baseline::levelled`]). `recording` should be baseline-corrected (high-passed). `None` with fewer than 3
+/// usable beats. Delineates the whole
 /// recording again to get its P model; when the beats were just delineated, pass that model to
 /// [`representative_beat_with`] instead.
 #[must_use]
@@ -38,13 +40,26 @@ pub fn representative_beat(recording: &Recording, beats: &[Beat]) -> Option<Repr
     let mut scratch = beats.to_vec();
     let p_model = delineate_with(&full, &mut scratch);
     drop(full);
-    representative_beat_with(recording, beats, p_model.as_ref())
+    representative_beat_with(recording, &scratch, p_model.as_ref())
 }
 
 /// [`representative_beat`] with the record's P model already known (the value [`super::delineate_beats`]
-/// returned for these beats; `None` = the record has no consistent P wave).
+/// returned for these beats; `None` = the record has no consistent P wave). The beats' QRS onsets place the
+/// levelling's knots; beats not delineated are not levelled.
 #[must_use]
 pub fn representative_beat_with(
+    recording: &Recording,
+    beats: &[Beat],
+    p_model: Option<&PModel>,
+) -> Option<RepresentativeBeat> {
+    match baseline::levelled(recording, beats) {
+        Some(levelled) => representative_of_levelled(&levelled, beats, p_model),
+        None => representative_of_levelled(recording, beats, p_model),
+    }
+}
+
+/// [`representative_beat_with`] on a recording already levelled ([`baseline::levelled`]).
+fn representative_of_levelled(
     recording: &Recording,
     beats: &[Beat],
     p_model: Option<&PModel>,
@@ -138,12 +153,13 @@ fn aligned_median(
     let template = median_leads(n_leads, len, count, |lead, k, b| value(lead, b, reach + k));
     let (wa, wb) = (((WIN_S.0 * fs) as usize).min(before), ((WIN_S.1 * fs) as usize).min(after.saturating_sub(1)));
     let window = before - wa..=before + wb;
+    let half = smooth_half(fs);
     // The QRS window of each of `leads`, levelled and joined as beat typing compares them.
     let joined = |leads: &[usize], sample: &dyn Fn(usize, usize) -> f32| -> Vec<f32> {
         let mut out = Vec::with_capacity(leads.len() * (wa + wb + 1));
         for &lead in leads {
             let w: Vec<f32> = window.clone().map(|k| sample(lead, k)).collect();
-            push_levelled(&mut out, &w);
+            push_levelled(&mut out, &w, half);
         }
         out
     };
@@ -321,8 +337,11 @@ impl BeatStack {
 
     /// Keeps up to the stack's quota of `beats` (found in `part`, a window with its margins), evenly spaced
     /// among those the median is taken over whose R peak lies in `own` (the window's own samples of `part`) and
-    /// whose span lies in `part` and holds no gap (see [`has_signal`]).
+    /// whose span lies in `part` and holds no gap (see [`has_signal`]), from `part` levelled as
+    /// [`representative_beat_with`] levels a recording.
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
+        let levelled = baseline::levelled(part, beats);
+        let part = levelled.as_ref().unwrap_or(part);
         let n = part.len();
         let (before, after) = (self.before, self.after);
         let gaps = part.gaps();

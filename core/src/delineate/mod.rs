@@ -6,6 +6,7 @@
 //! All leads are combined, so the boundaries are global (earliest onset and latest end over the leads, as the
 //! usual 12-lead global intervals are defined). A boundary that cannot be found is `None`, never a guess.
 
+mod baseline;
 mod median;
 mod pwave;
 mod qrs;

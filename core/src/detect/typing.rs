@@ -72,6 +72,7 @@ pub fn dominant(
 ) -> Vec<bool> {
     let n = leads_in.first().map_or(0, |l| l.len());
     let (a, b) = ((WIN_S.0 * fs) as usize, (WIN_S.1 * fs) as usize);
+    let half = smooth_half(fs);
     let reach = (ALIGN_S * fs).round() as usize;
     let leads: Vec<usize> = (0..leads_in.len()).filter(|&l| weights[l] > 0.0).collect();
     if r.is_empty() || leads.is_empty() {
@@ -88,7 +89,7 @@ pub fn dominant(
         for &l in &leads {
             let w = &leads_in[l][p - a..=p + b];
             if w.iter().all(|v| v.is_finite()) {
-                push_levelled(&mut s, w);
+                push_levelled(&mut s, w, half);
             } else {
                 s.extend(std::iter::repeat_n(f32::NAN, w.len()));
             }
@@ -166,11 +167,43 @@ fn dominant_cluster<'a>(pool: &[&'a Vec<f32>], pool_at: &[usize], r: &[usize]) -
     (members.len() >= 3 && members.len() * 4 >= pool.len()).then(|| members.iter().map(|&j| pool[j]).collect())
 }
 
-/// Appends `window` less its own mean to `out`: a beat's window as typing compares it, one lead after another,
-/// so that baseline offsets do not count as shape.
-pub(crate) fn push_levelled(out: &mut Vec<f32>, window: &[f32]) {
-    let mean = window.iter().sum::<f32>() / window.len() as f32;
-    out.extend(window.iter().map(|v| v - mean));
+/// Half-width of the running average a beat's window is smoothed with before it is compared, s (about 10 ms in
+/// all: 5 samples at 500 Hz, 3 at 250 Hz, none at 100 Hz).
+// Common practice, no source: a QRS keeps its shape under a 10-ms average, while white noise falls by √5 at 500
+// Hz and mains hum at 50 Hz by a third. Measured on the synthetic normal recording with 100 µV of white noise on
+// every lead: 5 of 12 beats typed dominant unsmoothed, 12 of 12 smoothed; 200 µV: 0 and 12 of 12 (heart rate
+// withheld before, "no two dominant beats in a row").
+const SMOOTH_HALF_S: f64 = 0.004;
+
+/// Samples either side of a sample in the running average of [`push_levelled`] at `fs` Hz.
+pub(crate) fn smooth_half(fs: f64) -> usize {
+    (SMOOTH_HALF_S * fs).round() as usize
+}
+
+/// Appends `window` to `out` as typing compares a beat's window, one lead after another: averaged over `half`
+/// samples either side (fewer at the ends; see [`smooth_half`]), less the straight line fitted to it by least
+/// squares, so that neither baseline offsets nor the slope of a wandering baseline count as shape. (Less only
+/// its mean, as before, residual wander of 1 mV at 0.7 Hz typed 7 of 12 beats of the synthetic normal recording
+/// other; at 1 Hz 8 of 12, and heart rate and QT were withheld.)
+pub(crate) fn push_levelled(out: &mut Vec<f32>, window: &[f32], half: usize) {
+    let (start, n) = (out.len(), window.len());
+    out.extend((0..n).map(|k| {
+        let part = &window[k.saturating_sub(half)..(k + half + 1).min(n)];
+        part.iter().sum::<f32>() / part.len() as f32
+    }));
+    let w = &mut out[start..];
+    let centre = (n as f32 - 1.0) / 2.0;
+    let mean = w.iter().sum::<f32>() / n.max(1) as f32;
+    let (mut sxy, mut sxx) = (0.0f32, 0.0f32);
+    for (k, v) in w.iter().enumerate() {
+        let x = k as f32 - centre;
+        sxy += x * (v - mean);
+        sxx += x * x;
+    }
+    let slope = if sxx > 0.0 { sxy / sxx } else { 0.0 };
+    for (k, v) in w.iter_mut().enumerate() {
+        *v -= mean + slope * (k as f32 - centre);
+    }
 }
 
 /// The shift, within ± `reach` samples, at which a beat's window matches the template (correlation at least

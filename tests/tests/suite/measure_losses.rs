@@ -467,27 +467,29 @@ fn a_lead_losing_a_few_samples_each_beat_stays_in_the_representative_beat() {
 
 #[test]
 fn beats_of_another_shape_where_leads_are_off_are_typed_on_the_leads_left() {
-    // LUDB 8 (paced; three beats of another shape at 2.9–4.6 s) and LUDB 43 (sinus rhythm; three beats typed other
-    // on the complete record, at 1.4, 5.4 and 8.3 s): with leads off for a few seconds, every beat is typed as on
-    // the complete record. Before, a beat whose window missed samples in any lead was not judged by its shape, and
-    // two of those beats were typed dominant in each case below. (LUDB 43 with all six chest leads off still types
-    // one of them dominant: on the limb leads alone it correlates with the others above the limit.) Source of the
-    // records: LUDB (Kalyakulina et al. 2020, PhysioNet).
-    let cases: [(u32, &[&str], (f64, f64)); 5] = [
-        (8, &CHEST, (2.5, 7.5)),
-        (8, &["II"], (3.0, 6.0)),
-        (8, &["V1"], (3.0, 6.0)),
-        (43, &["II"], (3.0, 6.0)),
-        (43, &["V1"], (3.0, 6.0)),
+    // LUDB 8 (paced; three beats of another shape at 2.9–4.6 s) and LUDB 7 (sinus rhythm with a ventricular
+    // extrasystole at 3.6 s): with leads off for a few seconds, every beat is typed as on the complete record.
+    // Before, a beat whose window missed samples in any lead was not judged by its shape, and two of LUDB 8's
+    // beats were typed dominant in each of its cases below. (This test used LUDB 43 until its three beats with noise bursts on
+    // V4, typed other then, were typed dominant on the complete record: beats are now compared smoothed over 10
+    // ms.) Source of the records: LUDB (Kalyakulina et al. 2020, PhysioNet); extrasystole from LUDB 7's diagnoses.
+    // (record, leads off, from–to s, beats typed other on the complete record at least)
+    type Case<'a> = (u32, &'a [&'a str], (f64, f64), usize);
+    let cases: [Case; 5] = [
+        (8, &CHEST, (2.5, 7.5), 3),
+        (8, &["II"], (3.0, 6.0), 3),
+        (8, &["V1"], (3.0, 6.0), 3),
+        (7, &["II"], (2.0, 5.0), 1),
+        (7, &["V1"], (2.0, 5.0), 1),
     ];
-    for (n, names, (a, b)) in cases {
+    for (n, names, (a, b), want_others) in cases {
         let recording = opened(&format!("ludb/{n}.hea")).recording;
         let kinds = |r: &isoline_core::Recording| -> Vec<_> {
             analyze(r, &FilterSettings::default()).beats.iter().map(|b| (b.r, b.kind)).collect()
         };
         let whole = kinds(&recording);
         let others = whole.iter().filter(|(_, k)| *k == isoline_core::beat::BeatKind::Other).count();
-        assert!(others >= 3, "LUDB {n}: {others} beats typed other on the complete record");
+        assert!(others >= want_others, "LUDB {n}: {others} beats typed other on the complete record");
         let lossy = leads_off(&recording, names, (a, b));
         let got = kinds(&lossy);
         let what = format!("LUDB {n} with {} off from {a} to {b} s", names.join(", "));
