@@ -147,11 +147,69 @@ pub struct Lead {
 // Common practice, no source: well under one digital step of most ECG recorders (0.5–5 µV).
 pub const FLAT_UV: f32 = 1.0;
 
+/// A lead is clipped where it holds its own largest or smallest value unchanged for at least this long, s (and at
+/// least 3 samples), in at least [`CLIPPED_RUNS`] places: a recorder at the end of its range (or a file writer
+/// cutting values to its field) holds every wave that passes the limit at the limit, while a wave's own peak
+/// changes within a few ms and peaks of different beats differ by a digital step or more.
+// Common practice, no source. Measured on the shared records (LUDB 1–50, QT Database, MIT-BIH 100, PTB s0010): no
+// lead of them is clipped by this rule (test `clipped_leads_are_noted`).
+const CLIPPED_RUN_S: f64 = 0.010;
+/// Fewest separate runs at the extreme value for a lead to count as clipped (see [`CLIPPED_RUN_S`]).
+const CLIPPED_RUNS: usize = 3;
+/// A clipping level lies at least this share of the lead's whole range from its median.
+// Common practice, no source.
+const FAR_FROM_MEDIAN: f32 = 0.4;
+
+/// Where a lead is clipped: the level it is held at (µV) and in how many places, on each side that is.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Clipping {
+    /// Level of the largest value and the number of runs held there, when clipped at the top.
+    pub top: Option<(f32, usize)>,
+    /// Level of the smallest value and the number of runs held there, when clipped at the bottom.
+    pub bottom: Option<(f32, usize)>,
+}
+
 impl Lead {
     /// True when the lead is flat (see [`FLAT_UV`]), or holds no valid sample.
     #[must_use]
     pub fn is_flat(&self) -> bool {
         robust_span(&self.samples).is_none_or(|s| s < FLAT_UV)
+    }
+
+    /// Where the lead, sampled at `fs` Hz, is clipped (see [`CLIPPED_RUN_S`]); `None` when it is not, or is flat.
+    #[must_use]
+    pub fn clipping(&self, fs: f64) -> Option<Clipping> {
+        if self.is_flat() {
+            return None;
+        }
+        let x = &self.samples;
+        let finite = x.iter().copied().filter(|v| v.is_finite());
+        let (lo, hi) = finite.fold((f32::INFINITY, f32::NEG_INFINITY), |(lo, hi), v| (lo.min(v), hi.max(v)));
+        let min_len = ((CLIPPED_RUN_S * fs).round() as usize).max(3);
+        // The limit lies far from where the lead usually is: a lead without a wave below its baseline (a clean or
+        // coarsely sampled one) holds its smallest value between every two beats, and is not clipped there.
+        let step = (x.len() / 100_000).max(1);
+        let mut typical: Vec<f32> = x.iter().step_by(step).copied().filter(|v| v.is_finite()).collect();
+        let mid = typical.len() / 2;
+        let median = *typical.select_nth_unstable_by(mid, f32::total_cmp).1;
+        let far = |level: f32| (level - median).abs() >= FAR_FROM_MEDIAN * (hi - lo);
+        let runs_at = |level: f32| {
+            if !far(level) {
+                return None;
+            }
+            let (mut runs, mut len) = (0, 0);
+            for &v in x.iter().chain(std::iter::once(&f32::NAN)) {
+                if v == level {
+                    len += 1;
+                } else {
+                    runs += usize::from(len >= min_len);
+                    len = 0;
+                }
+            }
+            (runs >= CLIPPED_RUNS).then_some((level, runs))
+        };
+        let (top, bottom) = (runs_at(hi), runs_at(lo));
+        (top.is_some() || bottom.is_some()).then_some(Clipping { top, bottom })
     }
 }
 
@@ -352,6 +410,7 @@ impl Recording {
     pub fn signal_notes(&self) -> Vec<String> {
         let mut notes = self.invalid_sample_notes();
         notes.extend(self.flat_lead_notes());
+        notes.extend(self.clipped_lead_notes());
         notes.extend(self.amplitude_doubt());
         notes
     }
@@ -526,6 +585,27 @@ impl Recording {
             .collect()
     }
 
+    /// One note per clipped lead (see [`Lead::clipping`]): its waves are cut off at the limit, so amplitudes read
+    /// from it (the axis, ST levels, voltage calipers) may be too small, and its QRS may look wider or flatter.
+    #[must_use]
+    pub fn clipped_lead_notes(&self) -> Vec<String> {
+        let fs = self.sample_rate.hz();
+        self.leads
+            .iter()
+            .filter_map(|l| {
+                let c = l.clipping(fs)?;
+                let side = |s: Option<(f32, usize)>| s.map(|(level, runs)| format!("{:+.2} mV in {runs} places", level / 1000.0));
+                let sides: Vec<String> = [side(c.top), side(c.bottom)].into_iter().flatten().collect();
+                Some(format!(
+                    "lead {} is held at its extreme value ({}) for {:.0} ms or more each time, as a recorder at the end of its range holds it: waves there are cut off, and amplitudes, the axis and ST levels read from this lead may be wrong",
+                    l.name,
+                    sides.join(" and "),
+                    (CLIPPED_RUN_S * 1000.0)
+                ))
+            })
+            .collect()
+    }
+
     /// Stretches (sorted sample ranges) of at least [`crate::gaps::MIN_GAP_S`] where no lead has a valid sample:
     /// nothing was recorded there, so beats on either side are not neighbours (see [`crate::measure::hrv`]).
     #[must_use]
@@ -605,6 +685,41 @@ mod tests {
             meta: Meta::default(),
             annotations: Vec::new(),
         }
+    }
+
+    /// 10 s at 500 Hz of beats once a second: a narrow 1.5 mV R wave and a broad 0.4 mV T wave, quantised to 5 µV.
+    fn beats_lead(name: &str) -> Lead {
+        let samples = (0..5000)
+            .map(|k| {
+                let d = (k % 500) as f32 / 500.0 - 0.3;
+                let v = 1500.0 * (-(d / 0.012).powi(2)).exp() + 400.0 * (-((d - 0.3) / 0.06).powi(2)).exp();
+                (v / 5.0).round() * 5.0
+            })
+            .collect();
+        Lead { name: LeadName::parse(name), samples }
+    }
+
+    #[test]
+    fn clipped_leads_are_noted() {
+        // Unclipped: every R peak reaches the same 1500 µV for one sample only; the broad T wave holds its peak
+        // value for several samples but lies below the R peaks; the flat baseline between the beats is the lead's
+        // smallest value, held most of each second, but it is where the lead usually is (its median).
+        let clean = beats_lead("II");
+        assert_eq!(clean.clipping(500.0), None);
+        // Cut at 1 mV: ten R waves held at the limit for 10 ms or more each.
+        let mut cut = beats_lead("II");
+        cut.samples.iter_mut().for_each(|v| *v = v.min(1000.0));
+        let c = cut.clipping(500.0).unwrap_or_else(|| panic!("not clipped"));
+        assert_eq!((c.top, c.bottom), (Some((1000.0, 10)), None));
+        let notes = rec(vec![cut, beats_lead("V5")]).clipped_lead_notes();
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(notes[0].starts_with("lead II is held at its extreme value (+1.00 mV in 10 places)"), "{notes:?}");
+        // Held at the limit in two places only (two beats reach it): not enough to call the lead clipped.
+        let mut two = beats_lead("II");
+        two.samples.iter_mut().take(1200).for_each(|v| *v = v.min(1000.0));
+        assert_eq!(two.clipping(500.0), None);
+        // A flat lead is flat, not clipped.
+        assert_eq!(Lead { name: LeadName::parse("I"), samples: vec![0.0; 5000] }.clipping(500.0), None);
     }
 
     #[test]

@@ -238,3 +238,31 @@ fn lying_header_is_rejected_before_allocation() -> TestResult {
     assert!(e.to_string().contains("rec.hea"));
     Ok(())
 }
+
+#[test]
+fn clipping_is_noted_only_where_a_lead_is_held_at_its_limit() -> TestResult {
+    // Of every lead of the shared records, only the QT Database's sel14046 ECG1 sits at one value (1022 digital
+    // units, +5.11 mV) for 12–24 ms in 9 places, the tops of its largest ventricular beats cut off there, as at
+    // the end of a recorder's range (the same 1022 units as the wfdb package reads them: `wfdb.rdrecord(...,
+    // physical=False)`, 4.3.1; the record from PhysioNet, see tests/data/README.md). Nothing else is clipped.
+    let mut records: Vec<String> = (1..=50).map(|n| format!("ludb/{n}.hea")).filter(|r| data(r).exists()).collect();
+    records.extend(
+        ["sel100", "sel117", "sel16265", "sel803", "sele0104", "sel14046"].iter().map(|r| format!("qtdb/{r}.hea")),
+    );
+    records.extend(["mitdb-100/100.hea".to_string(), "ptb-s0010/s0010_re.hea".to_string()]);
+    let mut clipped = Vec::new();
+    for r in &records {
+        let opened = io::open(&data(r), &io::OpenOptions::default())?;
+        let fs = opened.recording.sample_rate.hz();
+        for lead in &opened.recording.leads {
+            if let Some(c) = lead.clipping(fs) {
+                clipped.push(format!("{r} {} {:?} {:?}", lead.name, c.top, c.bottom));
+            }
+        }
+        let noted = opened.warnings.iter().filter(|w| w.contains("is held at its extreme value")).count();
+        assert_eq!(noted, usize::from(r.contains("sel14046")), "{r}: {:?}", opened.warnings);
+    }
+    assert_eq!(records.len(), 58, "records read");
+    assert_eq!(clipped, ["qtdb/sel14046.hea ECG1 Some((5110.0, 9)) None"]);
+    Ok(())
+}
