@@ -156,6 +156,15 @@ pub const FLAT_UV: f32 = 1.0;
 const CLIPPED_RUN_S: f64 = 0.010;
 /// Fewest separate runs at the extreme value for a lead to count as clipped (see [`CLIPPED_RUN_S`]).
 const CLIPPED_RUNS: usize = 3;
+/// Longest run at the extreme value counted, s: a QRS cut off at a limit stays there for less than the QRS lasts;
+/// a calibration pulse (1 mV for 200 ms, references.md §1) is no clipping.
+// Common practice, no source.
+const CLIPPED_RUN_MAX_S: f64 = 0.150;
+/// A wave cut off at the limit reaches it and leaves it by at least this many digital steps from one sample to
+/// the next.
+// Common practice, no source. Measured (helper's review): a 60-s demo rounded to 10 or 20 µV, whose largest wave
+// in V3 is the broad T wave, held +0.33 mV in 36 / 72 places, each reached one step at a time.
+const CLIPPED_STEP_QUANTA: f32 = 3.0;
 /// A clipping level lies at least this share of the lead's whole range from its median.
 // Common practice, no source.
 const FAR_FROM_MEDIAN: f32 = 0.4;
@@ -193,17 +202,32 @@ impl Lead {
         let mid = typical.len() / 2;
         let median = *typical.select_nth_unstable_by(mid, f32::total_cmp).1;
         let far = |level: f32| (level - median).abs() >= FAR_FROM_MEDIAN * (hi - lo);
+        let max_len = (CLIPPED_RUN_MAX_S * fs).round() as usize;
+        // The lead's digital step: the smallest change between neighbouring samples (of up to 100 000 pairs).
+        let quantum = x
+            .windows(2)
+            .step_by(step)
+            .map(|w| (w[1] - w[0]).abs())
+            .filter(|d| d.is_finite() && *d > 0.0)
+            .fold(f32::INFINITY, f32::min);
+        // A wave cut off at the limit arrives and leaves by a step of several digital steps; a broad wave's own
+        // top (a T wave on a coarse recorder) creeps up and down one step at a time.
+        let steep = |v: Option<&f32>, level: f32| v.is_some_and(|v| (v - level).abs() >= CLIPPED_STEP_QUANTA * quantum);
         let runs_at = |level: f32| {
             if !far(level) {
                 return None;
             }
-            let (mut runs, mut len) = (0, 0);
-            for &v in x.iter().chain(std::iter::once(&f32::NAN)) {
-                if v == level {
-                    len += 1;
-                } else {
-                    runs += usize::from(len >= min_len);
-                    len = 0;
+            let (mut runs, mut start) = (0, None);
+            for (k, &v) in x.iter().chain(std::iter::once(&f32::NAN)).enumerate() {
+                match (v == level, start) {
+                    (true, None) => start = Some(k),
+                    (false, Some(a)) => {
+                        let len = k - a;
+                        let ends_steep = a > 0 && steep(x.get(a - 1), level) && steep(x.get(k), level);
+                        runs += usize::from((min_len..=max_len).contains(&len) && ends_steep);
+                        start = None;
+                    }
+                    _ => {}
                 }
             }
             (runs >= CLIPPED_RUNS).then_some((level, runs))
@@ -718,6 +742,23 @@ mod tests {
         let mut two = beats_lead("II");
         two.samples.iter_mut().take(1200).for_each(|v| *v = v.min(1000.0));
         assert_eq!(two.clipping(500.0), None);
+        // A coarse recorder (20 µV steps) on a lead whose T wave is its largest wave: the T wave's top is held
+        // for several samples in every beat, but reached one step at a time. Not clipped.
+        let mut coarse = beats_lead("V3");
+        coarse.samples.iter_mut().for_each(|v| *v = (*v * 0.15 / 20.0).round() * 20.0);
+        for k in 0..5000 {
+            let d = (k % 500) as f32 / 500.0 - 0.6;
+            coarse.samples[k] += ((600.0 * (-(d / 0.06).powi(2)).exp()) / 20.0).round() * 20.0;
+        }
+        assert_eq!(coarse.clipping(500.0), None);
+        // Calibration pulses (1 mV for 200 ms, three of them) are the lead's largest value, reached steeply, but
+        // held longer than a cut-off QRS is. Not clipped.
+        let mut cal = beats_lead("V1");
+        cal.samples.iter_mut().for_each(|v| *v *= 0.5);
+        for start in [100, 1600, 3100] {
+            cal.samples[start..start + 100].fill(1000.0);
+        }
+        assert_eq!(cal.clipping(500.0), None);
         // A flat lead is flat, not clipped.
         assert_eq!(Lead { name: LeadName::parse("I"), samples: vec![0.0; 5000] }.clipping(500.0), None);
     }

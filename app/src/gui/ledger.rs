@@ -49,7 +49,12 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
     let mut rev = match loaded.representative() {
         Some(rep) if !doc.marks.is_empty() => {
             let bounds = doc.effective_marks(&rep.bounds);
-            let t = Template { leads: &rep.leads, sample_rate: rep.sample_rate, bounds };
+            let t = Template {
+                leads: &rep.leads,
+                sample_rate: rep.sample_rate,
+                bounds,
+                baseline_step_uv: rep.baseline_step_uv,
+            };
             measure::measure(&loaded.recording, &an.beats, Some(&t)).values()
         }
         _ => auto.clone(),

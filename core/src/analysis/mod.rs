@@ -57,7 +57,12 @@ pub struct Analysis {
 /// The representative beat as measurement sees it.
 #[must_use]
 pub fn template_of(rep: &RepresentativeBeat) -> Template<'_> {
-    Template { leads: &rep.leads, sample_rate: rep.sample_rate, bounds: rep.bounds }
+    Template {
+        leads: &rep.leads,
+        sample_rate: rep.sample_rate,
+        bounds: rep.bounds,
+        baseline_step_uv: rep.baseline_step_uv,
+    }
 }
 
 /// Runs the whole pipeline on a recording; one longer than [`LONG_RECORDING_S`] window by window

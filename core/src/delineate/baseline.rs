@@ -19,8 +19,10 @@ const KNOT_SPAN_S: (f64, f64) = (0.030, 0.010);
 const MIN_KNOT_SAMPLES: usize = 3;
 
 /// A copy of `recording` with each lead less its baseline: a natural cubic spline through the lead's PR level of
-/// every beat of `beats` that has a QRS onset (the median over [`KNOT_SPAN_S`] before it), held at the end knots'
-/// levels before the first and after the last. A lead with no knot is copied unchanged; with one knot it is
+/// every dominant beat of `beats` (every beat when none is dominant) that has a QRS onset (the median over
+/// [`KNOT_SPAN_S`] before it), held at the end knots' levels before the first and after the last. A premature
+/// beat's "PR level" lies on the T wave before it (bigeminy coupled at 400 ms with 0.5 mV of wander: ST levels
+/// ±40 µV off where its beats were knots). A lead with no knot is copied unchanged; with one knot it is
 /// shifted by that knot's level; with two, less the straight line through them. Invalid samples stay invalid.
 /// A lead is levelled only where that makes its beats more alike (see [`spread`]): wander faster than half the
 /// heart rate passes between the knots unseen, and a spline through them then adds a wave of its own. `None` when
@@ -42,20 +44,7 @@ pub fn levelled(recording: &Recording, beats: &[Beat]) -> Option<Recording> {
         .collect();
     for lead in &mut out.leads {
         let x = &lead.samples;
-        let knots: Vec<(f64, f64)> = beats
-            .iter()
-            .filter_map(|b| b.bounds.qrs_on)
-            .filter(|&q| q >= from && q <= x.len())
-            .filter_map(|q| {
-                let mut span: Vec<f32> = x[q - from..q + 1 - to].iter().copied().filter(|v| v.is_finite()).collect();
-                if span.len() < MIN_KNOT_SAMPLES {
-                    return None;
-                }
-                let mid = span.len() / 2;
-                let level = *span.select_nth_unstable_by(mid, f32::total_cmp).1;
-                Some(((q - (from + to) / 2) as f64, f64::from(level)))
-            })
-            .collect();
+        let knots = knots(x, beats, any_dominant, (from, to));
         let Some(spline) = Spline::natural(&knots) else { continue };
         let y: Vec<f32> = x.iter().enumerate().map(|(k, &v)| v - spline.at(k as f64) as f32).collect();
         if spread(&y, &spans) < spread(x, &spans) {
@@ -64,6 +53,46 @@ pub fn levelled(recording: &Recording, beats: &[Beat]) -> Option<Recording> {
         }
     }
     any.then_some(out)
+}
+
+/// The PR level of lead `x` (median over `from`..`to` samples before QRS onset, [`KNOT_SPAN_S`]) at each beat of
+/// `beats` that has a QRS onset, dominant ones only when `any_dominant`: (position, level) in time order.
+fn knots(x: &[f32], beats: &[Beat], any_dominant: bool, (from, to): (usize, usize)) -> Vec<(f64, f64)> {
+    beats
+        .iter()
+        .filter(|b| !any_dominant || b.kind == BeatKind::Dominant)
+        .filter_map(|b| b.bounds.qrs_on)
+        .filter(|&q| q >= from && q <= x.len())
+        .filter_map(|q| {
+            let mut span: Vec<f32> = x[q - from..q + 1 - to].iter().copied().filter(|v| v.is_finite()).collect();
+            if span.len() < MIN_KNOT_SAMPLES {
+                return None;
+            }
+            let mid = span.len() / 2;
+            let level = *span.select_nth_unstable_by(mid, f32::total_cmp).1;
+            Some(((q - (from + to) / 2) as f64, f64::from(level)))
+        })
+        .collect()
+}
+
+/// How far the baseline moves from one dominant beat to the next on `recording` (as levelled for the
+/// representative beat, or as given where it was not): per lead the median change of the PR level between
+/// consecutive beats, µV, and of those the median over the leads. `None` with fewer than two knots on every lead.
+#[must_use]
+pub fn pr_level_step(recording: &Recording, beats: &[Beat]) -> Option<f64> {
+    let fs = recording.sample_rate.hz();
+    let (from, to) = ((KNOT_SPAN_S.0 * fs).round() as usize, ((KNOT_SPAN_S.1 * fs).round() as usize).max(1));
+    let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
+    let per_lead: Vec<f64> = recording
+        .leads
+        .iter()
+        .filter_map(|l| {
+            let k = knots(&l.samples, beats, any_dominant, (from, to));
+            let steps: Vec<f64> = k.windows(2).map(|w| (w[1].1 - w[0].1).abs()).collect();
+            crate::measure::stats::median(&steps)
+        })
+        .collect();
+    crate::measure::stats::median(&per_lead)
 }
 
 /// Span around each R peak over which beats are compared when choosing whether to level a lead, s (before,

@@ -24,6 +24,10 @@ pub struct RepresentativeBeat {
     pub bounds: Boundaries,
     /// Number of beats in the median.
     pub n_beats: usize,
+    /// How far the baseline moved from one of its beats to the next, µV: the median change of the PR level between
+    /// consecutive dominant beats, on the leads as levelled for the median ([`baseline::pr_level_step`]; for a
+    /// long recording the median over its windows). `None` when not known.
+    pub baseline_step_uv: Option<f64>,
 }
 
 /// Builds and delineates the representative beat from the dominant beats (all beats when none is dominant), each
@@ -52,10 +56,10 @@ pub fn representative_beat_with(
     beats: &[Beat],
     p_model: Option<&PModel>,
 ) -> Option<RepresentativeBeat> {
-    match baseline::levelled(recording, beats) {
-        Some(levelled) => representative_of_levelled(&levelled, beats, p_model),
-        None => representative_of_levelled(recording, beats, p_model),
-    }
+    let levelled = baseline::levelled(recording, beats);
+    let used = levelled.as_ref().unwrap_or(recording);
+    let rep = representative_of_levelled(used, beats, p_model)?;
+    Some(RepresentativeBeat { baseline_step_uv: baseline::pr_level_step(used, beats), ..rep })
 }
 
 /// [`representative_beat_with`] on a recording already levelled ([`baseline::levelled`]).
@@ -271,6 +275,7 @@ fn delineated(
         r_index: before,
         bounds: Boundaries { p_on, p_end, qrs_on: on, qrs_end: end, t_end },
         n_beats,
+        baseline_step_uv: None,
     }
 }
 
@@ -318,6 +323,8 @@ pub struct BeatStack {
     /// Per kept beat, samples from its R peak to the next beat's (when the window holds one): the T wave is
     /// sought before the beat that follows the kept ones, as in [`representative_beat_with`].
     next_rr: Vec<usize>,
+    /// Per window gathered, how far its baseline moved from beat to beat ([`baseline::pr_level_step`]), µV.
+    baseline_steps: Vec<f64>,
 }
 
 impl BeatStack {
@@ -332,6 +339,7 @@ impl BeatStack {
             quota: STACK_BEATS.div_ceil(windows.max(1)),
             beats: Vec::new(),
             next_rr: Vec::new(),
+            baseline_steps: Vec::new(),
         }
     }
 
@@ -342,6 +350,7 @@ impl BeatStack {
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
         let levelled = baseline::levelled(part, beats);
         let part = levelled.as_ref().unwrap_or(part);
+        self.baseline_steps.extend(baseline::pr_level_step(part, beats));
         let n = part.len();
         let (before, after) = (self.before, self.after);
         let gaps = part.gaps();
@@ -364,6 +373,7 @@ impl BeatStack {
     pub fn append(&mut self, mut other: BeatStack) {
         self.beats.append(&mut other.beats);
         self.next_rr.append(&mut other.next_rr);
+        self.baseline_steps.append(&mut other.baseline_steps);
     }
 
     /// Number of beats kept.
@@ -397,7 +407,8 @@ impl BeatStack {
         let room = |_| (reach, reach);
         let leads = aligned_median(self.beats[0].len(), (before, after), reach, self.beats.len(), fs, room, value);
         let rr_next = t_search_rr(self.next_rr.clone(), rr);
-        Some(delineated(leads, self.sample_rate, before, rr_next, p_model, self.beats.len()))
+        let rep = delineated(leads, self.sample_rate, before, rr_next, p_model, self.beats.len());
+        Some(RepresentativeBeat { baseline_step_uv: crate::measure::stats::median(&self.baseline_steps), ..rep })
     }
 }
 

@@ -15,7 +15,7 @@ mod twave;
 
 pub use median::{BeatStack, RepresentativeBeat, STACK_BEATS, representative_beat, representative_beat_with};
 pub use pwave::PModel;
-pub use signals::Signals;
+pub use signals::{Signals, despiked};
 
 /// Each voting lead's QRS onset and end around R peak `r` (lead index, onset, end), for analysis tools.
 #[doc(hidden)]

@@ -44,6 +44,9 @@ pub struct Template<'a> {
     pub sample_rate: Hertz,
     /// Global boundaries on the template's axis.
     pub bounds: Boundaries,
+    /// How far the baseline moved from one of its beats to the next, µV (see
+    /// `delineate::RepresentativeBeat::baseline_step_uv`); `None` when not known.
+    pub baseline_step_uv: Option<f64>,
 }
 
 /// Where [`Measurements::intervals`] came from.
@@ -95,6 +98,10 @@ pub struct Measurements {
     /// before the first beat. A stretch reaching into a gap of the recording (no signal) is no such finding.
     #[serde(default)]
     pub beatless_edges_s: [Option<f64>; 2],
+    /// How far the baseline moved from one dominant beat's PR segment to the next in the beats of the
+    /// representative beat, µV (median; see [`ranges::unsteady_baseline`]); `None` without one.
+    #[serde(default)]
+    pub baseline_step_uv: Option<f64>,
 }
 
 /// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
@@ -172,6 +179,7 @@ pub fn measure_with(
         limb_gain_mismatch_pct,
         leads_left_out,
         beatless_edges_s,
+        baseline_step_uv: template.and_then(|t| t.baseline_step_uv),
     }
 }
 
@@ -252,6 +260,7 @@ impl Measurements {
             notes.extend(ranges::no_representative_beat());
         }
         notes.extend(self.leads_left_out_note());
+        notes.extend(self.baseline_step_uv.and_then(ranges::unsteady_baseline));
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
             if !notes.contains(&n) {
@@ -299,7 +308,7 @@ mod tests {
             let beats: Vec<Beat> = sorted.iter().enumerate()
                 .map(|(i, &r)| Beat { r, kind: if i % 3 == 0 { BeatKind::Other } else { BeatKind::Dominant }, bounds })
                 .collect();
-            let t = Template { leads: &leads, sample_rate: rec.sample_rate, bounds };
+            let t = Template { leads: &leads, sample_rate: rec.sample_rate, bounds, baseline_step_uv: None };
             let m = measure(&rec, &beats, Some(&t));
             for v in m.values() {
                 prop_assert!(v.value.is_none_or(f64::is_finite), "{} = {:?}", v.key, v.value);

@@ -80,6 +80,16 @@ pub const SOURCE_CONSISTENCY: &str = "representative beat against single beats";
 pub const SOURCE_LEADS_LEFT_OUT: &str = "representative beat";
 /// Source of the no-beat note: the detector itself.
 pub const SOURCE_NO_BEATS: &str = "beat detection";
+/// Source of the baseline note's limit ([`unsteady_baseline`]): ST deviations of 0.1 mV are read as significant.
+// Source: Thygesen et al., Fourth Universal Definition of Myocardial Infarction, Circulation 2018;138:e618-51
+// (from memory: ST elevation of 1 mm, 0.1 mV, at the J point in most leads).
+pub const SOURCE_ST_LIMIT: &str = "Thygesen et al. 2018, Circulation 138:e618";
+/// A baseline that moves by more than this from one dominant beat's PR segment to the next, µV, is too unsteady
+/// for the representative beat's ST levels and T wave: a shift as large as the ST change that is read as
+/// significant ([`SOURCE_ST_LIMIT`]). Measured: shared real records 2–28 µV (LUDB 1–50, QT Database, MIT-BIH
+/// 100, PTB s0010); demo normal with 200 µV of muscle noise 64 µV; wander of 0.3 mV at 0.7–1 Hz (faster than the
+/// spline through the beats can follow) 240–250 µV.
+pub const UNSTEADY_BASELINE_UV: f64 = 100.0;
 
 /// Largest difference, ms, between an interval on the representative beat and the median of the dominant beats'
 /// own before [`beats_disagree`] speaks. The two estimates come from the same beats; where they part by more than
@@ -348,6 +358,27 @@ pub fn leads_left_out(leads: &[crate::recording::LeadName], with_axes: bool) -> 
         ),
         SOURCE_LEADS_LEFT_OUT,
     )
+}
+
+/// The baseline moves by `step_uv` (the median change of the PR level between consecutive dominant beats, after
+/// the spline levelling where that was used; see `delineate::baseline`) at or above [`UNSTEADY_BASELINE_UV`]:
+/// wander faster than the beats can follow (about half the heart rate and above) is left in the representative
+/// beat, whose T wave and ST levels then lie on slopes of their own. (Demo normal with 1 mV of wander at 1 Hz:
+/// QT 644 ms for 382, ST −50 µV in every lead, no note.)
+#[must_use]
+pub fn unsteady_baseline(step_uv: f64) -> Option<RangeNote> {
+    note(
+        KEY_REPRESENTATIVE,
+        format!(
+            "Baseline moves by {:.2} mV from beat to beat, too fast to be taken off (at least {:.1} mV, \
+             {SOURCE_ST_LIMIT}): QT, ST levels and T axis of the representative beat are doubtful; check them \
+             on single beats",
+            step_uv / 1000.0,
+            UNSTEADY_BASELINE_UV / 1000.0
+        ),
+        SOURCE_ST_LIMIT,
+    )
+    .filter(|_| step_uv >= UNSTEADY_BASELINE_UV)
 }
 
 /// Key of the pause note ([`pause`]): no value's key, so the note stays when the reader changes the RR or rate.

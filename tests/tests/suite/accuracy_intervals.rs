@@ -53,6 +53,9 @@ fn compare(name: &str, reference_csv: &str, record: &str, errors: &mut [Vec<f64>
     }
     let flagged: Vec<String> =
         a.measurements.notes().into_iter().filter(|n| n.source == ranges::SOURCE_CONSISTENCY).map(|n| n.key).collect();
+    // No shared record's baseline moves too fast to take off (measured: at most 28 µV from beat to beat).
+    let step = a.measurements.baseline_step_uv;
+    assert!(step.is_some_and(|s| s < ranges::UNSTEADY_BASELINE_UV / 2.0), "{name}: baseline step {step:?} µV");
     if !flagged.is_empty() {
         line.push_str(&format!("   noted: {}", flagged.join(", ")));
     }

@@ -148,7 +148,7 @@ fn axis_of_constructed_beats() {
         let leads = constructed_beat(50.0, qrs_deg, 40.0, 0.0);
         let template: Vec<Vec<f32>> = leads.iter().map(|l| l.samples.clone()).collect();
         let rec = recording_of(leads, None);
-        let t = Template { leads: &template, sample_rate: hz(FS), bounds: BOUNDS };
+        let t = Template { leads: &template, sample_rate: hz(FS), bounds: BOUNDS, baseline_step_uv: None };
         for basis in [measure::AxisBasis::NetArea, measure::AxisBasis::NetAmplitude] {
             let m = measure::measure_with(&rec, &[], Some(&t), basis);
             let got = m.axes.qrs_deg.unwrap_or(f64::NAN);
@@ -166,7 +166,7 @@ fn axis_with_only_i_and_ii() {
     leads.retain(|l| matches!(l.name, LeadName::Standard(StandardLead::I | StandardLead::II)));
     let template: Vec<Vec<f32>> = leads.iter().map(|l| l.samples.clone()).collect();
     let rec = recording_of(leads, None);
-    let t = Template { leads: &template, sample_rate: hz(FS), bounds: BOUNDS };
+    let t = Template { leads: &template, sample_rate: hz(FS), bounds: BOUNDS, baseline_step_uv: None };
     let got = measure::measure(&rec, &[], Some(&t)).axes.qrs_deg.unwrap_or(f64::NAN);
     assert!(close(got, -30.0, 0.5), "{got}");
 }
@@ -178,7 +178,7 @@ fn full_measurement_of_a_constructed_recording() {
     let template: Vec<Vec<f32>> = leads.iter().map(|l| l.samples.clone()).collect();
     let rec = recording_of(leads, Some("F"));
     let beats: Vec<Beat> = (0..12).map(|k| Beat::at(250 + k * 400, BeatKind::Dominant)).collect();
-    let t = Template { leads: &template, sample_rate: hz(FS), bounds: BOUNDS };
+    let t = Template { leads: &template, sample_rate: hz(FS), bounds: BOUNDS, baseline_step_uv: None };
     let m = measure::measure(&rec, &beats, Some(&t));
     assert_eq!(m.beats, 12);
     assert_eq!(m.dominant_beats, 12);

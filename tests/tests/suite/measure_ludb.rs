@@ -246,7 +246,12 @@ impl Case {
 
     /// The measurement as `isoline measure` makes it from this template (default basis).
     fn measured(&self) -> Option<f64> {
-        let t = Template { leads: &self.template, sample_rate: self.rec.sample_rate, bounds: self.bounds };
+        let t = Template {
+            leads: &self.template,
+            sample_rate: self.rec.sample_rate,
+            bounds: self.bounds,
+            baseline_step_uv: None,
+        };
         measure::measure(&self.rec, &[], Some(&t)).axes.qrs_deg
     }
 }

@@ -280,6 +280,33 @@ fn intervals_hold_on_a_wandering_baseline() {
     check(&outcomes);
 }
 
+#[test]
+fn wander_too_fast_to_take_off_is_noted() {
+    // Wander at about the heart rate passes between the beats' PR segments, where the spline's knots lie: the
+    // representative beat keeps it and its QT and ST levels are off (normal with 1 mV at 1 Hz: QT 644 ms for 382,
+    // ST −50 µV in every lead, and before no word of it). The baseline's step from beat to beat says so; slow
+    // wander, taken off, and none at all say nothing. Limit: `ranges::UNSTEADY_BASELINE_UV`.
+    let wander = |uv: f64, hz: f64| NoiseSpec { baseline_uv: uv, baseline_hz: hz, ..NoiseSpec::NONE };
+    for (noise, want) in [(wander(1000.0, 1.0), true), (wander(600.0, 0.8), true), (wander(2000.0, 0.3), false)] {
+        for seconds in [10.0, 30.0] {
+            let spec = SynthSpec { seconds, noise, ..Scenario::Normal.spec() };
+            let s = synth::generate(&spec).unwrap_or_else(|e| panic!("{e}"));
+            let m = analyze(&s.recording, &FilterSettings::default()).measurements;
+            let noted = m.notes().iter().any(|n| n.text.starts_with("Baseline moves by"));
+            println!(
+                "{} µV at {} Hz, {seconds} s: step {:?} µV, noted {noted}",
+                noise.baseline_uv, noise.baseline_hz, m.baseline_step_uv
+            );
+            assert_eq!(noted, want, "{} µV at {} Hz, {seconds} s", noise.baseline_uv, noise.baseline_hz);
+        }
+    }
+    let clean = analyze(
+        &synth::generate(&Scenario::Normal.spec()).unwrap_or_else(|e| panic!("{e}")).recording,
+        &FilterSettings::default(),
+    );
+    assert!(clean.measurements.baseline_step_uv.is_some_and(|s| s < 10.0), "{:?}", clean.measurements.baseline_step_uv);
+}
+
 // Tried and not kept (LUDB: LUDB records 1-50, representative beat against the median of the experts' global
 // boundaries): moving the representative beat's QRS edges to where the multi-lead departure from the baseline
 // (each 40 Hz lead's deviation in units of its noise SD over 60 ms outside the edge, summed in squares over the
