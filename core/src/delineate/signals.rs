@@ -195,12 +195,23 @@ fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> Cow<'x, [f64]> {
 /// are tested, so a long recording costs one pass. Invalid samples (NaN) are no spikes and are left out of the
 /// percentile and the medians.
 pub fn pacing_spikes<T: Copy + Into<f64>>(x: &[T], fs: f64) -> Vec<usize> {
+    spikes_among(x, fs, 100_000)
+}
+
+/// Neighbouring pairs the beat detector's spike test reads the lead's typical step from ([`despiked`]): fewer
+/// than [`pacing_spikes`] reads for the boundaries, as the detector passes over every window of a 24-h recording
+/// (the 99th percentile of 10 000 steps is as steady for a limit four times above it; reading up to 100 000 cost
+/// the 24-h detection 0.08 s on one core).
+const DETECTOR_STEP_PAIRS: usize = 10_000;
+
+/// [`pacing_spikes`] with the typical step read from about `pairs` neighbouring pairs spread over the lead.
+fn spikes_among<T: Copy + Into<f64>>(x: &[T], fs: f64, pairs: usize) -> Vec<usize> {
     let n = x.len();
     if n < 3 {
         return Vec::new();
     }
     let v = |k: usize| -> f64 { x[k].into() };
-    let step = (n / 100_000).max(1);
+    let step = (n / pairs).max(1);
     let mut d: Vec<f64> = (1..n).step_by(step).map(|k| (v(k) - v(k - 1)).abs()).filter(|d| d.is_finite()).collect();
     if d.is_empty() {
         return Vec::new();
@@ -212,8 +223,20 @@ pub fn pacing_spikes<T: Copy + Into<f64>>(x: &[T], fs: f64) -> Vec<usize> {
     }
     let h = ((SPIKE_MEDIAN_S * fs).round() as usize / 2).max(1);
     let mut buf = Vec::with_capacity(2 * h + 1);
-    (1..n)
-        .filter(|&k| (v(k) - v(k - 1)).abs() > limit || (k + 1 < n && (v(k + 1) - v(k)).abs() > limit))
+    // Samples on either side of a step above the limit, each once, in order (one difference per pair).
+    let mut candidates = Vec::new();
+    for (i, w) in x.windows(2).enumerate() {
+        let (a, b): (f64, f64) = (w[0].into(), w[1].into());
+        if (b - a).abs() > limit {
+            let k = i + 1;
+            if candidates.last() != Some(&i) && i > 0 {
+                candidates.push(i);
+            }
+            candidates.push(k);
+        }
+    }
+    candidates
+        .into_iter()
         .filter(|&k| {
             buf.clear();
             buf.extend((k.saturating_sub(h)..(k + h + 1).min(n)).map(v).filter(|v| v.is_finite()));
@@ -232,7 +255,7 @@ pub fn pacing_spikes<T: Copy + Into<f64>>(x: &[T], fs: f64) -> Vec<usize> {
 /// height read from the spikes, 2 of 12 beats missed, R placed on T waves). Borrowed when there is none.
 #[must_use]
 pub fn despiked(x: &[f32], fs: f64) -> Cow<'_, [f32]> {
-    let spikes = pacing_spikes(x, fs);
+    let spikes = spikes_among(x, fs, DETECTOR_STEP_PAIRS);
     if spikes.is_empty() {
         return Cow::Borrowed(x);
     }

@@ -94,7 +94,7 @@ fn reported_intervals_against_ludb_experts() {
             assert!(noted.is_empty(), "ludb {n}: {noted:?}");
         }
     }
-    // Measured today: PR +2.3 ± 12.7, QRS −17.8 ± 12.5, QT −10.5 ± 23.2 ms. The reported QRS is shorter than the
+    // Measured today: PR +2.3 ± 12.7, QRS −17.7 ± 12.6, QT −10.6 ± 23.3 ms. The reported QRS is shorter than the
     // earliest-to-latest span over 12 hand-marked leads (per beat: onset +8, end −9 ms, see accuracy_boundaries).
     check("LUDB", &errors, [(5.0, 14.0), (19.5, 14.0), (15.0, 24.0)]);
 }
@@ -110,7 +110,7 @@ fn reported_intervals_against_qtdb_cardiologist_1() {
         let want: &[&str] = if r == "sele0104" { &["qt_ms"] } else { &[] };
         assert_eq!(noted, want, "{r}");
     }
-    // Measured today: PR −1.3 ± 7.0, QRS +6.3 ± 6.7, QT −9.7 ± 38.5 ms (sele0104: QT 352 vs 438 ms, the low T
+    // Measured today: PR −1.3 ± 7.0, QRS +6.3 ± 6.7, QT −9.0 ± 39.0 ms (sele0104: QT 352 vs 438 ms, the low T
     // waves on a wandering baseline, see accuracy_boundaries). The QRS mean rose from +5.0 (± 9.4) when the
     // representative beat's baseline was levelled (`delineate::baseline`): sel16265 88 → 96 ms for 100, the one
     // record measured short, so the records' errors no longer cancel.
