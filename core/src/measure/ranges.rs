@@ -192,11 +192,22 @@ pub fn qtc(key: &str, formula: &str, ms: f64, sex: Sex) -> Option<RangeNote> {
 /// `note` (a QTc note of [`qtc`]) for a QTc corrected from a QT that the individual beats do not confirm (see
 /// [`beats_disagree`]): the finding says so, so that a QTc called long or short is not read apart from that doubt.
 #[must_use]
-pub fn qtc_from_doubtful_qt(mut note: RangeNote) -> RangeNote {
-    const DOUBT: &str = "; corrected from a QT the individual beats do not confirm";
-    note.text.push_str(DOUBT);
+pub fn qtc_from_doubtful_qt(note: RangeNote) -> RangeNote {
+    with_doubt(note, "; corrected from a QT the individual beats do not confirm")
+}
+
+/// `note` (a QTc note of [`qtc`]) for a QTc corrected from a QT measured on a baseline too unsteady to take off
+/// ([`unsteady_baseline`]): the finding says so.
+#[must_use]
+pub fn qtc_on_unsteady_baseline(note: RangeNote) -> RangeNote {
+    with_doubt(note, "; corrected from a QT on an unsteady baseline")
+}
+
+/// `note` with `doubt` added to its text and to its QTc finding.
+fn with_doubt(mut note: RangeNote, doubt: &str) -> RangeNote {
+    note.text.push_str(doubt);
     if let Some(q) = note.qtc.as_mut() {
-        q.finding.push_str(DOUBT);
+        q.finding.push_str(doubt);
     }
     note
 }
