@@ -67,7 +67,7 @@ impl<'a> Signals<'a> {
         for &lead in leads {
             let filled = fill_invalid(lead);
             let own = pacing_spikes(&filled, fs);
-            let x = without_spikes(&filled, &own);
+            let x = without_spikes(&filled, &own, |v| v);
             qrs.push(filtfilt(&lp_q, &x, pad).into_iter().map(|v| v as f32).collect::<Vec<f32>>());
             slow.push(filtfilt(&lp_w, &x, pad).into_iter().map(|v| v as f32).collect());
             wide.push(if own.is_empty() && lead.iter().all(|v| v.is_finite()) {
@@ -165,8 +165,8 @@ fn slope_scale(q: &[f32]) -> f32 {
 /// of a P wave, and the P wave's edges are found on the 40 Hz and unfiltered leads too: LUDB 45 (ventricular
 /// pacing, no P wave marked by the experts) read P waves of 204 ms, their ends on the spike before each QRS, and
 /// PR 224 ms; now no P wave, as the experts. On LUDB 8 and 15 one T end moves 1–4 samples; on the other shared
-/// records nothing moves.
-fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> Cow<'x, [f64]> {
+/// records nothing moves. `from_f64` turns a bridged value back into a sample.
+fn without_spikes<'x, T: Copy + Into<f64>>(x: &'x [T], spikes: &[usize], from_f64: fn(f64) -> T) -> Cow<'x, [T]> {
     if spikes.is_empty() {
         return Cow::Borrowed(x);
     }
@@ -183,7 +183,7 @@ fn without_spikes<'x>(x: &'x [f64], spikes: &[usize]) -> Cow<'x, [f64]> {
     let mut y = x.to_vec();
     for run in covered {
         for k in run.clone() {
-            y[k] = bridged(x, &run, k);
+            y[k] = from_f64(bridged(x, &run, k));
         }
     }
     Cow::Owned(y)
@@ -255,28 +255,7 @@ fn spikes_among<T: Copy + Into<f64>>(x: &[T], fs: f64, pairs: usize) -> Vec<usiz
 /// height read from the spikes, 2 of 12 beats missed, R placed on T waves). Borrowed when there is none.
 #[must_use]
 pub fn despiked(x: &[f32], fs: f64) -> Cow<'_, [f32]> {
-    let spikes = spikes_among(x, fs, DETECTOR_STEP_PAIRS);
-    if spikes.is_empty() {
-        return Cow::Borrowed(x);
-    }
-    let mut y = x.to_vec();
-    let n = x.len();
-    let mut k = 0;
-    while k < spikes.len() {
-        // Each run of spikes with a sample on either side, bridged from its valid neighbours.
-        let start = spikes[k].saturating_sub(1);
-        let mut end = (spikes[k] + 2).min(n);
-        while k + 1 < spikes.len() && spikes[k + 1].saturating_sub(1) <= end {
-            k += 1;
-            end = end.max((spikes[k] + 2).min(n));
-        }
-        let run = start..end;
-        for j in run.clone() {
-            y[j] = bridged(x, &run, j) as f32;
-        }
-        k += 1;
-    }
-    Cow::Owned(y)
+    without_spikes(x, &spikes_among(x, fs, DETECTOR_STEP_PAIRS), |v| v as f32)
 }
 
 #[cfg(test)]
@@ -290,12 +269,12 @@ mod tests {
         let mut x: Vec<f64> = (0..10).map(f64::from).collect();
         x[4] += 1000.0;
         x[5] += 1000.0;
-        let y = without_spikes(&x, &[4, 5]);
+        let y = without_spikes(&x, &[4, 5], |v| v);
         assert_eq!(y.as_ref(), (0..10).map(f64::from).collect::<Vec<_>>().as_slice());
         let mut z = vec![5.0; 6];
         z[0] = 900.0;
-        assert_eq!(without_spikes(&z, &[0]).as_ref(), &[5.0; 6]);
-        assert!(matches!(without_spikes(&x, &[]), Cow::Borrowed(_)));
+        assert_eq!(without_spikes(&z, &[0], |v| v).as_ref(), &[5.0; 6]);
+        assert!(matches!(without_spikes(&x, &[], |v| v), Cow::Borrowed(_)));
         // The spike test finds the two samples themselves on a steady lead (4 s at 500 Hz).
         let mut flat: Vec<f64> = (0..2000).map(|k| f64::from(k % 3)).collect();
         flat[1000] = 2000.0;
