@@ -104,14 +104,7 @@ fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<R
 fn row_extra_notes(key: &str, m: &measure::Measurements) -> Vec<RangeNote> {
     match key {
         "qt_ms" => m.leads_left_out_note().into_iter().collect(),
-        "rr_ms" => {
-            let [before, after] = m.beatless_edges_s;
-            let pause = m.rr.rhythm.longest_rr_ms.and_then(ranges::pause);
-            let edges = [(before, false), (after, true)]
-                .into_iter()
-                .filter_map(|(s, end)| s.and_then(|s| ranges::no_beat_at_edge(s, end)));
-            pause.into_iter().chain(edges).collect()
-        }
+        "rr_ms" => m.pause_notes(),
         _ => Vec::new(),
     }
 }

@@ -233,6 +233,24 @@ impl Measurements {
         ranges::leads_left_out(&self.leads_left_out, a.p_deg.is_some() || a.qrs_deg.is_some() || a.t_deg.is_some())
     }
 
+    /// The pause note ([`ranges::pause`]) and the notes of a stretch with no beat before the first beat or after
+    /// the last ([`ranges::no_beat_at_edge`]), in that order.
+    #[must_use]
+    pub fn pause_notes(&self) -> Vec<RangeNote> {
+        let [before, after] = self.beatless_edges_s;
+        let edges = [(before, false), (after, true)]
+            .into_iter()
+            .filter_map(|(s, end)| s.and_then(|s| ranges::no_beat_at_edge(s, end)));
+        self.rr.rhythm.longest_rr_ms.and_then(ranges::pause).into_iter().chain(edges).collect()
+    }
+
+    /// The note that the baseline moves too much from beat to beat for the representative beat
+    /// ([`ranges::unsteady_baseline`]), if it does.
+    #[must_use]
+    pub fn unsteady_baseline_note(&self) -> Option<RangeNote> {
+        self.baseline_step_uv.and_then(ranges::unsteady_baseline)
+    }
+
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
     /// its own; then the pause note ([`ranges::pause`]); then that no representative beat was made
@@ -252,15 +270,12 @@ impl Measurements {
         {
             notes.push(gain);
         }
-        notes.extend(self.rr.rhythm.longest_rr_ms.and_then(ranges::pause));
-        let [before, after] = self.beatless_edges_s;
-        notes.extend(before.and_then(|s| ranges::no_beat_at_edge(s, false)));
-        notes.extend(after.and_then(|s| ranges::no_beat_at_edge(s, true)));
+        notes.extend(self.pause_notes());
         if self.intervals_source == IntervalSource::BeatMedians {
             notes.extend(ranges::no_representative_beat());
         }
         notes.extend(self.leads_left_out_note());
-        notes.extend(self.baseline_step_uv.and_then(ranges::unsteady_baseline));
+        notes.extend(self.unsteady_baseline_note());
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
             if !notes.contains(&n) {

@@ -127,7 +127,7 @@ impl Measurements {
             let mut m = with_note(v(key, &format!("QTc ({name})"), value, "ms"), |x| ranges::qtc(key, name, x, sex));
             if doubtful_qt {
                 m.note = m.note.map(ranges::qtc_from_doubtful_qt);
-            } else if self.baseline_step_uv.is_some_and(|s| ranges::unsteady_baseline(s).is_some()) {
+            } else if self.unsteady_baseline_note().is_some() {
                 m.note = m.note.map(ranges::qtc_on_unsteady_baseline);
             }
             out.push(m);
