@@ -7,6 +7,8 @@
 //! beats on different slopes has no flat baseline to end its T wave on (demo normal with 1 mV of wander at
 //! 0.5 Hz: QT 714 ms on the representative beat for 382, while the single beats read 376).
 
+use std::borrow::Cow;
+
 use crate::beat::{Beat, BeatKind};
 use crate::recording::Recording;
 
@@ -18,21 +20,28 @@ const KNOT_SPAN_S: (f64, f64) = (0.030, 0.010);
 /// Fewest valid samples in a knot's span for the knot to count.
 const MIN_KNOT_SAMPLES: usize = 3;
 
-/// A copy of `recording` with each lead less its baseline: a natural cubic spline through the lead's PR level of
-/// every dominant beat of `beats` (every beat when none is dominant) that has a QRS onset (the median over
+/// A recording as levelled for the representative beat ([`levelled`]).
+pub struct Levelled<'a> {
+    /// The recording with its levelled leads; borrowed when no lead is levelled.
+    pub recording: Cow<'a, Recording>,
+    /// How far the baseline still moves from one dominant beat to the next on it: per lead the median change of
+    /// the PR level between consecutive beats, µV, and of those the median over the leads. `None` with fewer than
+    /// two knots on every lead.
+    pub step_uv: Option<f64>,
+}
+
+/// `recording` with each lead less its baseline: a natural cubic spline through the lead's PR level of every
+/// dominant beat of `beats` (every beat when none is dominant) that has a QRS onset (the median over
 /// [`KNOT_SPAN_S`] before it), held at the end knots' levels before the first and after the last. A premature
 /// beat's "PR level" lies on the T wave before it (bigeminy coupled at 400 ms with 0.5 mV of wander: ST levels
-/// ±40 µV off where its beats were knots). A lead with no knot is copied unchanged; with one knot it is
+/// ±40 µV off where its beats were knots). A lead with no knot is kept unchanged; with one knot it is
 /// shifted by that knot's level; with two, less the straight line through them. Invalid samples stay invalid.
 /// A lead is levelled only where that makes its beats more alike (see [`spread`]): wander faster than half the
-/// heart rate passes between the knots unseen, and a spline through them then adds a wave of its own. `None` when
-/// no lead is levelled.
+/// heart rate passes between the knots unseen, and a spline through them then adds a wave of its own.
 #[must_use]
-pub fn levelled(recording: &Recording, beats: &[Beat]) -> Option<Recording> {
+pub fn levelled<'a>(recording: &'a Recording, beats: &[Beat]) -> Levelled<'a> {
     let fs = recording.sample_rate.hz();
     let (from, to) = ((KNOT_SPAN_S.0 * fs).round() as usize, ((KNOT_SPAN_S.1 * fs).round() as usize).max(1));
-    let mut out = recording.clone();
-    let mut any = false;
     // The beats the choice is made on: the dominant ones (all when none is) whose span fits the recording.
     let (sb, sa) = ((SPREAD_SPAN_S.0 * fs).round() as usize, (SPREAD_SPAN_S.1 * fs).round() as usize);
     let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
@@ -42,17 +51,33 @@ pub fn levelled(recording: &Recording, beats: &[Beat]) -> Option<Recording> {
         .filter(|b| b.r >= sb && b.r + sa <= recording.len())
         .map(|b| b.r - sb..b.r + sa)
         .collect();
-    for lead in &mut out.leads {
+    let mut changed: Vec<(usize, Vec<f32>)> = Vec::new();
+    let mut steps: Vec<f64> = Vec::new();
+    for (i, lead) in recording.leads.iter().enumerate() {
         let x = &lead.samples;
-        let knots = knots(x, beats, any_dominant, (from, to));
-        let Some(spline) = Spline::natural(&knots) else { continue };
-        let y: Vec<f32> = x.iter().enumerate().map(|(k, &v)| v - spline.at(k as f64) as f32).collect();
-        if spread(&y, &spans) < spread(x, &spans) {
-            lead.samples = y;
-            any = true;
-        }
+        let at_x = knots(x, beats, any_dominant, (from, to));
+        let y = Spline::natural(&at_x)
+            .map(|spline| x.iter().enumerate().map(|(k, &v)| v - spline.at(k as f64) as f32).collect::<Vec<f32>>())
+            .filter(|y| spread(y, &spans) < spread(x, &spans));
+        // The step is read where the median is taken: on the levelled lead where it was levelled.
+        let at = match &y {
+            Some(y) => knots(y, beats, any_dominant, (from, to)),
+            None => at_x,
+        };
+        let lead_steps: Vec<f64> = at.windows(2).map(|w| (w[1].1 - w[0].1).abs()).collect();
+        steps.extend(crate::measure::stats::median(&lead_steps));
+        changed.extend(y.map(|y| (i, y)));
     }
-    any.then_some(out)
+    let recording = if changed.is_empty() {
+        Cow::Borrowed(recording)
+    } else {
+        let mut out = recording.clone();
+        for (i, y) in changed {
+            out.leads[i].samples = y;
+        }
+        Cow::Owned(out)
+    };
+    Levelled { recording, step_uv: crate::measure::stats::median(&steps) }
 }
 
 /// The PR level of lead `x` (median over `from`..`to` samples before QRS onset, [`KNOT_SPAN_S`]) at each beat of
@@ -73,26 +98,6 @@ fn knots(x: &[f32], beats: &[Beat], any_dominant: bool, (from, to): (usize, usiz
             Some(((q - (from + to) / 2) as f64, f64::from(level)))
         })
         .collect()
-}
-
-/// How far the baseline moves from one dominant beat to the next on `recording` (as levelled for the
-/// representative beat, or as given where it was not): per lead the median change of the PR level between
-/// consecutive beats, µV, and of those the median over the leads. `None` with fewer than two knots on every lead.
-#[must_use]
-pub fn pr_level_step(recording: &Recording, beats: &[Beat]) -> Option<f64> {
-    let fs = recording.sample_rate.hz();
-    let (from, to) = ((KNOT_SPAN_S.0 * fs).round() as usize, ((KNOT_SPAN_S.1 * fs).round() as usize).max(1));
-    let any_dominant = beats.iter().any(|b| b.kind == BeatKind::Dominant);
-    let per_lead: Vec<f64> = recording
-        .leads
-        .iter()
-        .filter_map(|l| {
-            let k = knots(&l.samples, beats, any_dominant, (from, to));
-            let steps: Vec<f64> = k.windows(2).map(|w| (w[1].1 - w[0].1).abs()).collect();
-            crate::measure::stats::median(&steps)
-        })
-        .collect();
-    crate::measure::stats::median(&per_lead)
 }
 
 /// Span around each R peak over which beats are compared when choosing whether to level a lead, s (before,
@@ -232,18 +237,18 @@ mod tests {
         // and the last but one, and within 100 µV from the first to the last, where the natural spline's ends
         // bend less than the wave (the clean lead's own PR level is 0).
         let (rec, beats, clean) = beats_on(|t| 1000.0 * (2.0 * PI * 0.25 * t + 0.4).sin());
-        let out = levelled(&rec, &beats).unwrap_or_else(|| panic!("not levelled"));
+        let Cow::Owned(out) = levelled(&rec, &beats).recording else { panic!("not levelled") };
         let worst =
             |r: std::ops::Range<usize>| r.map(|k| (out.leads[0].samples[k] - clean[k]).abs()).fold(0.0, f32::max);
         let (inner, whole) = (worst(515..4115), worst(115..4515));
         assert!(inner < 40.0 && whole < 100.0, "worst {inner} µV inside, {whole} µV from end knot to end knot");
         // Without wander there is nothing to take off: the beats are as alike either way, and the lead is kept.
         let (rec, beats, _) = beats_on(|_| 0.0);
-        assert!(levelled(&rec, &beats).is_none());
+        assert!(matches!(levelled(&rec, &beats).recording, Cow::Borrowed(_)));
         // Wander faster than half the heart rate (0.9 Hz at 75 bpm) passes between the knots: a spline through
         // them would add a slower wave of its own, which makes the beats less alike, so the lead is kept.
         let (rec, beats, _) = beats_on(|t| 500.0 * (2.0 * PI * 0.9 * t).sin());
-        assert!(levelled(&rec, &beats).is_none());
+        assert!(matches!(levelled(&rec, &beats).recording, Cow::Borrowed(_)));
     }
 
     #[test]

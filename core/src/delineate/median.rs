@@ -25,7 +25,7 @@ pub struct RepresentativeBeat {
     /// Number of beats in the median.
     pub n_beats: usize,
     /// How far the baseline moved from one of its beats to the next, µV: the median change of the PR level between
-    /// consecutive dominant beats, on the leads as levelled for the median ([`baseline::pr_level_step`]; for a
+    /// consecutive dominant beats, on the leads as levelled for the median ([`baseline::Levelled::step_uv`]; for a
     /// long recording the median over its windows). `None` when not known.
     pub baseline_step_uv: Option<f64>,
 }
@@ -57,9 +57,8 @@ pub fn representative_beat_with(
     p_model: Option<&PModel>,
 ) -> Option<RepresentativeBeat> {
     let levelled = baseline::levelled(recording, beats);
-    let used = levelled.as_ref().unwrap_or(recording);
-    let rep = representative_of_levelled(used, beats, p_model)?;
-    Some(RepresentativeBeat { baseline_step_uv: baseline::pr_level_step(used, beats), ..rep })
+    let rep = representative_of_levelled(&levelled.recording, beats, p_model)?;
+    Some(RepresentativeBeat { baseline_step_uv: levelled.step_uv, ..rep })
 }
 
 /// [`representative_beat_with`] on a recording already levelled ([`baseline::levelled`]).
@@ -323,7 +322,7 @@ pub struct BeatStack {
     /// Per kept beat, samples from its R peak to the next beat's (when the window holds one): the T wave is
     /// sought before the beat that follows the kept ones, as in [`representative_beat_with`].
     next_rr: Vec<usize>,
-    /// Per window gathered, how far its baseline moved from beat to beat ([`baseline::pr_level_step`]), µV.
+    /// Per window gathered, how far its baseline moved from beat to beat ([`baseline::Levelled::step_uv`]), µV.
     baseline_steps: Vec<f64>,
 }
 
@@ -349,8 +348,8 @@ impl BeatStack {
     /// [`representative_beat_with`] levels a recording.
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
         let levelled = baseline::levelled(part, beats);
-        let part = levelled.as_ref().unwrap_or(part);
-        self.baseline_steps.extend(baseline::pr_level_step(part, beats));
+        self.baseline_steps.extend(levelled.step_uv);
+        let part = levelled.recording.as_ref();
         let n = part.len();
         let (before, after) = (self.before, self.after);
         let gaps = part.gaps();
