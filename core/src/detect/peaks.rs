@@ -1,11 +1,12 @@
 //! Adaptive-threshold peak picking on the combined feature, after Pan & Tompkins (IEEE Trans Biomed Eng
 //! 1985;32:230-6): running signal and noise peak levels, threshold a quarter of the way from noise to signal,
-//! 200 ms refractory period, T-wave test within 360 ms, search-back at half threshold after 1.66 mean RR.
+//! 200 ms refractory period, T-wave test within 360 ms (on the leads' curvature, see [`super::t_wave`]; on the
+//! feature's height where that cannot tell), search-back at half threshold after 1.66 mean RR.
 
 /// Refractory period, s. Source: Pan & Tompkins 1985.
 const REFRACTORY_S: f64 = 0.200;
-/// A peak this soon after a QRS must be at least half its height, or it is taken as a T wave, s.
-/// Source: Pan & Tompkins 1985 (360 ms T-wave discrimination).
+/// A peak this soon after a QRS is tested for being its T wave, s. Source: Pan & Tompkins 1985 (360 ms T-wave
+/// discrimination).
 const T_WAVE_S: f64 = 0.360;
 /// Search back when no QRS has come for this many mean RR intervals. Source: Pan & Tompkins 1985.
 const SEARCH_BACK_RR: f64 = 1.66;
@@ -50,7 +51,10 @@ fn flat_top_middle(x: &[f32], k: usize, reach: usize) -> usize {
 }
 
 /// QRS positions (feature peak samples) found on the combined, normalised feature `x` (≈ 1 at a typical QRS).
-pub fn pick(x: &[f32], fs: f64) -> Vec<usize> {
+/// `t_wave(last, c)` tells whether the candidate at feature peak `c`, within [`T_WAVE_S`] of the QRS at `last`,
+/// is that beat's T wave (see [`super::t_wave`]); `None` where it cannot tell, and the candidate is then a T wave
+/// when its feature is under half that QRS's.
+pub fn pick(x: &[f32], fs: f64, mut t_wave_test: impl FnMut(usize, usize) -> Option<bool>) -> Vec<usize> {
     let cand = candidates(x, fs);
     let t_wave = (T_WAVE_S * fs) as usize;
     // The feature is normalised, so levels start from the typical QRS height and a low noise level.
@@ -89,7 +93,9 @@ pub fn pick(x: &[f32], fs: f64) -> Vec<usize> {
         let v = f64::from(x[c]);
         let is_qrs = v > thr(spk, npk)
             && match beats.last() {
-                Some(&last) if c - last < t_wave => v > 0.5 * f64::from(x[last]),
+                Some(&last) if c - last < t_wave => {
+                    !t_wave_test(last, c).unwrap_or_else(|| v <= 0.5 * f64::from(x[last]))
+                }
                 _ => true,
             };
         if is_qrs {
@@ -124,7 +130,7 @@ mod tests {
                 x[k] = 0.15 * (1.0 - (k as f32 - t as f32).abs() / 15.0);
             }
         }
-        let b = pick(&x, fs);
+        let b = pick(&x, fs, |_, _| None);
         assert_eq!(b.len(), 19);
         assert!(b.iter().enumerate().all(|(i, &p)| p == 125 + i * 250));
     }
@@ -140,6 +146,28 @@ mod tests {
                 x[k] = h * (1.0 - (k as f32 - r as f32).abs() / 10.0);
             }
         }
-        assert_eq!(pick(&x, fs).len(), 19);
+        assert_eq!(pick(&x, fs, |_, _| None).len(), 19);
+    }
+
+    #[test]
+    fn the_t_wave_test_decides_peaks_soon_after_a_beat() {
+        // Beats every second, each followed 280 ms later by a peak above half its height (0.8) or under (0.4).
+        let fs = 250.0;
+        for (h, by_height) in [(0.8, 38), (0.4, 19)] {
+            let mut x = vec![0.0f32; 5000];
+            for b in 0..19 {
+                let r: usize = 125 + b * 250;
+                for (at, h) in [(r, 1.0), (r + 70, h)] {
+                    for k in at - 10..at + 10 {
+                        x[k] = x[k].max(h * (1.0 - (k as f32 - at as f32).abs() / 10.0));
+                    }
+                }
+            }
+            // Unable to tell: the feature's height decides.
+            assert_eq!(pick(&x, fs, |_, _| None).len(), by_height, "{h}");
+            // Told they are T waves, none is taken; told they are not, every one is (both above the threshold).
+            assert_eq!(pick(&x, fs, |_, _| Some(true)).len(), 19, "{h}");
+            assert_eq!(pick(&x, fs, |_, _| Some(false)).len(), 38, "{h}");
+        }
     }
 }

@@ -15,6 +15,7 @@ mod accuracy_invariance;
 mod accuracy_noise;
 mod accuracy_pauses;
 mod accuracy_rhythm;
+mod accuracy_t_waves;
 mod accuracy_typing;
 mod accuracy_windowed;
 mod io_edf;

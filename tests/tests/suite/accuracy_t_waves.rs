@@ -1,0 +1,111 @@
+//! T waves taller than the QRS (as with a high potassium, or in a lead where the QRS is small) must not be counted
+//! as beats, while a premature beat that comes as early as a T wave must. The detector's T-wave test (Pan &
+//! Tompkins' 360 ms) judges a peak soon after a beat by its curvature against that beat's QRS
+//! (`isoline_core::detect`); before, by the height of its integrated energy: the normal demo with its T waves made
+//! five times taller gave 24 beats for 12 (heart rate 144 bpm).
+//!
+//! Demo recordings from the dynamical model (McSharry, Clifford, Tarassenko & Smith, IEEE Trans Biomed Eng
+//! 2003;50:289-94, as implemented by `isoline_core::synth`); the beats are the generator's. The taller T waves are
+//! smooth bumps (Gaussian) added at each lead's own T peak.
+
+use isoline_core::analysis::analyze;
+use isoline_core::filter::FilterSettings;
+use isoline_core::recording::Recording;
+use isoline_core::synth::{self, Ectopics, LeadSet, Scenario, SynthSpec, TrueBeat};
+
+/// Beats of the generator missed and beats found beyond them (a found beat matches a true one within 150 ms,
+/// ANSI/AAMI EC57 practice).
+fn missed_and_extra(recording: &Recording, truth: &[TrueBeat], fs: f64) -> (usize, usize) {
+    let a = analyze(recording, &FilterSettings::default());
+    let window = (0.150 * fs) as usize;
+    let rs: Vec<usize> = truth.iter().map(|b| b.to_beat().r).collect();
+    let missed = rs.iter().filter(|&&r| !a.beats.iter().any(|b| b.r.abs_diff(r) <= window)).count();
+    let extra = a.beats.iter().filter(|b| !rs.iter().any(|&r| b.r.abs_diff(r) <= window)).count();
+    (missed, extra)
+}
+
+/// Makes every T wave of `recording` `gain` times its height: in each lead, a Gaussian of width `sigma_s` and
+/// (gain − 1) times the T wave's height there is added at the T peak (the largest departure from the level at QRS
+/// onset between 50 ms after the J point and the T end).
+fn taller_t_waves(recording: &mut Recording, truth: &[TrueBeat], gain: f64, sigma_s: f64, fs: f64) {
+    let sigma = sigma_s * fs;
+    let reach = (4.0 * sigma) as usize;
+    for lead in &mut recording.leads {
+        let x = lead.samples.clone();
+        for b in truth {
+            let (Some(on), Some(j), Some(end)) = (b.qrs_on, b.qrs_end, b.t_end) else { continue };
+            let level = x[on];
+            let from = j + (0.050 * fs) as usize;
+            let Some(peak) =
+                (from..end.min(x.len())).max_by(|&p, &q| (x[p] - level).abs().total_cmp(&(x[q] - level).abs()))
+            else {
+                continue;
+            };
+            let height = f64::from(x[peak] - level) * (gain - 1.0);
+            for k in peak.saturating_sub(reach)..(peak + reach).min(x.len()) {
+                let u = (k as f64 - peak as f64) / sigma;
+                lead.samples[k] += (height * (-0.5 * u * u).exp()) as f32;
+            }
+        }
+    }
+}
+
+#[test]
+fn tall_t_waves_are_not_taken_for_beats() {
+    // Measured before the curvature test: 24 beats for 12 at 5 times (35 ms); the other cases here were already
+    // right. Not met (not tested): 8 times (35 ms), where the T wave's energy hides the QRS from the feature's
+    // peak picking and every beat is placed on its T wave (so before too); 8 times (50 ms) now gives 12 beats
+    // and one extra on the T wave the recording ends in (24 before).
+    // Also as the QT Database records them: two leads at 250 Hz.
+    let mut wrong = Vec::new();
+    for spec in [Scenario::Normal.spec(), SynthSpec { rate_hz: 250.0, leads: LeadSet::Pair, ..Scenario::Normal.spec() }]
+    {
+        let setup = format!("{} leads at {} Hz", spec.leads.count(), spec.rate_hz);
+        for gain in [3.0, 5.0] {
+            for sigma_s in [0.035, 0.050] {
+                let mut s = synth::generate(&spec).unwrap_or_else(|e| panic!("{e}"));
+                taller_t_waves(&mut s.recording, &s.truth.beats, gain, sigma_s, spec.rate_hz);
+                let (missed, extra) = missed_and_extra(&s.recording, &s.truth.beats, spec.rate_hz);
+                let case = format!("{setup}, T wave x{gain} ({:.0} ms)", sigma_s * 1e3);
+                println!("{case}: {missed} missed, {extra} extra");
+                if (missed, extra) != (0, 0) {
+                    wrong.push(format!("{case}: {missed} missed, {extra} extra"));
+                }
+            }
+        }
+    }
+    assert!(wrong.is_empty(), "{wrong:#?}");
+}
+
+#[test]
+fn premature_beats_as_early_as_a_t_wave_are_kept() {
+    // Every third beat a premature wide beat (QRS 150 ms) at 0.65 of the sinus RR: at 150 bpm it comes 260 ms after
+    // the beat before it, within the T-wave test's 360 ms. Before the curvature test, on two leads at 250 Hz (as
+    // the QT Database records) its integrated energy was under half the sinus QRS's and every one was taken for a
+    // T wave (24 missed of 24); on twelve leads it was found. Not met (not tested): at 170 bpm (230 ms after the
+    // sinus beat) on two leads every premature beat is still missed, and on twelve leads at 250 Hz the sinus beat
+    // before it: the two QRS merge into one hump of the feature.
+    for (rate_hz, leads, bpm, pr_ms, qt_ms) in [
+        (500.0, LeadSet::Standard12, 150.0, 100.0, 250.0),
+        (500.0, LeadSet::Standard12, 170.0, 90.0, 220.0),
+        (250.0, LeadSet::Pair, 150.0, 100.0, 250.0),
+    ] {
+        let spec = SynthSpec {
+            heart_rate_bpm: bpm,
+            pr_ms,
+            p_ms: 60.0,
+            qt_ms,
+            seconds: 30.0,
+            rate_hz,
+            leads,
+            ectopics: Ectopics::Every(3),
+            ..Scenario::Ectopics.spec()
+        };
+        let case = format!("{} leads at {rate_hz} Hz, {bpm} bpm", leads.count());
+        let s = synth::generate(&spec).unwrap_or_else(|e| panic!("{case}: {e}"));
+        let (missed, extra) = missed_and_extra(&s.recording, &s.truth.beats, spec.rate_hz);
+        println!("{case}, {} premature beats: {missed} missed, {extra} extra", s.truth.ectopic_beats);
+        assert!(s.truth.ectopic_beats >= 10, "{case}: {} premature beats", s.truth.ectopic_beats);
+        assert_eq!((missed, extra), (0, 0), "{case}");
+    }
+}
