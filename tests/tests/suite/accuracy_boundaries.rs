@@ -144,27 +144,8 @@ fn ludb_p_onset_against_the_second_earliest_lead() -> Result<(), String> {
     // V6's, 84–114 ms before the eleven other leads'). Against this reference the P onset goal holds (measured
     // +0.4 ± 10.1 ms, 307 beats); against the earliest mark it does not (+10.3 ± 22.0). Source: LUDB per-lead
     // annotations (Kalyakulina et al., IEEE Access 2020;8:186181-90); goal from the measurement-engine issue.
-    let mut pooled = BoundaryErrors::default();
-    for n in 1..=50 {
-        let Ok(mut reference) = read_reference_csv(&data(&format!("ludb/{n}.global.csv"))) else { continue };
-        let (recording, beats) = beats_of(&data(&format!("ludb/{n}.hea")))?;
-        let second = second_earliest_p_onsets(n, &reference);
-        for (b, (p, _)) in reference.iter_mut().zip(second) {
-            // Only beats the experts gave a P wave keep one.
-            b.marks[0] = b.marks[0].and(p);
-        }
-        let det: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
-        let e = score_boundaries(&reference, &det, recording.sample_rate.hz());
-        if let Some((m, s)) = e.mean_sd(0) {
-            println!("ludb {n}: P onset vs the second-earliest lead {m:+.1} ± {s:.1} ms ({} beats)", e.errors[0].len());
-        }
-        pooled.add(&e);
-    }
-    let (m, s) = pooled.mean_sd(0).ok_or("no P onset errors")?;
-    println!("LUDB P onset vs the second-earliest lead: {m:+.1} ± {s:.1} ms (n {})", pooled.errors[0].len());
-    assert!(m.abs() <= GOALS[0].0 && s <= GOALS[0].1, "P onset {m:+.1} ± {s:.1} ms");
-    assert!(pooled.found(0) >= 0.95, "P onset found for {:.1} %", 100.0 * pooled.found(0));
-    Ok(())
+    let second = |n, r: &[BeatMarks]| second_earliest_p_onsets(n, r).into_iter().map(|(p, _)| p).collect();
+    check_ludb_against(0, "P onset vs the second-earliest lead", second)
 }
 
 /// LUDB record `n`'s per-lead marks: for each of the 12 annotation files, the sample of every `first` label that
@@ -224,25 +205,35 @@ fn ludb_t_end_against_the_second_latest_lead() -> Result<(), String> {
     // the eleven other leads' in every beat but the first (the record's T end error −101 ± 48 ms against the
     // latest mark). Source: LUDB per-lead annotations (Kalyakulina et al., IEEE Access 2020;8:186181-90); goal
     // from the measurement-engine issue.
+    check_ludb_against(3, "T end vs the second-latest lead", second_latest_t_ends)
+}
+
+/// Scores boundary `key` of LUDB 1–50 against `marks(n, reference)` (one per reference beat of record `n`) in
+/// place of the global mark, where the experts gave one; prints each record's and the pooled figures, `what`
+/// naming the reference, and checks the issue's goal for that boundary.
+fn check_ludb_against(
+    key: usize,
+    what: &str,
+    marks: impl Fn(usize, &[BeatMarks]) -> Vec<Option<f64>>,
+) -> Result<(), String> {
     let mut pooled = BoundaryErrors::default();
     for n in 1..=50 {
         let Ok(mut reference) = read_reference_csv(&data(&format!("ludb/{n}.global.csv"))) else { continue };
         let (recording, beats) = beats_of(&data(&format!("ludb/{n}.hea")))?;
-        let second = second_latest_t_ends(n, &reference);
-        for (b, t) in reference.iter_mut().zip(second) {
-            // Only beats the experts gave a T end keep one.
-            b.marks[3] = b.marks[3].and(t);
+        let other = marks(n, &reference);
+        for (b, m) in reference.iter_mut().zip(other) {
+            b.marks[key] = b.marks[key].and(m);
         }
         let det: Vec<BeatMarks> = beats.iter().map(BeatMarks::from).collect();
         let e = score_boundaries(&reference, &det, recording.sample_rate.hz());
-        if let Some((m, s)) = e.mean_sd(3) {
-            println!("ludb {n}: T end vs the second-latest lead {m:+.1} ± {s:.1} ms ({} beats)", e.errors[3].len());
+        if let Some((m, s)) = e.mean_sd(key) {
+            println!("ludb {n}: {what} {m:+.1} ± {s:.1} ms ({} beats)", e.errors[key].len());
         }
         pooled.add(&e);
     }
-    let (m, s) = pooled.mean_sd(3).ok_or("no T end errors")?;
-    println!("LUDB T end vs the second-latest lead: {m:+.1} ± {s:.1} ms (n {})", pooled.errors[3].len());
-    assert!(m.abs() <= GOALS[3].0 && s <= GOALS[3].1, "T end {m:+.1} ± {s:.1} ms");
-    assert!(pooled.found(3) >= 0.95, "T end found for {:.1} %", 100.0 * pooled.found(3));
+    let (m, s) = pooled.mean_sd(key).ok_or(format!("no {what} errors"))?;
+    println!("LUDB {what}: {m:+.1} ± {s:.1} ms (n {})", pooled.errors[key].len());
+    assert!(m.abs() <= GOALS[key].0 && s <= GOALS[key].1, "{what}: {m:+.1} ± {s:.1} ms");
+    assert!(pooled.found(key) >= 0.95, "{what}: found for {:.1} %", 100.0 * pooled.found(key));
     Ok(())
 }
