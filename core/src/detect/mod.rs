@@ -51,7 +51,7 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     }
     let with_qrs: Vec<&[f32]> = clean.iter().zip(&f.weights).filter(|(_, w)| **w > 0.0).map(|(x, _)| *x).collect();
     let mut t_wave = t_wave::TWaveTest::new(&with_qrs, fs, (feature::lag_s() * fs).round() as usize);
-    let peaks = peaks::pick(&f.combined, fs, |qrs, c| t_wave.is_t_wave(qrs, c));
+    let peaks = peaks::pick(&f.combined, fs, |beats, c| t_wave.is_rounded(beats, c));
     let gaps = gaps::find(&leads, fs);
     let (r, unsure): (Vec<usize>, Vec<bool>) = place_r(&leads, &f.weights, &peaks, fs, &gaps).into_iter().unzip();
     // Peaks without a QRS's steep limb (P or T waves taken for beats where no QRS follows) are no beats.
