@@ -11,8 +11,8 @@
 //! waves and muscle bursts after the beats as beats (a reviewer's LUDB records with T waves three times taller and
 //! 20 µV of muscle noise: 32 extra beats over 50 records, none before). For the same reason it judges against the
 //! median of the recent beats, not the last one, which may itself be an artefact taken for a beat (muscle bursts
-//! ending 280 ms before every fourth beat: 28 beats missed over three seeds against the last beat, as many as before
-//! against the median). A wide premature beat as rounded as a T wave (a single smooth deflection 180 ms wide, 260 ms
+//! ending 280 ms before every fourth beat: 28 beats missed over three seeds against the last beat, 4 before; against
+//! the median the reviewer's recording misses as many as before). A wide premature beat as rounded as a T wave (a single smooth deflection 180 ms wide, 260 ms
 //! after the sinus beat) is taken for one; real premature ventricular beats (templates from the QT Database's
 //! sel14046 and sel803 placed 240–360 ms after a sinus beat) were not.
 
@@ -27,7 +27,8 @@
 const T_CURVATURE: f64 = 0.2;
 
 /// Half-width of the average the curvature is taken on, s.
-// Common practice, no source: 8 ms averages out sample noise and keeps a QRS's waves (≈ 10–30 ms) sharp.
+// Common practice, no source: a mean over about 10 ms averages out sample noise and keeps a QRS's waves (≈ 10–30
+// ms) sharp.
 const AVERAGE_S: f64 = 0.004;
 /// Spacing of the second difference, s.
 // Common practice, no source: about the width of a narrow QRS wave's peak.
