@@ -60,16 +60,19 @@ impl<'a> TWaveTest<'a> {
 
     /// Whether the candidate at feature peak `c`, soon after the beats at feature peaks `beats` (in time order,
     /// the last the one it follows), is far more rounded than their QRS: its curvature is under [`T_CURVATURE`]
-    /// of the median over the last [`RECENT_BEATS`]. False where the beats show no curvature (no lead recorded).
+    /// of both the median over the last [`RECENT_BEATS`] and the last beat's. The median keeps an artefact taken
+    /// for a beat from making the beat after it look rounded; the last beat keeps a run of wide beats found beat
+    /// by beat (each compared with the one before, not with the sinus beats before the run: against the median
+    /// alone, a run of smooth wide beats at 180–250 bpm lost every beat after its first). False where the beats
+    /// show no curvature (no lead recorded).
     pub fn is_rounded(&mut self, beats: &[usize], c: usize) -> bool {
+        let Some(&last) = beats.last() else { return false };
         let mut recent: Vec<f64> =
             beats[beats.len().saturating_sub(RECENT_BEATS)..].iter().map(|&b| self.curvature_at(b)).collect();
-        if recent.is_empty() {
-            return false;
-        }
         let mid = recent.len() / 2;
         let typical = *recent.select_nth_unstable_by(mid, f64::total_cmp).1;
-        typical > 0.0 && curvature(self.leads, c.saturating_sub(self.lag), self.fs) < T_CURVATURE * typical
+        let reference = typical.min(self.curvature_at(last));
+        reference > 0.0 && curvature(self.leads, c.saturating_sub(self.lag), self.fs) < T_CURVATURE * reference
     }
 
     /// The curvature of the wave at feature peak `p`, remembered for the beats asked about last.
@@ -169,6 +172,26 @@ mod tests {
         let mut test = TWaveTest::new(&leads, fs, lag);
         assert!(test.is_rounded(&[at(2.6)], at(2.9)), "against the artefact alone");
         assert!(!test.is_rounded(&[at(0.5), at(1.3), at(2.1), at(2.6)], at(2.9)));
+    }
+
+    #[test]
+    fn a_run_of_wide_beats_is_compared_beat_by_beat() {
+        // Four narrow beats (σ 8 ms) every 0.8 s, then wide beats (σ 30 ms, as rounded as a T wave) every 300 ms.
+        // The second wide beat follows the first: compared with it, not with the narrow beats, it is no T wave.
+        let fs = 250.0;
+        let mut at: Vec<(f64, f64, f64)> = (0..4).map(|i| (0.5 + 0.8 * i as f64, 1000.0, 0.008)).collect();
+        at.extend((0..3).map(|i| (3.3 + 0.3 * i as f64, -1200.0, 0.030)));
+        let x = waves(fs, 5.0, &at);
+        let lag = 24;
+        let p = |t: f64| (t * fs) as usize + lag;
+        let leads: [&[f32]; 1] = [&x];
+        let mut test = TWaveTest::new(&leads, fs, lag);
+        let narrow: Vec<usize> = (0..4).map(|i| p(0.5 + 0.8 * i as f64)).collect();
+        assert!(test.is_rounded(&narrow, p(3.3)), "against the narrow beats, a wide beat looks like a T wave");
+        let with_first = [narrow.as_slice(), &[p(3.3)]].concat();
+        assert!(!test.is_rounded(&with_first, p(3.6)));
+        let with_two = [with_first.as_slice(), &[p(3.6)]].concat();
+        assert!(!test.is_rounded(&with_two, p(3.9)));
     }
 
     #[test]
