@@ -9,15 +9,17 @@
 //! The test only ever takes a peak away, never adds one the energy test refused: muscle noise raises a wave's
 //! curvature (its sharpest point is the noise's), and letting curvature overrule the energy test counted noisy T
 //! waves and muscle bursts after the beats as beats (a reviewer's LUDB records with T waves three times taller and
-//! 20 µV of muscle noise: 32 extra beats over 50 records, none before). For the same reason it judges against the
-//! median of the recent beats, not the last one, which may itself be an artefact taken for a beat (muscle bursts
-//! ending 280 ms before every fourth beat: 28 beats missed over three seeds against the last beat, 4 before; against
-//! the median the reviewer's recording misses as many as before). A wide premature beat as rounded as a T wave (a single smooth deflection 180 ms wide, 260 ms
-//! after the sinus beat) is taken for one; real premature ventricular beats (templates from the QT Database's
-//! sel14046 and sel803 placed 240–360 ms after a sinus beat) were not.
+//! 20 µV of muscle noise: 32 extra beats over 50 records, none before). A peak is rounded only against both the
+//! median of the recent beats and the last beat. The median, because the last beat may itself be an artefact taken
+//! for a beat (muscle bursts ending 280 ms before every fourth beat: 28 beats missed over three seeds against the
+//! last beat alone, 4 before; with the median the reviewer's recording misses as many as before). The last beat,
+//! because a run of wide beats must be compared beat by beat, not with the sinus beats before it. A wide premature
+//! beat as rounded as a T wave (a single smooth deflection 180 ms wide, 260 ms after the sinus beat) is taken for
+//! one; real premature ventricular beats (templates from the QT Database's sel14046 and sel803 placed 240–360 ms
+//! after a sinus beat) were not.
 
-/// A peak soon after a beat whose curvature (summed over the leads, [`curvature`]) is under this fraction of the
-/// recent beats' is a T wave.
+/// A peak soon after a beat whose curvature (summed over the leads, [`curvature`]) is under this fraction of both
+/// the last beat's and the median of the recent beats' is a T wave.
 // Common practice, no source. Measured (curvature around each feature peak less its lag): T waves made 5 and 8
 // times taller on the normal demo (Gaussian, σ 35–50 ms) 0.12–0.14 of the QRS before them; the demo's premature
 // beats (QRS 150 ms, 260 ms after the sinus beat at 150 bpm) 0.54 on twelve leads at 500 Hz, 0.32 on two at 250 Hz.
