@@ -49,18 +49,23 @@ pub fn detect_beats(recording: &Recording) -> Vec<Beat> {
     if f.weights.iter().all(|&w| w == 0.0) {
         return Vec::new();
     }
-    let with_qrs: Vec<&[f32]> = clean.iter().zip(&f.weights).filter(|(_, w)| **w > 0.0).map(|(x, _)| *x).collect();
-    let mut t_wave = t_wave::TWaveTest::new(&with_qrs, fs, (feature::lag_s() * fs).round() as usize);
+    let clean_with_qrs = with_qrs(&clean, &f.weights);
+    let mut t_wave = t_wave::TWaveTest::new(&clean_with_qrs, fs, (feature::lag_s() * fs).round() as usize);
     let peaks = peaks::pick(&f.combined, fs, |beats, c| t_wave.is_rounded(beats, c));
     let gaps = gaps::find(&leads, fs);
     let (r, unsure): (Vec<usize>, Vec<bool>) = place_r(&leads, &f.weights, &peaks, fs, &gaps).into_iter().unzip();
     // Peaks without a QRS's steep limb (P or T waves taken for beats where no QRS follows) are no beats.
-    let qrs_leads: Vec<&[f32]> = leads.iter().zip(&f.weights).filter(|(_, w)| **w > 0.0).map(|(x, _)| *x).collect();
-    let steep: Vec<bool> = qrs_slopes(&qrs_leads, &r, fs).iter().map(|&s| s >= MIN_QRS_SLOPE_UV_PER_S).collect();
+    let steep: Vec<bool> =
+        qrs_slopes(&with_qrs(&leads, &f.weights), &r, fs).iter().map(|&s| s >= MIN_QRS_SLOPE_UV_PER_S).collect();
     let (r, unsure): (Vec<usize>, Vec<bool>) =
         r.into_iter().zip(unsure).zip(&steep).filter(|(_, s)| **s).map(|(b, _)| b).unzip();
     let dominant = typing::dominant(&clean, &f.weights, &r, &unsure, fs, &gaps);
     r.iter().zip(dominant).map(|(&p, d)| Beat::at(p, if d { BeatKind::Dominant } else { BeatKind::Other })).collect()
+}
+
+/// The leads of `leads` with a QRS (a feature weight above 0 in `weights`).
+fn with_qrs<'a>(leads: &[&'a [f32]], weights: &[f64]) -> Vec<&'a [f32]> {
+    leads.iter().zip(weights).filter(|(_, w)| **w > 0.0).map(|(x, _)| *x).collect()
 }
 
 /// For each R peak of `r`, the steepest slope within 50 ms of it over `leads` (those with a QRS), µV/s: each lead
