@@ -17,6 +17,11 @@ const SEARCH_BACK_RR: f64 = 1.66;
 // Common practice, no source: a premature ventricular beat is followed by a full compensatory pause (coupling
 // plus pause = two RR), a premature atrial beat by a pause of about one RR as the sinus node is reset.
 const PAUSE_RR: f64 = 1.0;
+/// A weak candidate (see [`candidates`]) beyond the T-wave test of the last beat is a beat only when it comes at
+/// least this fraction of the steady RR after that beat: a sinus beat on time before a larger premature beat, not
+/// a burst of muscle noise before a beat.
+// Common practice, no source: sinus rhythm at rest varies from one beat to the next by well under a fifth of its RR.
+const ON_TIME_RR: f64 = 0.8;
 
 /// Median of the last eight of `v` (the upper one of an even count); `None` when empty.
 fn median_recent(v: &[f64]) -> Option<f64> {
@@ -25,9 +30,21 @@ fn median_recent(v: &[f64]) -> Option<f64> {
     (!r.is_empty()).then(|| *r.select_nth_unstable_by(mid, f64::total_cmp).1)
 }
 
-/// Local maxima of `x` that are the largest value within ± the refractory period.
-fn candidates(x: &[f32], fs: f64) -> Vec<usize> {
+/// Local maxima of `x` that are the largest value within ± half the refractory period, each flagged whether it is
+/// also the largest within ± the whole refractory period (a strong candidate). A weak one has a larger peak 100–200
+/// ms away: a wave's other hump or a P or T wave before the QRS, but also a beat followed closely by a larger one
+/// (a sinus beat and a premature ventricular beat 240 ms after it).
+fn candidates(x: &[f32], fs: f64) -> Vec<(usize, bool)> {
     let r = ((REFRACTORY_S * fs) as usize).max(1);
+    local_maxima(x, (r / 2).max(1), r)
+        .into_iter()
+        .map(|k| (k, x[k.saturating_sub(r)..=(k + r).min(x.len() - 1)].iter().all(|&v| v <= x[k])))
+        .collect()
+}
+
+/// Local maxima of `x` that are the largest value within ± `r` samples, more than `r / 2` apart; a flat top's
+/// middle (at most `reach` samples back from its end).
+fn local_maxima(x: &[f32], r: usize, reach: usize) -> Vec<usize> {
     let n = x.len();
     let mut out = Vec::new();
     // Sliding-window maximum over [k − r, k + r] with a monotone deque.
@@ -48,7 +65,7 @@ fn candidates(x: &[f32], fs: f64) -> Vec<usize> {
             // On a flat top (every lead clipped at once: a very large deflection, or a step of the baseline) the
             // peak is the middle of the top, not its last sample: from the last, a beat soon after an artefact
             // fell within the T-wave test of the plateau's end and was lost.
-            out.push(flat_top_middle(x, k, r));
+            out.push(flat_top_middle(x, k, reach));
         }
     }
     out
@@ -68,107 +85,222 @@ fn flat_top_middle(x: &[f32], k: usize, reach: usize) -> usize {
 /// A candidate within [`T_WAVE_S`] of the last QRS is its T wave when its feature is under half that QRS's
 /// (Pan & Tompkins' test on the integrated energy rather than the slope), or when `rounded(beats, c)` says the
 /// candidate at feature peak `c` is far more rounded than the QRS of the beats found so far (`beats`, feature
-/// peaks; see [`super::t_wave`]): a T wave taller than the QRS.
+/// peaks; see [`super::t_wave`]): a T wave taller than the QRS. A candidate the height test alone refused is taken
+/// back as a premature beat when the next QRS comes a pause after it ([`PAUSE_RR`]) and it is not rounded. A weak
+/// candidate (a larger peak lies 100–200 ms from it, see [`candidates`]) is a beat only on time after the last
+/// beat ([`ON_TIME_RR`]) or, within the T-wave test, as a premature beat; a candidate within the refractory period
+/// of a beat replaces it when larger.
 pub fn pick(x: &[f32], fs: f64, mut rounded: impl FnMut(&[usize], usize) -> bool) -> Vec<usize> {
-    let cand = candidates(x, fs);
-    let t_wave = (T_WAVE_S * fs) as usize;
-    // The feature is normalised, so levels start from the typical QRS height and a low noise level.
-    let mut spk = 1.0f64;
-    let mut npk = 0.1f64;
-    let mut rr: Vec<f64> = Vec::new();
-    let mut beats: Vec<usize> = Vec::new();
-    let mut pending: Vec<usize> = Vec::new(); // rejected candidates since the last QRS
-    // Candidates since the last QRS above the threshold that the T-wave test refused on their height alone: their
-    // noise level waits until the next QRS says whether one of them was a premature beat.
-    let mut refused: Vec<usize> = Vec::new();
-    // RR intervals of the rhythm the pause is judged against: between two beats taken on their own (not in the
-    // search-back, not premature), with no refused candidate between them.
-    let mut steady_rr: Vec<f64> = Vec::new();
-    let mut last_premature = false;
-    let mut any_refused = false;
-    let thr = |spk: f64, npk: f64| npk + 0.25 * (spk - npk);
-    let rr_mean = |rr: &[f64]| -> Option<f64> {
-        (rr.len() >= 2).then(|| rr.iter().rev().take(8).sum::<f64>() / rr.len().min(8) as f64)
-    };
-    let accept = |p: usize, beats: &mut Vec<usize>, rr: &mut Vec<f64>| {
-        if let Some(&last) = beats.last() {
-            rr.push((p - last) as f64);
+    let mut p = Picker::new(x, fs);
+    for (c, strong) in candidates(x, fs) {
+        if p.within_refractory(c) {
+            continue;
         }
-        beats.push(p);
-    };
-    let as_noise = |v: f32, npk: f64| 0.125 * f64::from(v) + 0.875 * npk;
-    for &c in &cand {
-        // Search-back: a long gap since the last QRS → take the largest pending peak above half threshold.
-        if let (Some(&last), Some(m)) = (beats.last(), rr_mean(&rr))
-            && (c - last) as f64 > SEARCH_BACK_RR * m
-        {
-            let th2 = 0.5 * thr(spk, npk);
-            let best = pending
-                .iter()
-                .copied()
-                .filter(|&p| p > last + t_wave.min((0.6 * m) as usize) / 2 && f64::from(x[p]) > th2)
-                .max_by(|&a, &b| x[a].total_cmp(&x[b]));
-            if let Some(p) = best {
-                spk = 0.25 * f64::from(x[p]) + 0.75 * spk;
-                accept(p, &mut beats, &mut rr);
-                pending.retain(|&q| q > p);
-                for q in refused.extract_if(.., |q| *q <= p) {
-                    if q != p {
-                        npk = as_noise(x[q], npk);
-                    }
-                }
-            }
+        // A weak candidate belongs to the larger peak near it unless it is above the threshold and either comes on
+        // time after the last beat ([`ON_TIME_RR`] of the steady RR) or, within the T-wave test, is taken back as a
+        // premature beat after a pause.
+        if !strong && !p.weak_may_be_beat(c) {
+            continue;
         }
+        p.search_back(c);
         let v = f64::from(x[c]);
-        let above = v > thr(spk, npk);
-        let (is_qrs, low) = match beats.last() {
-            Some(&last) if c - last < t_wave => {
+        let above = v > p.threshold();
+        let (is_qrs, low) = match p.beats.last() {
+            // A weak candidate within the T-wave test can only be a premature beat, taken back after a pause: a
+            // sinus beat, 240 ms after which comes a larger premature beat, whose energy hides its own.
+            Some(&last) if c - last < p.t_wave && !strong => (false, above),
+            Some(&last) if c - last < p.t_wave => {
                 let tall = v > 0.5 * f64::from(x[last]);
-                (above && tall && !rounded(&beats, c), above && !tall)
+                (above && tall && !rounded(&p.beats, c), above && !tall)
             }
             _ => (above, false),
         };
         if is_qrs {
-            // A peak the height test refused was a premature beat when the QRS that follows it comes after a
-            // pause (see [`PAUSE_RR`]) and it is not rounded like a T wave.
-            let premature = median_recent(&steady_rr).and_then(|m| {
-                refused
-                    .iter()
-                    .copied()
-                    .filter(|&p| (c - p) as f64 >= PAUSE_RR * m)
-                    .max_by(|&a, &b| x[a].total_cmp(&x[b]))
-                    .filter(|&p| !rounded(&beats, p))
-            });
-            if let Some(&last) = beats.last()
-                && !last_premature
-                && !any_refused
-            {
-                steady_rr.push((c - last) as f64);
-            }
-            for q in refused.drain(..) {
-                if Some(q) == premature {
-                    spk = 0.125 * f64::from(x[q]) + 0.875 * spk;
-                    accept(q, &mut beats, &mut rr);
-                } else {
-                    npk = as_noise(x[q], npk);
-                }
-            }
-            spk = 0.125 * v + 0.875 * spk;
-            accept(c, &mut beats, &mut rr);
-            last_premature = premature.is_some();
-            any_refused = false;
-            pending.clear();
+            p.take(c, &mut rounded);
         } else {
-            any_refused |= low;
-            if low {
-                refused.push(c);
-            } else {
-                npk = as_noise(x[c], npk);
-            }
-            pending.push(c);
+            p.pass_over(c, strong, low);
         }
     }
-    beats
+    p.beats
+}
+
+/// The running state of [`pick`].
+struct Picker<'a> {
+    /// The feature.
+    x: &'a [f32],
+    /// [`T_WAVE_S`] and [`REFRACTORY_S`] in samples.
+    t_wave: usize,
+    refractory: usize,
+    /// Running signal and noise peak levels.
+    spk: f64,
+    npk: f64,
+    /// The beats found so far (feature peaks) and the RR intervals between them, samples.
+    beats: Vec<usize>,
+    rr: Vec<f64>,
+    /// Candidates passed over since the last beat (strong ones only), for the search-back.
+    pending: Vec<usize>,
+    /// Candidates since the last beat above the threshold that the T-wave test refused on their height alone (with
+    /// whether each is strong): their noise level waits until the next beat says whether one was a premature beat.
+    refused: Vec<(usize, bool)>,
+    /// RR intervals of the rhythm a pause is judged against: between two beats taken on their own (not in the
+    /// search-back, not premature, neither within the T-wave test of the beat before it), with no refused
+    /// candidate between them.
+    steady_rr: Vec<f64>,
+    /// Whether the last beat starts no steady RR (taken back as premature, or within the T-wave test of the one
+    /// before it), and whether a candidate was refused since it.
+    last_early: bool,
+    any_refused: bool,
+}
+
+impl<'a> Picker<'a> {
+    fn new(x: &'a [f32], fs: f64) -> Self {
+        Self {
+            x,
+            t_wave: (T_WAVE_S * fs) as usize,
+            refractory: ((REFRACTORY_S * fs) as usize).max(1),
+            // The feature is normalised, so levels start from the typical QRS height and a low noise level.
+            spk: 1.0,
+            npk: 0.1,
+            beats: Vec::new(),
+            rr: Vec::new(),
+            pending: Vec::new(),
+            refused: Vec::new(),
+            steady_rr: Vec::new(),
+            last_early: false,
+            any_refused: false,
+        }
+    }
+
+    /// A quarter of the way from the noise level to the signal level.
+    fn threshold(&self) -> f64 {
+        self.npk + 0.25 * (self.spk - self.npk)
+    }
+
+    /// Mean of the last eight RR intervals; `None` before two.
+    fn rr_mean(&self) -> Option<f64> {
+        let rr = &self.rr;
+        (rr.len() >= 2).then(|| rr.iter().rev().take(8).sum::<f64>() / rr.len().min(8) as f64)
+    }
+
+    fn accept(&mut self, p: usize) {
+        if let Some(&last) = self.beats.last() {
+            self.rr.push((p - last) as f64);
+        }
+        self.beats.push(p);
+    }
+
+    fn as_noise(&mut self, p: usize) {
+        self.npk = 0.125 * f64::from(self.x[p]) + 0.875 * self.npk;
+    }
+
+    /// Whether candidate `c` falls within the refractory period of the last beat: it is part of that beat, and
+    /// replaces it when larger.
+    fn within_refractory(&mut self, c: usize) -> bool {
+        let Some(&last) = self.beats.last().filter(|&&last| c - last < self.refractory) else { return false };
+        if self.x[c] > self.x[last] {
+            self.beats.pop();
+            if let Some(&before) = self.beats.last() {
+                self.rr.pop();
+                self.rr.push((c - before) as f64);
+            }
+            self.beats.push(c);
+        }
+        true
+    }
+
+    /// Whether a weak candidate `c` could be a beat: above the threshold, and [`Self::on_time`].
+    fn weak_may_be_beat(&self, c: usize) -> bool {
+        f64::from(self.x[c]) > self.threshold() && self.on_time(c)
+    }
+
+    /// Whether a weak candidate `c` could be a beat by its timing: within the T-wave test of the last beat (as a
+    /// premature beat), or beyond it on time ([`ON_TIME_RR`] of the steady RR). Never the first beat.
+    fn on_time(&self, c: usize) -> bool {
+        self.beats.last().is_some_and(|&last| {
+            c - last < self.t_wave
+                || median_recent(&self.steady_rr).is_some_and(|m| (c - last) as f64 >= ON_TIME_RR * m)
+        })
+    }
+
+    /// Search-back: with no beat for [`SEARCH_BACK_RR`] mean RR before candidate `c`, the largest pending peak
+    /// above half the threshold is a beat.
+    fn search_back(&mut self, c: usize) {
+        let (Some(&last), Some(m)) = (self.beats.last(), self.rr_mean()) else { return };
+        if (c - last) as f64 <= SEARCH_BACK_RR * m {
+            return;
+        }
+        let th2 = 0.5 * self.threshold();
+        let x = self.x;
+        let Some(p) = self
+            .pending
+            .iter()
+            .copied()
+            .filter(|&p| p > last + self.t_wave.min((0.6 * m) as usize) / 2 && f64::from(x[p]) > th2)
+            .max_by(|&a, &b| x[a].total_cmp(&x[b]))
+        else {
+            return;
+        };
+        self.spk = 0.25 * f64::from(x[p]) + 0.75 * self.spk;
+        self.accept(p);
+        self.pending.retain(|&q| q > p);
+        let before: Vec<(usize, bool)> = self.refused.extract_if(.., |(q, _)| *q <= p).collect();
+        for (q, strong) in before {
+            if q != p && strong {
+                self.as_noise(q);
+            }
+        }
+    }
+
+    /// Candidate `c` is a beat. A refused candidate before it was a premature beat when `c` comes a pause after
+    /// it ([`PAUSE_RR`] of the steady RR) and it is not rounded like a T wave.
+    fn take(&mut self, c: usize, rounded: &mut impl FnMut(&[usize], usize) -> bool) {
+        let x = self.x;
+        let premature = median_recent(&self.steady_rr).and_then(|m| {
+            self.refused
+                .iter()
+                .map(|&(p, _)| p)
+                .filter(|&p| (c - p) as f64 >= PAUSE_RR * m)
+                .max_by(|&a, &b| x[a].total_cmp(&x[b]))
+                .filter(|&p| !rounded(&self.beats, p))
+        });
+        if let Some(&last) = self.beats.last()
+            && !self.last_early
+            && !self.any_refused
+            && c - last >= self.t_wave
+        {
+            self.steady_rr.push((c - last) as f64);
+        }
+        // Refused weak candidates were never noise peaks of their own (see `candidates`).
+        for (q, strong) in std::mem::take(&mut self.refused) {
+            if Some(q) == premature {
+                self.spk = 0.125 * f64::from(x[q]) + 0.875 * self.spk;
+                self.accept(q);
+            } else if strong {
+                self.as_noise(q);
+            }
+        }
+        self.spk = 0.125 * f64::from(x[c]) + 0.875 * self.spk;
+        self.accept(c);
+        let n = self.beats.len();
+        self.last_early = premature.is_some() || n >= 2 && c - self.beats[n - 2] < self.t_wave;
+        self.any_refused = false;
+        self.pending.clear();
+    }
+
+    /// Candidate `c` is no beat: refused by the height test alone (`low`), or noise.
+    fn pass_over(&mut self, c: usize, strong: bool, low: bool) {
+        self.any_refused |= low;
+        if low {
+            self.refused.push((c, strong));
+        } else {
+            self.as_noise(c);
+        }
+        // The search-back looks among strong candidates only: a weak one is the larger peak's T or P wave more
+        // often than a beat.
+        if strong {
+            self.pending.push(c);
+        }
+    }
 }
 
 #[cfg(test)]
@@ -267,6 +399,43 @@ mod tests {
             }
             let want = if pause && !is_rounded { n + low } else { n };
             assert_eq!(pick(&x, fs, |_, _| is_rounded).len(), want, "pause {pause}, rounded {is_rounded}");
+        }
+    }
+
+    #[test]
+    fn a_beat_and_a_premature_beat_240_ms_apart_are_both_kept() {
+        // Beats every 200 samples (800 ms at 250 Hz); after every third one a premature beat 60 samples (240 ms)
+        // later, then a full pause (the next beat 200 samples after the premature one). Either the premature beat's
+        // feature is a broad hump 2.3 times as high, whose rising limb stands above the beat's peak within 200 ms of
+        // it, so that only the ± 100 ms window finds the beat; or the beat's feature is the broad hump and the
+        // premature beat a narrow peak 0.45 high on its tail, found the same way and taken back after its pause
+        // unless it is rounded like a T wave.
+        let fs = 250.0;
+        let hump = |x: &mut [f32], at: usize, height: f32, half: usize| {
+            for k in at - half..at + half {
+                x[k] = x[k].max(height * (1.0 - (k as f32 - at as f32).abs() / half as f32));
+            }
+        };
+        for (beat_half, premature_height, premature_half, is_rounded) in
+            [(10, 2.3f32, 30, false), (30, 0.45, 10, false), (30, 0.45, 10, true)]
+        {
+            let mut x = vec![0.0f32; 12_000];
+            let mut r = 100;
+            let (mut n, mut premature) = (0, 0);
+            while r + 300 < x.len() {
+                hump(&mut x, r, 1.0, beat_half);
+                n += 1;
+                r += 200;
+                if n % 3 == 0 {
+                    premature += 1;
+                    hump(&mut x, r - 140, premature_height, premature_half);
+                    r += 60;
+                }
+            }
+            let want = if is_rounded { n } else { n + premature };
+            let case = format!("beat {beat_half}, premature {premature_height} {premature_half}, rounded {is_rounded}");
+            let got = pick(&x, fs, |_, _| is_rounded);
+            assert_eq!(got.len(), want, "{case}: {got:?}");
         }
     }
 }
