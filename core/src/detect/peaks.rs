@@ -1,8 +1,8 @@
 //! Adaptive-threshold peak picking on the combined feature, after Pan & Tompkins (IEEE Trans Biomed Eng
 //! 1985;32:230-6): running signal and noise peak levels, threshold a quarter of the way from noise to signal,
 //! 200 ms refractory period, T-wave test within 360 ms (on the feature's height, and on the leads' curvature for
-//! a T wave taller than the QRS, see [`super::t_wave`]), search-back at half threshold after 1.66 mean RR. A peak
-//! the height test refused is taken back as a premature beat when a pause follows it ([`PAUSE_RR`]).
+//! a T wave taller than the QRS, see [`super::t_wave`]), search-back at half threshold after 1.66 mean RR. Peaks are
+//! sought within ±100 ms, so that a beat closely followed by a larger one is not hidden by it (see [`candidates`]).
 
 /// Refractory period, s. Source: Pan & Tompkins 1985.
 const REFRACTORY_S: f64 = 0.200;
@@ -11,15 +11,9 @@ const REFRACTORY_S: f64 = 0.200;
 const T_WAVE_S: f64 = 0.360;
 /// Search back when no QRS has come for this many mean RR intervals. Source: Pan & Tompkins 1985.
 const SEARCH_BACK_RR: f64 = 1.66;
-/// A peak within [`T_WAVE_S`] of a QRS that its height alone marked as a T wave was a premature beat when the
-/// next QRS comes at least this many mean RR intervals after it: the pause after a premature beat (a T wave or a
-/// burst of noise is followed by the next beat on time, sooner than one RR).
-// Common practice, no source: a premature ventricular beat is followed by a full compensatory pause (coupling
-// plus pause = two RR), a premature atrial beat by a pause of about one RR as the sinus node is reset.
-const PAUSE_RR: f64 = 1.0;
-/// A weak candidate (see [`candidates`]) beyond the T-wave test of the last beat is a beat only when it comes at
-/// least this fraction of the steady RR after that beat: a sinus beat on time before a larger premature beat, not
-/// a burst of muscle noise before a beat.
+/// A weak candidate (see [`candidates`]) is a beat only beyond the T-wave test of the last beat and at least this
+/// fraction of the steady RR after it (and nearer the time the rhythm is due than the larger peak near it): a sinus
+/// beat on time before a larger premature beat, not a burst of muscle noise before a beat.
 // Common practice, no source: sinus rhythm at rest varies from one beat to the next by well under a fifth of its RR.
 const ON_TIME_RR: f64 = 0.8;
 
@@ -85,40 +79,30 @@ fn flat_top_middle(x: &[f32], k: usize, reach: usize) -> usize {
 /// A candidate within [`T_WAVE_S`] of the last QRS is its T wave when its feature is under half that QRS's
 /// (Pan & Tompkins' test on the integrated energy rather than the slope), or when `rounded(beats, c)` says the
 /// candidate at feature peak `c` is far more rounded than the QRS of the beats found so far (`beats`, feature
-/// peaks; see [`super::t_wave`]): a T wave taller than the QRS. A candidate the height test alone refused is taken
-/// back as a premature beat when the next QRS comes a pause after it ([`PAUSE_RR`]) and it is not rounded. A weak
-/// candidate (a larger peak lies 100–200 ms from it, see [`candidates`]) is a beat only on time after the last
-/// beat ([`ON_TIME_RR`]) or, within the T-wave test, as a premature beat; a candidate within the refractory period
-/// of a beat replaces it when larger.
+/// peaks; see [`super::t_wave`]): a T wave taller than the QRS. A weak candidate (a larger peak lies 100–200 ms
+/// from it, see [`candidates`]) is a beat only on time after the last beat ([`Picker::weak_may_be_beat`]); a
+/// candidate within the refractory period of a beat replaces it when larger.
 pub fn pick(x: &[f32], fs: f64, mut rounded: impl FnMut(&[usize], usize) -> bool) -> Vec<usize> {
     let mut p = Picker::new(x, fs);
     for (c, strong) in candidates(x, fs) {
         if p.within_refractory(c) {
             continue;
         }
-        // A weak candidate belongs to the larger peak near it unless it is above the threshold and either comes on
-        // time after the last beat ([`ON_TIME_RR`] of the steady RR) or, within the T-wave test, is taken back as a
-        // premature beat after a pause.
+        // A weak candidate belongs to the larger peak near it unless it is above the threshold and comes on time.
         if !strong && !p.weak_may_be_beat(c) {
             continue;
         }
         p.search_back(c);
         let v = f64::from(x[c]);
-        let above = v > p.threshold();
-        let (is_qrs, low) = match p.beats.last() {
-            // A weak candidate within the T-wave test can only be a premature beat, taken back after a pause: a
-            // sinus beat, 240 ms after which comes a larger premature beat, whose energy hides its own.
-            Some(&last) if c - last < p.t_wave && !strong => (false, above),
-            Some(&last) if c - last < p.t_wave => {
-                let tall = v > 0.5 * f64::from(x[last]);
-                (above && tall && !rounded(&p.beats, c), above && !tall)
-            }
-            _ => (above, false),
-        };
+        let is_qrs = v > p.threshold()
+            && match p.beats.last() {
+                Some(&last) if c - last < p.t_wave => v > 0.5 * f64::from(x[last]) && !rounded(&p.beats, c),
+                _ => true,
+            };
         if is_qrs {
-            p.take(c, &mut rounded);
+            p.take(c);
         } else {
-            p.pass_over(c, strong, low);
+            p.pass_over(c, strong);
         }
     }
     p.beats
@@ -139,17 +123,12 @@ struct Picker<'a> {
     rr: Vec<f64>,
     /// Candidates passed over since the last beat (strong ones only), for the search-back.
     pending: Vec<usize>,
-    /// Candidates since the last beat above the threshold that the T-wave test refused on their height alone (with
-    /// whether each is strong): their noise level waits until the next beat says whether one was a premature beat.
-    refused: Vec<(usize, bool)>,
-    /// RR intervals of the rhythm a pause is judged against: between two beats taken on their own (not in the
-    /// search-back, not premature, neither within the T-wave test of the beat before it), with no refused
-    /// candidate between them.
+    /// RR intervals of the rhythm a weak candidate's timing is judged against: between two beats taken on their own
+    /// (not in the search-back), at least [`T_WAVE_S`] apart, the first not within the T-wave test of the beat
+    /// before it.
     steady_rr: Vec<f64>,
-    /// Whether the last beat starts no steady RR (taken back as premature, or within the T-wave test of the one
-    /// before it), and whether a candidate was refused since it.
+    /// Whether the last beat starts no steady RR (taken within the T-wave test of the one before it).
     last_early: bool,
-    any_refused: bool,
 }
 
 impl<'a> Picker<'a> {
@@ -164,10 +143,8 @@ impl<'a> Picker<'a> {
             beats: Vec::new(),
             rr: Vec::new(),
             pending: Vec::new(),
-            refused: Vec::new(),
             steady_rr: Vec::new(),
             last_early: false,
-            any_refused: false,
         }
     }
 
@@ -208,18 +185,22 @@ impl<'a> Picker<'a> {
         true
     }
 
-    /// Whether a weak candidate `c` could be a beat: above the threshold, and [`Self::on_time`].
+    /// Whether a weak candidate `c` could be a beat: above the threshold and half the signal level (a QRS's height, as
+    /// the T-wave test asks of a peak soon after a beat), beyond the T-wave test of the last beat
+    /// and at least [`ON_TIME_RR`] of the steady RR after it, and nearer than the larger peak near it (within the
+    /// refractory period) to where the steady RR puts the next beat: a sinus beat on time before a premature beat,
+    /// not an artefact shortly before a beat on time. Never the first beat.
     fn weak_may_be_beat(&self, c: usize) -> bool {
-        f64::from(self.x[c]) > self.threshold() && self.on_time(c)
-    }
-
-    /// Whether a weak candidate `c` could be a beat by its timing: within the T-wave test of the last beat (as a
-    /// premature beat), or beyond it on time ([`ON_TIME_RR`] of the steady RR). Never the first beat.
-    fn on_time(&self, c: usize) -> bool {
-        self.beats.last().is_some_and(|&last| {
-            c - last < self.t_wave
-                || median_recent(&self.steady_rr).is_some_and(|m| (c - last) as f64 >= ON_TIME_RR * m)
-        })
+        let x = self.x;
+        let (Some(&last), Some(m)) = (self.beats.last(), median_recent(&self.steady_rr)) else { return false };
+        let v = f64::from(x[c]);
+        if v <= self.threshold().max(0.5 * self.spk) || c - last < self.t_wave || ((c - last) as f64) < ON_TIME_RR * m {
+            return false;
+        }
+        let near = c.saturating_sub(self.refractory)..=(c + self.refractory).min(x.len() - 1);
+        let Some(larger) = near.max_by(|&a, &b| x[a].total_cmp(&x[b])) else { return false };
+        let due = last as f64 + m;
+        (c as f64 - due).abs() < (larger as f64 - due).abs()
     }
 
     /// Search-back: with no beat for [`SEARCH_BACK_RR`] mean RR before candidate `c`, the largest pending peak
@@ -243,60 +224,26 @@ impl<'a> Picker<'a> {
         self.spk = 0.25 * f64::from(x[p]) + 0.75 * self.spk;
         self.accept(p);
         self.pending.retain(|&q| q > p);
-        let before: Vec<(usize, bool)> = self.refused.extract_if(.., |(q, _)| *q <= p).collect();
-        for (q, strong) in before {
-            if q != p && strong {
-                self.as_noise(q);
-            }
-        }
     }
 
-    /// Candidate `c` is a beat. A refused candidate before it was a premature beat when `c` comes a pause after
-    /// it ([`PAUSE_RR`] of the steady RR) and it is not rounded like a T wave.
-    fn take(&mut self, c: usize, rounded: &mut impl FnMut(&[usize], usize) -> bool) {
-        let x = self.x;
-        let premature = median_recent(&self.steady_rr).and_then(|m| {
-            self.refused
-                .iter()
-                .map(|&(p, _)| p)
-                .filter(|&p| (c - p) as f64 >= PAUSE_RR * m)
-                .max_by(|&a, &b| x[a].total_cmp(&x[b]))
-                .filter(|&p| !rounded(&self.beats, p))
-        });
+    /// Candidate `c` is a beat.
+    fn take(&mut self, c: usize) {
         if let Some(&last) = self.beats.last()
             && !self.last_early
-            && !self.any_refused
             && c - last >= self.t_wave
         {
             self.steady_rr.push((c - last) as f64);
         }
-        // Refused weak candidates were never noise peaks of their own (see `candidates`).
-        for (q, strong) in std::mem::take(&mut self.refused) {
-            if Some(q) == premature {
-                self.spk = 0.125 * f64::from(x[q]) + 0.875 * self.spk;
-                self.accept(q);
-            } else if strong {
-                self.as_noise(q);
-            }
-        }
-        self.spk = 0.125 * f64::from(x[c]) + 0.875 * self.spk;
+        self.spk = 0.125 * f64::from(self.x[c]) + 0.875 * self.spk;
         self.accept(c);
-        let n = self.beats.len();
-        self.last_early = premature.is_some() || n >= 2 && c - self.beats[n - 2] < self.t_wave;
-        self.any_refused = false;
+        self.last_early = self.beats.len() >= 2 && c - self.beats[self.beats.len() - 2] < self.t_wave;
         self.pending.clear();
     }
 
-    /// Candidate `c` is no beat: refused by the height test alone (`low`), or noise.
-    fn pass_over(&mut self, c: usize, strong: bool, low: bool) {
-        self.any_refused |= low;
-        if low {
-            self.refused.push((c, strong));
-        } else {
-            self.as_noise(c);
-        }
-        // The search-back looks among strong candidates only: a weak one is the larger peak's T or P wave more
-        // often than a beat.
+    /// Candidate `c` is no beat: a noise peak. The search-back looks among strong candidates only: a weak one is
+    /// the larger peak's T or P wave more often than a beat.
+    fn pass_over(&mut self, c: usize, strong: bool) {
+        self.as_noise(c);
         if strong {
             self.pending.push(c);
         }
@@ -371,71 +318,43 @@ mod tests {
     }
 
     #[test]
-    fn a_low_peak_soon_after_a_beat_is_a_premature_beat_only_before_a_pause() {
-        // Beats every 100 samples (400 ms at 250 Hz); after every third one a peak 0.45 high 60 samples later (240
-        // ms, under half the beat's height). Followed by a pause (the next beat 160 samples after the one before
-        // it, 100 after the peak: one RR, and too soon for the search-back), it is a premature beat when not
-        // rounded; followed by the next beat on time, or rounded, it is a T wave.
-        let fs = 250.0;
-        for (pause, is_rounded) in [(true, false), (true, true), (false, false)] {
-            let mut x = vec![0.0f32; 8000];
-            let mut r = 100;
-            let (mut n, mut low) = (0, 0);
-            while r + 200 < x.len() {
-                for k in r - 10..r + 10 {
-                    x[k] = 1.0 - (k as f32 - r as f32).abs() / 10.0;
-                }
-                n += 1;
-                if n % 3 == 0 {
-                    low += 1;
-                    let t = r + 60;
-                    for k in t - 10..t + 10 {
-                        x[k] = 0.45 * (1.0 - (k as f32 - t as f32).abs() / 10.0);
-                    }
-                    r += if pause { 160 } else { 100 };
-                } else {
-                    r += 100;
-                }
-            }
-            let want = if pause && !is_rounded { n + low } else { n };
-            assert_eq!(pick(&x, fs, |_, _| is_rounded).len(), want, "pause {pause}, rounded {is_rounded}");
-        }
-    }
-
-    #[test]
-    fn a_beat_and_a_premature_beat_240_ms_apart_are_both_kept() {
-        // Beats every 200 samples (800 ms at 250 Hz); after every third one a premature beat 60 samples (240 ms)
-        // later, then a full pause (the next beat 200 samples after the premature one). Either the premature beat's
-        // feature is a broad hump 2.3 times as high, whose rising limb stands above the beat's peak within 200 ms of
-        // it, so that only the ± 100 ms window finds the beat; or the beat's feature is the broad hump and the
-        // premature beat a narrow peak 0.45 high on its tail, found the same way and taken back after its pause
-        // unless it is rounded like a T wave.
+    fn a_beat_closely_followed_by_a_larger_one_is_kept_but_an_early_peak_is_not() {
+        // Beats every 200 samples (800 ms at 250 Hz). After every third one, a premature beat 60 samples (240 ms)
+        // later whose feature is a broad hump 2.3 times as high, then a full pause: the hump's rising limb stands
+        // above the beat's peak within 200 ms of it, so only the ± 100 ms window finds the beat, on time. Or, with
+        // broad beats 2.3 high, a narrow peak 1.0 high 60 samples before every third beat (140 after the one before,
+        // 0.7 RR: a burst of noise): it is found the same way but comes early, and is no beat.
         let fs = 250.0;
         let hump = |x: &mut [f32], at: usize, height: f32, half: usize| {
             for k in at - half..at + half {
                 x[k] = x[k].max(height * (1.0 - (k as f32 - at as f32).abs() / half as f32));
             }
         };
-        for (beat_half, premature_height, premature_half, is_rounded) in
-            [(10, 2.3f32, 30, false), (30, 0.45, 10, false), (30, 0.45, 10, true)]
-        {
+        for premature_beat in [true, false] {
             let mut x = vec![0.0f32; 12_000];
             let mut r = 100;
-            let (mut n, mut premature) = (0, 0);
+            let (mut n, mut extra) = (0, 0);
             while r + 300 < x.len() {
-                hump(&mut x, r, 1.0, beat_half);
                 n += 1;
-                r += 200;
-                if n % 3 == 0 {
-                    premature += 1;
-                    hump(&mut x, r - 140, premature_height, premature_half);
-                    r += 60;
+                if premature_beat {
+                    hump(&mut x, r, 1.0, 10);
+                    r += 200;
+                    if n % 3 == 0 {
+                        extra += 1;
+                        hump(&mut x, r - 140, 2.3, 30);
+                        r += 60;
+                    }
+                } else {
+                    hump(&mut x, r, 2.3, 30);
+                    if n % 3 == 0 {
+                        hump(&mut x, r - 60, 1.0, 10);
+                    }
+                    r += 200;
                 }
             }
-            let want = if is_rounded { n } else { n + premature };
-            let case = format!("beat {beat_half}, premature {premature_height} {premature_half}, rounded {is_rounded}");
-            let got = pick(&x, fs, |_, _| is_rounded);
-            assert_eq!(got.len(), want, "{case}: {got:?}");
+            let want = if premature_beat { n + extra } else { n };
+            let got = pick(&x, fs, |_, _| false);
+            assert_eq!(got.len(), want, "premature beat {premature_beat}: {got:?}");
         }
     }
 }
