@@ -6,8 +6,7 @@
 //! tenth of its curvature or so. A peak the energy test would take is therefore also asked whether it is far more
 //! rounded than the QRS of the beats before it.
 //!
-//! The test only ever takes a peak away, never adds one the energy test refused (the detector takes such a peak back
-//! only after a pause, as a premature beat, and asks this test first; see [`super::peaks`]): muscle noise raises a wave's
+//! The test only ever takes a peak away, never adds one the energy test refused: muscle noise raises a wave's
 //! curvature (its sharpest point is the noise's), and letting curvature overrule the energy test counted noisy T
 //! waves and muscle bursts after the beats as beats (a reviewer's LUDB records with T waves three times taller and
 //! 20 µV of muscle noise: 32 extra beats over 50 records, none before). A peak is rounded only against both the
