@@ -292,10 +292,9 @@ fn normalise(mwi: &[f32], fs: f64, runs: &[Range<usize>], by_rhythm: bool) -> (V
     let by_low = ((ratio_low - 8.0) / 32.0).clamp(0.0, 1.0);
     // Fast rhythms with a small QRS and tall T waves (180 bpm, QRS 0.5 mV, T 0.4 mV: lower-decile ratio 6.8 on every
     // lead, no beat at all) are told from noise by their rhythm instead ([`rhythmic`]), above a lower floor, when
-    // `by_rhythm` (no lead of the recording passed otherwise). Common
-    // practice, no source. Measured: such rhythms at 180 bpm autocorrelate 0.92–0.97 at their RR and −0.7 to −0.8 at
-    // half of it; white and muscle noise at most 0.12 (lower-decile ratios 3.8–4.6); tremor at 3–8 Hz 0.5–0.84, but
-    // 0.54–0.92 at half the lag (ratios 1.3–3.7).
+    // `by_rhythm` (no lead of the recording passed otherwise). Common practice, no source. Measured: such rhythms
+    // at 180 bpm autocorrelate 0.92–0.97 at their RR and −0.7 to −0.8 at half of it; white and muscle noise at most
+    // 0.12 (lower-decile ratios 3.8–4.6); tremor at 3–8 Hz 0.5–0.84, but 0.54–0.92 at half the lag (ratios 1.3–3.7).
     let weight = if by_median > 0.0 {
         by_median
     } else if by_low > 0.0 {

@@ -185,11 +185,11 @@ impl<'a> Picker<'a> {
         true
     }
 
-    /// Whether a weak candidate `c` could be a beat: above the threshold and half the signal level (a QRS's height, as
-    /// the T-wave test asks of a peak soon after a beat), beyond the T-wave test of the last beat
-    /// and at least [`ON_TIME_RR`] of the steady RR after it, and nearer than the larger peak near it (within the
-    /// refractory period) to where the steady RR puts the next beat: a sinus beat on time before a premature beat,
-    /// not an artefact shortly before a beat on time. Never the first beat.
+    /// Whether a weak candidate `c` could be a beat: above the threshold and half the signal level (a QRS's height,
+    /// as the T-wave test asks of a peak soon after a beat), beyond the T-wave test of the last beat and at least
+    /// [`ON_TIME_RR`] of the steady RR after it, and nearer than the larger peak near it (within the refractory
+    /// period) to where the steady RR puts the next beat: a sinus beat on time before a premature beat, not an
+    /// artefact shortly before a beat on time. Never the first beat.
     fn weak_may_be_beat(&self, c: usize) -> bool {
         let x = self.x;
         let (Some(&last), Some(m)) = (self.beats.last(), median_recent(&self.steady_rr)) else { return false };
