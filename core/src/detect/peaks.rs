@@ -24,15 +24,18 @@ fn median_recent(v: &[f64]) -> Option<f64> {
     (!r.is_empty()).then(|| *r.select_nth_unstable_by(mid, f64::total_cmp).1)
 }
 
-/// Local maxima of `x` that are the largest value within ± half the refractory period, each flagged whether it is
-/// also the largest within ± the whole refractory period (a strong candidate). A weak one has a larger peak 100–200
-/// ms away: a wave's other hump or a P or T wave before the QRS, but also a beat followed closely by a larger one
-/// (a sinus beat and a premature ventricular beat 240 ms after it).
-fn candidates(x: &[f32], fs: f64) -> Vec<(usize, bool)> {
+/// Local maxima of `x` that are the largest value within ± half the refractory period, each with the sample of the
+/// largest value within ± the whole refractory period where that is larger (a weak candidate; `None`: a strong
+/// one). A weak one has a larger peak 100–200 ms away: a wave's other hump or a P or T wave before the QRS, but also
+/// a beat followed closely by a larger one (a sinus beat and a premature ventricular beat 240 ms after it).
+fn candidates(x: &[f32], fs: f64) -> Vec<(usize, Option<usize>)> {
     let r = ((REFRACTORY_S * fs) as usize).max(1);
     local_maxima(x, (r / 2).max(1), r)
         .into_iter()
-        .map(|k| (k, x[k.saturating_sub(r)..=(k + r).min(x.len() - 1)].iter().all(|&v| v <= x[k])))
+        .map(|k| {
+            let near = k.saturating_sub(r)..=(k + r).min(x.len() - 1);
+            (k, near.max_by(|&a, &b| x[a].total_cmp(&x[b])).filter(|&m| x[m] > x[k]))
+        })
         .collect()
 }
 
@@ -84,12 +87,12 @@ fn flat_top_middle(x: &[f32], k: usize, reach: usize) -> usize {
 /// candidate within the refractory period of a beat replaces it when larger.
 pub fn pick(x: &[f32], fs: f64, mut rounded: impl FnMut(&[usize], usize) -> bool) -> Vec<usize> {
     let mut p = Picker::new(x, fs);
-    for (c, strong) in candidates(x, fs) {
+    for (c, larger) in candidates(x, fs) {
         if p.within_refractory(c) {
             continue;
         }
         // A weak candidate belongs to the larger peak near it unless it is above the threshold and comes on time.
-        if !strong && !p.weak_may_be_beat(c) {
+        if larger.is_some_and(|l| !p.weak_may_be_beat(c, l)) {
             continue;
         }
         p.search_back(c);
@@ -102,7 +105,7 @@ pub fn pick(x: &[f32], fs: f64, mut rounded: impl FnMut(&[usize], usize) -> bool
         if is_qrs {
             p.take(c);
         } else {
-            p.pass_over(c, strong);
+            p.pass_over(c, larger.is_none());
         }
     }
     p.beats
@@ -123,9 +126,9 @@ struct Picker<'a> {
     rr: Vec<f64>,
     /// Candidates passed over since the last beat (strong ones only), for the search-back.
     pending: Vec<usize>,
-    /// RR intervals of the rhythm a weak candidate's timing is judged against: between two beats taken on their own
-    /// (not in the search-back), at least [`T_WAVE_S`] apart, the first not within the T-wave test of the beat
-    /// before it.
+    /// RR intervals of the rhythm a weak candidate's timing is judged against: from the last beat to a beat taken
+    /// (not in the search-back) at least [`T_WAVE_S`] after it, unless the last beat taken was itself within the
+    /// T-wave test of the beat before it.
     steady_rr: Vec<f64>,
     /// Whether the last beat starts no steady RR (taken within the T-wave test of the one before it).
     last_early: bool,
@@ -187,18 +190,15 @@ impl<'a> Picker<'a> {
 
     /// Whether a weak candidate `c` could be a beat: above the threshold and half the signal level (a QRS's height,
     /// as the T-wave test asks of a peak soon after a beat), beyond the T-wave test of the last beat and at least
-    /// [`ON_TIME_RR`] of the steady RR after it, and nearer than the larger peak near it (within the refractory
-    /// period) to where the steady RR puts the next beat: a sinus beat on time before a premature beat, not an
-    /// artefact shortly before a beat on time. Never the first beat.
-    fn weak_may_be_beat(&self, c: usize) -> bool {
-        let x = self.x;
+    /// [`ON_TIME_RR`] of the steady RR after it, and nearer than the larger peak near it (`larger`, see
+    /// [`candidates`]) to where the steady RR puts the next beat: a sinus beat on time before a premature beat, not
+    /// an artefact shortly before a beat on time. Never the first beat.
+    fn weak_may_be_beat(&self, c: usize, larger: usize) -> bool {
         let (Some(&last), Some(m)) = (self.beats.last(), median_recent(&self.steady_rr)) else { return false };
-        let v = f64::from(x[c]);
+        let v = f64::from(self.x[c]);
         if v <= self.threshold().max(0.5 * self.spk) || c - last < self.t_wave || ((c - last) as f64) < ON_TIME_RR * m {
             return false;
         }
-        let near = c.saturating_sub(self.refractory)..=(c + self.refractory).min(x.len() - 1);
-        let Some(larger) = near.max_by(|&a, &b| x[a].total_cmp(&x[b])) else { return false };
         let due = last as f64 + m;
         (c as f64 - due).abs() < (larger as f64 - due).abs()
     }
