@@ -334,6 +334,13 @@ mod tests {
         }
     }
 
+    /// The next value of a linear congruential generator at `state`, uniform in [−0.5, 0.5): test noise that is
+    /// the same on every run.
+    fn uniform(state: &mut u64) -> f32 {
+        *state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        (*state >> 33) as f32 / (1u64 << 31) as f32 - 0.5
+    }
+
     /// A train of narrow QRS-like pulses plus T waves every 0.8 s, with a little deterministic noise.
     fn synthetic(fs: f64, seconds: f64) -> (Vec<f32>, Vec<usize>) {
         let n = (fs * seconds) as usize;
@@ -398,15 +405,7 @@ mod tests {
         assert!(detect_beats(&rec(vec![lead(&[]), lead(&[])], fs)).is_empty());
         // With white noise of 14 µV SD (±25 µV uniform) on them, still none.
         let mut state = 3u64;
-        let mut noisy = || -> Vec<f32> {
-            lead(&[])
-                .into_iter()
-                .map(|v| {
-                    state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-                    v + ((state >> 33) as f32 / (1u64 << 31) as f32 - 0.5) * 50.0
-                })
-                .collect()
-        };
+        let mut noisy = || -> Vec<f32> { lead(&[]).into_iter().map(|v| v + uniform(&mut state) * 50.0).collect() };
         let leads = vec![noisy(), noisy()];
         assert!(detect_beats(&rec(leads, fs)).is_empty());
         let qrs = [p_times[0] + 0.16, p_times[1] + 0.16];
@@ -447,14 +446,7 @@ mod tests {
         let beats = detect_beats(&rec(leads, fs));
         assert!(beats.len() + 1 >= rs.len() && beats.len() <= rs.len(), "{} beats of {}", beats.len(), rs.len());
         let mut state = 11u64;
-        let mut white = || -> Vec<f32> {
-            (0..n)
-                .map(|_| {
-                    state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-                    ((state >> 33) as f32 / (1u64 << 31) as f32 - 0.5) * 200.0
-                })
-                .collect()
-        };
+        let mut white = || -> Vec<f32> { (0..n).map(|_| uniform(&mut state) * 200.0).collect() };
         assert!(detect_beats(&rec(vec![white(), white(), white()], fs)).is_empty());
         let tremor: Vec<Vec<f32>> = [200.0f64, 140.0, 80.0]
             .iter()
@@ -468,12 +460,7 @@ mod tests {
         let fs = 250.0;
         let (x, truth) = synthetic(fs, 30.0);
         let mut state = 7u64;
-        let noise: Vec<f32> = (0..x.len())
-            .map(|_| {
-                state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-                ((state >> 33) as f32 / (1u64 << 31) as f32 - 0.5) * 400.0
-            })
-            .collect();
+        let noise: Vec<f32> = (0..x.len()).map(|_| uniform(&mut state) * 400.0).collect();
         let beats = detect_beats(&rec(vec![noise, x], fs));
         assert_eq!(beats.len(), truth.len());
     }
@@ -486,8 +473,7 @@ mod tests {
         // 3 s of large muscle-like noise on both leads from 20 s.
         let mut state = 99u64;
         for k in (20.0 * fs) as usize..(23.0 * fs) as usize {
-            state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-            let v = ((state >> 33) as f32 / (1u64 << 31) as f32 - 0.5) * 1500.0;
+            let v = uniform(&mut state) * 1500.0;
             x[k] += v;
             y[k] -= 0.7 * v;
         }
