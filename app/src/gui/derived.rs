@@ -43,7 +43,7 @@ impl TapeEnvelope {
 
     /// The same envelope as [`TapeEnvelope::new`] of a signal never held whole: `span(a, b)` gives its samples
     /// `a..b` (e.g. a long recording filtered span by span), asked for in spans of whole buckets of
-    /// [`SPAN_S`] or more. `recording` gives the length and rate.
+    /// `SPAN_S` or more. `recording` gives the length and rate.
     #[must_use]
     pub fn from_spans(recording: &Recording, lead: usize, mut span: impl FnMut(usize, usize) -> Span) -> Self {
         let n = recording.len();

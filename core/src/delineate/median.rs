@@ -25,14 +25,14 @@ pub struct RepresentativeBeat {
     /// Number of beats in the median.
     pub n_beats: usize,
     /// How far the baseline moved from one of its beats to the next, µV: the median change of the PR level between
-    /// consecutive dominant beats, on the leads as levelled for the median ([`baseline::Levelled::step_uv`]; for a
+    /// consecutive dominant beats, on the leads as levelled for the median (`baseline::Levelled::step_uv`; for a
     /// long recording the median over its windows). `None` when not known.
     pub baseline_step_uv: Option<f64>,
 }
 
 /// Builds and delineates the representative beat from the dominant beats (all beats when none is dominant), each
 /// lead first levelled by a spline through the beats' PR levels where that makes the beats more alike
-/// ([`baseline::levelled`]). `recording` should be baseline-corrected (high-passed). `None` with fewer than 3
+/// (`baseline::levelled`). `recording` should be baseline-corrected (high-passed). `None` with fewer than 3
 /// usable beats. Delineates the whole
 /// recording again to get its P model; when the beats were just delineated, pass that model to
 /// [`representative_beat_with`] instead.
@@ -344,7 +344,7 @@ impl BeatStack {
 
     /// Keeps up to the stack's quota of `beats` (found in `part`, a window with its margins), evenly spaced
     /// among those the median is taken over whose R peak lies in `own` (the window's own samples of `part`) and
-    /// whose span lies in `part` and holds no gap (see [`has_signal`]), from `part` levelled as
+    /// whose span lies in `part` and holds no gap (see `has_signal`), from `part` levelled as
     /// [`representative_beat_with`] levels a recording.
     pub fn gather(&mut self, part: &Recording, beats: &[Beat], own: std::ops::Range<usize>) {
         let levelled = baseline::levelled(part, beats);

@@ -47,7 +47,7 @@ pub struct Signals<'a> {
     /// leads above): a wave model read from many beats leaves the lead out of a beat where it was not recorded.
     pub absent: Vec<Vec<Range<usize>>>,
     /// Pacing spikes: sorted sample indices where any unfiltered lead jumps away from and back to its local
-    /// level within a few samples (see [`pacing_spikes`]).
+    /// level within a few samples (see `pacing_spikes`).
     pub spikes: Vec<usize>,
 }
 
@@ -249,7 +249,7 @@ fn spikes_among<T: Copy + Into<f64>>(x: &[T], fs: f64, pairs: usize) -> Vec<usiz
         .collect()
 }
 
-/// Lead `x` (µV, NaN = invalid) at `fs` Hz with its spikes of one or two samples ([`pacing_spikes`]) bridged as
+/// Lead `x` (µV, NaN = invalid) at `fs` Hz with its spikes of one or two samples (`pacing_spikes`) bridged as
 /// [`Signals`] bridges them, for the beat detector: a stimulus or a glitch of a few mV in one sample otherwise
 /// counts as the lead's largest QRS energy (15 single-sample spikes of 8 mV in a 10-s recording: the typical QRS
 /// height read from the spikes, 2 of 12 beats missed, R placed on T waves). Borrowed when there is none.

@@ -24,7 +24,7 @@ pub const FLAT_UV: f32 = 1.0;
 // Common practice, no source. Measured on the shared records (LUDB 1–50, QT Database, MIT-BIH 100, PTB s0010): no
 // lead of them is clipped by this rule (test `clipped_leads_are_noted`).
 pub(super) const CLIPPED_RUN_S: f64 = 0.010;
-/// Fewest separate runs at the extreme value for a lead to count as clipped (see [`CLIPPED_RUN_S`]).
+/// Fewest separate runs at the extreme value for a lead to count as clipped (see `CLIPPED_RUN_S`).
 const CLIPPED_RUNS: usize = 3;
 /// Longest run at the extreme value counted, s: a QRS cut off at a limit stays there for less than the QRS lasts;
 /// a calibration pulse (1 mV for 200 ms, references.md §1) is no clipping.
@@ -55,7 +55,7 @@ impl Lead {
         robust_span(&self.samples).is_none_or(|s| s < FLAT_UV)
     }
 
-    /// Where the lead, sampled at `fs` Hz, is clipped (see [`CLIPPED_RUN_S`]); `None` when it is not, or is flat.
+    /// Where the lead, sampled at `fs` Hz, is clipped (see `CLIPPED_RUN_S`); `None` when it is not, or is flat.
     #[must_use]
     pub fn clipping(&self, fs: f64) -> Option<Clipping> {
         if self.is_flat() {

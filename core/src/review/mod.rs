@@ -5,7 +5,7 @@
 //!   while the review is `final`.
 //! - [`save`]: atomic save (temporary file, sync, rename) with a `.bak` of the previous version, autosave
 //!   sidecar and [`recover`].
-//! - [`load`]: reading any known `format_version` (older ones migrate), errors naming file, line, column and
+//! - [`load()`]: reading any known `format_version` (older ones migrate), errors naming file, line, column and
 //!   field, and [`load_for`] which refuses a review of another recording.
 //! - [`identity`]: SHA-256 of a recording's signal content.
 //! - [`agreement`]: per-measurement differences between readers and Bland–Altman limits of agreement.

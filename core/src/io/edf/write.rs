@@ -13,7 +13,7 @@ use super::{ANNOTATION_LABEL, meta, tal};
 use crate::io::{ReadError, write_atomic};
 use crate::recording::{LeadName, Recording, WITHHELD_LABEL};
 
-/// Options for [`write`].
+/// Options for [`write()`].
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct EdfWriteOptions {
     /// Write the patient's identifiers, name, birth date and the recording date. Off by default: the file is
@@ -74,7 +74,7 @@ fn extent(samples: &[f32]) -> Option<(f64, f64)> {
     (lo <= hi).then_some((lo, hi))
 }
 
-/// The leads [`write`] would store coarser than [`COARSE_STEP_UV`] per digital step, as warnings naming the
+/// The leads [`write()`] would store coarser than [`COARSE_STEP_UV`] per digital step, as warnings naming the
 /// lead, its range and its step: a sample far off the ECG (an artefact, a saturated amplifier) sets the range
 /// and every wave of the lead loses detail. Empty when every lead keeps [`COARSE_STEP_UV`] or finer.
 #[must_use]
