@@ -62,19 +62,14 @@ pub fn delineate_beats(recording: &Recording, beats: &mut [Beat]) -> Option<PMod
 pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
     let n = sig.len();
     let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
-    let typical_rr = median_rr(&rs).unwrap_or(sig.samples(1.0));
-    let mut t_waves = Vec::with_capacity(beats.len());
     for i in 0..beats.len() {
         let r = rs[i];
         let min_start = if i > 0 { rs[i - 1] + sig.samples(0.150).min((r - rs[i - 1]) / 2) } else { 0 };
         let max_end = if i + 1 < rs.len() { rs[i + 1].saturating_sub(sig.samples(0.120)).max(r) } else { n };
         let (on, end) = qrs::qrs_bounds(sig, r, min_start, max_end);
-        let rr_next = if i + 1 < rs.len() { rs[i + 1] - r } else { typical_rr };
-        t_waves.push(beat_t_waves(sig, r, on, end, rr_next, n));
         beats[i].bounds = Boundaries { p_on: None, p_end: None, qrs_on: on, qrs_end: end, t_end: None };
     }
-    let kinds: Vec<BeatKind> = beats.iter().map(|b| b.kind).collect();
-    twave::drop_inconsistent_leads(sig, &mut t_waves, &kinds);
+    let t_waves = t_waves_of(sig, beats);
     for (b, t) in beats.iter_mut().zip(&t_waves) {
         // The end may lie past the search (the limb is followed to its knee): not into a gap either.
         b.bounds.t_end = t.as_ref().and_then(|t| twave::global_end(sig, t)).filter(|&e| !sig.bridged(b.r, e + 1));
@@ -108,6 +103,33 @@ pub fn delineate_with(sig: &Signals, beats: &mut [Beat]) -> Option<PModel> {
         }
     }
     Some(model)
+}
+
+/// Each beat's T wave on every lead ([`beat_t_waves`], sought before the next beat, the last beat within the
+/// record's median RR), each lead's end then compared with the same lead's on the neighbouring beats
+/// ([`twave::drop_inconsistent_leads`]). `beats` in time order, their QRS edges set.
+fn t_waves_of(sig: &Signals, beats: &[Beat]) -> Vec<Option<twave::BeatT>> {
+    let rs: Vec<usize> = beats.iter().map(|b| b.r).collect();
+    let typical_rr = median_rr(&rs).unwrap_or(sig.samples(1.0));
+    let mut t_waves: Vec<Option<twave::BeatT>> = beats
+        .iter()
+        .enumerate()
+        .map(|(i, b)| {
+            let rr_next = if i + 1 < rs.len() { rs[i + 1] - b.r } else { typical_rr };
+            beat_t_waves(sig, b.r, b.bounds.qrs_on, b.bounds.qrs_end, rr_next, sig.len())
+        })
+        .collect();
+    let kinds: Vec<BeatKind> = beats.iter().map(|b| b.kind).collect();
+    twave::drop_inconsistent_leads(sig, &mut t_waves, &kinds);
+    t_waves
+}
+
+/// Each beat's T wave per lead as (signed lobe amplitude, µV; T end, sample) before the leads are combined, for
+/// analysis tools: `beats` already delineated (QRS edges set), in time order, on the signals they were found on.
+#[doc(hidden)]
+#[must_use]
+pub fn t_lead_ends(sig: &Signals, beats: &[Beat]) -> Vec<Vec<Option<(f32, f64)>>> {
+    t_waves_of(sig, beats).iter().map(|t| t.as_ref().map_or_else(Vec::new, twave::BeatT::lead_ends)).collect()
 }
 
 /// Each lead's T wave for the beat with R peak `r`, QRS `on`–`end` and following RR `rr` (samples); the leads

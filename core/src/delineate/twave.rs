@@ -90,6 +90,14 @@ pub struct BeatT {
     leads: Vec<Option<LeadT>>,
 }
 
+impl BeatT {
+    /// Each lead's T wave as (signed amplitude of the lobe used, µV; T end, fractional sample), in lead order.
+    #[must_use]
+    pub fn lead_ends(&self) -> Vec<Option<(f32, f64)>> {
+        self.leads.iter().map(|t| t.map(|t| (t.amplitude, t.end))).collect()
+    }
+}
+
 /// Each lead's T wave for a beat. `iso_at` is where the isoelectric level is read (just before QRS onset),
 /// `from` the start of the T search (after the J point) and `to` its end (before the next beat's P). `None` when
 /// the search window is too short.

@@ -40,3 +40,4 @@ mod review_roundtrip;
 mod review_save;
 mod review_stage;
 mod synth;
+mod t_leads;
