@@ -94,7 +94,7 @@ fn ludb_global_boundaries() -> Result<(), String> {
     println!("pooled LUDB: {}", pooled.summary());
     // Source: goals of the measurement-engine issue. Not all are met yet on LUDB's global (12-lead extreme)
     // boundaries: P onset mean (by 0.2 ms) and SD. These bounds sit just above what the method achieves today
-    // (measured: P on +10.3 ± 22.0, QRS on +8.2 ± 9.5, QRS end −9.0 ± 11.6, T end −4.7 ± 29.1 ms), so a
+    // (measured: P on +10.2 ± 21.9, QRS on +8.4 ± 9.2, QRS end −9.0 ± 11.6, T end −4.5 ± 28.9 ms), so a
     // regression fails. The P onset lies 10 ms after LUDB's earliest-of-12 mark but on the second-earliest
     // lead's (+0.4 ± 10.1, `ludb_p_onset_against_the_second_earliest_lead`); aligning the beats' P waves before
     // their median (+9.3 → +10.3 here) brought the QT Database P onset from −2.3 ± 13.9 to −1.0 ± 13.2 and, with
