@@ -8,6 +8,7 @@ pub fn data(rel: &str) -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("data").join(rel)
 }
 
+pub mod ludb;
 pub mod score;
 
 /// The records with expert beat annotations: (record header, its reference beats as `sample,symbol`), relative

@@ -10,6 +10,7 @@
 
 use isoline_core::io::wfdb_annotations;
 use isoline_tests::data;
+use isoline_tests::ludb::LEADS;
 use isoline_tests::score::{
     BeatMarks, BoundaryErrors, KEYS, beats_of, group_wave_annotations, read_reference_csv, score_boundaries,
 };
@@ -152,8 +153,7 @@ fn ludb_p_onset_against_the_second_earliest_lead() -> Result<(), String> {
 /// `second` follows (a P onset is a `(` before a `p`, a T end a `)` after a `t`), taking the first of the pair
 /// when `take_first`.
 fn per_lead_marks(n: usize, (first, second): (&str, &str), take_first: bool) -> Vec<Vec<f64>> {
-    let leads = ["i", "ii", "iii", "avr", "avl", "avf", "v1", "v2", "v3", "v4", "v5", "v6"];
-    leads
+    LEADS
         .iter()
         .filter_map(|l| wfdb_annotations::read(&data(&format!("ludb/{n}.{l}"))).ok())
         .map(|anns| {

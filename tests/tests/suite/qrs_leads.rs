@@ -29,25 +29,15 @@
 use isoline_core::analysis::analyze;
 use isoline_core::delineate::{Signals, qrs_lead_edges};
 use isoline_core::filter::FilterSettings;
-use isoline_core::io::{self, wfdb_annotations};
+use isoline_core::io;
 use isoline_tests::data;
+use isoline_tests::ludb::{LEADS, lead_waves};
 use isoline_tests::score::{mean_sd, median};
 
-const LEADS: [&str; 12] = ["i", "ii", "iii", "avr", "avl", "avf", "v1", "v2", "v3", "v4", "v5", "v6"];
-
-/// Expert QRS (onset, end) of one lead: `(` `N` `)` triples.
 /// One lead's QRS edges as `qrs_lead_edges` gives them: (lead, onset, end).
 type Edges = (usize, Option<usize>, Option<usize>);
 /// Where an extreme is counted: per-lead counts and the errors.
 type Which<'a> = (&'a mut [usize; 12], &'a mut Vec<f64>);
-
-fn expert_qrs(n: usize, lead: &str) -> Vec<(usize, usize)> {
-    let Ok(a) = wfdb_annotations::read(&data(&format!("ludb/{n}.{lead}"))) else { return Vec::new() };
-    a.windows(3)
-        .filter(|w| w[0].label == "(" && w[1].label == "N" && w[2].label == ")")
-        .map(|w| (w[0].sample as usize, w[2].sample as usize))
-        .collect()
-}
 
 /// `mean±SD n` of errors, ms.
 fn ms(v: &[f64]) -> String {
@@ -84,7 +74,8 @@ fn ludb_qrs_edges_per_lead() {
         let Some(rec) = a.filtered.as_ref() else { panic!("ludb {n}: a 10-s record keeps its filtered copy") };
         let views: Vec<&[f32]> = rec.leads.iter().map(|l| l.samples.as_slice()).collect();
         let sig = Signals::new(&views, fs);
-        let experts: Vec<Vec<(usize, usize)>> = LEADS.iter().map(|l| expert_qrs(n, l)).collect();
+        let experts: Vec<Vec<(usize, usize)>> =
+            LEADS.iter().map(|l| lead_waves(n, l, "N").into_iter().map(|(on, _, end)| (on, end)).collect()).collect();
         let rs: Vec<usize> = a.beats.iter().map(|b| b.r).collect();
         // Per lead: our per-beat error, and expert (on − r, end − r) per beat for the rep beat.
         let mut e_on = vec![Vec::new(); 12];

@@ -20,23 +20,13 @@
 use isoline_core::analysis::analyze;
 use isoline_core::delineate::{Signals, t_lead_ends};
 use isoline_core::filter::FilterSettings;
-use isoline_core::io::{self, wfdb_annotations};
+use isoline_core::io;
 use isoline_tests::data;
+use isoline_tests::ludb::{LEADS, lead_waves};
 use isoline_tests::score::{mean_sd, median};
-
-const LEADS: [&str; 12] = ["i", "ii", "iii", "avr", "avl", "avf", "v1", "v2", "v3", "v4", "v5", "v6"];
 
 /// A per-lead error beyond this counts as gross (the lead followed another wave), ms.
 const GROSS_MS: f64 = 60.0;
-
-/// Expert T waves of one lead: (`t` peak, `)` end) of each `(` `t` `)` triple.
-fn expert_t(n: usize, lead: &str) -> Vec<(usize, usize)> {
-    let Ok(a) = wfdb_annotations::read(&data(&format!("ludb/{n}.{lead}"))) else { return Vec::new() };
-    a.windows(3)
-        .filter(|w| w[0].label == "(" && w[1].label == "t" && w[2].label == ")")
-        .map(|w| (w[1].sample as usize, w[2].sample as usize))
-        .collect()
-}
 
 /// Errors summarised: n, mean ± SD, median, share beyond [`GROSS_MS`] (of them, how many early).
 fn summary(v: &[f64]) -> String {
@@ -72,7 +62,7 @@ fn ludb_t_ends_per_lead() {
         let ours = t_lead_ends(&sig, &a.beats);
         let mut record: Vec<f64> = Vec::new();
         for (l, name) in LEADS.iter().enumerate() {
-            for (peak, end) in expert_t(n, name) {
+            for (_, peak, end) in lead_waves(n, name, "t") {
                 // The beat whose T this is: the last R peak before the expert's T peak.
                 let Some(i) = a.beats.iter().rposition(|b| b.r < peak) else { continue };
                 expected += 1;
