@@ -356,6 +356,27 @@ mod tests {
     }
 
     #[test]
+    fn a_strain_pattern_ends_with_its_inverted_t_wave() {
+        // 500 Hz, search from sample 20 to 350: an ST segment sloping down from −100 µV into an inverted T wave
+        // (−150 µV at sample 140) that regains the baseline at 200, then a small overshoot (+40 µV at 230, gone at
+        // 280). The segment is displaced, but the overshoot is under half the inverted T: the T ends at 200.
+        let ramp =
+            |k: usize, (a, va): (usize, f32), (b, vb): (usize, f32)| va + (vb - va) * (k - a) as f32 / (b - a) as f32;
+        let x: Vec<f32> = (0..400)
+            .map(|k| match k {
+                0..20 => 0.0,
+                20..140 => ramp(k, (20, -100.0), (140, -150.0)),
+                140..200 => ramp(k, (140, -150.0), (200, 0.0)),
+                200..230 => ramp(k, (200, 0.0), (230, 40.0)),
+                230..280 => ramp(k, (230, 40.0), (280, 0.0)),
+                _ => 0.0,
+            })
+            .collect();
+        let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 20, 350, 125, 75, 60).unwrap_or_else(|| panic!("no T end"));
+        assert!(t.amplitude < 0.0 && (t.end - 200.0).abs() <= 2.0, "{t:?}");
+    }
+
+    #[test]
     fn a_wide_t_wave_that_stops_at_a_knee_ends_there_where_the_lead_is_clean() {
         // Gaussian T (400 µV, σ = 25.8 samples ≈ 52 ms at 500 Hz) lowered by its value at 2.5σ and cut there, as
         // the demo generator draws it: it regains the baseline with a knee at sample 400 + 64.5. The trapezium
