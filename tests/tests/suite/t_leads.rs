@@ -66,12 +66,11 @@ fn ludb_t_ends_per_lead() {
                 // The beat whose T this is: the last R peak before the expert's T peak.
                 let Some(i) = a.beats.iter().rposition(|b| b.r < peak) else { continue };
                 expected += 1;
-                if let Some(Some((_, e))) = ours.get(i).and_then(|leads| leads.get(l)) {
+                if let Some(Some((amp, e))) = ours.get(i).and_then(|leads| leads.get(l)) {
                     found += 1;
                     let err = (e - end as f64) * to_ms;
                     // T_LEADS_GROSS=1 lists every error beyond GROSS_MS.
                     if std::env::var("T_LEADS_GROSS").is_ok() && err.abs() > GROSS_MS {
-                        let amp = ours[i][l].map_or(0.0, |t| t.0);
                         println!(
                             "  gross ludb {n} {name} beat r {} peak {peak} expert end {end} ours {e:.0} ({err:+.0} ms, amp {amp:.0})",
                             a.beats[i].r
