@@ -332,6 +332,24 @@ mod tests {
         );
     }
 
+    /// 400 samples on straight lines between `knots` (sample, µV, in order), 0 before the first and after the last.
+    fn polyline(knots: &[(usize, f32)]) -> Vec<f32> {
+        let mut x = vec![0.0f32; 400];
+        for w in knots.windows(2) {
+            let ((a, va), (b, vb)) = (w[0], w[1]);
+            for (k, v) in x.iter_mut().enumerate().take(b).skip(a) {
+                *v = va + (vb - va) * (k - a) as f32 / (b - a) as f32;
+            }
+        }
+        x
+    }
+
+    /// The T wave of the clean lead `x` (500 Hz) searched from sample 20 to 350, with the terminal-lobe gap (75
+    /// samples, 150 ms) and trapezium reach (60, 120 ms) the recordings use.
+    fn t_of(x: &[f32]) -> LeadT {
+        lead_t_end(Lead { x, wide: x }, 0.0, 20, 350, 125, 75, 60).unwrap_or_else(|| panic!("no T end"))
+    }
+
     #[test]
     fn an_upright_t_wave_rising_out_of_a_depressed_st_segment_ends_where_it_does() {
         // 500 Hz, search from sample 20 to 350. The ST segment stands at −80 µV where the search starts, sinks to
@@ -339,19 +357,7 @@ mod tests {
         // straight back to the baseline at 260. The depression is the largest deviation, and the T peak lies 320
         // ms after its deepest point, beyond the reach of a terminal lobe. Taken as the T wave, the depression
         // gave an end at sample 200, the T wave's peak (as on the LUDB leads with ST depression).
-        let ramp =
-            |k: usize, (a, va): (usize, f32), (b, vb): (usize, f32)| va + (vb - va) * (k - a) as f32 / (b - a) as f32;
-        let x: Vec<f32> = (0..400)
-            .map(|k| match k {
-                0..20 => 0.0,
-                20..40 => ramp(k, (20, -80.0), (40, -100.0)),
-                40..160 => ramp(k, (40, -100.0), (160, 0.0)),
-                160..200 => ramp(k, (160, 0.0), (200, 60.0)),
-                200..260 => ramp(k, (200, 60.0), (260, 0.0)),
-                _ => 0.0,
-            })
-            .collect();
-        let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 20, 350, 125, 75, 60).unwrap_or_else(|| panic!("no T end"));
+        let t = t_of(&polyline(&[(20, -80.0), (40, -100.0), (160, 0.0), (200, 60.0), (260, 0.0)]));
         assert!(t.amplitude > 0.0 && (t.end - 260.0).abs() <= 2.0, "{t:?}");
     }
 
@@ -360,19 +366,7 @@ mod tests {
         // 500 Hz, search from sample 20 to 350: an ST segment sloping down from −100 µV into an inverted T wave
         // (−150 µV at sample 140) that regains the baseline at 200, then a small overshoot (+40 µV at 230, gone at
         // 280). The segment is displaced, but the overshoot is under half the inverted T: the T ends at 200.
-        let ramp =
-            |k: usize, (a, va): (usize, f32), (b, vb): (usize, f32)| va + (vb - va) * (k - a) as f32 / (b - a) as f32;
-        let x: Vec<f32> = (0..400)
-            .map(|k| match k {
-                0..20 => 0.0,
-                20..140 => ramp(k, (20, -100.0), (140, -150.0)),
-                140..200 => ramp(k, (140, -150.0), (200, 0.0)),
-                200..230 => ramp(k, (200, 0.0), (230, 40.0)),
-                230..280 => ramp(k, (230, 40.0), (280, 0.0)),
-                _ => 0.0,
-            })
-            .collect();
-        let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 20, 350, 125, 75, 60).unwrap_or_else(|| panic!("no T end"));
+        let t = t_of(&polyline(&[(20, -100.0), (140, -150.0), (200, 0.0), (230, 40.0), (280, 0.0)]));
         assert!(t.amplitude < 0.0 && (t.end - 200.0).abs() <= 2.0, "{t:?}");
     }
 
