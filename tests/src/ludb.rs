@@ -1,7 +1,9 @@
 //! The LUDB records' per-lead annotations (Kalyakulina et al., IEEE Access 2020;8:186181-90): one WFDB annotation
 //! file per lead, each wave marked as `(` onset, a peak label (`p` P wave, `N` QRS, `t` T wave), `)` end.
 
-use isoline_core::io::wfdb_annotations;
+use isoline_core::analysis::{Analysis, analyze};
+use isoline_core::filter::FilterSettings;
+use isoline_core::io::{self, wfdb_annotations};
 
 use crate::data;
 
@@ -17,4 +19,24 @@ pub fn lead_waves(n: usize, lead: &str, peak: &str) -> Vec<(usize, usize, usize)
         .filter(|w| w[0].label == "(" && w[1].label == peak && w[2].label == ")")
         .map(|w| (w[0].sample as usize, w[1].sample as usize, w[2].sample as usize))
         .collect()
+}
+
+/// LUDB record `n` analysed as the workstation analyses it (default filters); `None` when the shared records do not
+/// hold it (no `N.global.csv`).
+#[must_use]
+pub fn analysed(n: usize) -> Option<Analysis> {
+    if !data(&format!("ludb/{n}.global.csv")).exists() {
+        return None;
+    }
+    let opened = io::open(&data(&format!("ludb/{n}.hea")), &io::OpenOptions::default())
+        .unwrap_or_else(|e| panic!("ludb {n}: {e}"));
+    Some(analyze(&opened.recording, &FilterSettings::default()))
+}
+
+/// The filtered leads of LUDB record `n`'s analysis `a` (a 10-s record keeps its filtered copy), as the boundary
+/// finders' `Signals` are made from.
+#[must_use]
+pub fn filtered_leads(n: usize, a: &Analysis) -> Vec<&[f32]> {
+    let Some(rec) = a.filtered.as_ref() else { panic!("ludb {n}: a 10-s record keeps its filtered copy") };
+    rec.leads.iter().map(|l| l.samples.as_slice()).collect()
 }

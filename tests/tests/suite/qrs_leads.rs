@@ -26,12 +26,8 @@
 //! 50 records, and single beats and the median beat would follow different rules. Kept (for every beat): the latest
 //! end that a second lead confirms within 6 ms, with a noise floor, −18.0 ± 12.4.
 
-use isoline_core::analysis::analyze;
 use isoline_core::delineate::{Signals, qrs_lead_edges};
-use isoline_core::filter::FilterSettings;
-use isoline_core::io;
-use isoline_tests::data;
-use isoline_tests::ludb::{LEADS, lead_waves};
+use isoline_tests::ludb::{LEADS, analysed, filtered_leads, lead_waves};
 use isoline_tests::score::{mean_sd, median};
 
 /// One lead's QRS edges as `qrs_lead_edges` gives them: (lead, onset, end).
@@ -65,15 +61,11 @@ fn ludb_qrs_edges_per_lead() {
     let mut glob = (Vec::new(), Vec::new(), Vec::new());
     let only: Option<usize> = std::env::var("QRS_LEADS_RECORD").ok().and_then(|s| s.parse().ok());
     for n in 1..=50 {
-        if only.is_some_and(|o| o != n) || !data(&format!("ludb/{n}.global.csv")).exists() {
+        if only.is_some_and(|o| o != n) {
             continue;
         }
-        let opened = io::open(&data(&format!("ludb/{n}.hea")), &io::OpenOptions::default())
-            .unwrap_or_else(|e| panic!("ludb {n}: {e}"));
-        let a = analyze(&opened.recording, &FilterSettings::default());
-        let Some(rec) = a.filtered.as_ref() else { panic!("ludb {n}: a 10-s record keeps its filtered copy") };
-        let views: Vec<&[f32]> = rec.leads.iter().map(|l| l.samples.as_slice()).collect();
-        let sig = Signals::new(&views, fs);
+        let Some(a) = analysed(n) else { continue };
+        let sig = Signals::new(&filtered_leads(n, &a), fs);
         let experts: Vec<Vec<(usize, usize)>> =
             LEADS.iter().map(|l| lead_waves(n, l, "N").into_iter().map(|(on, _, end)| (on, end)).collect()).collect();
         let rs: Vec<usize> = a.beats.iter().map(|b| b.r).collect();

@@ -17,12 +17,8 @@
 //! cardiologist's 438, against 352), but here it gave +21.1 ± 38.5 with 9.1 % gross: on ordinary leads the
 //! undershoot after the T, measured from the line, passes for a terminal lobe.
 
-use isoline_core::analysis::analyze;
 use isoline_core::delineate::{Signals, t_lead_ends};
-use isoline_core::filter::FilterSettings;
-use isoline_core::io;
-use isoline_tests::data;
-use isoline_tests::ludb::{LEADS, lead_waves};
+use isoline_tests::ludb::{LEADS, analysed, filtered_leads, lead_waves};
 use isoline_tests::score::{mean_sd, median};
 
 /// A per-lead error beyond this counts as gross (the lead followed another wave), ms.
@@ -50,15 +46,8 @@ fn ludb_t_ends_per_lead() {
     let mut per_lead: Vec<Vec<f64>> = vec![Vec::new(); 12];
     let (mut expected, mut found) = (0usize, 0usize);
     for n in 1..=50 {
-        if !data(&format!("ludb/{n}.global.csv")).exists() {
-            continue;
-        }
-        let opened = io::open(&data(&format!("ludb/{n}.hea")), &io::OpenOptions::default())
-            .unwrap_or_else(|e| panic!("ludb {n}: {e}"));
-        let a = analyze(&opened.recording, &FilterSettings::default());
-        let Some(rec) = a.filtered.as_ref() else { panic!("ludb {n}: a 10-s record keeps its filtered copy") };
-        let views: Vec<&[f32]> = rec.leads.iter().map(|l| l.samples.as_slice()).collect();
-        let sig = Signals::new(&views, fs);
+        let Some(a) = analysed(n) else { continue };
+        let sig = Signals::new(&filtered_leads(n, &a), fs);
         let ours = t_lead_ends(&sig, &a.beats);
         let mut record: Vec<f64> = Vec::new();
         for (l, name) in LEADS.iter().enumerate() {
