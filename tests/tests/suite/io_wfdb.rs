@@ -224,6 +224,23 @@ fn a_missing_signal_file_is_named_with_its_header() -> TestResult {
 }
 
 #[test]
+fn more_signal_lines_than_declared_is_refused() -> TestResult {
+    // LUDB 1's header with its record line declaring 11 signals: its 12 interleaved signals read as 11 would
+    // give each lead another's samples (a helper's test measured HR 42 and "3 other beats" from it).
+    let dir = tempfile::tempdir()?;
+    let text = std::fs::read_to_string(data("ludb/1.hea"))?;
+    let mut lines: Vec<&str> = text.lines().collect();
+    let fixed = lines[0].replacen(" 12 ", " 11 ", 1);
+    lines[0] = &fixed;
+    let hea = dir.path().join("1.hea");
+    std::fs::write(&hea, lines.join("\n"))?;
+    std::fs::copy(data("ludb/1.dat"), dir.path().join("1.dat"))?;
+    let e = wfdb::read_record(&hea).err().ok_or("accepted")?.to_string();
+    assert!(e.contains("1.hea") && e.contains("declares 11 signals but the header has 12 signal lines"), "{e}");
+    Ok(())
+}
+
+#[test]
 fn lying_header_is_rejected_before_allocation() -> TestResult {
     let dir = tempfile::tempdir()?;
     let hea = dir.path().join("big.hea");

@@ -102,6 +102,19 @@ pub fn parse_header(path: &Path, text: &str) -> Result<Header, ReadError> {
         .iter()
         .map(|&(no, l)| parse_signal_line(path, no, l))
         .collect::<Result<Vec<_>, _>>()?;
+    // More signal lines than the record line declares: the samples are interleaved over all of them, so reading
+    // only the declared ones would take other signals' samples for theirs (and measure garbage).
+    let extra = sig_lines[record.n_signals..].iter().filter(|&&(no, l)| parse_signal_line(path, no, l).is_ok()).count();
+    if extra > 0 {
+        return Err(ReadError::invalid(
+            path,
+            format!(
+                "record line declares {} signals but the header has {} signal lines",
+                record.n_signals,
+                record.n_signals + extra
+            ),
+        ));
+    }
     Ok(Header { record, signals, comments })
 }
 
