@@ -262,7 +262,9 @@ fn delineated(
     let refs: Vec<&[f32]> = leads.iter().map(Vec::as_slice).collect();
     let sig = Signals::new(&refs, sample_rate.hz());
     let (on, end) = qrs::qrs_bounds(&sig, before, 0, len);
-    let t_end = beat_t_waves(&sig, before, on, end, rr, len).and_then(|t| twave::global_end(&sig, &t));
+    // As for the record's beats: no T end where the next P wave may start when theirs were so held back.
+    let held_back = p_model.is_some_and(|m| m.t_held_back);
+    let t_end = beat_t_waves(&sig, before, on, end, (rr, len), held_back).and_then(|t| twave::global_end(&sig, &t));
     let (p_on, p_end) = match (p_model, on) {
         (Some(m), Some(q)) => m.for_beat(&sig, q, 0).map_or((None, None), |(a, b)| (Some(a), Some(b))),
         _ => (None, None),
@@ -447,6 +449,22 @@ mod tests {
         let room = |b: usize| if b == 1 { (0, 0) } else { (reach, reach) };
         let with_edge = aligned_median(1, (before, after), reach, placed.len(), fs, room, edge);
         assert!(worst(&with_edge[0]) < 2.0 * a.max(4.0), "worst error with the edge beat {}", worst(&with_edge[0]));
+    }
+
+    #[test]
+    fn repeated_r_peaks_give_no_representative_beat_rather_than_a_panic() {
+        // Beats at the same R peak three times over (a caller's duplicates): the median RR is zero, and a
+        // representative beat of no span indexed past its empty template (found by a review).
+        let leads = vec![crate::recording::Lead {
+            name: crate::recording::LeadName::parse("II"),
+            samples: (0..3000).map(|k| ((k % 500) as f32 * 0.1).sin() * 100.0).collect(),
+        }];
+        let rec = crate::recording::test_recording(leads);
+        let beats: Vec<Beat> =
+            [1000, 1000, 1000, 2000, 2000, 2000].iter().map(|&r| Beat::at(r, BeatKind::Dominant)).collect();
+        assert!(representative_beat_with(&rec, &beats, None).is_none());
+        assert_eq!(median_rr(&[1000, 1000, 1000, 2000, 2000, 2000]), None);
+        assert_eq!(median_rr(&[1000, 1400, 1800]), Some(400));
     }
 
     #[test]

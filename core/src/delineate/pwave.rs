@@ -117,6 +117,9 @@ pub struct PModel {
     margin: usize,
     /// Mean correlation of the beats with the template (0–1).
     pub consistency: f64,
+    /// The record's T ends were held back from the next P wave when this model was found (see `delineate_with`);
+    /// the representative beat's T end is then found the same way.
+    pub(super) t_held_back: bool,
 }
 
 /// The PR window of one beat (per lead, relative to the PR-segment level), `w` samples long, if its last `need`
@@ -450,7 +453,7 @@ impl PModel {
     /// A model of the median PR window `template` with no edges yet, compared with beats over the P wave and
     /// `margin` samples either side.
     fn of(template: Vec<Vec<f32>>, margin: usize) -> Self {
-        Self { on_rel: 0, end_rel: 0, template, margin, consistency: 0.0 }
+        Self { on_rel: 0, end_rel: 0, template, margin, consistency: 0.0, t_held_back: false }
     }
 
     /// How many samples at the end of the PR window a beat must hold to be compared: only the P wave from its

@@ -112,10 +112,11 @@ impl BeatT {
 }
 
 /// Each lead's T wave for a beat. `iso_at` is where the isoelectric level is read (just before QRS onset),
-/// `from` the start of the T search (after the J point) and `to` its end (before the next beat's P). `None` when
-/// the search window is too short.
+/// `from` the start of the T search (after the J point) and `to` its end (before the next beat's P); no lead's T
+/// end, nor the trapezium's fixed point, lies past `guard` (where the next P wave may start). `None` when the
+/// search window is too short.
 #[must_use]
-pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<BeatT> {
+pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, (to, guard): (usize, usize)) -> Option<BeatT> {
     let n = sig.len();
     let to = to.min(n.saturating_sub(2));
     if from + sig.samples(0.060) >= to || iso_at < sig.samples(0.020) {
@@ -134,7 +135,7 @@ pub fn lead_ts(sig: &Signals, iso_at: usize, from: usize, to: usize) -> Option<B
                 Lead { x: slow, wide },
                 iso,
                 from,
-                to,
+                (to, guard),
                 sig.samples(0.250),
                 sig.samples(BIPHASIC_GAP_S),
                 sig.samples(TRAPEZIUM_REACH_S),
@@ -215,12 +216,12 @@ pub fn global_end(sig: &Signals, beat: &BeatT) -> Option<usize> {
 }
 
 /// T end on one lead, or `None` when the terminal limb is flat or the end lands outside the search window.
-/// `reach`: [`TRAPEZIUM_REACH_S`] in samples.
+/// `reach`: [`TRAPEZIUM_REACH_S`] in samples; the trapezium's fixed point and the end stay at or before `guard`.
 fn lead_t_end(
     lead: Lead<'_>,
     iso: f32,
     from: usize,
-    to: usize,
+    (to, guard): (usize, usize),
     max_limb: usize,
     gap: usize,
     reach: usize,
@@ -246,7 +247,7 @@ fn lead_t_end(
     let amp = dev(peak);
     let sign = amp.signum();
     // Steepest descent back toward the isoelectric level after the peak.
-    let stop = (peak + max_limb).min(to + max_limb / 2).min(x.len() - 2);
+    let stop = (peak + max_limb).min(to + max_limb / 2).min(guard).min(x.len() - 2);
     let mut best: Option<(usize, f32)> = None;
     for k in peak + 1..=stop {
         let slope = (x[k + 1] - x[k - 1]) * 0.5;
@@ -264,11 +265,16 @@ fn lead_t_end(
     }
     // Trapezium with corners at the steepest point (k, y_k), the candidate (i, y_i) and the fixed point x_r on
     // the baseline: area ∝ (y_k − y_i)(2·x_r − i − k), largest at the T end.
-    let xr = (k + reach).min(x.len() - 1);
+    // The fixed point lies on the baseline after the T wave, not in the next P wave: past the guard, a P wave of
+    // the other sign than the lobe would keep adding area and draw the end into it.
+    let xr = (k + reach).min(guard).min(x.len() - 1);
+    if xr <= k {
+        return None;
+    }
     let y_k = dev(k) * sign;
     let area = |i: usize| (y_k - dev(i) * sign) * (2 * xr - i - k) as f32;
     let end = (k..=xr).max_by(|&i, &j| area(i).total_cmp(&area(j)))?;
-    let end = lead.moving_on(end, sign, s, (end + reach / 2).min(to + max_limb / 2).min(x.len() - 2)) as f64;
+    let end = lead.moving_on(end, sign, s, (end + reach / 2).min(to + max_limb / 2).min(guard).min(x.len() - 2)) as f64;
     (end > peak as f64 && end <= (to + max_limb / 2) as f64).then_some(LeadT { amplitude: amp, end })
 }
 
@@ -323,13 +329,35 @@ mod tests {
         for (k, v) in x.iter_mut().enumerate().take(160).skip(40) {
             *v = if k < 100 { 300.0 * (k - 40) as f32 / 60.0 } else { 300.0 * (160 - k) as f32 / 60.0 };
         }
-        let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize);
+        let t = lead_t_end(Lead { x: &x, wide: &x }, 0.0, 30, (200, x.len() - 1), 100, 40, 100)
+            .map(|t| t.end.round() as usize);
         assert_eq!(t, Some(160));
         let inv: Vec<f32> = x.iter().map(|v| -v).collect();
         assert_eq!(
-            lead_t_end(Lead { x: &inv, wide: &inv }, 0.0, 30, 200, 100, 40, 100).map(|t| t.end.round() as usize),
+            lead_t_end(Lead { x: &inv, wide: &inv }, 0.0, 30, (200, inv.len() - 1), 100, 40, 100)
+                .map(|t| t.end.round() as usize),
             Some(160)
         );
+    }
+
+    #[test]
+    fn an_inverted_t_end_stays_before_the_guard_and_out_of_the_next_wave() {
+        // An inverted T wave falling back from −300 µV at sample 100 to 0 at 140, then an upright bump (a P wave)
+        // from 160 to 220 peaking at 150 µV at 190. The fixed point 100 samples past the limb's steepest point lies
+        // in the bump, whose deflection past the baseline adds area: the end is drawn into it. With the guard at the
+        // bump's start, the end is the T wave's.
+        let mut x = vec![0.0f32; 300];
+        for (k, v) in x.iter_mut().enumerate().take(140).skip(40) {
+            *v = if k < 100 { -300.0 * (k - 40) as f32 / 60.0 } else { -300.0 * (140 - k) as f32 / 40.0 };
+        }
+        for (k, v) in x.iter_mut().enumerate().take(220).skip(160) {
+            *v = 150.0 * (1.0 - (k as f32 - 190.0).abs() / 30.0);
+        }
+        let end = |guard: usize| {
+            lead_t_end(Lead { x: &x, wide: &x }, 0.0, 30, (200, guard), 100, 40, 100).map(|t| t.end.round() as usize)
+        };
+        assert!(end(x.len() - 1).is_some_and(|e| e > 160), "{:?}", end(x.len() - 1));
+        assert_eq!(end(160), Some(140));
     }
 
     /// 400 samples on straight lines between `knots` (sample, µV, in order), 0 before the first and after the last.
@@ -347,7 +375,7 @@ mod tests {
     /// The T wave of the clean lead `x` (500 Hz) searched from sample 20 to 350, with the terminal-lobe gap (75
     /// samples, 150 ms) and trapezium reach (60, 120 ms) the recordings use.
     fn t_of(x: &[f32]) -> LeadT {
-        lead_t_end(Lead { x, wide: x }, 0.0, 20, 350, 125, 75, 60).unwrap_or_else(|| panic!("no T end"))
+        lead_t_end(Lead { x, wide: x }, 0.0, 20, (350, x.len() - 1), 125, 75, 60).unwrap_or_else(|| panic!("no T end"))
     }
 
     #[test]
@@ -387,7 +415,8 @@ mod tests {
         let sig = Signals::new(&[&raw], 500.0);
         let knee = 400.0 + k_cut * sigma;
         let end = |wide: &[f32]| {
-            lead_t_end(Lead { x: &sig.slow[0], wide }, 0.0, 300, 600, 125, 75, 60).map_or(f64::NAN, |t| t.end)
+            lead_t_end(Lead { x: &sig.slow[0], wide }, 0.0, 300, (600, wide.len() - 1), 125, 75, 60)
+                .map_or(f64::NAN, |t| t.end)
         };
         let clean = end(&raw);
         assert!((clean - knee).abs() <= 1.0, "clean end {clean} vs knee {knee}");

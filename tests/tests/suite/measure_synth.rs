@@ -125,6 +125,43 @@ fn full_analysis_intervals_match_the_truth_without_noise() {
 }
 
 #[test]
+fn inverted_t_waves_at_fast_rates_end_before_the_next_p_wave() {
+    // Sinus tachycardia (PR 110 ms, P 80 ms) with the T axis at −135°: the T wave is inverted in the limb leads and
+    // the upright P wave follows it 40 ms after its end. The trapezium's fixed point 120 ms past the T limb lay
+    // in that P wave, whose opposite deflection kept adding area: every lead's T end fell in the middle of the P
+    // wave (found by a review; QT 326 ms for 250 at 150 bpm, 336 for 203 at 170 bpm), and with the P search
+    // starting there, no PR. Measured now: QT +6..+8 ms at 150 bpm, +17 at 170 bpm and 250 Hz (the T end's
+    // isoelectric level is read over a PR window mostly holding the P wave); PR within 4 ms. Tolerance: QT 20 ms,
+    // PR 2 samples.
+    for (hr, qt, rate_hz) in [(150.0, 250.0, 500.0), (150.0, 250.0, 250.0), (170.0, 202.0, 250.0)] {
+        let spec = SynthSpec {
+            heart_rate_bpm: hr,
+            qt_ms: qt,
+            pr_ms: 110.0,
+            p_ms: 80.0,
+            t_axis_deg: -135.0,
+            rate_hz,
+            ..Scenario::Normal.spec()
+        };
+        let o = run(&SynthSpec { scenario: format!("{hr} bpm {rate_hz} Hz, T −135°"), ..spec });
+        println!("{}: {:?}", o.name, o.rows);
+        let row = |k: &str| o.rows.iter().find(|r| r.0 == k).map(|r| (r.1, r.2)).unwrap_or_default();
+        let (qt_got, qt_true) = row("QT");
+        let (pr_got, pr_true) = row("PR");
+        assert!(
+            matches!((qt_got, qt_true), (Some(g), Some(w)) if (g - w).abs() <= 20.0),
+            "{}: QT {qt_got:?} vs {qt_true:?}",
+            o.name
+        );
+        assert!(
+            matches!((pr_got, pr_true), (Some(g), Some(w)) if (g - w).abs() <= TOLERANCE_SAMPLES * o.sample_ms),
+            "{}: PR {pr_got:?} vs {pr_true:?}",
+            o.name
+        );
+    }
+}
+
+#[test]
 fn trigeminy_is_measured_on_beats_no_premature_beat_follows() {
     // Every third beat premature (ventricular, coupled at a share of the RR): the dominant beat before each one
     // holds the premature QRS in its span. The representative beat leaves those beats out, so QT is the sinus
