@@ -66,7 +66,7 @@ impl Scenario {
         match self {
             Self::Normal => "sinus rhythm 72 bpm, PR 160 ms, QRS 90 ms, QT 380 ms, QRS axis +50 degrees",
             Self::LongQt => "sinus rhythm 60 bpm with a long QT (520 ms)",
-            Self::WideQrs => "wide QRS (140 ms) with left axis (-30 degrees)",
+            Self::WideQrs => "wide QRS (140 ms) with left axis deviation (-45 degrees)",
             Self::FirstDegreeBlock => "long PR (260 ms), first-degree AV block pattern",
             Self::Irregular => "irregular RR (15 % beat-to-beat variation), P waves present",
             Self::Ectopics => "every fifth beat ectopic: premature, wide QRS, no P, compensatory pause",
@@ -82,7 +82,9 @@ impl Scenario {
         match self {
             Self::Normal => base,
             Self::LongQt => SynthSpec { heart_rate_bpm: 60.0, qt_ms: 520.0, ..base },
-            Self::WideQrs => SynthSpec { heart_rate_bpm: 75.0, qrs_ms: 140.0, qt_ms: 440.0, axis_deg: -30.0, ..base },
+            // Not −30°: the model's QRS has one direction, so lead II (at +60°) was exactly flat and the one-lead and
+            // two-lead versions of this demo showed no QRS (a helper's test: no beats).
+            Self::WideQrs => SynthSpec { heart_rate_bpm: 75.0, qrs_ms: 140.0, qt_ms: 440.0, axis_deg: -45.0, ..base },
             Self::FirstDegreeBlock => SynthSpec { heart_rate_bpm: 68.0, pr_ms: 260.0, ..base },
             Self::Irregular => SynthSpec { heart_rate_bpm: 78.0, rr_variation: 0.15, ..base },
             Self::Ectopics => SynthSpec { heart_rate_bpm: 70.0, ectopics: Ectopics::Every(5), ..base },
