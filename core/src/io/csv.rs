@@ -23,16 +23,28 @@ fn cells(line: &str) -> impl Iterator<Item = &str> {
 
 /// Parses one value cell; `Ok(None)` for an invalid sample (empty, `NaN`, or `NA` as R and spreadsheets write a
 /// missing value). A number beyond what a sample holds in µV (±3.4e35 mV, `1e308`) is an error, not a sample
-/// silently lost.
-fn value(cell: &str) -> Result<Option<f64>, ()> {
+/// silently lost; the error says what is wrong with the cell.
+fn value(cell: &str) -> Result<Option<f64>, &'static str> {
     if cell.is_empty() || cell.eq_ignore_ascii_case("nan") || cell.eq_ignore_ascii_case("na") {
         return Ok(None);
     }
     match cell.parse::<f64>() {
         Ok(v) if ((v * 1000.0) as f32).is_finite() => Ok(Some(v)),
-        _ => Err(()),
+        Ok(v) if v.is_finite() => Err("is too large for a sample"),
+        _ => Err("is not a number"),
     }
 }
+
+/// A value beyond this (µV, either sign) is no ECG sample: recorders' inputs stop at a few hundred mV of
+/// electrode offset.
+// Common practice, no source: ECG front ends tolerate about ±300 mV of DC offset; 1 V is well past any of them.
+const ABSURD_UV: f32 = 1.0e6;
+
+/// A lead may hold at most this share of [`ABSURD_UV`] values for them to be read as missing samples (one stray
+/// cell, a typing slip); more are left as they are, and the recording's amplitude note questions its units.
+const ABSURD_SHARE: usize = 1000;
+/// At most this many [`ABSURD_UV`] values per lead are read as missing samples.
+const ABSURD_KEPT: usize = 64;
 
 /// Reads a CSV recording. Without a `time_s` column, `rate_hz` must be given; with both, they must agree.
 ///
@@ -152,6 +164,8 @@ fn read_inner(
         return Err(err(header_line, "no ECG lead columns in the header row".into()));
     }
     let mut samples: Vec<Vec<f32>> = vec![Vec::new(); lead_names.len()];
+    // Per lead: how many values lie beyond ABSURD_UV, and where the first ABSURD_KEPT of them are (sample, line).
+    let mut absurd: Vec<(usize, Vec<(usize, usize)>)> = vec![(0, Vec::new()); lead_names.len()];
     let (mut t_first, mut t_prev, mut dt0) = (None::<f64>, 0.0f64, None::<f64>);
     // The rounding of the time stamps, s: 10^−(the most decimals written so far; a writer that drops trailing
     // zeros writes 0.5 for 0.500). A device writing 3 decimals at 360 Hz writes steps of 0.003 and 0.002 s for
@@ -181,11 +195,11 @@ fn read_inner(
         if (rows as u64 + 1) * lead_names.len() as u64 > MAX_TOTAL_SAMPLES {
             return Err(err(line_no, format!("more than {MAX_TOTAL_SAMPLES} samples")));
         }
-        let bad = |c: usize| {
+        let bad = |c: usize, why: &str| {
             err(
                 line_no,
                 format!(
-                    "column {} ('{}'): '{}' is not a number",
+                    "column {} ('{}'): '{}' {why}",
                     c + 1,
                     crate::io::printable(&names[c]),
                     crate::io::printable(row[c])
@@ -193,7 +207,7 @@ fn read_inner(
             )
         };
         if let Some(tc) = time_col {
-            let t = value(row[tc]).ok().flatten().ok_or_else(|| bad(tc))?;
+            let t = value(row[tc]).map_err(|why| bad(tc, why))?.ok_or_else(|| bad(tc, "is not a number"))?;
             decimals = decimals.max(decimals_written(row[tc]));
             let t_unit = 10f64.powi(-(decimals.unwrap_or(6).min(12) as i32));
             match (t_first, dt0) {
@@ -225,8 +239,14 @@ fn read_inner(
             t_prev = t;
         }
         for (k, &(c, _)) in lead_names.iter().enumerate() {
-            let v = value(row[c]).map_err(|()| bad(c))?;
-            samples[k].push(v.map_or(f32::NAN, |mv| (mv * 1000.0) as f32));
+            let v = value(row[c]).map_err(|why| bad(c, why))?.map_or(f32::NAN, |mv| (mv * 1000.0) as f32);
+            if v.abs() > ABSURD_UV {
+                absurd[k].0 += 1;
+                if absurd[k].1.len() < ABSURD_KEPT {
+                    absurd[k].1.push((samples[k].len(), line_no));
+                }
+            }
+            samples[k].push(v);
         }
         rows += 1;
     }
@@ -272,6 +292,22 @@ fn read_inner(
     let sample_rate = Hertz::for_ecg(fs).map_err(|e| ReadError::invalid(path, format!("{source}: {e}")))?;
     for s in &mut samples {
         s.shrink_to_fit();
+    }
+    // A stray absurd value (a slip of units or a typing error in one cell) would otherwise ruin the lead's filters
+    // and every measurement with no word said; many of them are a unit problem the amplitude note names.
+    for ((k, (count, found)), (_, name)) in absurd.iter().enumerate().zip(&lead_names) {
+        let Some(&(_, first_line)) = found.first() else { continue };
+        if *count > found.len() || *count > (rows / ABSURD_SHARE).max(1) {
+            continue;
+        }
+        for &(i, _) in found {
+            samples[k][i] = f32::NAN;
+        }
+        warnings.push(format!(
+            "{}: lead {name}: {} beyond ±1 V (first on line {first_line}) read as missing: no ECG reaches it",
+            path.display(),
+            if found.len() == 1 { "1 value".to_string() } else { format!("{} values", found.len()) }
+        ));
     }
     let leads = lead_names.into_iter().zip(samples).map(|((_, name), samples)| Lead { name, samples }).collect();
     let recording = Recording { leads, sample_rate, start: None, meta: Meta::default(), annotations: Vec::new() };
@@ -371,6 +407,50 @@ mod tests {
     }
 
     #[test]
+    fn a_stray_value_beyond_a_volt_is_a_missing_sample_and_said_so() -> Result<(), ReadError> {
+        // 2000 rows of a 1 mV sine in I and II; one cell of II (line 502) holds 1e6 mV (a helper's test: QT 500 →
+        // 674 ms and no word said). It is read as missing, with a warning naming the lead and the line.
+        let row = |k: usize, ii: &str| format!("{:.3},{ii}\n", (k as f64 * 0.05).sin());
+        let mut text = String::from("I,II\n");
+        for k in 0..2000 {
+            let ii = if k == 500 { "1e6".to_string() } else { format!("{:.3}", (k as f64 * 0.05).cos()) };
+            text.push_str(&row(k, &ii));
+        }
+        let o = parse(&text, Some(500.0))?;
+        assert!(o.recording.leads[1].samples[500].is_nan());
+        assert_eq!(o.recording.leads[1].samples.iter().filter(|v| v.is_nan()).count(), 1);
+        assert!(
+            o.warnings.len() == 1 && o.warnings[0].contains("lead II") && o.warnings[0].contains("line 502"),
+            "{:?}",
+            o.warnings
+        );
+        // Every value a thousand times too large (µV written as mV) is a unit problem: left as it is.
+        let scaled: String = text
+            .replace("1e6", "1")
+            .lines()
+            .enumerate()
+            .map(|(i, l)| {
+                if i == 0 {
+                    format!("{l}\n")
+                } else {
+                    l.split(',')
+                        .map(|v| format!("{}", v.parse::<f64>().unwrap_or(0.0) * 2e6))
+                        .collect::<Vec<_>>()
+                        .join(",")
+                        + "\n"
+                }
+            })
+            .collect();
+        let o = parse(&scaled, Some(500.0))?;
+        assert!(
+            o.recording.leads[0].samples.iter().all(|v| v.is_finite()) && o.warnings.is_empty(),
+            "{:?}",
+            o.warnings
+        );
+        Ok(())
+    }
+
+    #[test]
     fn errors_name_line_and_column() {
         assert!(parse("\u{feff}time_s,I\n0,1\n0.004,2\n", None).is_ok(), "byte-order mark skipped");
         let e = parse("time_s,I\n0,1\n0.004,x\n", None).err().map(|e| e.to_string()).unwrap_or_default();
@@ -389,9 +469,9 @@ mod tests {
         // NA is a missing sample; 1e308 mV and inf are no samples at all.
         let o = parse("I,II\nNA,2\nna,3\n", Some(500.0)).map_err(|e| e.to_string());
         assert!(o.is_ok_and(|o| o.recording.leads[0].samples.iter().all(|v| v.is_nan())));
-        for bad in ["1e308", "inf", "-1e40"] {
+        for (bad, why) in [("1e308", "too large"), ("inf", "not a number"), ("-1e40", "too large")] {
             let e = parse(&format!("I,II\n{bad},2\n"), Some(500.0)).err().map(|e| e.to_string()).unwrap_or_default();
-            assert!(e.contains("line 2") && e.contains(bad), "{bad}: {e}");
+            assert!(e.contains("line 2") && e.contains(bad) && e.contains(why), "{bad}: {e}");
         }
         // A spreadsheet's decimal-comma export: the separator is named, not "'0;0,5' is not a number".
         let cases = [
