@@ -102,6 +102,9 @@ pub struct Measurements {
     /// representative beat, µV (median; see [`ranges::unsteady_baseline`]); `None` without one.
     #[serde(default)]
     pub baseline_step_uv: Option<f64>,
+    /// The recording's sampling rate, Hz (for the note on coarse sampling, [`ranges::coarse_sampling`]).
+    #[serde(default)]
+    pub sample_rate_hz: Option<f64>,
 }
 
 /// Measures a recording from its beats (with boundaries) and, when available, its representative beat.
@@ -180,6 +183,7 @@ pub fn measure_with(
         leads_left_out,
         beatless_edges_s,
         baseline_step_uv: template.and_then(|t| t.baseline_step_uv),
+        sample_rate_hz: Some(fs.hz()),
     }
 }
 
@@ -255,7 +259,8 @@ impl Measurements {
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
     /// its own; then the pause note ([`ranges::pause`]); then that no representative beat was made
     /// ([`ranges::no_representative_beat`]); then the note that leads were left out of the representative beat
-    /// ([`ranges::leads_left_out`], on no value's row); then the note that a PR or QRS of the representative beat
+    /// ([`ranges::leads_left_out`], on no value's row); then the unsteady-baseline note and the coarse-sampling note
+    /// ([`ranges::coarse_sampling`], when there are beats); then the note that a PR or QRS of the representative beat
     /// disagrees with the single beats ([`ranges::beats_disagree`]) where that row carries a range note of its own.
     #[must_use]
     pub fn notes(&self) -> Vec<RangeNote> {
@@ -276,6 +281,9 @@ impl Measurements {
         }
         notes.extend(self.leads_left_out_note());
         notes.extend(self.unsteady_baseline_note());
+        if self.beats > 0 {
+            notes.extend(self.sample_rate_hz.and_then(ranges::coarse_sampling));
+        }
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
             if !notes.contains(&n) {

@@ -125,6 +125,18 @@ fn full_analysis_intervals_match_the_truth_without_noise() {
 }
 
 #[test]
+fn coarse_sampling_is_noted_with_the_measurements() {
+    // At 100 Hz a sample spans 10 ms and the demo's QRS read 80 ms for 140 (a helper's test): the measurements
+    // say the sampling is coarse; at 250 Hz and above they do not.
+    for (rate_hz, noted) in [(100.0, true), (128.0, true), (250.0, false), (500.0, false)] {
+        let s = synth::generate(&SynthSpec { rate_hz, ..Scenario::Normal.spec() }).unwrap_or_else(|e| panic!("{e}"));
+        let notes = analyze(&s.recording, &FilterSettings::default()).measurements.notes();
+        let has = notes.iter().any(|n| n.key == measure::ranges::KEY_SAMPLING);
+        assert_eq!(has, noted, "{rate_hz} Hz: {notes:?}");
+    }
+}
+
+#[test]
 fn inverted_t_waves_at_fast_rates_end_before_the_next_p_wave() {
     // Sinus tachycardia (PR 110 ms, P 80 ms) with the T axis at −135°: the T wave is inverted in the limb leads and
     // the upright P wave follows it 40 ms after its end. The trapezium's fixed point 120 ms past the T limb lay
