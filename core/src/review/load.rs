@@ -55,6 +55,8 @@ pub fn load(path: &Path) -> Result<Review, ReviewError> {
 /// # Errors
 /// As [`load`].
 pub fn from_ron(path: &Path, text: &str) -> Result<Review, ReviewError> {
+    // A text editor may start the file with a byte-order mark, which RON takes for the first token.
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     if text.trim().is_empty() {
         return Err(parse_error(path, 1, 1, None, "the file is empty (no review in it)".to_owned()));
     }

@@ -55,9 +55,14 @@ pub use save::{autosave_path, backup_path, discard_autosave, recover};
 /// assert_eq!(reader_name_problem("Dr Ó Briain (AB)"), None);
 /// assert!(reader_name_problem("AB\tCD").is_some());
 /// assert!(reader_name_problem("AB\u{1b}[2J").is_some());
+/// assert!(reader_name_problem(" ").is_some());
 /// ```
 #[must_use]
 pub fn reader_name_problem(name: &str) -> Option<&'static str> {
+    // A review must say who read it: an empty name printed a table heading "−CD" in `agreement`.
+    if name.trim().is_empty() {
+        return Some("is empty (give the reader's name or initials)");
+    }
     name.chars().any(char::is_control).then_some("holds a control character (a line break, a tab or an escape code)")
 }
 

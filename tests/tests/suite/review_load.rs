@@ -169,6 +169,14 @@ fn impossible_values_are_named() {
     let (_, _, named, msg) = parse_err(&p);
     assert_eq!(named.as_deref(), Some("reader"), "{msg}");
     assert!(msg.contains("control character"), "{msg}");
+    // An empty reader name, hand-edited in (`agreement` printed a table heading "−CD" for it).
+    let p = write(dir.path(), &text.replacen("reader: \"AB\"", "reader: \" \"", 1));
+    let (_, _, named, msg) = parse_err(&p);
+    assert_eq!(named.as_deref(), Some("reader"), "{msg}");
+    assert!(msg.contains("is empty"), "{msg}");
+    // A byte-order mark before the review, as some editors write one, is skipped.
+    let p = write(dir.path(), &format!("\u{feff}{text}"));
+    assert!(load(&p).is_ok(), "{:?}", load(&p).err());
     // An extreme but real reviewed rate (12 bpm) with the QTc values computed from it saves and loads again;
     // Framingham, which gives no positive QTc there (Sagie et al. 1992, Am J Cardiol: QT + 154 (1 − RR)), gets no
     // reviewed value (before: a QTc below zero was saved and printed).

@@ -13,9 +13,10 @@ fn text() -> impl Strategy<Value = String> {
     prop_oneof!["[ -~]{0,16}", "\\PC{0,12}", Just("line one\nline \"two\"\t\\ end".to_owned())]
 }
 
-/// A reader's name: any printable text (a name holds no control character; saving and loading refuse one).
+/// A reader's name: any printable text that is not blank (a name holds no control character and something to
+/// read; saving and loading refuse others).
 fn name() -> impl Strategy<Value = String> {
-    prop_oneof!["[ -~]{0,16}", "\\PC{0,12}"]
+    prop_oneof!["[ -~]{0,15}[!-~]", "\\PC{0,11}[A-Za-zÀ-ÿ]"]
 }
 
 fn number() -> impl Strategy<Value = f64> {
