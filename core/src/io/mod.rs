@@ -161,11 +161,25 @@ pub(crate) fn is_ecg_label(label: &str) -> bool {
         || upper.starts_with("ML")
 }
 
+/// Longest quote from a file in a message, characters as printed: a line of binary data quoted whole made a
+/// message of a thousand characters.
+const QUOTE_MAX: usize = 60;
+
 /// Text quoted from a file, made safe to print in a message: printable ASCII stays as it is, anything else
-/// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`).
+/// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`); more than [`QUOTE_MAX`] characters
+/// so printed are cut with `...`.
 #[must_use]
 pub fn printable(s: &str) -> String {
-    s.chars().map(|c| if matches!(c, ' '..='~') { c.to_string() } else { c.escape_default().to_string() }).collect()
+    let mut out = String::new();
+    for c in s.chars() {
+        let piece = if matches!(c, ' '..='~') { c.to_string() } else { c.escape_default().to_string() };
+        if out.chars().count() + piece.chars().count() > QUOTE_MAX {
+            out.push_str("...");
+            break;
+        }
+        out.push_str(&piece);
+    }
+    out
 }
 
 /// Opens a file for reading, refusing anything but a regular file (or a link to one): opening a named pipe
@@ -253,6 +267,15 @@ mod tests {
     fn quoted_header_bytes_are_printable_ascii() -> std::io::Result<()> {
         assert_eq!(printable("ECG II"), "ECG II");
         assert_eq!(printable("\"\u{d8}\n\u{7}"), "\"\\u{d8}\\n\\u{7}");
+        // A long quote is cut: a line of binary data quoted whole made a message of a thousand characters.
+        let long = printable(&"\u{fffd}".repeat(500));
+        assert!(long.len() <= 70 && long.ends_with("..."), "{long}");
+        // A binary file named .hea is said to be one, not taken for a multi-segment record.
+        let dir = tempfile::tempdir()?;
+        let hea = dir.path().join("1.hea");
+        std::fs::write(&hea, [0x8Fu8, 0x2F, 0x00, 0x7C, 0xFF, 0x0A, 0x01])?;
+        let msg = open(&hea, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.contains("not a WFDB header") && msg.len() < 200, "{msg}");
         // A file of random bytes named .edf: the version field quoted in the message starts with `"ØÍÃA`.
         let dir = tempfile::tempdir()?;
         let path = dir.path().join("random.edf");

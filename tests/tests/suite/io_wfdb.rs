@@ -241,6 +241,33 @@ fn more_signal_lines_than_declared_is_refused() -> TestResult {
 }
 
 #[test]
+fn checksum_mismatches_are_one_warning() -> TestResult {
+    // LUDB 1 with the checksums of its first two signals changed: one warning names the first and counts the other
+    // (a header of the wrong record gave one line per signal).
+    let dir = tempfile::tempdir()?;
+    let text = std::fs::read_to_string(data("ludb/1.hea"))?;
+    let changed: Vec<String> = text
+        .lines()
+        .enumerate()
+        .map(|(i, l)| {
+            let mut f: Vec<String> = l.split(' ').map(str::to_string).collect();
+            if (1..=2).contains(&i) && f.len() >= 9 {
+                f[6] = "12345".to_string();
+            }
+            f.join(" ")
+        })
+        .collect();
+    let hea = dir.path().join("1.hea");
+    std::fs::write(&hea, changed.join("\n"))?;
+    std::fs::copy(data("ludb/1.dat"), dir.path().join("1.dat"))?;
+    let warnings = io::open(&hea, &io::OpenOptions::default())?.warnings;
+    let sums: Vec<&String> = warnings.iter().filter(|w| w.contains("checksum")).collect();
+    assert_eq!(sums.len(), 1, "{warnings:?}");
+    assert!(sums[0].contains("signals 1 ('i'") && sums[0].contains("and 1 more"), "{}", sums[0]);
+    Ok(())
+}
+
+#[test]
 fn lying_header_is_rejected_before_allocation() -> TestResult {
     let dir = tempfile::tempdir()?;
     let hea = dir.path().join("big.hea");

@@ -123,6 +123,11 @@ fn field_err(path: &Path, line: usize, field: &str, value: &str) -> ReadError {
 }
 
 fn parse_record_line(path: &Path, no: usize, line: &str) -> Result<RecordLine, ReadError> {
+    // A header is text: NUL bytes or bytes that are not UTF-8 in its record line mean a binary file (a signal
+    // file named .hea, say), whose first line was otherwise taken for a multi-segment record's.
+    if line.chars().any(|c| c == '\0' || c == char::REPLACEMENT_CHARACTER) {
+        return Err(ReadError::invalid(path, format!("line {no}: not a WFDB header (binary data, not text)")));
+    }
     let f: Vec<&str> = line.split_whitespace().collect();
     let name_field = f.first().copied().unwrap_or_default();
     if name_field.contains('/') {

@@ -107,6 +107,8 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
 
     let mut leads: Vec<Option<Lead>> = vec![None; header.signals.len()];
     let mut files = vec![hea.clone()];
+    // Checksum mismatches, gathered: one note names them all (a header of the wrong record gave twelve lines).
+    let mut mismatched: Vec<String> = Vec::new();
     for plan in plans {
         let group_scales: Vec<(f64, f64)> = plan.signals.iter().map(|&i| scales[i].unwrap_or((0.0, 0.0))).collect();
         let decoded =
@@ -114,12 +116,14 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
         for ((samples, sum), &sig) in decoded.samples.into_iter().zip(decoded.checksums).zip(&plan.signals) {
             let s = &header.signals[sig];
             if complete && s.checksum.is_some_and(|c| c != sum) {
-                warnings.push(format!(
-                    "{}: signal {} ('{}'): checksum {} in the header, {sum} in the signal file",
-                    plan.path.display(),
+                mismatched.push(format!(
+                    "{} ('{}': {} in the header, {sum} in {})",
                     sig + 1,
                     crate::io::printable(&s.description),
-                    s.checksum.unwrap_or_default()
+                    s.checksum.unwrap_or_default(),
+                    plan.path
+                        .file_name()
+                        .map_or_else(|| plan.path.display().to_string(), |f| f.to_string_lossy().into())
                 ));
             }
             if scales[sig].is_some() {
@@ -128,6 +132,17 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
             }
         }
         files.push(plan.path);
+    }
+    if let Some(first) = mismatched.first() {
+        let more = match mismatched.len() {
+            1 => String::new(),
+            n => format!(" and {} more", n - 1),
+        };
+        let what = if mismatched.len() == 1 { "signal" } else { "signals" };
+        warnings.push(format!(
+            "{}: checksum of {what} {first}{more} differs: the header may not describe this signal file",
+            hea.display()
+        ));
     }
     let leads: Vec<Lead> = leads.into_iter().flatten().collect();
 
