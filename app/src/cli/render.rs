@@ -32,7 +32,7 @@ pub struct Args {
     #[arg(long, allow_negative_numbers = true, default_value_t = 10.0)]
     pub gain: f64,
     /// Resolution, dots per inch (at most 1200, and at most 100 million pixels on the page: the default 10-s
-    /// page up to about 1150 dpi).
+    /// 12-lead page up to about 1100 dpi).
     #[arg(long, allow_negative_numbers = true, default_value_t = 300.0)]
     pub dpi: f64,
     /// Start of the window, s from the start of the recording.

@@ -32,6 +32,8 @@ pub struct SignalLine {
     pub byte_offset: u64,
     /// ADC units per physical unit (after replacing 0 by 200).
     pub gain: f64,
+    /// The header wrote the gain as 0 (or left it out): an uncalibrated signal, read at the WFDB default of 200.
+    pub uncalibrated: bool,
     /// Digital value of 0 physical units.
     pub baseline: f64,
     /// Physical unit text (`mV` when absent).
@@ -214,6 +216,7 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
     }
     // gain[(baseline)][/units]
     let mut gain = 200.0;
+    let mut uncalibrated = true;
     let mut baseline: Option<f64> = None;
     let mut units = "mV".to_string();
     if let Some(g) = f.get(2) {
@@ -233,6 +236,7 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
             return Err(field_err(path, no, "gain", g));
         }
         gain = if gv == 0.0 { 200.0 } else { gv };
+        uncalibrated = gv == 0.0;
         if let Some(b) = base_part {
             let bv: f64 = b.parse().map_err(|_| field_err(path, no, "baseline", g))?;
             if !bv.is_finite() {
@@ -268,6 +272,7 @@ fn parse_signal_line(path: &Path, no: usize, line: &str) -> Result<SignalLine, R
         format,
         byte_offset,
         gain,
+        uncalibrated,
         baseline: baseline.unwrap_or(adc_zero),
         units,
         checksum,

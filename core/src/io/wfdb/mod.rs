@@ -133,6 +133,24 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
         }
         files.push(plan.path);
     }
+    // A gain of 0 marks an uncalibrated signal (WFDB header(5)); its samples are read at the default gain of 200,
+    // which may be far from the truth (a helper's test: lead I 8.6 times too large, QRS 90 → 72 ms, no word said).
+    let uncalibrated: Vec<String> = header
+        .signals
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| s.uncalibrated)
+        .map(|(i, s)| format!("{} ('{}')", i + 1, crate::io::printable(&s.description)))
+        .collect();
+    if !uncalibrated.is_empty() {
+        let what = if uncalibrated.len() == 1 { "signal" } else { "signals" };
+        warnings.push(format!(
+            "{}: {what} {} uncalibrated (gain 0 or none in the header): read at the WFDB default of 200 units per \
+             mV, so amplitudes may be wrong",
+            hea.display(),
+            crate::recording::spoken_list(&uncalibrated)
+        ));
+    }
     if let Some(first) = mismatched.first() {
         let more = match mismatched.len() {
             1 => String::new(),
@@ -287,8 +305,11 @@ mod tests {
         let h = parse_header(p, "1 1 500 5000\n1.dat 16 1716(6)/mV 0 0 -120 -32198 0 i\n")?;
         assert_eq!(h.signals[0].gain, 1716.0);
         assert_eq!(h.signals[0].baseline, 6.0);
+        assert!(!h.signals[0].uncalibrated);
+        // A gain of 0 (as the QT Database's sel14046 writes) marks an uncalibrated signal, read at 200 (header(5)).
         let h = parse_header(p, "r 1 250/128 10\nr.dat 212 0 12 7 -16 12292 0 ECG1\n")?;
         assert_eq!(h.signals[0].gain, 200.0);
+        assert!(h.signals[0].uncalibrated);
         assert_eq!(h.signals[0].baseline, 7.0, "baseline defaults to adczero");
         assert!(parse_header(p, "r 3 250\nr.dat 16 200 12 0 0 0 0 I\n").is_err());
         assert!(parse_header(p, "r/2 1 250\n").is_err());
