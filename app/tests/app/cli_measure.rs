@@ -127,3 +127,20 @@ fn missing_file_is_exit_code_2_with_its_name() -> Result<(), Box<dyn std::error:
     assert!(out.stdout.is_empty(), "{}", String::from_utf8_lossy(&out.stdout));
     Ok(())
 }
+
+#[test]
+fn a_recording_with_no_samples_is_refused_as_beats_and_render_refuse_it() -> Result<(), Box<dyn std::error::Error>> {
+    // A header declaring no samples: `measure` printed a row with "No heartbeat found" and exit 0, while `beats`
+    // and `render` refused the same file.
+    let dir = tempfile::tempdir()?;
+    let hea = dir.path().join("empty.hea");
+    std::fs::write(&hea, "empty 1 500 0\nempty.dat 16 200 16 0 0 0 0 II\n")?;
+    std::fs::write(dir.path().join("empty.dat"), [])?;
+    for cmd in ["measure", "beats"] {
+        let out = isoline().arg(cmd).arg(&hea).output()?;
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{cmd}: {err}");
+        assert!(err.contains("empty.hea") && err.contains("no samples"), "{cmd}: {err}");
+    }
+    Ok(())
+}
