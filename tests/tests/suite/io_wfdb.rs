@@ -223,18 +223,25 @@ fn a_missing_signal_file_is_named_with_its_header() -> TestResult {
     Ok(())
 }
 
+/// LUDB 1 copied into a new folder with each header line `(index, text)` passed through `edit`; returns the
+/// folder (kept while it lives) and the copied header.
+fn ludb1_with(
+    edit: impl Fn(usize, &str) -> String,
+) -> Result<(tempfile::TempDir, std::path::PathBuf), Box<dyn std::error::Error>> {
+    let dir = tempfile::tempdir()?;
+    let text = std::fs::read_to_string(data("ludb/1.hea"))?;
+    let lines: Vec<String> = text.lines().enumerate().map(|(i, l)| edit(i, l)).collect();
+    let hea = dir.path().join("1.hea");
+    std::fs::write(&hea, lines.join("\n"))?;
+    std::fs::copy(data("ludb/1.dat"), dir.path().join("1.dat"))?;
+    Ok((dir, hea))
+}
+
 #[test]
 fn more_signal_lines_than_declared_is_refused() -> TestResult {
     // LUDB 1's header with its record line declaring 11 signals: its 12 interleaved signals read as 11 would
     // give each lead another's samples (a helper's test measured HR 42 and "3 other beats" from it).
-    let dir = tempfile::tempdir()?;
-    let text = std::fs::read_to_string(data("ludb/1.hea"))?;
-    let mut lines: Vec<&str> = text.lines().collect();
-    let fixed = lines[0].replacen(" 12 ", " 11 ", 1);
-    lines[0] = &fixed;
-    let hea = dir.path().join("1.hea");
-    std::fs::write(&hea, lines.join("\n"))?;
-    std::fs::copy(data("ludb/1.dat"), dir.path().join("1.dat"))?;
+    let (_dir, hea) = ludb1_with(|i, l| if i == 0 { l.replacen(" 12 ", " 11 ", 1) } else { l.to_string() })?;
     let e = wfdb::read_record(&hea).err().ok_or("accepted")?.to_string();
     assert!(e.contains("1.hea") && e.contains("declares 11 signals but the header has 12 signal lines"), "{e}");
     Ok(())
@@ -244,22 +251,13 @@ fn more_signal_lines_than_declared_is_refused() -> TestResult {
 fn checksum_mismatches_are_one_warning() -> TestResult {
     // LUDB 1 with the checksums of its first two signals changed: one warning names the first and counts the other
     // (a header of the wrong record gave one line per signal).
-    let dir = tempfile::tempdir()?;
-    let text = std::fs::read_to_string(data("ludb/1.hea"))?;
-    let changed: Vec<String> = text
-        .lines()
-        .enumerate()
-        .map(|(i, l)| {
-            let mut f: Vec<String> = l.split(' ').map(str::to_string).collect();
-            if (1..=2).contains(&i) && f.len() >= 9 {
-                f[6] = "12345".to_string();
-            }
-            f.join(" ")
-        })
-        .collect();
-    let hea = dir.path().join("1.hea");
-    std::fs::write(&hea, changed.join("\n"))?;
-    std::fs::copy(data("ludb/1.dat"), dir.path().join("1.dat"))?;
+    let (_dir, hea) = ludb1_with(|i, l| {
+        let mut f: Vec<String> = l.split(' ').map(str::to_string).collect();
+        if (1..=2).contains(&i) && f.len() >= 9 {
+            f[6] = "12345".to_string();
+        }
+        f.join(" ")
+    })?;
     let warnings = io::open(&hea, &io::OpenOptions::default())?.warnings;
     let sums: Vec<&String> = warnings.iter().filter(|w| w.contains("checksum")).collect();
     assert_eq!(sums.len(), 1, "{warnings:?}");
