@@ -99,12 +99,15 @@ fn row_notes(own: Option<&RangeNote>, origin: Option<Origin>, disagree: Option<R
 /// Notes on no value's row in the measurements, shown on the row they bear on most; they stay whatever the reader
 /// changes. On the QT row, that leads were left out of the representative beat (`ranges::leads_left_out`): it
 /// concerns every value measured on that beat, and the QT is the one a late T end in the leads left out
-/// lengthens most. On the RR row, a pause (`ranges::pause`) and a stretch with no beat at either end of the
-/// recording (`ranges::no_beat_at_edge`).
+/// lengthens most; and that the baseline moves too fast to be taken off (`ranges::unsteady_baseline`), which
+/// makes the QT doubtful first. On the RR row, a pause (`ranges::pause`) and a stretch with no beat at either end
+/// of the recording (`ranges::no_beat_at_edge`). On the QRS row, the shortest interval, that the recording is
+/// sampled too coarsely for fine boundaries (`ranges::coarse_sampling`).
 fn row_extra_notes(key: &str, m: &measure::Measurements) -> Vec<RangeNote> {
     match key {
-        "qt_ms" => m.leads_left_out_note().into_iter().collect(),
+        "qt_ms" => m.leads_left_out_note().into_iter().chain(m.unsteady_baseline_note()).collect(),
         "rr_ms" => m.pause_notes(),
+        "qrs_ms" => m.sample_rate_hz.filter(|_| m.beats > 0).and_then(ranges::coarse_sampling).into_iter().collect(),
         _ => Vec::new(),
     }
 }
@@ -278,5 +281,23 @@ mod tests {
         assert_eq!(row_notes(Some(&wide), Some(Origin::Moved), noted.clone()), [wide]);
         assert!(row_notes(Some(&disagree), Some(Origin::Moved), noted).is_empty());
         assert!(row_notes(None, Some(Origin::Auto), None).is_empty());
+    }
+
+    #[test]
+    fn notes_on_no_values_row_are_shown_on_the_row_they_bear_on() {
+        // Coarse sampling on the QRS row, an unsteady baseline on the QT row (before, neither was shown in the
+        // Ledger, only in exports).
+        let m = measure::Measurements {
+            beats: 10,
+            sample_rate_hz: Some(100.0),
+            baseline_step_uv: Some(300.0),
+            ..measure::Measurements::default()
+        };
+        let has = |key: &str, want: &str| row_extra_notes(key, &m).iter().any(|n| n.key == want);
+        assert!(has("qrs_ms", ranges::KEY_SAMPLING));
+        assert!(has("qt_ms", ranges::KEY_REPRESENTATIVE));
+        assert!(!has("pr_ms", ranges::KEY_SAMPLING));
+        let fine = measure::Measurements { sample_rate_hz: Some(500.0), baseline_step_uv: None, ..m };
+        assert!(row_extra_notes("qrs_ms", &fine).is_empty() && row_extra_notes("qt_ms", &fine).is_empty());
     }
 }
