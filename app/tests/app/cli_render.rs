@@ -51,8 +51,10 @@ fn renders_a_png() -> Res {
 fn errors_leave_no_file() -> Res {
     let dir = tempfile::tempdir()?;
     let out = dir.path().join("page.png");
-    let cases: [&[&str]; 8] = [
+    let cases: [&[&str]; 9] = [
         &["--dpi", "5000"],
+        // A huge start is written short (it printed 301 digits).
+        &["--start", "1e300"],
         // A negative number reaches the check that names it (not clap's "unexpected argument '-1'").
         &["--gain", "-10"],
         &["--layout", "4x3"],
@@ -69,6 +71,7 @@ fn errors_leave_no_file() -> Res {
         assert_eq!(st.status.code(), Some(2), "{extra:?}");
         let err = String::from_utf8_lossy(&st.stderr);
         assert_eq!(err.trim().lines().count(), 1, "{extra:?}: {err}");
+        assert!(err.len() < 200, "{extra:?}: {err}");
         assert_eq!(std::fs::read_dir(dir.path())?.count(), 0, "{extra:?} left a file");
     }
     // A page named anything but .png would hold PNG bytes under the wrong type: refused, with the name.
