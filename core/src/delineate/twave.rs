@@ -12,8 +12,10 @@
 //! out moves the end later on real T waves, whose tails fade slowly. So the fixed point stays put, and where the
 //! unfiltered lead is clean enough to show it (its step noise and quantisation well below the step looked for),
 //! the end is carried on over the samples where the lead still heads back to the baseline at more than
-//! [`MOVING`] of the limb's steepest slope ([`Lead::moving_on`]). On real records the noise gate keeps the
-//! trapezium end (QT Database and LUDB T ends unchanged); on a clean wide T wave the end reaches the knee.
+//! [`MOVING`] of the limb's steepest slope, or, where the lead has already stopped there, moved back to the first
+//! sample it stopped at (the 12 Hz low-pass spreads a narrow T wave's knee later: the demo waves at 120–150 bpm
+//! ended 8–10 ms late) ([`Lead::end_at_knee`]). On real records the noise gate mostly keeps the trapezium end (QT
+//! Database and LUDB T ends within 0.3 ms of it); on a clean T wave the end reaches the knee.
 //!
 //! Combining leads: each lead gives a T end when its T wave is clear; a lead's end that jumps away from the same
 //! lead's ends on the neighbouring beats is dropped ([`drop_inconsistent_leads`]). The global T end is the latest
@@ -274,7 +276,8 @@ fn lead_t_end(
     let y_k = dev(k) * sign;
     let area = |i: usize| (y_k - dev(i) * sign) * (2 * xr - i - k) as f32;
     let end = (k..=xr).max_by(|&i, &j| area(i).total_cmp(&area(j)))?;
-    let end = lead.moving_on(end, sign, s, (end + reach / 2).min(to + max_limb / 2).min(guard).min(x.len() - 2)) as f64;
+    let limit = (end + reach / 2).min(to + max_limb / 2).min(guard).min(x.len() - 2);
+    let end = lead.end_at_knee(end, sign, s, (end.saturating_sub(reach / 4).max(k + 1), limit)) as f64;
     (end > peak as f64 && end <= (to + max_limb / 2) as f64).then_some(LeadT { amplitude: amp, end })
 }
 
@@ -286,16 +289,22 @@ struct Lead<'a> {
 }
 
 impl Lead<'_> {
-    /// The trapezium end `end` carried on, at most to `limit`, over samples where the unfiltered lead still
-    /// heads back to the baseline (direction `sign` of the lobe) by more than [`MOVING`] of the limb's steepest
-    /// slope `steepest` (µV per sample, 12 Hz signal) per sample. Only where the unfiltered lead resolves that
-    /// step: its step noise (see [`Lead::noise`]) at most [`STILL`] of it; otherwise `end` stands.
-    fn moving_on(&self, end: usize, sign: f32, steepest: f32, limit: usize) -> usize {
+    /// The trapezium end `end` moved to the knee where the unfiltered lead regains its level: carried on, at most
+    /// to `limit`, over samples where it still heads back to the baseline (direction `sign` of the lobe) by more
+    /// than [`MOVING`] of the limb's steepest slope `steepest` (µV per sample, 12 Hz signal) per sample; or, where
+    /// it no longer does at `end`, moved back, at most to `floor`, to the sample after its last such step. Only
+    /// where the unfiltered lead resolves that step: its step noise (see [`Lead::noise`]) at most [`STILL`] of it;
+    /// otherwise `end` stands.
+    fn end_at_knee(&self, end: usize, sign: f32, steepest: f32, (floor, limit): (usize, usize)) -> usize {
         let thr = MOVING * steepest;
         if end >= limit || self.noise(end, limit).is_none_or(|wn| wn > STILL * thr) {
             return end;
         }
-        (end..limit).find(|&j| (self.wide[j] - self.wide[j + 1]) * sign <= thr).unwrap_or(limit)
+        let heading_back = |j: usize| (self.wide[j] - self.wide[j + 1]) * sign > thr;
+        if !heading_back(end) {
+            return (floor..end).rev().find(|&j| heading_back(j)).map_or(end, |j| j + 1);
+        }
+        (end..limit).find(|&j| !heading_back(j)).unwrap_or(limit)
     }
 
     /// The unfiltered lead's sample-to-sample step noise over samples `a..b`, µV: four times the step noise
@@ -430,6 +439,26 @@ mod tests {
             .collect();
         let rough = end(&noisy);
         assert!(rough < knee - 3.0, "noisy end {rough} carried on to the knee {knee}");
+    }
+
+    #[test]
+    fn a_narrow_t_wave_ends_at_its_knee_not_where_the_low_pass_spread_it() {
+        // The same T wave drawn narrow (σ = 12 samples ≈ 24 ms, as at fast rates): the 12 Hz low-pass spreads its
+        // knee (400 + 30) later, and the trapezium on it ended past the knee, where the clean unfiltered lead had
+        // already stopped (the demo waves at 120–150 bpm: T ends 8–10 ms late). The end is moved back to the knee.
+        let (sigma, k_cut) = (12.0f64, 2.5f64);
+        let e = (-0.5 * k_cut * k_cut).exp();
+        let raw: Vec<f32> = (0..900)
+            .map(|i| {
+                let u = (i as f64 - 400.0) / sigma;
+                if u.abs() >= k_cut { 0.0 } else { (400.0 * ((-0.5 * u * u).exp() - e) / (1.0 - e)) as f32 }
+            })
+            .collect();
+        let sig = Signals::new(&[&raw], 500.0);
+        let knee = 400.0 + k_cut * sigma;
+        let t = lead_t_end(Lead { x: &sig.slow[0], wide: &raw }, 0.0, 300, (600, raw.len() - 1), 125, 75, 60);
+        let end = t.map_or(f64::NAN, |t| t.end);
+        assert!((end - knee).abs() <= 1.0, "end {end} vs knee {knee}");
     }
 
     #[test]

@@ -166,7 +166,7 @@ pub(crate) fn is_ecg_label(label: &str) -> bool {
 const QUOTE_MAX: usize = 60;
 
 /// Text quoted from a file, made safe to print in a message: printable ASCII stays as it is, anything else
-/// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`); more than [`QUOTE_MAX`] characters
+/// (control bytes, non-ASCII) becomes a Rust-style escape (`\n`, `\u{d8}`); more than `QUOTE_MAX` characters
 /// so printed are cut with `...`.
 #[must_use]
 pub fn printable(s: &str) -> String {
