@@ -40,8 +40,9 @@ fn value(cell: &str) -> Result<Option<f64>, &'static str> {
 // Common practice, no source: ECG front ends tolerate about ±300 mV of DC offset; 1 V is well past any of them.
 const ABSURD_UV: f32 = 1.0e6;
 
-/// A lead may hold at most this share of [`ABSURD_UV`] values for them to be read as missing samples (one stray
-/// cell, a typing slip); more are left as they are, and the recording's amplitude note questions its units.
+/// A lead's [`ABSURD_UV`] values are read as missing samples when there is at most one in this many of its
+/// samples (or just one): a stray cell, a typing slip. More are left as they are, and the recording's amplitude
+/// note questions its units.
 const ABSURD_SHARE: usize = 1000;
 /// At most this many [`ABSURD_UV`] values per lead are read as missing samples.
 const ABSURD_KEPT: usize = 64;
