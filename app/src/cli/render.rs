@@ -82,8 +82,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         bail!("{file}: the recording has no samples");
     }
     if !(args.start.is_finite() && args.start >= 0.0 && args.start < raw.duration_s()) {
-        // A huge start is written short (1e300, not 301 digits).
-        let start = if args.start.abs() < 1e6 { args.start.to_string() } else { format!("{:e}", args.start) };
+        // A huge or tiny start is written short (1e300 and -1e-300, not 300 digits).
+        let plain = args.start == 0.0 || (1e-3..1e6).contains(&args.start.abs());
+        let start = if plain { args.start.to_string() } else { format!("{:e}", args.start) };
         bail!("{file}: --start {start} s is outside the recording (0 to {:.3} s)", raw.duration_s());
     }
     // A lead the reader named in --layout must be there: the page would otherwise show the first lead under a

@@ -228,7 +228,8 @@ pub fn review_windows_ui(ctx: &egui::Context, session: &mut ReviewSession) -> Ve
             ui.label("Your name or initials, recorded with every change of this review:");
             ui.add(egui::TextEdit::singleline(&mut session.reader_input).hint_text("reader"));
             let name = session.reader_input.trim().to_string();
-            let problem = isoline_core::review::reader_name_problem(&name);
+            // An empty field only keeps the button off: it is not yet an error to show.
+            let problem = isoline_core::review::reader_name_problem(&name).filter(|_| !name.is_empty());
             ui.horizontal(|ui| {
                 let save =
                     ui.add_enabled(!name.is_empty() && problem.is_none(), egui::Button::new("Save as this reader"));

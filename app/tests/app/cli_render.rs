@@ -51,10 +51,11 @@ fn renders_a_png() -> Res {
 fn errors_leave_no_file() -> Res {
     let dir = tempfile::tempdir()?;
     let out = dir.path().join("page.png");
-    let cases: [&[&str]; 9] = [
+    let cases: [&[&str]; 10] = [
         &["--dpi", "5000"],
-        // A huge start is written short (it printed 301 digits).
+        // A huge or tiny start is written short (it printed 301 digits).
         &["--start", "1e300"],
+        &["--start=-1e-300"],
         // A negative number reaches the check that names it (not clap's "unexpected argument '-1'").
         &["--gain", "-10"],
         &["--layout", "4x3"],

@@ -292,9 +292,9 @@ impl Lead<'_> {
     /// The trapezium end `end` moved to the knee where the unfiltered lead regains its level: carried on, at most
     /// to `limit`, over samples where it still heads back to the baseline (direction `sign` of the lobe) by more
     /// than [`MOVING`] of the limb's steepest slope `steepest` (µV per sample, 12 Hz signal) per sample; or, where
-    /// it no longer does at `end`, moved back, at most to `floor`, to the sample after its last such step. Only
-    /// where the unfiltered lead resolves that step: its step noise (see [`Lead::noise`]) at most [`STILL`] of it;
-    /// otherwise `end` stands.
+    /// it no longer does at `end`, moved back to the sample after its last such step when that lies after `floor`
+    /// (a lead still over the whole stretch keeps `end`: its knee is not near). Only where the unfiltered lead
+    /// resolves that step: its step noise (see [`Lead::noise`]) at most [`STILL`] of it; otherwise `end` stands.
     fn end_at_knee(&self, end: usize, sign: f32, steepest: f32, (floor, limit): (usize, usize)) -> usize {
         let thr = MOVING * steepest;
         if end >= limit || self.noise(end, limit).is_none_or(|wn| wn > STILL * thr) {

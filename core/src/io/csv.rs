@@ -305,8 +305,9 @@ fn read_inner(
             samples[k][i] = f32::NAN;
         }
         warnings.push(format!(
-            "{}: lead {name}: {} beyond ±1 V (first on line {first_line}) read as missing: no ECG reaches it",
+            "{}: lead {}: {} beyond ±1 V (first on line {first_line}) read as missing: no ECG reaches it",
             path.display(),
+            crate::io::printable(&name.to_string()),
             if found.len() == 1 { "1 value".to_string() } else { format!("{} values", found.len()) }
         ));
     }

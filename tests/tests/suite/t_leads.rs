@@ -48,7 +48,8 @@ fn ludb_t_ends_per_lead() {
     for n in 1..=50 {
         let Some(a) = analysed(n) else { continue };
         let sig = Signals::new(&filtered_leads(n, &a), fs);
-        // As the analysis placed them: before the next P wave where the record has P waves.
+        // As the analysis placed them: before the next P wave where the record has P waves (near enough: a P wave
+        // found only once the T ends were placed again without that limit is taken as held back too).
         let ours = t_lead_ends(&sig, &a.beats, a.beats.iter().any(|b| b.bounds.p_on.is_some()));
         let mut record: Vec<f64> = Vec::new();
         for (l, name) in LEADS.iter().enumerate() {
