@@ -355,13 +355,7 @@ mod tests {
         // from 160 to 220 peaking at 150 µV at 190. The fixed point 100 samples past the limb's steepest point lies
         // in the bump, whose deflection past the baseline adds area: the end is drawn into it. With the guard at the
         // bump's start, the end is the T wave's.
-        let mut x = vec![0.0f32; 300];
-        for (k, v) in x.iter_mut().enumerate().take(140).skip(40) {
-            *v = if k < 100 { -300.0 * (k - 40) as f32 / 60.0 } else { -300.0 * (140 - k) as f32 / 40.0 };
-        }
-        for (k, v) in x.iter_mut().enumerate().take(220).skip(160) {
-            *v = 150.0 * (1.0 - (k as f32 - 190.0).abs() / 30.0);
-        }
+        let x = polyline(&[(40, 0.0), (100, -300.0), (140, 0.0), (160, 0.0), (190, 150.0), (220, 0.0)]);
         let end = |guard: usize| {
             lead_t_end(Lead { x: &x, wide: &x }, 0.0, 30, (200, guard), 100, 40, 100).map(|t| t.end.round() as usize)
         };
@@ -407,26 +401,35 @@ mod tests {
         assert!(t.amplitude < 0.0 && (t.end - 200.0).abs() <= 2.0, "{t:?}");
     }
 
+    /// A Gaussian T wave of 400 µV peaking at sample 400 of 900 (σ `sigma` samples at 500 Hz), lowered by its
+    /// value at 2.5σ and cut there, as the demo generator draws it; and its knee, where it regains the baseline.
+    fn cut_gaussian_t(sigma: f64) -> (Vec<f32>, f64) {
+        let k_cut = 2.5f64;
+        let e = (-0.5 * k_cut * k_cut).exp();
+        let raw = (0..900)
+            .map(|i| {
+                let u = (i as f64 - 400.0) / sigma;
+                if u.abs() >= k_cut { 0.0 } else { (400.0 * ((-0.5 * u * u).exp() - e) / (1.0 - e)) as f32 }
+            })
+            .collect();
+        (raw, 400.0 + k_cut * sigma)
+    }
+
+    /// The T end of the lead whose 12 Hz signal is `slow` and unfiltered signal `wide`, searched from sample 300 to
+    /// 600 with the recordings' gap and reach (NaN when none).
+    fn end_on(slow: &[f32], wide: &[f32]) -> f64 {
+        lead_t_end(Lead { x: slow, wide }, 0.0, 300, (600, wide.len() - 1), 125, 75, 60).map_or(f64::NAN, |t| t.end)
+    }
+
     #[test]
     fn a_wide_t_wave_that_stops_at_a_knee_ends_there_where_the_lead_is_clean() {
         // Gaussian T (400 µV, σ = 25.8 samples ≈ 52 ms at 500 Hz) lowered by its value at 2.5σ and cut there, as
         // the demo generator draws it: it regains the baseline with a knee at sample 400 + 64.5. The trapezium
         // with its fixed point 60 samples (120 ms) past the steepest point stops short of the knee; on the clean
         // unfiltered lead the end is carried on to the knee. With noise on the unfiltered lead it is not.
-        let (sigma, k_cut) = (25.8f64, 2.5f64);
-        let e = (-0.5 * k_cut * k_cut).exp();
-        let raw: Vec<f32> = (0..900)
-            .map(|i| {
-                let u = (i as f64 - 400.0) / sigma;
-                if u.abs() >= k_cut { 0.0 } else { (400.0 * ((-0.5 * u * u).exp() - e) / (1.0 - e)) as f32 }
-            })
-            .collect();
+        let (raw, knee) = cut_gaussian_t(25.8);
         let sig = Signals::new(&[&raw], 500.0);
-        let knee = 400.0 + k_cut * sigma;
-        let end = |wide: &[f32]| {
-            lead_t_end(Lead { x: &sig.slow[0], wide }, 0.0, 300, (600, wide.len() - 1), 125, 75, 60)
-                .map_or(f64::NAN, |t| t.end)
-        };
+        let end = |wide: &[f32]| end_on(&sig.slow[0], wide);
         let clean = end(&raw);
         assert!((clean - knee).abs() <= 1.0, "clean end {clean} vs knee {knee}");
         let mut s = 11u64;
@@ -446,18 +449,9 @@ mod tests {
         // The same T wave drawn narrow (σ = 12 samples ≈ 24 ms, as at fast rates): the 12 Hz low-pass spreads its
         // knee (400 + 30) later, and the trapezium on it ended past the knee, where the clean unfiltered lead had
         // already stopped (the demo waves at 120–150 bpm: T ends 8–10 ms late). The end is moved back to the knee.
-        let (sigma, k_cut) = (12.0f64, 2.5f64);
-        let e = (-0.5 * k_cut * k_cut).exp();
-        let raw: Vec<f32> = (0..900)
-            .map(|i| {
-                let u = (i as f64 - 400.0) / sigma;
-                if u.abs() >= k_cut { 0.0 } else { (400.0 * ((-0.5 * u * u).exp() - e) / (1.0 - e)) as f32 }
-            })
-            .collect();
+        let (raw, knee) = cut_gaussian_t(12.0);
         let sig = Signals::new(&[&raw], 500.0);
-        let knee = 400.0 + k_cut * sigma;
-        let t = lead_t_end(Lead { x: &sig.slow[0], wide: &raw }, 0.0, 300, (600, raw.len() - 1), 125, 75, 60);
-        let end = t.map_or(f64::NAN, |t| t.end);
+        let end = end_on(&sig.slow[0], &raw);
         assert!((end - knee).abs() <= 1.0, "end {end} vs knee {knee}");
     }
 
