@@ -107,7 +107,7 @@ fn row_extra_notes(key: &str, m: &measure::Measurements) -> Vec<RangeNote> {
     match key {
         "qt_ms" => m.leads_left_out_note().into_iter().chain(m.unsteady_baseline_note()).collect(),
         "rr_ms" => m.pause_notes(),
-        "qrs_ms" => m.sample_rate_hz.filter(|_| m.beats > 0).and_then(ranges::coarse_sampling).into_iter().collect(),
+        "qrs_ms" => m.coarse_sampling_note().into_iter().collect(),
         _ => Vec::new(),
     }
 }

@@ -255,6 +255,13 @@ impl Measurements {
         self.baseline_step_uv.and_then(ranges::unsteady_baseline)
     }
 
+    /// The note that the recording is sampled too coarsely for fine wave boundaries ([`ranges::coarse_sampling`]),
+    /// when it has beats to measure and is.
+    #[must_use]
+    pub fn coarse_sampling_note(&self) -> Option<RangeNote> {
+        self.sample_rate_hz.filter(|_| self.beats > 0).and_then(ranges::coarse_sampling)
+    }
+
     /// Every note, in the order of [`Measurements::values`]; then the limb-lead gain note when the axes were
     /// computed after rescaling ([`ranges::limb_gain_mismatch`]) and the QRS axis row carries a range note of
     /// its own; then the pause note ([`ranges::pause`]); then that no representative beat was made
@@ -281,9 +288,7 @@ impl Measurements {
         }
         notes.extend(self.leads_left_out_note());
         notes.extend(self.unsteady_baseline_note());
-        if self.beats > 0 {
-            notes.extend(self.sample_rate_hz.and_then(ranges::coarse_sampling));
-        }
+        notes.extend(self.coarse_sampling_note());
         // An interval with a range note of its own still gets the note that the single beats disagree.
         for n in ["pr_ms", "qrs_ms", "qt_ms"].into_iter().filter_map(|key| self.beats_disagree(key)) {
             if !notes.contains(&n) {
