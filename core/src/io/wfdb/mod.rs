@@ -156,9 +156,9 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
             1 => String::new(),
             n => format!(" and {} more", n - 1),
         };
-        let what = if mismatched.len() == 1 { "signal" } else { "signals" };
+        let (what, verb) = if mismatched.len() == 1 { ("signal", "differs") } else { ("signals", "differ") };
         warnings.push(format!(
-            "{}: checksum of {what} {first}{more} differs: the header may not describe this signal file",
+            "{}: checksum of {what} {first}{more} {verb}: the header may not describe this signal file",
             hea.display()
         ));
     }
