@@ -12,6 +12,7 @@ mod accuracy_fast_rates;
 mod accuracy_hrv;
 mod accuracy_intervals;
 mod accuracy_invariance;
+mod accuracy_lead_subsets;
 mod accuracy_noise;
 mod accuracy_pauses;
 mod accuracy_rhythm;
