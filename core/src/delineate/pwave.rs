@@ -365,7 +365,7 @@ fn edges(
 /// stops falling low enough that it is no dip within the limb (see [`DIP_FRACTION`]); where it does neither
 /// (noise between P and T), to the quietest sample within reach. An edge where the leads still stand at more
 /// than [`INSIDE_SHARE`] of the P wave's height is the still top of one phase of the wave, and the walk goes on
-/// from the steepest slope beyond it.
+/// from the steepest slope within reach beyond it.
 struct Walk<'a> {
     env: &'a [f32],
     start: usize,
@@ -414,7 +414,8 @@ impl<'a> Walk<'a> {
         };
         let mut on = back(up)?;
         for _ in 0..MAX_PHASES {
-            let steepest = (self.start..on).max_by(|&a, &b| env[a].total_cmp(&env[b]));
+            let steepest =
+                (on.saturating_sub(self.reach).max(self.start)..on).max_by(|&a, &b| env[a].total_cmp(&env[b]));
             match steepest.filter(|&u| self.inside(on) && env[u] > dip) {
                 Some(u) => (up, on) = (u, back(u)?),
                 None => break,
@@ -426,17 +427,17 @@ impl<'a> Walk<'a> {
     /// The P end walked on from the steepest downslope `down`, as [`Walk::onset`] walks back.
     fn end(&self, mut down: usize, level: f32, dip: f32) -> Option<(usize, usize)> {
         let env = self.env;
-        let on = |down: usize| {
+        let forth = |down: usize| {
             let to = (down + self.reach).min(self.stop);
             (down..=to)
                 .find(|&k| env[k] <= level || (k > down && k < to && env[k] <= dip && env[k + 1] > env[k]))
                 .or_else(|| self.quietest(down..=to))
         };
-        let mut end = on(down)?;
+        let mut end = forth(down)?;
         for _ in 0..MAX_PHASES {
-            let steepest = (end + 1..=self.stop).max_by(|&a, &b| env[a].total_cmp(&env[b]));
+            let steepest = (end + 1..=(end + self.reach).min(self.stop)).max_by(|&a, &b| env[a].total_cmp(&env[b]));
             match steepest.filter(|&d| self.inside(end) && env[d] > dip) {
-                Some(d) => (down, end) = (d, on(d)?),
+                Some(d) => (down, end) = (d, forth(d)?),
                 None => break,
             }
         }
