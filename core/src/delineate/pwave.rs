@@ -287,12 +287,12 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     // Where the realigned median's P wave runs to an end of the search region and the first median's does not,
     // the realignment has blurred a small P wave into the baseline, and the first median's edges stay (LUDB 19
     // read with lead II alone at 250 Hz: P waves of 368 ms from the previous T end to the QRS).
-    let cut = sig.samples(CUT_S);
-    let at_an_end = |(a, b): (usize, usize)| a <= start + cut || b + cut >= stop;
+    let near = sig.samples(CUT_S);
+    let at_an_end = |(a, b): (usize, usize)| a <= start + near || b + near >= stop;
     let (on, end) = edges(sig, &aligned, w, (start, peak, stop))
         .filter(|&second| !at_an_end(second) || at_an_end((on, end)))
         .unwrap_or((on, end));
-    let cut = on <= start + cut;
+    let cut = on <= start + near;
     let mut m = PModel { on_rel: on as isize - w as isize, end_rel: end as isize - w as isize, ..first };
     // Beats holding no lead the template has cannot be compared and are left out.
     let corrs: Vec<f64> = segs.iter().filter_map(|(s, _)| m.similarity(s)).collect();
