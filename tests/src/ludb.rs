@@ -1,6 +1,7 @@
 //! The LUDB records' per-lead annotations (Kalyakulina et al., IEEE Access 2020;8:186181-90): one WFDB annotation
 //! file per lead, each wave marked as `(` onset, a peak label (`p` P wave, `N` QRS, `t` T wave), `)` end.
 
+use isoline_core::Recording;
 use isoline_core::analysis::{Analysis, analyze};
 use isoline_core::filter::FilterSettings;
 use isoline_core::io::{self, wfdb_annotations};
@@ -21,16 +22,22 @@ pub fn lead_waves(n: usize, lead: &str, peak: &str) -> Vec<(usize, usize, usize)
         .collect()
 }
 
-/// LUDB record `n` analysed as the workstation analyses it (default filters); `None` when the shared records do not
-/// hold it (no `N.global.csv`).
+/// LUDB record `n` as read; `None` when the shared records do not hold it (no `N.global.csv`).
 #[must_use]
-pub fn analysed(n: usize) -> Option<Analysis> {
+pub fn recording(n: usize) -> Option<Recording> {
     if !data(&format!("ludb/{n}.global.csv")).exists() {
         return None;
     }
     let opened = io::open(&data(&format!("ludb/{n}.hea")), &io::OpenOptions::default())
         .unwrap_or_else(|e| panic!("ludb {n}: {e}"));
-    Some(analyze(&opened.recording, &FilterSettings::default()))
+    Some(opened.recording)
+}
+
+/// LUDB record `n` analysed as the workstation analyses it (default filters); `None` when the shared records do not
+/// hold it (no `N.global.csv`).
+#[must_use]
+pub fn analysed(n: usize) -> Option<Analysis> {
+    recording(n).map(|r| analyze(&r, &FilterSettings::default()))
 }
 
 /// The filtered leads of LUDB record `n`'s analysis `a` (a 10-s record keeps its filtered copy), as the boundary

@@ -13,8 +13,8 @@
 //! leads annotated one by one, so a single lead's early mark moves it; relative to any fixed point of the beat it
 //! jitters with SD ≈ 19 ms within a record (≈ 9 ms for the second-earliest lead). A per-record P model carried
 //! to each beat therefore cannot reach a pooled SD much below that against this reference. Read with two of their
-//! leads, against the experts' marks on the same two, the P onset is −2 to −6 ± 12–15 ms (five pairs; the tests'
-//! `accuracy_lead_subsets`).
+//! leads, against the experts' marks on the same two, the P onset is −2.2 to −6.3 ms, SD 11.8 to 14.8 (five pairs;
+//! the tests' `accuracy_lead_subsets`).
 
 use super::signals::{Signals, smooth};
 use crate::detect::correlation;
@@ -65,10 +65,11 @@ const DIP_FRACTION: f32 = 0.20;
 // II+V5, aVF+V6, II and V5 alone unchanged; at 0.6 III+V2 stays at 16.0, at 0.4 the P end of II+V5 scatters (10.8 →
 // 15.1). The twelve-lead records, the QT Database and the demos are unchanged.
 const INSIDE_SHARE: f32 = 0.5;
-/// The P edge walk goes past at most this many still tops (see [`INSIDE_SHARE`]).
-// Common practice, no source: a P wave has at most two or three phases.
-const MAX_PHASES: usize = 3;
-/// Farthest a P edge lies from the P wave's steepest slope, s.
+/// The P edge walk goes past at most this many still tops (see [`INSIDE_SHARE`]), and its edge lies at most
+/// this many times [`EDGE_REACH_S`] from the slope it started from.
+// Common practice, no source: a P wave has at most three phases, so two tops between them.
+const MAX_TOPS: usize = 2;
+/// Farthest a P edge lies from the steepest slope it is walked out from, s.
 // Common practice, no source: a P wave's limbs last ≈ 40–60 ms each; 120 ms P waves are already wide.
 const EDGE_REACH_S: f64 = 0.080;
 /// Low-pass cutoff of the leads the P edges are found on, Hz (on top of the 40 Hz QRS leads).
@@ -248,18 +249,10 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     // The P wave's size on its clearest lead, and its peak where the leads together depart most from straight
     // lines joining the region's ends (summed |departure| over leads): one noisy lead or a lead on a sloping
     // baseline cannot place the peak on a bump of its own, while a P wave moves most leads at once.
-    let mut best_amp = 0.0f32;
-    let mut departure = vec![0.0f32; w];
-    for t in template.iter().filter(|t| present(t)) {
-        let (ya, yb) = (t[start], t[stop]);
-        for k in start..=stop {
-            let line = ya + (yb - ya) * (k - start) as f32 / (stop - start) as f32;
-            let d = (t[k] - line).abs();
-            departure[k] += d;
-            best_amp = best_amp.max(d);
-        }
-    }
-    let peak = (start..=stop).max_by(|&a, &b| departure[a].total_cmp(&departure[b]))?;
+    let each = departures(template.iter().filter(|t| present(t)), (start, stop));
+    let best_amp = each.iter().flatten().copied().fold(0.0f32, f32::max);
+    let departure = summed(&each);
+    let peak = start + (0..departure.len()).max_by(|&a, &b| departure[a].total_cmp(&departure[b]))?;
     if best_amp < MIN_P_UV || peak <= start || peak >= stop {
         return None;
     }
@@ -270,10 +263,10 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     // SELECT_FROM: in noise the others' lags scatter as much as the noise moves their best match, and blur the P
     // wave again.
     let at_qrs: Vec<(usize, isize)> = onsets.iter().map(|&(q, _)| (q, 0)).collect();
-    let (on, end) = edges(sig, &at_qrs, w, (start, peak, stop))?;
+    let found = edges(sig, &at_qrs, w, (start, peak, stop))?;
     let first = PModel {
-        on_rel: on as isize - w as isize,
-        end_rel: end as isize - w as isize,
+        on_rel: found.on as isize - w as isize,
+        end_rel: found.end as isize - w as isize,
         ..PModel::of(template, sig.samples(0.020))
     };
     let need = first.compared_tail();
@@ -284,15 +277,16 @@ fn model_in(sig: &Signals, onsets: &[(usize, usize)], w: usize) -> Option<(PMode
     let median_c =
         if cs.len() < SELECT_FROM { f64::NEG_INFINITY } else { *cs.select_nth_unstable_by(mid, f64::total_cmp).1 };
     let aligned: Vec<(usize, isize)> = matched.iter().filter(|m| m.2 >= median_c).map(|m| (m.0, m.1)).collect();
-    // Where the realigned median's P wave runs to an end of the search region and the first median's does not,
-    // the realignment has blurred a small P wave into the baseline, and the first median's edges stay (LUDB 19
-    // read with lead II alone at 250 Hz: P waves of 368 ms from the previous T end to the QRS).
-    let near = sig.samples(CUT_S);
-    let at_an_end = |(a, b): (usize, usize)| a <= start + near || b + near >= stop;
-    let (on, end) = edges(sig, &aligned, w, (start, peak, stop))
-        .filter(|&second| !at_an_end(second) || at_an_end((on, end)))
-        .unwrap_or((on, end));
-    let cut = on <= start + near;
+    // Where the realigned median's P wave runs back to the start of the search region and the first median's
+    // does not, the realignment has blurred a small P wave into the baseline, and the first median's edges stay
+    // (LUDB 19 read with lead II alone at 250 Hz: P waves of 368 ms from the previous T end to the QRS); the P
+    // wave is then not taken as cut by the window either, as the first median's is not. (A P wave may end where
+    // the region does, 20 ms before the QRS, when the PR is short.)
+    let found = edges(sig, &aligned, w, (start, peak, stop))
+        .filter(|second| !second.from_start || found.from_start)
+        .unwrap_or(found);
+    let (on, end) = (found.on, found.end);
+    let cut = on <= start + sig.samples(CUT_S);
     let mut m = PModel { on_rel: on as isize - w as isize, end_rel: end as isize - w as isize, ..first };
     // Beats holding no lead the template has cannot be compared and are left out.
     let corrs: Vec<f64> = segs.iter().filter_map(|(s, _)| m.similarity(s)).collect();
@@ -312,7 +306,7 @@ fn edges(
     beats: &[(usize, isize)],
     w: usize,
     (start, peak, stop): (usize, usize, usize),
-) -> Option<(usize, usize)> {
+) -> Option<Edges> {
     // Slope envelope over the leads of the median of the beats' PR windows, each low-passed to the P band (P_LP_HZ
     // on top of the 40 Hz leads): muscle noise above the P wave's band would otherwise add a rectified floor and
     // bumps to the envelope that move the edges outwards.
@@ -364,7 +358,35 @@ fn edges(
     let walk = Walk::new(&env, &shown, (start, stop), sig.samples(EDGE_REACH_S));
     let (on, up) = walk.onset(up, on_level, on_dip)?;
     let (end, down) = walk.end(down, end_level, end_dip)?;
-    Some(refine(sig, beats, w, &fine, (start, stop), (on, up, on_level), (end, down, end_level)))
+    let from_start = on == start;
+    let (on, end) = refine(sig, beats, w, &fine, (start, stop), (on, up, on_level), (end, down, end_level));
+    Some(Edges { on, end, from_start })
+}
+
+/// A P wave's edges in a PR window, and whether the onset walk ran back to the search region's start.
+struct Edges {
+    on: usize,
+    end: usize,
+    from_start: bool,
+}
+
+/// Each of `leads`' |departure| from the straight line joining its values at `start` and `stop`, at every sample
+/// of `start..=stop` (index 0 at `start`).
+fn departures<'a>(leads: impl Iterator<Item = &'a Vec<f32>>, (start, stop): (usize, usize)) -> Vec<Vec<f32>> {
+    leads
+        .map(|t| {
+            let (ya, yb) = (t[start], t[stop]);
+            (start..=stop)
+                .map(|k| (t[k] - (ya + (yb - ya) * (k - start) as f32 / (stop - start) as f32)).abs())
+                .collect()
+        })
+        .collect()
+}
+
+/// `each` (one row per lead) summed over the leads, sample by sample.
+fn summed(each: &[Vec<f32>]) -> Vec<f32> {
+    let n = each.first().map_or(0, Vec::len);
+    (0..n).map(|k| each.iter().map(|d| d[k]).sum()).collect()
 }
 
 /// The multi-lead P slope envelope `env` of the leads `shown`, walked out from a steepest slope to a P edge within
@@ -372,7 +394,7 @@ fn edges(
 /// stops falling low enough that it is no dip within the limb (see [`DIP_FRACTION`]); where it does neither
 /// (noise between P and T), to the quietest sample within reach. An edge where the leads still stand at more
 /// than [`INSIDE_SHARE`] of the P wave's height is the still top of one phase of the wave, and the walk goes on
-/// from the steepest slope within reach beyond it.
+/// from the steepest slope within reach beyond it (past at most [`MAX_TOPS`] tops, and as many reaches).
 struct Walk<'a> {
     env: &'a [f32],
     start: usize,
@@ -387,15 +409,14 @@ struct Walk<'a> {
 
 impl<'a> Walk<'a> {
     fn new(env: &'a [f32], shown: &[&Vec<f32>], (start, stop): (usize, usize), reach: usize) -> Self {
-        let span = (stop - start).max(1) as f32;
-        let departure: Vec<f32> = (start..=stop)
-            .map(|k| {
-                let along = (k - start) as f32 / span;
-                shown.iter().map(|t| (t[k] - (t[start] + (t[stop] - t[start]) * along)).abs()).sum()
-            })
-            .collect();
+        let departure = summed(&departures(shown.iter().copied(), (start, stop)));
         let height = departure.iter().copied().fold(0.0, f32::max);
         Self { env, start, stop, reach, departure, height }
+    }
+
+    /// The sample of `r` where the envelope is steepest (highest).
+    fn steepest(&self, r: impl Iterator<Item = usize>) -> Option<usize> {
+        r.max_by(|&a, &b| self.env[a].total_cmp(&self.env[b]))
     }
 
     /// Whether the leads at `k` stand at more than [`INSIDE_SHARE`] of the P wave's height.
@@ -409,21 +430,24 @@ impl<'a> Walk<'a> {
     }
 
     /// The P onset walked back from the steepest upslope `up` (threshold `level`, dip level `dip`), past at most
-    /// [`MAX_PHASES`] still tops; with the upslope it was last walked from.
+    /// [`MAX_TOPS`] still tops and no further than that many reaches before `up`; with the upslope it was last
+    /// walked from.
     fn onset(&self, mut up: usize, level: f32, dip: f32) -> Option<(usize, usize)> {
         let env = self.env;
+        let first = up.saturating_sub(MAX_TOPS * self.reach).max(self.start);
         let back = |up: usize| {
-            let from = up.saturating_sub(self.reach).max(self.start);
+            let from = up.saturating_sub(self.reach).max(first);
             (from..=up)
                 .rev()
                 .find(|&k| env[k] <= level || (k > from && k < up && env[k] <= dip && env[k - 1] > env[k]))
                 .or_else(|| self.quietest(from..=up))
         };
         let mut on = back(up)?;
-        for _ in 0..MAX_PHASES {
-            let steepest =
-                (on.saturating_sub(self.reach).max(self.start)..on).max_by(|&a, &b| env[a].total_cmp(&env[b]));
-            match steepest.filter(|&u| self.inside(on) && env[u] > dip) {
+        for _ in 0..MAX_TOPS {
+            if !self.inside(on) {
+                break;
+            }
+            match self.steepest(on.saturating_sub(self.reach).max(first)..on).filter(|&u| env[u] > dip) {
                 Some(u) => (up, on) = (u, back(u)?),
                 None => break,
             }
@@ -434,16 +458,19 @@ impl<'a> Walk<'a> {
     /// The P end walked on from the steepest downslope `down`, as [`Walk::onset`] walks back.
     fn end(&self, mut down: usize, level: f32, dip: f32) -> Option<(usize, usize)> {
         let env = self.env;
+        let last = (down + MAX_TOPS * self.reach).min(self.stop);
         let forth = |down: usize| {
-            let to = (down + self.reach).min(self.stop);
+            let to = (down + self.reach).min(last);
             (down..=to)
                 .find(|&k| env[k] <= level || (k > down && k < to && env[k] <= dip && env[k + 1] > env[k]))
                 .or_else(|| self.quietest(down..=to))
         };
         let mut end = forth(down)?;
-        for _ in 0..MAX_PHASES {
-            let steepest = (end + 1..=(end + self.reach).min(self.stop)).max_by(|&a, &b| env[a].total_cmp(&env[b]));
-            match steepest.filter(|&d| self.inside(end) && env[d] > dip) {
+        for _ in 0..MAX_TOPS {
+            if !self.inside(end) {
+                break;
+            }
+            match self.steepest(end + 1..=(end + self.reach).min(last)).filter(|&d| env[d] > dip) {
                 Some(d) => (down, end) = (d, forth(d)?),
                 None => break,
             }

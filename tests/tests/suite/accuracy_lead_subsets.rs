@@ -11,16 +11,22 @@
 
 use isoline_core::analysis::analyze;
 use isoline_core::beat::{Beat, Boundaries};
-use isoline_core::filter::FilterSettings;
-use isoline_core::io;
+use isoline_core::filter::{Biquad, FilterSettings, filtfilt};
 use isoline_core::units::Hertz;
-use isoline_tests::data;
-use isoline_tests::ludb::{LEADS, lead_waves};
+use isoline_tests::ludb::{self, LEADS, lead_waves};
 use isoline_tests::score::mean_sd;
 
 /// Two-lead subsets read: a limb lead with a chest lead, as in two-lead recordings (not I with II, from which the
-/// workstation derives the other limb leads).
-const PAIRS: [[&str; 2]; 5] = [["ii", "v5"], ["ii", "v1"], ["iii", "v2"], ["avf", "v6"], ["i", "v4"]];
+/// workstation derives the other limb leads); with the share of the beats the experts give a P onset that must
+/// get one.
+// Measured today (shares found): 95.6, 95.3, 66.8, 93.4 and 84.4 %; the limits sit below them. In leads III and
+// V2 (and I and V4) many records' P waves stay under 40 µV, the floor under which no P wave is reported
+// (pwave::MIN_P_UV, which keeps fibrillatory waves from passing for P waves): there the workstation reports no
+// PR rather than one read off a wave it cannot tell from fibrillation. Lowering the floor to 20 µV found 80 % on
+// III+V2 but gave one of the three atrial fibrillation records a PR (measure_ludb) and moved the twelve-lead
+// P onset from +10.2 ± 21.9 to +8.9 ± 23.4 ms.
+const PAIRS: [([&str; 2], f64); 5] =
+    [(["ii", "v5"], 0.9), (["ii", "v1"], 0.9), (["iii", "v2"], 0.6), (["avf", "v6"], 0.9), (["i", "v4"], 0.8)];
 /// Boundaries scored, in the order of [`marks`].
 const NAMES: [&str; 5] = ["p_on", "p_end", "qrs_on", "qrs_end", "t_end"];
 /// Sampling rate of the LUDB records, Hz.
@@ -57,31 +63,24 @@ fn marks(waves: &[[Vec<Wave>; 3]], (prev, r, next): (usize, usize, usize)) -> [O
     [first(&p), last(&p), first(&q), last(&q), last(&t)]
 }
 
-/// `x` at half its rate: smoothed by [1/4, 1/2, 1/4] (zero gain at the new Nyquist frequency), then every
-/// second sample.
-// Common practice, no source: the shortest filter that keeps what folds back at the halved rate small.
+/// `x` (sampled at [`FS`]) at half its rate: low-passed at 100 Hz with the workstation's zero-phase filter, then
+/// every second sample.
+// Common practice, no source: a cutoff below the halved rate's Nyquist frequency (125 Hz) keeps what folds back
+// small, and above the 40 Hz the boundary finders low-pass the leads to.
 fn halved(x: &[f32]) -> Vec<f32> {
-    let n = x.len();
-    (0..n / 2)
-        .map(|k| {
-            let i = 2 * k;
-            0.25 * x[i.saturating_sub(1)] + 0.5 * x[i] + 0.25 * x[(i + 1).min(n - 1)]
-        })
-        .collect()
+    let lp = [Biquad::lowpass(100.0, FS)];
+    let x: Vec<f64> = x.iter().map(|&v| f64::from(v)).collect();
+    filtfilt(&lp, &x, x.len().min(250)).iter().step_by(2).map(|&v| v as f32).collect()
 }
 
 /// Errors (ms, ours − experts') of each boundary over LUDB records 1–50 read with `leads` only (at half their
-/// rate when `half`), and per record the P onset errors.
-fn errors(leads: &[&str], half: bool) -> (Errors, PerRecord) {
+/// rate when `half`); per record the P onset errors; and how many beats the experts give a P onset.
+fn errors(leads: &[&str], half: bool) -> (Errors, PerRecord, usize) {
     let mut all: Errors = Default::default();
     let mut p_on = Vec::new();
+    let mut p_marked = 0;
     for n in 1..=50 {
-        if !data(&format!("ludb/{n}.global.csv")).exists() {
-            continue;
-        }
-        let opened = io::open(&data(&format!("ludb/{n}.hea")), &io::OpenOptions::default())
-            .unwrap_or_else(|e| panic!("ludb {n}: {e}"));
-        let mut recording = opened.recording;
+        let Some(mut recording) = ludb::recording(n) else { continue };
         let mut kept = Vec::new();
         for l in leads {
             let k = LEADS.iter().position(|x| x == l).unwrap_or_else(|| panic!("no lead {l}"));
@@ -104,6 +103,7 @@ fn errors(leads: &[&str], half: bool) -> (Errors, PerRecord) {
             let prev = if i > 0 { beats[i - 1].r + SAME_BEAT } else { 0 };
             let next = beats.get(i + 1).map_or(usize::MAX, |x| x.r.saturating_sub(SAME_BEAT));
             let theirs = marks(&waves, (prev, b.r, next));
+            p_marked += usize::from(theirs[0].is_some());
             for (k, (o, t)) in ours(b).into_iter().zip(theirs).enumerate() {
                 if let (Some(o), Some(t)) = (o, t) {
                     let e = (o as f64 - t as f64) * 1000.0 / FS;
@@ -116,7 +116,7 @@ fn errors(leads: &[&str], half: bool) -> (Errors, PerRecord) {
         }
         p_on.push((n, record_p));
     }
-    (all, p_on)
+    (all, p_on, p_marked)
 }
 
 /// `b` with every sample index multiplied by `step` (from a halved rate back to the records' own).
@@ -143,9 +143,9 @@ fn ours(b: &Beat) -> [Option<usize>; 5] {
 }
 
 /// Prints the figures of `leads` (at half rate when `half`) and checks the P onset against the goal: |mean| ≤
-/// 10 ms, SD ≤ 15 ms, over at least `min_beats` beats.
-fn check_p_onset(leads: &[&str], half: bool, min_beats: usize) {
-    let (all, records) = errors(leads, half);
+/// 10 ms, SD ≤ 15 ms, found on at least `min_found` of the beats the experts give one.
+fn check_p_onset(leads: &[&str], half: bool, min_found: f64) {
+    let (all, records, marked) = errors(leads, half);
     let line: Vec<String> = NAMES
         .iter()
         .zip(&all)
@@ -154,7 +154,14 @@ fn check_p_onset(leads: &[&str], half: bool, min_beats: usize) {
             None => format!("{name} –"),
         })
         .collect();
-    println!("{}{}: {}", leads.join("+"), if half { " at 250 Hz" } else { "" }, line.join("  "));
+    let found = all[0].len() as f64 / marked.max(1) as f64;
+    println!(
+        "{}{}: {}  (P onset on {} of {marked} beats the experts give one)",
+        leads.join("+"),
+        if half { " at 250 Hz" } else { "" },
+        line.join("  "),
+        all[0].len()
+    );
     let scattered: Vec<String> = records
         .iter()
         .filter_map(|(n, e)| mean_sd(e).filter(|&(m, s)| m.abs() > 20.0 || s > 20.0).map(|(m, s)| (n, m, s)))
@@ -163,22 +170,22 @@ fn check_p_onset(leads: &[&str], half: bool, min_beats: usize) {
     println!("  records with P onset beyond ±20 ms: {}", scattered.join(", "));
     let Some((m, s)) = mean_sd(&all[0]) else { panic!("{leads:?}: no P onset scored") };
     assert!(m.abs() <= 10.0 && s <= 15.0, "{leads:?}: P onset {m:+.1} ± {s:.1} ms");
-    assert!(all[0].len() >= min_beats, "{leads:?}: {} P onsets scored", all[0].len());
+    assert!(found >= min_found, "{leads:?}: P onset on {} of {marked} beats the experts give one", all[0].len());
 }
 
 #[test]
 fn ludb_on_two_leads_p_onset_against_the_same_two_leads() {
     // Goal (issue 3, P onset): |mean| ≤ 10 ms, SD ≤ 15 ms, for each pair of leads. Before the P edge walk went
     // past a biphasic P wave's still top (pwave::INSIDE_SHARE), II+V1 read 17.5, III+V2 16.0 and I+V4 18.3 ms.
-    for pair in PAIRS {
-        check_p_onset(&pair, false, 200);
+    for (pair, min_found) in PAIRS {
+        check_p_onset(&pair, false, min_found);
     }
 }
 
 #[test]
 fn ludb_on_lead_ii_at_250_hz_p_onset_against_lead_ii() {
-    // The same goal with lead II alone at 250 Hz. Before a P edge walk could start from the search region's first
-    // sample, the realigned median of LUDB 19's small P waves placed each P onset 258 ms before the experts'
-    // (−13.5 ± 38.8 ms pooled; now −7.4 ± 9.5).
-    check_p_onset(&["ii"], true, 250);
+    // The same goal with lead II alone at 250 Hz. Before the realigned median's P edges were set aside where its
+    // P wave ran back to the start of the search region (and the first median's did not), LUDB 19's small P waves
+    // had each P onset 258 ms before the experts' (−13.5 ± 38.8 ms pooled).
+    check_p_onset(&["ii"], true, 0.9);
 }
