@@ -345,8 +345,9 @@ fn edges(
         })
         .collect();
     let env = smooth(&raw_env, (sig.samples(0.016).max(1)) | 1);
-    let up = (start..peak).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
-    let down = (peak + 1..=stop).max_by(|&a, &b| env[a].total_cmp(&env[b]))?;
+    let walk = Walk::new(&env, &shown, (start, stop), sig.samples(EDGE_REACH_S));
+    let up = walk.steepest(start..peak)?;
+    let down = walk.steepest(peak + 1..=stop)?;
     let quiet_before = env[start..=up].iter().copied().fold(f32::INFINITY, f32::min);
     let quiet_after = env[down..=stop].iter().copied().fold(f32::INFINITY, f32::min);
     let on_level = quiet_before + EDGE_FRACTION * (env[up] - quiet_before);
@@ -355,7 +356,6 @@ fn edges(
     // within the limb: on a flat baseline the threshold may lie inside the noise of the summed envelope.
     let on_dip = quiet_before + DIP_FRACTION * (env[up] - quiet_before);
     let end_dip = quiet_after + DIP_FRACTION * (env[down] - quiet_after);
-    let walk = Walk::new(&env, &shown, (start, stop), sig.samples(EDGE_REACH_S));
     let (on, up) = walk.onset(up, on_level, on_dip)?;
     let (end, down) = walk.end(down, end_level, end_dip)?;
     let from_start = on == start;
