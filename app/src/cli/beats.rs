@@ -36,9 +36,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         to_stderr!("isoline: warning: {w}");
     }
     let raw = &opened.recording;
-    if raw.leads.is_empty() || raw.is_empty() {
-        anyhow::bail!("{}: the recording has no samples", args.file.display());
-    }
+    super::refuse_empty(raw, &args.file)?;
     let fs = raw.sample_rate;
     // No RR interval spans a stretch where nothing was recorded.
     let gaps = raw.gaps();

@@ -42,3 +42,12 @@ pub fn refuse_to_overwrite(out: &std::path::Path, inputs: &[std::path::PathBuf])
     }
     Ok(())
 }
+
+/// Refuses a recording read from `path` that holds no sample (an EDF header declaring no data records, say): it
+/// has nothing to detect, measure or draw.
+pub fn refuse_empty(recording: &isoline_core::Recording, path: &std::path::Path) -> anyhow::Result<()> {
+    if recording.leads.is_empty() || recording.is_empty() {
+        anyhow::bail!("{}: the recording has no samples", path.display());
+    }
+    Ok(())
+}

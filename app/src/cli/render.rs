@@ -78,9 +78,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         to_stderr!("isoline: warning: {w}");
     }
     let raw = &opened.recording;
-    if raw.leads.is_empty() || raw.is_empty() {
-        bail!("{file}: the recording has no samples");
-    }
+    super::refuse_empty(raw, &args.file)?;
     if !(args.start.is_finite() && args.start >= 0.0 && args.start < raw.duration_s()) {
         // A huge or tiny start is written short (1e300 and -1e-300, not 300 digits).
         let plain = args.start == 0.0 || (1e-3..1e6).contains(&args.start.abs());

@@ -57,11 +57,7 @@ type Outcome = anyhow::Result<(Row, Vec<String>, Vec<PathBuf>)>;
 
 fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
     let opened = io::open(path, &io::OpenOptions { csv_rate_hz: rate })?;
-    // As `beats` and `render` refuse it: a recording with no sample has nothing to measure (an EDF header
-    // declaring no data records).
-    if opened.recording.leads.is_empty() || opened.recording.is_empty() {
-        anyhow::bail!("{}: the recording has no samples", path.display());
-    }
+    crate::cli::refuse_empty(&opened.recording, path)?;
     let m = analyze(&opened.recording);
     let r = &opened.recording;
     let row = Row {
