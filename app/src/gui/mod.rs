@@ -9,12 +9,12 @@ use std::sync::Arc;
 
 use anyhow::Context as _;
 use isoline_core::filter::FilterSettings;
-use isoline_core::io::{self, OpenOptions};
+use isoline_core::io::{self, OpenOptions, wfdb_annotations};
+use isoline_core::render::TapeEnvelope;
 
 pub mod beat_lens;
 pub mod calipers_ui;
 pub mod command;
-pub mod derived;
 mod edits;
 mod export;
 pub mod ledger;
@@ -313,8 +313,8 @@ pub fn load(path: &Path) -> anyhow::Result<Loaded> {
         .lead_index(&isoline_core::LeadName::Standard(isoline_core::StandardLead::II))
         .or_else(|| order.first().map(|o| o.0))
         .unwrap_or(0);
-    let tape = derived::TapeEnvelope::new(&rec, tape_lead);
-    let beats = derived::beats_from_annotations(&rec.annotations, rec.len());
+    let tape = TapeEnvelope::new(&rec, tape_lead);
+    let beats = wfdb_annotations::beats_from_annotations(&rec.annotations, rec.len());
     let beats_source =
         if beats.is_empty() { "analysing…".to_string() } else { format!("{} annotated beats", beats.len()) };
     let gaps = rec.gaps();

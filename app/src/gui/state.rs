@@ -13,13 +13,14 @@ use std::sync::Arc;
 use isoline_core::beat::{Beat, Boundaries, MarkKind};
 use isoline_core::caliper::{Caliper, CaliperKind};
 use isoline_core::io::Format;
+use isoline_core::measure::hrv;
 use isoline_core::paper::{Layout, LeadOrder, PageSpec, Paper, Scheme};
 use isoline_core::recording::Recording;
 
 use isoline_core::analysis::{Analysis, Span};
 use isoline_core::delineate::RepresentativeBeat;
 
-use super::derived::TapeEnvelope;
+use isoline_core::render::TapeEnvelope;
 
 /// Where a value or mark came from (see the vocabulary: `auto`, `moved`, `placed`): the review's own enum.
 pub use isoline_core::review::Origin;
@@ -220,8 +221,8 @@ impl Loaded {
     /// Recomputes the rate trend and median RR from `beats`.
     pub fn derive_rates(&mut self) {
         let fs = self.recording.sample_rate;
-        self.trend = super::derived::rate_trend(&self.beats, fs, &self.gaps);
-        self.median_rr_ms = super::derived::median_rr_ms(&self.beats, fs, &self.gaps);
+        self.trend = hrv::rate_trend(&self.beats, fs, &self.gaps);
+        self.median_rr_ms = hrv::median_rr_ms(&self.beats, fs, &self.gaps);
     }
 
     /// The representative beat, if there were enough beats.

@@ -6,8 +6,8 @@ use egui_plot::{FilledArea, GridInput, GridMark, Line, Plot, PlotPoints, Points,
 use isoline_core::timescale::clock;
 
 use super::command::Command;
-use super::derived::TapeEnvelope;
 use super::state::Loaded;
+use isoline_core::render::TapeEnvelope;
 
 /// Width kept for the y-axis labels of both Tape plots, points, so their time axes line up (room for a
 /// three-digit rate and the axis name).

@@ -38,7 +38,8 @@ fn placing_and_dragging_a_time_caliper_reads_ms_and_bpm() {
     assert!((t1 - 2.0).abs() < 0.02, "first leg where clicked: {t1}");
     // A new time caliper spans the median RR of the detected beats.
     let loaded = h.state().loaded.as_ref().unwrap();
-    let rr_s = isoline::gui::derived::median_rr_ms(&loaded.beats, loaded.recording.sample_rate, &loaded.gaps).unwrap()
+    let rr_s = isoline_core::measure::hrv::median_rr_ms(&loaded.beats, loaded.recording.sample_rate, &loaded.gaps)
+        .unwrap()
         / 1000.0;
     assert!((t2 - t1 - rr_s).abs() < 1e-9, "span {} vs RR {rr_s}", t2 - t1);
     // Drag the second leg to 800 ms after the first.

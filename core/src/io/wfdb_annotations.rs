@@ -8,6 +8,7 @@
 use std::path::Path;
 
 use super::{ReadError, file_len, read_bytes};
+use crate::beat::{Beat, BeatKind};
 use crate::recording::Annotation;
 
 /// Largest annotation file read (64 MiB; a 24-h Holter annotation file is a few MB).
@@ -45,6 +46,34 @@ pub fn is_beat(label: &str) -> bool {
         label,
         "N" | "L" | "R" | "B" | "A" | "a" | "J" | "S" | "V" | "r" | "F" | "e" | "j" | "n" | "E" | "/" | "f" | "Q" | "?"
     )
+}
+
+/// Whether a WFDB annotation label marks a beat, and of which kind. Normal and bundle-branch beats count as
+/// dominant; premature, escape, fusion, paced and unclassifiable beats as other; rhythm and signal notes are
+/// not beats.
+///
+/// Source: PhysioNet WFDB annotation codes (ecgcodes.h), MIT-BIH Arrhythmia Database directory of records.
+#[must_use]
+pub fn beat_kind_from_label(label: &str) -> Option<BeatKind> {
+    if !is_beat(label) {
+        return None;
+    }
+    Some(if matches!(label, "N" | "L" | "R" | "B") { BeatKind::Dominant } else { BeatKind::Other })
+}
+
+/// Beats from the recording's beat annotations, in time order.
+#[must_use]
+pub fn beats_from_annotations(annotations: &[Annotation], len: usize) -> Vec<Beat> {
+    let mut beats: Vec<Beat> = annotations
+        .iter()
+        .filter_map(|a| {
+            let kind = beat_kind_from_label(&a.label)?;
+            let r = usize::try_from(a.sample).ok().filter(|&r| r < len)?;
+            Some(Beat::at(r, kind))
+        })
+        .collect();
+    beats.sort_by_key(|b| b.r);
+    beats
 }
 
 /// Reads an annotation file.

@@ -13,7 +13,7 @@ use crate::beat::{Beat, BeatKind};
 use crate::gaps;
 use crate::units::{Hertz, bpm_from_rr_ms};
 
-use super::stats::{mean, sample_sd};
+use super::stats::{mean, median, sample_sd};
 
 /// Beat-to-beat variation (RMSSD over the mean, of the intervals the regularity is judged on) at or above which
 /// the rhythm is called irregular (10 %). Judged beat to beat, not by the overall spread: over hours the rate
@@ -108,6 +108,33 @@ pub fn nn_runs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<f64>
 #[must_use]
 pub fn nn_pairs(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<(usize, usize)>> {
     pairs(beats, fs, gaps, Kept::Nn)
+}
+
+/// Heart-rate trend points `(time of the second beat in s, 60000 / RR ms)` for consecutive dominant beats, in
+/// runs: a run breaks where another beat interrupts the dominant beats, or at a gap of the recording (`gaps`,
+/// see [`crate::Recording::gaps`]; also within 200 ms of either beat, [`gaps::breaks_rr`]),
+/// so the trend is not drawn across a premature beat and its pause, or across time nothing was recorded, as if a
+/// rate had been measured there.
+///
+/// Source: references.md §10 (HR = 60 / RR in s).
+#[must_use]
+pub fn rate_trend(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Vec<Vec<[f64; 2]>> {
+    let rate_hz = fs.hz();
+    nn_pairs(beats, fs, gaps)
+        .into_iter()
+        .map(|run| {
+            run.into_iter().map(|(a, b)| [b as f64 / rate_hz, 60_000.0 / ((b - a) as f64 * 1000.0 / rate_hz)]).collect()
+        })
+        .collect()
+}
+
+/// Median RR of consecutive dominant beats (the NN intervals of [`nn_pairs`], none across or next to `gaps`),
+/// ms.
+#[must_use]
+pub fn median_rr_ms(beats: &[Beat], fs: Hertz, gaps: &[Range<usize>]) -> Option<f64> {
+    let rr: Vec<f64> =
+        nn_pairs(beats, fs, gaps).into_iter().flatten().map(|(a, b)| fs.ms_from_samples((b - a) as f64)).collect();
+    median(&rr)
 }
 
 /// Which intervals [`pairs`] keeps, and where a run of them breaks besides at gaps of the recording.
@@ -353,5 +380,33 @@ mod tests {
         assert_eq!(rhythm(&b, fs(), &[]).regular, Some(true));
         assert_eq!(rhythm(&b[..3], fs(), &[]).regular, None);
         assert_eq!(rr_stats(&b[..1], fs(), &[]).rr_ms, None);
+    }
+
+    fn hz500() -> Hertz {
+        Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!())
+    }
+
+    #[test]
+    fn rate_trend_uses_dominant_pairs() {
+        let beats =
+            [Beat::at(0, BeatKind::Dominant), Beat::at(400, BeatKind::Dominant), Beat::at(600, BeatKind::Other)];
+        let t = rate_trend(&beats, hz500(), &[]);
+        // 400 samples at 500 Hz = 800 ms -> 75 bpm (references.md §10).
+        assert_eq!(t.len(), 1);
+        assert_eq!(t[0].len(), 1);
+        assert!((t[0][0][1] - 75.0).abs() < 1e-9);
+        assert_eq!(median_rr_ms(&beats, hz500(), &[]), Some(800.0));
+    }
+
+    #[test]
+    fn rate_trend_breaks_at_other_beats() {
+        // Dominant every 400 samples with one premature other beat between the third and fourth: two runs, the
+        // second starting after the beat that follows the premature one.
+        let kinds = [(0, true), (400, true), (800, true), (1000, false), (1600, true), (2000, true), (2400, true)];
+        let beats: Vec<Beat> =
+            kinds.iter().map(|&(r, d)| Beat::at(r, if d { BeatKind::Dominant } else { BeatKind::Other })).collect();
+        let t = rate_trend(&beats, hz500(), &[]);
+        let times: Vec<Vec<f64>> = t.iter().map(|run| run.iter().map(|p| p[0]).collect()).collect();
+        assert_eq!(times, [vec![0.8, 1.6], vec![4.0, 4.8]]);
     }
 }

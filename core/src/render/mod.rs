@@ -32,6 +32,7 @@ mod notes;
 mod overlay;
 mod page;
 mod png;
+mod tape;
 mod text;
 mod trace;
 
@@ -48,6 +49,7 @@ pub use self::ledger_lines::{
     LEDGER_KEYS, LedgerValue, header_fields, ledger_lines, ledger_lines_from, ledger_notes, rhythm_field, signal_notes,
 };
 pub use self::png::{check_png_name, encode_png, write_png_atomic};
+pub use self::tape::TapeEnvelope;
 pub use self::trace::{Column, decimate_min_max};
 
 /// The page's first header line for the recording in file `file_name`: the file name when the export may
