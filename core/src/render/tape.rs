@@ -22,7 +22,7 @@ pub struct TapeEnvelope {
 const TAPE_BUCKETS: usize = 4096;
 
 impl TapeEnvelope {
-    /// Envelope of `lead` in at most [`TAPE_BUCKETS`] buckets. Cost: one pass over the samples.
+    /// Envelope of `lead` in at most 4096 buckets (`TAPE_BUCKETS`). Cost: one pass over the samples.
     #[must_use]
     pub fn new(recording: &Recording, lead: usize) -> Self {
         let Some(samples) = recording.leads.get(lead).map(|l| l.samples.as_slice()) else {
