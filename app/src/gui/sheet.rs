@@ -86,8 +86,7 @@ pub fn color(c: Rgba) -> Color32 {
 /// Seconds the Sheet shows: 10 s for the multi-column layouts (the conventional page), else the width available.
 #[must_use]
 pub fn window_seconds(view: &ViewSettings, available_mm: f64, duration_s: f64) -> f64 {
-    let fixed = margins::LEFT_MM + margins::CALIBRATION_MM + margins::RIGHT_MM;
-    let fit = ((available_mm - fixed) / view.paper.speed_mm_per_s).max(1.0);
+    let fit = isoline_core::paper::seconds_fitting(&view.paper, available_mm);
     let s = match view.layout {
         isoline_core::paper::Layout::ThreeByFourPlusOne { .. } | isoline_core::paper::Layout::SixByTwo => 10.0,
         _ => fit,
@@ -141,12 +140,10 @@ pub fn draw_page(
                 text_font.clone(),
                 color(pal.text),
             );
-            if cell.x_mm > margins::LEFT_MM + margins::CALIBRATION_MM + 1.0 {
-                // A short tick marks the column boundary, as on printed pages.
-                let a = geo.screen_from_paper(cell.x_mm, row.baseline_mm - 2.5);
-                let b = geo.screen_from_paper(cell.x_mm, row.baseline_mm + 2.5);
-                painter.line_segment([a, b], trace);
-            }
+        }
+        // A short tick marks each column boundary, as on the exported page.
+        for (x, top, bottom) in row.column_ticks() {
+            painter.line_segment([geo.screen_from_paper(x, top), geo.screen_from_paper(x, bottom)], trace);
         }
     }
     painter.text(

@@ -10,7 +10,9 @@ mod page;
 mod scheme;
 
 pub use layout::{Layout, LeadOrder, PaperError};
-pub use page::{Cell, NO_SIGNAL, Page, PageSpec, Row, calibration_space_mm, margins, ordered_leads};
+pub use page::{
+    COLUMN_TICK_MM, Cell, NO_SIGNAL, Page, PageSpec, Row, calibration_space_mm, margins, ordered_leads, seconds_fitting,
+};
 pub use scheme::{Palette, Rgba, Scheme};
 
 /// Millimetres per inch, exact by the 1959 international yard and pound agreement.

@@ -188,6 +188,17 @@ impl PageSpec {
     }
 }
 
+/// How far a column tick ([`Row::column_ticks`]) reaches above and below the baseline, mm.
+pub const COLUMN_TICK_MM: f64 = 3.0;
+
+/// Seconds of trace that fit a page `width_mm` wide on `paper` (one column: margins, the calibration space
+/// [`calibration_space_mm`] and the right margin taken off), at least 1 s.
+#[must_use]
+pub fn seconds_fitting(paper: &Paper, width_mm: f64) -> f64 {
+    let fixed = margins::LEFT_MM + calibration_space_mm(paper) + margins::RIGHT_MM;
+    paper.seconds_from_mm(width_mm - fixed).max(1.0)
+}
+
 /// Space before the traces for the calibration pulse, mm: `margins::CALIBRATION_MM`, or more at fast speeds
 /// where the 200 ms pulse is wider (2 mm offset + 1 mm lead-in + pulse + 1 mm lead-out + 1 mm gap), rounded up
 /// to whole 5 mm squares so traces still start on a heavy line.
@@ -260,6 +271,17 @@ impl Row {
     pub fn uv_from_y(&self, paper: &Paper, y_mm: f64, inverted: bool) -> f64 {
         let v = paper.uv_from_mm(self.baseline_mm - y_mm);
         if inverted { -v } else { v }
+    }
+
+    /// The column-boundary ticks of the row: for every cell but the first, its left edge `x` and the tick's
+    /// ends above and below the baseline, `(x, y_top, y_bottom)` in paper mm. Printed pages mark where one column's
+    /// window ends and the next begins with a short bar through the baseline.
+    // Common practice, no source: a bar of about a large square (6 mm here).
+    pub fn column_ticks(&self) -> impl Iterator<Item = (f64, f64, f64)> + '_ {
+        self.cells
+            .iter()
+            .skip(1)
+            .map(|c| (c.x_mm, self.baseline_mm - COLUMN_TICK_MM, self.baseline_mm + COLUMN_TICK_MM))
     }
 
     /// Corner points of the 1 mV calibration pulse (step up, 200 ms plateau, step down) as paper mm,

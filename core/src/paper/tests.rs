@@ -155,3 +155,32 @@ fn a_cell_without_valid_samples_says_so() {
     // A window wholly past the end of what is held keeps the plain label.
     assert_eq!(cell.label_over(&[], 0, 500.0), "I");
 }
+
+#[test]
+fn a_strip_of_the_seconds_that_fit_a_width_is_that_wide_at_every_speed() {
+    // The calibration space grows at 50 and 100 mm/s (the 200 ms pulse is 10 and 20 mm wide): the seconds that
+    // fit must leave room for it, or the end of the window lies past the edge of the view.
+    let rec = twelve_lead();
+    for speed in SPEEDS_MM_PER_S {
+        let paper = Paper { speed_mm_per_s: speed, ..Paper::STANDARD };
+        let seconds = seconds_fitting(&paper, 300.0);
+        let spec = PageSpec { layout: Layout::Strip(StandardLead::II.into()), paper, seconds, ..PageSpec::default() };
+        let page = spec.page(&rec);
+        assert!((page.width_mm - 300.0).abs() < 1e-9, "{speed} mm/s: {seconds} s on a page {} mm wide", page.width_mm);
+    }
+}
+
+#[test]
+fn column_ticks_stand_between_columns_only() {
+    let rec = twelve_lead();
+    for speed in SPEEDS_MM_PER_S {
+        let paper = Paper { speed_mm_per_s: speed, ..Paper::STANDARD };
+        let page = PageSpec { paper, ..PageSpec::default() }.page(&rec);
+        let ticks: Vec<Vec<f64>> = page.rows.iter().map(|r| r.column_ticks().map(|t| t.0).collect()).collect();
+        // Three ticks in each 4-column row, none in the rhythm strip, none at a row's start.
+        assert_eq!(ticks.iter().map(Vec::len).collect::<Vec<_>>(), [3, 3, 3, 0], "{speed} mm/s");
+        for (row, xs) in page.rows.iter().zip(&ticks) {
+            assert_eq!(xs, &row.cells[1..].iter().map(|c| c.x_mm).collect::<Vec<_>>());
+        }
+    }
+}

@@ -123,7 +123,7 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
     let label = Style { pt: LABEL_PT, bold: true, color: pal.text };
     for row in &page.rows {
         trace::draw_calibration(canvas, &paper, row, pal.trace);
-        for (j, cell) in row.cells.iter().enumerate() {
+        for cell in &row.cells {
             trace::draw_cell(
                 canvas,
                 (input.recording, input.first_sample),
@@ -133,16 +133,10 @@ fn draw_rows(canvas: &mut Canvas, fonts: &Fonts, input: &RenderInput, page: &Pag
                 (area.y0, area.y1),
                 pal.trace,
             );
-            if j > 0 {
-                // A short bar where one column's window ends and the next begins.
-                canvas.segment(
-                    (cell.x_mm, row.baseline_mm - 3.0),
-                    (cell.x_mm, row.baseline_mm + 3.0),
-                    pal.trace,
-                    trace::TRACE_MM,
-                    None,
-                );
-            }
+        }
+        // A short bar where one column's window ends and the next begins.
+        for (x, top, bottom) in row.column_ticks() {
+            canvas.segment((x, top), (x, bottom), pal.trace, trace::TRACE_MM, None);
         }
     }
     // Labels last, so no trace covers them.
