@@ -4,6 +4,8 @@
 //! (QTc then follows the reviewed QT and RR through `measure::qtc_checked`).
 
 use isoline_core::measure::{self, MeasuredValue, RangeNote, Sex, Template, ranges};
+use isoline_core::review::QTC_INPUT_KEYS;
+use isoline_core::units::bpm_from_rr_ms;
 
 use super::command::Command;
 use super::state::{Document, Loaded, Origin};
@@ -120,11 +122,7 @@ fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
     for v in rev.iter_mut().filter(|v| v.lead.is_none()) {
         if let Some(&x) = doc.reviewed.get(v.key) {
             v.value = Some(x);
-            v.note = match v.key {
-                "pr_ms" => ranges::pr(x),
-                "qrs_ms" => ranges::qrs(x),
-                _ => None,
-            };
+            v.note = ranges::for_value(v.key, x, sex);
         }
     }
     let get = |rev: &[MeasuredValue], key: &str| rev.iter().find(|v| v.key == key).and_then(|v| v.value);
@@ -137,19 +135,20 @@ fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
     {
         rr = Some(60_000.0 / hr);
     }
+    // A typed RR gives the heart rate, unless the reader typed that too (then both stand as typed).
     if doc.reviewed.contains_key("rr_ms")
+        && !doc.reviewed.contains_key("heart_rate_bpm")
         && let Some(v) = rev.iter_mut().find(|v| v.key == "heart_rate_bpm")
     {
-        // Source: references.md §10 (HR = 60000 / RR in ms).
-        v.value = rr.filter(|&r| r > 0.0).map(|r| 60_000.0 / r);
-        v.note = v.value.and_then(ranges::heart_rate);
+        v.value = rr.and_then(bpm_from_rr_ms);
+        v.note = v.value.and_then(|x| ranges::for_value(v.key, x, sex));
     }
-    if ["qt_ms", "rr_ms", "heart_rate_bpm"].iter().any(|k| doc.reviewed.contains_key(*k)) {
+    if QTC_INPUT_KEYS.iter().any(|k| doc.reviewed.contains_key(*k)) {
         let q = measure::qtc_checked(qt, rr);
-        for (key, name) in measure::qtc::FORMULAS {
+        for (key, _) in measure::qtc::FORMULAS {
             if let Some(v) = rev.iter_mut().find(|v| v.key == key) {
                 v.value = q.and_then(|q| q.by_key(key));
-                v.note = v.value.and_then(|x| ranges::qtc(key, name, x, sex));
+                v.note = v.value.and_then(|x| ranges::for_value(key, x, sex));
             }
         }
     }
@@ -299,5 +298,50 @@ mod tests {
         assert!(!has("pr_ms", ranges::KEY_SAMPLING));
         let fine = measure::Measurements { sample_rate_hz: Some(500.0), baseline_step_uv: None, ..m };
         assert!(row_extra_notes("qrs_ms", &fine).is_empty() && row_extra_notes("qt_ms", &fine).is_empty());
+    }
+
+    /// The Ledger's reviewed values after the reader typed `typed` (key, value) on a recording measured as
+    /// `auto` (heart rate 60, RR 1000, QT 400).
+    fn typed(typed: &[(&str, f64)]) -> Vec<MeasuredValue> {
+        let auto = measure::Measurements {
+            rr: measure::RrStats { rr_ms: Some(1000.0), heart_rate_bpm: Some(60.0), ..Default::default() },
+            intervals: measure::Intervals { qt_ms: Some(400.0), ..Default::default() },
+            ..measure::Measurements::default()
+        };
+        let mut rev = auto.values();
+        let doc =
+            Document { reviewed: typed.iter().map(|&(k, v)| (k.to_string(), v)).collect(), ..Document::default() };
+        apply_overrides(&mut rev, &doc, Sex::Unknown);
+        rev
+    }
+
+    fn value(rev: &[MeasuredValue], key: &str) -> Option<f64> {
+        rev.iter().find(|v| v.key == key).and_then(|v| v.value)
+    }
+
+    #[test]
+    fn a_typed_rr_gives_the_rate_but_a_typed_rate_stands() {
+        // RR 800 ms typed: heart rate 75 bpm (references.md §10), QTc by Bazett 400 / √0.8 = 447 ms.
+        let rev = typed(&[("rr_ms", 800.0)]);
+        assert_eq!(value(&rev, "heart_rate_bpm"), Some(75.0));
+        assert!(value(&rev, "qtc_bazett_ms").is_some_and(|q| (q - 447.2).abs() < 0.1));
+        // Both typed: each stands as the reader typed it (before, the rate was overwritten by 60000 / RR and the
+        // saved review lost the typed one); QTc follows the typed RR, as the saved review's does.
+        let rev = typed(&[("rr_ms", 800.0), ("heart_rate_bpm", 70.0)]);
+        assert_eq!(value(&rev, "heart_rate_bpm"), Some(70.0));
+        assert!(value(&rev, "qtc_bazett_ms").is_some_and(|q| (q - 447.2).abs() < 0.1));
+    }
+
+    #[test]
+    fn a_typed_value_outside_its_usual_range_gets_the_same_note_as_an_automatic_one() {
+        // Before, only a typed PR or QRS was noted: a typed rate of 40 bpm or a QRS axis of −60° said nothing.
+        let rev = typed(&[("heart_rate_bpm", 40.0), ("axis_qrs_deg", -60.0), ("qrs_ms", 130.0)]);
+        for key in ["heart_rate_bpm", "axis_qrs_deg", "qrs_ms"] {
+            let note = rev.iter().find(|v| v.key == key).and_then(|v| v.note.clone());
+            let x = value(&rev, key).unwrap_or(f64::NAN);
+            assert_eq!(note, ranges::for_value(key, x, Sex::Unknown), "{key}");
+            assert!(note.is_some(), "{key}");
+        }
+        assert!(typed(&[("heart_rate_bpm", 72.0)]).iter().all(|v| v.note.is_none()));
     }
 }

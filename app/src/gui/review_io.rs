@@ -152,7 +152,7 @@ pub fn document_from_review(review: &Review, loaded: &Loaded) -> Document {
     }
     let rows = super::ledger::rows(loaded, &doc);
     // QTc values recomputed from a reviewed QT, RR or rate are derived, not typed: the Ledger recomputes them.
-    let qtc_derived = ["qt_ms", "rr_ms", "heart_rate_bpm"]
+    let qtc_derived = isoline_core::review::QTC_INPUT_KEYS
         .iter()
         .any(|k| review.measurement(k).is_some_and(|m| m.reviewed_value.is_some()));
     for m in &review.measurements {

@@ -175,6 +175,20 @@ pub fn qrs(ms: f64) -> Option<RangeNote> {
     note("qrs_ms", text, SOURCE_QRS)
 }
 
+/// The range note of a value a reader gives for `key` (typed, taken from a caliper, or derived from one): the
+/// same limits the automatic values are held to in [`super::Measurements::values`] (heart rate, PR, QRS, each
+/// QTc, QRS axis); `None` for a key without limits or a value within them.
+#[must_use]
+pub fn for_value(key: &str, value: f64, sex: Sex) -> Option<RangeNote> {
+    match key {
+        "heart_rate_bpm" => heart_rate(value),
+        "pr_ms" => pr(value),
+        "qrs_ms" => qrs(value),
+        "axis_qrs_deg" => qrs_axis(value),
+        _ => super::qtc::FORMULAS.iter().find(|(k, _)| *k == key).and_then(|(k, name)| qtc(k, name, value, sex)),
+    }
+}
+
 /// QTc by one formula against the usual limits: ≥ 450 ms men, ≥ 460 ms women, ≤ 390 ms short (Rautaharju et
 /// al. 2009 — from memory), > 500 ms (Johnson & Ackerman 2009).
 #[must_use]
@@ -568,5 +582,19 @@ mod tests {
         assert_eq!(Sex::parse(Some(" F ")), Sex::Female);
         assert_eq!(Sex::parse(Some("male")), Sex::Male);
         assert_eq!(Sex::parse(None), Sex::Unknown);
+    }
+
+    #[test]
+    fn a_readers_value_is_held_to_the_automatic_values_limits() {
+        // Source: the limits of each key's own note (heart rate 60–100 bpm, PR, QRS, QTc by formula, QRS axis).
+        assert_eq!(for_value("heart_rate_bpm", 45.0, Sex::Unknown), heart_rate(45.0));
+        assert_eq!(for_value("pr_ms", 240.0, Sex::Unknown), pr(240.0));
+        assert_eq!(for_value("qrs_ms", 130.0, Sex::Unknown), qrs(130.0));
+        assert_eq!(for_value("axis_qrs_deg", -60.0, Sex::Unknown), qrs_axis(-60.0));
+        assert_eq!(for_value("qtc_hodges_ms", 470.0, Sex::Male), qtc("qtc_hodges_ms", "Hodges", 470.0, Sex::Male));
+        for key in ["heart_rate_bpm", "pr_ms", "qrs_ms", "axis_qrs_deg", "qtc_hodges_ms"] {
+            assert!(for_value(key, if key == "axis_qrs_deg" { -60.0 } else { 600.0 }, Sex::Male).is_some(), "{key}");
+        }
+        assert_eq!(for_value("qt_ms", 600.0, Sex::Unknown), None, "QT has no range of its own");
     }
 }

@@ -39,6 +39,7 @@ pub mod model;
 pub mod save;
 mod v1;
 
+pub use derived::QTC_INPUT_KEYS;
 pub use history::{Change, Timestamp};
 pub use identity::{RecordingIdentity, signal_sha256};
 pub use load::{load, load_for};
