@@ -405,8 +405,17 @@ fn keyboard(app: &IsolineApp, ctx: &egui::Context) -> Vec<Command> {
             out.push(Command::SetTool(Tool::Pointer));
             out.push(Command::Select(None));
         }
-        for (k, n) in [(Key::ArrowLeft, -1), (Key::ArrowRight, 1), (Key::ArrowDown, -1), (Key::ArrowUp, 1)] {
-            if sel.is_some() && i.key_pressed(k) {
+        // ← / → move a time leg or plumb line, ↑ / ↓ a voltage level (see SHORTCUTS); each only its own kind.
+        let is_voltage = sel
+            .and_then(|(id, _)| app.doc.caliper(id))
+            .map(|c| matches!(c.kind, isoline_core::caliper::CaliperKind::Voltage { .. }));
+        for (k, n, vertical) in [
+            (Key::ArrowLeft, -1, false),
+            (Key::ArrowRight, 1, false),
+            (Key::ArrowDown, -1, true),
+            (Key::ArrowUp, 1, true),
+        ] {
+            if is_voltage == Some(vertical) && i.key_pressed(k) {
                 out.push(Command::Nudge(n));
             }
         }

@@ -121,6 +121,11 @@ fn arrow_keys_nudge_the_selected_leg_by_one_sample() {
     h.key_press(egui::Key::ArrowLeft);
     settle(&mut h);
     assert!((legs(&h).1 - t2 - 0.001).abs() < 1e-9);
+    // ↑ / ↓ step voltage levels (the shortcuts' help): a time leg stays (before, ↑ moved it a sample).
+    h.key_press(egui::Key::ArrowUp);
+    h.key_press(egui::Key::ArrowDown);
+    settle(&mut h);
+    assert!((legs(&h).1 - t2 - 0.001).abs() < 1e-9);
 }
 
 #[test]
@@ -151,6 +156,18 @@ fn voltage_caliper_and_plumb_line() {
     let c = h.state().doc.calipers[0].clone();
     assert!((c.amplitude_uv().unwrap() - 1000.0).abs() < 1.0, "{:?}", c.kind);
     assert_eq!(c.lead.as_deref(), Some("II"));
+    // ↑ raises the selected level by 10 µV; ← / → leave it (before, → raised it too).
+    let level = |h: &Harness<'static, IsolineApp>| match h.state().doc.calipers[0].kind {
+        CaliperKind::Voltage { uv2, .. } => uv2,
+        _ => f64::NAN,
+    };
+    let before = level(&h);
+    h.key_press(egui::Key::ArrowRight);
+    settle(&mut h);
+    assert_eq!(level(&h), before);
+    h.key_press(egui::Key::ArrowUp);
+    settle(&mut h);
+    assert!((level(&h) - before - 10.0).abs() < 1e-9, "{} after {before}", level(&h));
     h.get_by_label("Plumb line").click();
     settle(&mut h);
     let p = sheet_point(&h, 4.0);
