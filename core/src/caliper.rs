@@ -1,5 +1,6 @@
 //! Calipers: the reader's measuring tools, as plain data with their readings.
 
+use crate::recording::LeadName;
 use crate::units::bpm_from_rr_ms;
 
 /// What a caliper measures.
@@ -47,6 +48,18 @@ pub struct Caliper {
 }
 
 impl Caliper {
+    /// Whether the caliper is drawn on a trace of lead `lead` (`None`: a trace of no lead of the recording): a
+    /// caliper placed on a lead (a voltage caliper) only on that lead, its name read as [`LeadName::parse`] reads
+    /// it (so `ii` is lead II); any other everywhere.
+    #[must_use]
+    pub fn shows_on(&self, lead: Option<&LeadName>) -> bool {
+        match (&self.lead, lead) {
+            (None, _) => true,
+            (Some(name), Some(lead)) => LeadName::parse(name) == *lead,
+            (Some(_), None) => false,
+        }
+    }
+
     /// Interval in ms of a time caliper (always positive), else `None`.
     #[must_use]
     pub fn interval_ms(&self) -> Option<f64> {
@@ -146,5 +159,21 @@ mod tests {
             assert!((a - b).abs() < 1e-9);
         }
         assert!(time(1.0, 1.8, false).march_times(0.0, 4.0).is_empty());
+    }
+
+    #[test]
+    fn a_voltage_caliper_shows_on_its_own_lead_however_its_name_is_spelled() {
+        let on = |name: &str| Caliper {
+            id: 2,
+            kind: CaliperKind::Voltage { t_s: 1.0, uv1: 0.0, uv2: 1000.0 },
+            lead: Some(name.to_string()),
+            locked: false,
+            march: false,
+        };
+        let ii = LeadName::parse("II");
+        // Before, the Sheet compared the names as text and hid a caliper saved as `ii`, which the PNG drew.
+        assert!(on("II").shows_on(Some(&ii)) && on("ii").shows_on(Some(&ii)));
+        assert!(!on("V1").shows_on(Some(&ii)) && !on("II").shows_on(None));
+        assert!(time(1.0, 2.0, false).shows_on(Some(&ii)) && time(1.0, 2.0, false).shows_on(None));
     }
 }

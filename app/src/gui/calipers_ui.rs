@@ -143,10 +143,7 @@ pub fn hit(geo: &SheetGeometry, loaded: &Loaded, doc: &Document, p: Pos2) -> Opt
             CaliperKind::Time { t1_s, t2_s } => vec![(t1_s, Part::First), (t2_s, Part::Second)],
             CaliperKind::Plumb { t_s } => vec![(t_s, Part::First)],
             CaliperKind::Voltage { t_s, uv1, uv2 } => {
-                let on_lead = c
-                    .lead
-                    .as_deref()
-                    .is_none_or(|l| loaded.recording.leads.get(cell.lead).is_some_and(|x| x.name.to_string() == l));
+                let on_lead = c.shows_on(loaded.recording.leads.get(cell.lead).map(|x| &x.name));
                 if on_lead && cell.contains_time(t_s) && (geo.x_of_time(cell, t_s) - p.x).abs() < 40.0 {
                     for (uv, part) in [(uv2, Part::Second), (uv1, Part::First)] {
                         let y = geo.screen_from_paper(0.0, row.y_from_uv(&geo.page.paper, uv, cell.inverted)).y;
@@ -218,10 +215,7 @@ fn draw_caliper(
                     }
                 }
                 CaliperKind::Voltage { t_s, uv1, uv2 } => {
-                    let on_lead = c
-                        .lead
-                        .as_deref()
-                        .is_none_or(|l| loaded.recording.leads.get(cell.lead).is_some_and(|x| x.name.to_string() == l));
+                    let on_lead = c.shows_on(loaded.recording.leads.get(cell.lead).map(|x| &x.name));
                     if !on_lead || !cell.contains_time(t_s) {
                         continue;
                     }

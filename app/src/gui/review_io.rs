@@ -175,7 +175,7 @@ pub fn document_from_review(review: &Review, loaded: &Loaded) -> Document {
 pub fn matches_recording(review: &Review, recording_path: &Path) -> anyhow::Result<bool> {
     let sha = isoline_core::review::signal_sha256(recording_path)
         .with_context(|| format!("reading {} for its identity", recording_path.display()))?;
-    Ok(sha == review.recording.sha256)
+    Ok(review.recording.is_signal(&sha))
 }
 
 /// The review's file, stage, summary and save button.

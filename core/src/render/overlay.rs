@@ -5,7 +5,7 @@ use super::text::{Align, Fonts, Style};
 use crate::beat::MarkKind;
 use crate::caliper::{Caliper, CaliperKind};
 use crate::paper::{Cell, Page, Palette, Row};
-use crate::recording::{LeadName, Recording};
+use crate::recording::Recording;
 
 const LEG_MM: f64 = 0.2;
 const MARCH_MM: f64 = 0.12;
@@ -75,10 +75,7 @@ pub(super) fn draw_marks(canvas: &mut Canvas, fonts: &Fonts, page: &Page, marks:
 
 /// Whether a voltage caliper belongs on this cell (same lead name, or no lead given).
 fn on_lead(recording: &Recording, cal: &Caliper, cell: &Cell) -> bool {
-    match &cal.lead {
-        None => true,
-        Some(name) => recording.leads.get(cell.lead).is_some_and(|l| l.name == LeadName::parse(name)),
-    }
+    cal.shows_on(recording.leads.get(cell.lead).map(|l| &l.name))
 }
 
 /// Draws the calipers. The readout goes on the first cell (top to bottom, left to right) that shows it.

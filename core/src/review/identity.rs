@@ -59,6 +59,13 @@ impl RecordingIdentity {
         })
     }
 
+    /// Whether signal content with SHA-256 `found` (hex, as [`signal_sha256`] gives it) is this recording's:
+    /// the hex compared without regard to case, as a review file written by hand may spell it in capitals.
+    #[must_use]
+    pub fn is_signal(&self, found: &str) -> bool {
+        self.sha256.eq_ignore_ascii_case(found)
+    }
+
     /// Where the recording is expected, resolving [`Self::relative_path`] against the review file's folder.
     #[must_use]
     pub fn recording_path(&self, review_path: &Path) -> PathBuf {
@@ -200,6 +207,15 @@ mod tests {
         let mut h = Sha256::new();
         h.update(b"abc");
         assert_eq!(hex(&h.finalize()), "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+    }
+
+    #[test]
+    fn a_signal_hash_matches_in_either_case() {
+        // Before, the workstation compared the hex exactly and called a review whose hash was written in capitals
+        // "made for a different recording", while `load_for` accepted it.
+        let id = RecordingIdentity { sha256: "ab".repeat(32), ..RecordingIdentity::example() };
+        assert!(id.is_signal(&"AB".repeat(32)) && id.is_signal(&"ab".repeat(32)));
+        assert!(!id.is_signal(&"0".repeat(64)));
     }
 
     #[test]

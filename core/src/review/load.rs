@@ -147,7 +147,7 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
 pub fn load_for(review_path: &Path, recording_path: &Path) -> Result<Review, ReviewError> {
     let review = load(review_path)?;
     let found = signal_sha256(recording_path)?;
-    if !review.recording.sha256.eq_ignore_ascii_case(&found) {
+    if !review.recording.is_signal(&found) {
         return Err(ReviewError::RecordingMismatch { expected: review.recording.sha256, found });
     }
     Ok(review)
