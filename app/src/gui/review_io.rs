@@ -122,6 +122,10 @@ pub fn build_review(input: &ReviewInput<'_>) -> anyhow::Result<Review> {
             }
         }
     }
+    // The representative beat's R peak, as `review new` records it (`Review::put_analysis`).
+    if let Some(rep) = loaded.representative() {
+        r.put_automatic_mark(MarkKind::RPeak, MarkOn::Representative, rep.r_index, rep.r_index as f64 / fs)?;
+    }
     for c in &doc.calipers {
         if !r.calipers.contains(c) {
             r.put_caliper(c.clone(), reader)?;

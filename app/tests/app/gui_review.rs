@@ -59,6 +59,11 @@ fn a_saved_review_comes_back_with_its_recording() {
     let text = std::fs::read_to_string(&review_path).unwrap();
     assert!(text.contains("reader: \"AB\""), "{text}");
     assert!(text.contains("qt_ms"));
+    // The marks of the representative beat, its R peak too, as `review new` records them.
+    let saved = isoline_core::review::load(&review_path).unwrap();
+    for kind in MarkKind::BOUNDARIES.into_iter().chain([MarkKind::RPeak]) {
+        assert!(saved.mark(kind, isoline_core::review::MarkOn::Representative).is_some(), "{kind:?}");
+    }
     let qt_before = h.state().ledger_rows().into_iter().find(|r| r.key == "qt_ms").unwrap();
     assert_eq!(h.state().settings.reader.as_deref(), Some("AB"));
 
