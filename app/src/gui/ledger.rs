@@ -3,7 +3,7 @@
 //! measurement on the review's marks, with values the reader typed or took from a caliper taking precedence
 //! (QTc then follows the reviewed QT and RR through `measure::qtc_checked`).
 
-use isoline_core::measure::{self, MeasuredValue, RangeNote, Sex, Template, ranges};
+use isoline_core::measure::{self, MeasuredValue, RangeNote, Sex, ranges};
 use isoline_core::review::QTC_INPUT_KEYS;
 use isoline_core::units::bpm_from_rr_ms;
 
@@ -49,16 +49,9 @@ pub fn rows(loaded: &Loaded, doc: &Document) -> Vec<LedgerRow> {
     let Some(an) = &loaded.analysis else { return Vec::new() };
     let auto = an.measurements.values();
     let mut rev = match loaded.representative() {
-        Some(rep) if !doc.marks.is_empty() => {
-            let bounds = doc.effective_marks(&rep.bounds);
-            let t = Template {
-                leads: &rep.leads,
-                sample_rate: rep.sample_rate,
-                bounds,
-                baseline_step_uv: rep.baseline_step_uv,
-            };
-            measure::measure(&loaded.recording, &an.beats, Some(&t)).values()
-        }
+        Some(rep) if !doc.marks.is_empty() => an
+            .measured_with(&loaded.recording, doc.effective_marks(&rep.bounds))
+            .map_or_else(|| auto.clone(), |m| m.values()),
         _ => auto.clone(),
     };
     apply_overrides(&mut rev, doc, an.measurements.sex);

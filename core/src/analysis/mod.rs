@@ -1,7 +1,7 @@
 //! The analysis pipeline of one recording: filters → beat detection → wave boundaries → representative beat →
 //! measurements. The raw recording is never changed; everything here is derived data.
 
-use crate::beat::Beat;
+use crate::beat::{Beat, Boundaries};
 use crate::delineate::{self, RepresentativeBeat};
 use crate::detect;
 use crate::filter::{self, FilterSettings};
@@ -89,6 +89,17 @@ pub fn analyze(recording: &Recording, settings: &FilterSettings) -> Analysis {
 }
 
 impl Analysis {
+    /// The measurements taken again with the representative beat's boundaries `bounds` (a reader's marks) in
+    /// place of the automatic ones, on the same samples as the analysis measured (`recording` being the
+    /// recording analysed: its filtered copy where one is kept, else `recording` itself, as for a long one).
+    /// `None` without a representative beat.
+    #[must_use]
+    pub fn measured_with(&self, recording: &Recording, bounds: Boundaries) -> Option<Measurements> {
+        let rep = self.representative.as_ref()?;
+        let template = Template { bounds, ..template_of(rep) };
+        Some(measure::measure(self.filtered.as_ref().unwrap_or(recording), &self.beats, Some(&template)))
+    }
+
     /// The filtered samples `a..b` of `recording` (the recording analysed), as [`Span::cut`] gives them: cut
     /// from the whole filtered copy, or for a long recording filtered with [`MARGIN_S`] on each side, as its
     /// windows were.
@@ -134,6 +145,22 @@ mod tests {
     use crate::recording::{Lead, LeadName, Meta};
     use crate::units::Hertz;
     use proptest::prelude::*;
+
+    #[test]
+    fn measured_again_on_the_automatic_marks_gives_the_analysis_own_measurements() {
+        // The normal demo with V6's electrode off but drifting 5 µV over the 10 s: as recorded the lead is not
+        // flat, after the baseline filter it is, and the analysis leaves it out of ST and the axes. Measured
+        // again on the recording as recorded (as the Ledger did before), V6 got an ST level of its own.
+        let mut s = crate::synth::generate(&crate::synth::Scenario::Normal.spec()).unwrap_or_else(|e| panic!("{e}"));
+        let v6 = s.recording.leads.len() - 1;
+        let n = s.recording.len();
+        s.recording.leads[v6].samples = (0..n).map(|k| 5.0 * k as f32 / n as f32).collect();
+        let a = analyze(&s.recording, &FilterSettings::default());
+        let rep = a.representative.as_ref().unwrap_or_else(|| panic!("no representative beat"));
+        let again = a.measured_with(&s.recording, rep.bounds).map(|m| m.values());
+        assert_eq!(again, Some(a.measurements.values()));
+        assert!(a.measurements.st.last().is_some_and(|st| st.j_uv.is_none()), "{:?}", a.measurements.st.last());
+    }
 
     proptest! {
         #![proptest_config(ProptestConfig::with_cases(24))]
