@@ -229,4 +229,19 @@ mod tests {
         b.extend([0, 0]);
         assert_eq!(parse(Path::new("t.atr"), &b).map(|a| a.len()).ok(), Some(2));
     }
+
+    #[test]
+    fn beats_come_from_beat_labels_only_in_time_order() {
+        // Source: PhysioNet WFDB annotation codes: N, L, R, B normal or bundle-branch beats; V premature
+        // ventricular, / paced; + a rhythm change and ( a wave onset, not beats.
+        let at = Annotation::new;
+        let notes = [at(900, "N"), at(100, "L"), at(500, "V"), at(300, "+"), at(700, "("), at(800, "/"), at(5000, "N")];
+        let beats = beats_from_annotations(&notes, 1000);
+        let got: Vec<(usize, BeatKind)> = beats.iter().map(|b| (b.r, b.kind)).collect();
+        assert_eq!(
+            got,
+            [(100, BeatKind::Dominant), (500, BeatKind::Other), (800, BeatKind::Other), (900, BeatKind::Dominant)],
+            "the beat past the recording's end is left out"
+        );
+    }
 }
