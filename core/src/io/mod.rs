@@ -145,6 +145,9 @@ fn open_as_written(path: &Path, options: &OpenOptions) -> Result<Opened, ReadErr
             std::io::Error::new(std::io::ErrorKind::NotFound, "file does not exist (nor a .hea record of that name)"),
         )),
         Some("dat") => Err(ReadError::unsupported(path, "open the record's .hea header, not its .dat signal file")),
+        _ if path.is_dir() => {
+            Err(ReadError::unsupported(path, "a folder, not a recording (give a .hea, .edf or .csv file)"))
+        }
         _ => Err(ReadError::unsupported(path, "unknown file type (expected .hea, .edf or .csv)")),
     }
 }
@@ -260,6 +263,9 @@ mod tests {
         std::fs::write(&other, "x")?;
         let msg = open(&other, &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
         assert!(msg.contains("unknown file type"), "{msg}");
+        // A folder is said to be one (before: "unknown file type").
+        let msg = open(dir.path(), &OpenOptions::default()).err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(msg.contains("a folder, not a recording"), "{msg}");
         Ok(())
     }
 

@@ -71,14 +71,14 @@ pub struct Rhythm {
 }
 
 impl Rhythm {
-    /// `regular`, `irregular` or `not enough beats`, followed by the number of other beats when there are any
+    /// `regular`, `irregular` or `not called (too few beats)`, followed by the number of other beats when there are any
     /// ("regular, 2 other beats").
     #[must_use]
     pub fn describe(&self) -> String {
         let call = match self.regular {
             Some(true) => "regular",
             Some(false) => "irregular",
-            None => "not enough beats",
+            None => "not called (too few beats)",
         };
         match self.other_beats {
             0 => call.to_string(),

@@ -242,7 +242,7 @@ mod tests {
         assert_eq!(field, Some(("Rhythm (automatic)".to_owned(), "regular, 2 other beats".to_owned())));
         let unsteady = Rhythm { rr_count: 8, regular: Some(false), ..Rhythm::default() };
         assert_eq!(rhythm_field(&with(unsteady)).map(|f| f.1), Some("irregular".to_owned()));
-        // Too few beats for a call: no field, rather than "not enough beats" on a page.
+        // Too few beats for a call: no field, rather than "not called" on a page.
         assert_eq!(rhythm_field(&with(Rhythm::default())), None);
     }
 

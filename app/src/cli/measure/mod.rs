@@ -82,6 +82,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
             to_stderr!("isoline: note: {}: {}", path.display(), walk::PASSED_OVER);
         }
     }
+    for path in &found.needs_rate {
+        to_stderr!("isoline: note: {}: {}", path.display(), walk::NEEDS_RATE);
+    }
     if found.files.is_empty() {
         // Nothing to measure (e.g. an empty folder): say why, one line per path, and write no table.
         for (path, e) in &found.errors {

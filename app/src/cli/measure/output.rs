@@ -304,7 +304,7 @@ mod tests {
         // The rhythm call is in the table also for a recording without any note.
         let quiet = Row { m: Measurements { beats: 10, dominant_beats: 10, ..Measurements::default() }, ..row() };
         assert!(quiet.notes().is_empty());
-        assert!(to_table(&[quiet]).contains("ward 4, bed 2.hea: rhythm not enough beats"));
+        assert!(to_table(&[quiet]).contains("ward 4, bed 2.hea: rhythm not called (too few beats)"));
     }
 
     #[test]

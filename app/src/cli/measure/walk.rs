@@ -18,6 +18,10 @@ pub const NO_RECORDINGS: &str = "no recordings found (.hea, .edf, .csv with a ti
 pub const PASSED_OVER: &str =
     "passed over as a table: its header is neither time_s first nor standard lead names (name the file to read it)";
 
+/// Why a `.csv` in a folder whose header names standard leads only was not measured without `--rate`.
+pub const NEEDS_RATE: &str =
+    "passed over: its columns are lead names with no time_s column; give --rate HZ (its sampling rate) to measure it";
+
 /// Deepest folder nesting walked.
 const MAX_DEPTH: usize = 32;
 
@@ -30,6 +34,9 @@ pub struct Found {
     pub errors: Vec<(PathBuf, String)>,
     /// `.csv` files in folders passed over as tables, not recordings (see [`csv_text_looks_like_recording`]).
     pub passed_over: Vec<PathBuf>,
+    /// `.csv` files in folders whose header names standard leads only, passed over for want of a sampling rate
+    /// (they are recordings when `--rate` is given).
+    pub needs_rate: Vec<PathBuf>,
 }
 
 fn has_extension(path: &Path, exts: &[&str]) -> bool {
@@ -77,6 +84,7 @@ fn is_recording(path: &Path, rate_given: bool) -> Result<Kind, String> {
         () if !meta.is_file() => Kind::Other,
         () if !csv => Kind::Recording,
         () if csv_looks_like_recording(path, rate_given)? => Kind::Recording,
+        () if !rate_given && csv_looks_like_recording(path, true)? => Kind::NeedsRate,
         () => Kind::Table,
     })
 }
@@ -86,6 +94,8 @@ enum Kind {
     Recording,
     /// A `.csv` that is not a recording.
     Table,
+    /// A `.csv` that would be a recording with a sampling rate given.
+    NeedsRate,
     /// Not named as a recording, or not a regular file.
     Other,
 }
@@ -119,6 +129,7 @@ fn walk_dir(dir: &Path, depth: usize, rate_given: bool, found: &mut Found) {
             match is_recording(&path, rate_given) {
                 Ok(Kind::Recording) => found.files.push(path),
                 Ok(Kind::Table) => found.passed_over.push(path),
+                Ok(Kind::NeedsRate) => found.needs_rate.push(path),
                 Ok(Kind::Other) => {}
                 Err(e) => found.errors.push((path, e)),
             }
@@ -145,6 +156,12 @@ pub fn find_recordings(inputs: &[PathBuf], rate_given: bool) -> Found {
             found.files.push(input.clone());
         }
     }
+    // A recording named twice (a folder and a file in it, or a record with and without `.hea`) is measured once.
+    let mut seen = std::collections::HashSet::new();
+    found.files.retain(|p| {
+        let p = isoline_core::io::wfdb::header_path(p).unwrap_or_else(|| p.clone());
+        seen.insert(std::fs::canonicalize(&p).unwrap_or(p))
+    });
     found
 }
 
@@ -252,10 +269,26 @@ mod tests {
         };
         let without = find_recordings(&[dir.path().to_path_buf()], false);
         assert!(without.files.is_empty());
-        assert_eq!(names(&without.passed_over), ["bed-3.csv", "labels.csv"]);
+        assert_eq!(names(&without.passed_over), ["labels.csv"]);
+        // The lead-only one is told apart, so the command can say that a rate would read it.
+        assert_eq!(names(&without.needs_rate), ["bed-3.csv"]);
         let with = find_recordings(&[dir.path().to_path_buf()], true);
         assert_eq!(names(&with.files), ["bed-3.csv"]);
         assert_eq!(names(&with.passed_over), ["labels.csv"]);
+        assert!(with.needs_rate.is_empty());
+        Ok(())
+    }
+
+    #[test]
+    fn a_recording_named_twice_is_measured_once() -> std::io::Result<()> {
+        let dir = tempfile::tempdir()?;
+        for name in ["bed-1.hea", "bed-2.edf"] {
+            std::fs::write(dir.path().join(name), b"x")?;
+        }
+        let folder = dir.path().to_path_buf();
+        let paths = [folder.clone(), folder.join("bed-2.edf"), folder.join("bed-1"), folder.join("./bed-1.hea")];
+        let found = find_recordings(&paths, false);
+        assert_eq!(found.files, [folder.join("bed-1.hea"), folder.join("bed-2.edf")]);
         Ok(())
     }
 }
