@@ -19,6 +19,10 @@ pub struct Meta {
     pub recording_info: Option<String>,
     /// Equipment, if known.
     pub device: Option<String>,
+    /// Leads (indices into the recording's leads) whose file gives no gain, read at a default one: their
+    /// amplitudes may be far from the truth ([`super::Recording::signal_notes`] says so).
+    #[serde(default)]
+    pub uncalibrated_leads: Vec<usize>,
 }
 
 /// In a de-identified copy, an age at or above this is written as this age ("90 or older").
@@ -40,6 +44,7 @@ impl Meta {
             age_years: self.age_years.filter(|a| a.is_finite()).map(|a| a.min(OLDEST_AGE_SHOWN)),
             recording_info: None,
             device: None,
+            uncalibrated_leads: self.uncalibrated_leads.clone(),
         }
     }
 }
@@ -111,6 +116,7 @@ mod tests {
             age_years: Some(56.0),
             recording_info: Some("bed 4".into()),
             device: Some("Ward 3 cart".into()),
+            uncalibrated_leads: vec![1],
         };
         let d = m.deidentified();
         assert!(d.patient_id.is_none() && d.patient_name.is_none() && d.birth_date.is_none());

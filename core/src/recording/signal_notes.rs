@@ -49,7 +49,23 @@ impl Recording {
         notes.extend(self.flat_lead_notes());
         notes.extend(self.clipped_lead_notes());
         notes.extend(self.amplitude_doubt());
+        notes.extend(self.uncalibrated_note());
         notes
+    }
+
+    /// That leads were read at an assumed gain (the file gives none, [`super::Meta::uncalibrated_leads`]): their
+    /// µV and mV values, ST levels and axes may be wrong; times are not affected.
+    #[must_use]
+    pub fn uncalibrated_note(&self) -> Option<String> {
+        let leads: Vec<&Lead> = self.meta.uncalibrated_leads.iter().filter_map(|&i| self.leads.get(i)).collect();
+        let (what, verb) = if leads.len() == 1 { ("lead", "has") } else { ("leads", "have") };
+        (!leads.is_empty()).then(|| {
+            format!(
+                "{what} {} {verb} no gain in the file (uncalibrated): read at an assumed 200 units per mV, so \
+                 amplitudes, ST levels and axes may be wrong (times are not affected)",
+                join_names(&leads)
+            )
+        })
     }
 
     /// A doubt about the recording's amplitude, said once when it is opened: every lead flat, or the largest

@@ -309,3 +309,20 @@ fn clipping_is_noted_only_where_a_lead_is_held_at_its_limit() -> TestResult {
     assert_eq!(clipped, ["qtdb/sel14046.hea ECG1 Some((5110.0, 6)) None"]);
     Ok(())
 }
+
+#[test]
+fn an_uncalibrated_record_says_so_in_its_signal_notes() -> TestResult {
+    // The QT Database's sel14046 header gives both signals a gain of 0 (uncalibrated, WFDB header(5)); they are
+    // read at the default 200 units per mV. The note goes with the recording's signal notes, so `measure` and the
+    // page carry it (before, only a warning on stderr said so). sel100 gives its gains.
+    let notes = |r: &str| -> Result<Vec<String>, Box<dyn std::error::Error>> {
+        Ok(io::open(&data(r), &io::OpenOptions::default())?.recording.signal_notes())
+    };
+    let uncalibrated = notes("qtdb/sel14046.hea")?;
+    assert!(
+        uncalibrated.iter().any(|n| n.starts_with("leads ECG1 and ECG2 have no gain in the file (uncalibrated)")),
+        "{uncalibrated:?}"
+    );
+    assert!(!notes("qtdb/sel100.hea")?.iter().any(|n| n.contains("uncalibrated")));
+    Ok(())
+}

@@ -24,6 +24,7 @@ fn demo_recording() -> Res<Recording> {
             age_years: Some(74.0),
             recording_info: Some("Bed 3, Ward 7 (demo)".into()),
             device: None,
+            uncalibrated_leads: Vec::new(),
         },
         annotations: vec![],
     })

@@ -133,24 +133,6 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
         }
         files.push(plan.path);
     }
-    // A gain of 0 marks an uncalibrated signal (WFDB header(5)); its samples are read at the default gain of 200,
-    // which may be far from the truth (a helper's test: lead I 8.6 times too large, QRS 90 → 72 ms, no word said).
-    let uncalibrated: Vec<String> = header
-        .signals
-        .iter()
-        .enumerate()
-        .filter(|(_, s)| s.uncalibrated)
-        .map(|(i, s)| format!("{} ('{}')", i + 1, crate::io::printable(&s.description)))
-        .collect();
-    if !uncalibrated.is_empty() {
-        let what = if uncalibrated.len() == 1 { "signal" } else { "signals" };
-        warnings.push(format!(
-            "{}: {what} {} uncalibrated (gain 0 or none in the header): read at the WFDB default of 200 units per \
-             mV, so amplitudes may be wrong",
-            hea.display(),
-            crate::recording::spoken_list(&uncalibrated)
-        ));
-    }
     if let Some(first) = mismatched.first() {
         let more = match mismatched.len() {
             1 => String::new(),
@@ -167,6 +149,11 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
     let mut meta =
         Meta { recording_info: (!header.comments.is_empty()).then(|| header.comments.join("\n")), ..Meta::default() };
     parse_comment_fields(&header.comments, &mut meta);
+    // A gain of 0 marks an uncalibrated signal (WFDB header(5)); its samples are read at the default gain of 200,
+    // which may be far from the truth (a helper's test: lead I 8.6 times too large, QRS 90 → 72 ms, no word said).
+    // The recording's signal notes say so, in exports too (`Recording::signal_notes`).
+    meta.uncalibrated_leads =
+        header.signals.iter().enumerate().filter(|(_, s)| s.uncalibrated).map(|(i, _)| i).collect();
     let start = parse_base_datetime(&header.record);
     let mut recording = Recording { leads, sample_rate, start, meta, annotations: Vec::new() };
     let atr = hea.with_extension("atr");
