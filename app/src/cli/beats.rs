@@ -43,7 +43,10 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let settings = filter::FilterSettings::default();
     let (beats, filters) = if raw.duration_s() > analysis::LONG_RECORDING_S {
         // A long recording window by window: memory stays near the recording's own size.
-        analysis::beats_in_windows(raw, &settings, analysis::WINDOW_S)
+        let bar = super::window_bar(raw, "analysed");
+        let found = analysis::beats_in_windows_reporting(raw, &settings, analysis::WINDOW_S, &super::on_window(&bar));
+        bar.finish_and_clear();
+        found
     } else {
         let filtered = filter::apply(raw, &settings);
         // Only the filtered copy is needed from here on.

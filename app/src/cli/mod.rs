@@ -51,3 +51,27 @@ pub fn refuse_empty(recording: &isoline_core::Recording, path: &std::path::Path)
     }
     Ok(())
 }
+
+/// A progress bar on stderr for the windows of a long recording's analysis (see
+/// [`isoline_core::analysis::LONG_RECORDING_S`]): long work shows progress. Hidden for a recording analysed whole,
+/// and by indicatif when stderr is not a terminal. `what` says what is being done ("analysed").
+pub fn window_bar(recording: &isoline_core::Recording, what: &str) -> indicatif::ProgressBar {
+    if recording.duration_s() <= isoline_core::analysis::LONG_RECORDING_S {
+        return indicatif::ProgressBar::hidden();
+    }
+    let bar = indicatif::ProgressBar::new(0);
+    let minutes = isoline_core::analysis::WINDOW_S / 60.0;
+    let template = format!("{{bar:30}} {{pos}}/{{len}} windows of {minutes:.0} min {what}, {{elapsed}}");
+    if let Ok(style) = indicatif::ProgressStyle::with_template(&template) {
+        bar.set_style(style);
+    }
+    bar
+}
+
+/// What [`window_bar`]'s `bar` is told as each window is done: `(windows done, windows in all)`.
+pub fn on_window(bar: &indicatif::ProgressBar) -> impl Fn(usize, usize) + Sync + '_ {
+    move |done, all| {
+        bar.set_length(all as u64);
+        bar.set_position(done as u64);
+    }
+}

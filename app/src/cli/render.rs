@@ -95,7 +95,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         bail!("{file}: --layout {}: the recording has no lead {lead} (it has {})", args.layout, have.join(", "));
     }
     // The page shows what was measured: the filtered recording, with the filters named in the header.
-    let analysis = analysis::analyze(raw, &filter::FilterSettings::default());
+    let bar = super::window_bar(raw, "analysed");
+    let analysis = analysis::analyze_reporting(raw, &filter::FilterSettings::default(), &super::on_window(&bar));
+    bar.finish_and_clear();
     let spec = PageSpec {
         layout,
         order,

@@ -5,7 +5,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, bail};
-use isoline_core::analysis::analyze;
+use isoline_core::analysis::analyze_reporting;
 use isoline_core::filter::FilterSettings;
 use isoline_core::io;
 use isoline_core::recording::Recording;
@@ -79,7 +79,9 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
 /// Runs the measurement engine (default filters) and puts its automatic values and representative-beat marks
 /// into the review.
 fn fill_automatic(review: &mut Review, recording: &Recording) -> anyhow::Result<()> {
-    let analysis = analyze(recording, &FilterSettings::default());
+    let bar = super::window_bar(recording, "analysed");
+    let analysis = analyze_reporting(recording, &FilterSettings::default(), &super::on_window(&bar));
+    bar.finish_and_clear();
     review.put_analysis(&analysis).context("filling the new review")?;
     Ok(())
 }

@@ -10,7 +10,10 @@ use crate::recording::{Lead, Recording};
 
 mod windowed;
 
-pub use windowed::{LONG_RECORDING_S, WINDOW_S, analyze_in_windows, beats_in_windows};
+pub use windowed::{
+    LONG_RECORDING_S, OnWindow, WINDOW_S, analyze_in_windows, analyze_in_windows_reporting, beats_in_windows,
+    beats_in_windows_reporting,
+};
 
 /// Filtered and analysed beyond each end of a span filtered on its own, s (see [`Analysis::filtered_span`]).
 // Common practice, no source: the 0.5 Hz zero-phase high-pass settles within a few seconds, the detector's
@@ -69,8 +72,15 @@ pub fn template_of(rep: &RepresentativeBeat) -> Template<'_> {
 /// ([`analyze_in_windows`], windows of [`WINDOW_S`]), so its working memory stays near its own size.
 #[must_use]
 pub fn analyze(recording: &Recording, settings: &FilterSettings) -> Analysis {
+    analyze_reporting(recording, settings, &|_, _| {})
+}
+
+/// [`analyze`], telling `on_window` as each window of a long recording is done (a recording analysed whole has
+/// no windows and tells nothing).
+#[must_use]
+pub fn analyze_reporting(recording: &Recording, settings: &FilterSettings, on_window: OnWindow<'_>) -> Analysis {
     if recording.duration_s() > LONG_RECORDING_S {
-        return analyze_in_windows(recording, settings, WINDOW_S);
+        return analyze_in_windows_reporting(recording, settings, WINDOW_S, on_window);
     }
     let settings = settings.with_mains_decided(recording);
     let filtered = filter::apply(recording, &settings);

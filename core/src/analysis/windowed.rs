@@ -46,11 +46,26 @@ struct Pass {
     p_model: Option<PModel>,
 }
 
+/// Told `(windows done, windows in all)` each time one of a long recording's windows is analysed, from whichever
+/// thread analysed it (for a progress display; long work shows progress).
+pub type OnWindow<'a> = &'a (dyn Fn(usize, usize) + Sync);
+
 /// Detected and delineated beats of `recording` in windows of `window_s` seconds, with the filters' description.
 /// Beat indices are samples of the whole recording, as from the whole-record pipeline.
 #[must_use]
 pub fn beats_in_windows(recording: &Recording, settings: &FilterSettings, window_s: f64) -> (Vec<Beat>, String) {
-    let pass = windows(recording, settings, window_s, false);
+    beats_in_windows_reporting(recording, settings, window_s, &|_, _| {})
+}
+
+/// [`beats_in_windows`], telling `on_window` as each window is done.
+#[must_use]
+pub fn beats_in_windows_reporting(
+    recording: &Recording,
+    settings: &FilterSettings,
+    window_s: f64,
+    on_window: OnWindow<'_>,
+) -> (Vec<Beat>, String) {
+    let pass = windows(recording, settings, window_s, false, on_window);
     (pass.beats, pass.description)
 }
 
@@ -59,7 +74,18 @@ pub fn beats_in_windows(recording: &Recording, settings: &FilterSettings, window
 /// working memory of one window per core beside the recording.
 #[must_use]
 pub fn analyze_in_windows(recording: &Recording, settings: &FilterSettings, window_s: f64) -> Analysis {
-    let pass = windows(recording, settings, window_s, true);
+    analyze_in_windows_reporting(recording, settings, window_s, &|_, _| {})
+}
+
+/// [`analyze_in_windows`], telling `on_window` as each window is done.
+#[must_use]
+pub fn analyze_in_windows_reporting(
+    recording: &Recording,
+    settings: &FilterSettings,
+    window_s: f64,
+    on_window: OnWindow<'_>,
+) -> Analysis {
+    let pass = windows(recording, settings, window_s, true, on_window);
     let beats = pass.beats;
     let representative = pass.stack.and_then(|s| s.representative(&beats, pass.p_model.as_ref()));
     let measurements = measure::measure(recording, &beats, representative.as_ref().map(template_of).as_ref());
@@ -87,8 +113,14 @@ struct WindowResult {
 /// Filters, detects and delineates `recording` window by window; gathers beats for the representative beat
 /// when `stack`. The windows are analysed on every core at once (each with its own working memory, so a core's
 /// worth of windows at a time) and their results joined in time order, so the result does not depend on the
-/// number of cores.
-fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, stack: bool) -> Pass {
+/// number of cores. `on_window` is told as each window is done.
+fn windows(
+    recording: &Recording,
+    settings: &FilterSettings,
+    window_s: f64,
+    stack: bool,
+    on_window: OnWindow<'_>,
+) -> Pass {
     use rayon::prelude::*;
     let fs = recording.sample_rate.hz();
     let n = recording.len();
@@ -98,6 +130,7 @@ fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, stac
         ((MARGIN_S * fs) as usize, (SEAM_S * fs) as usize, ((REFRACTORY_S * fs) as usize).max(1));
     let empty_stack = stack.then(|| BeatStack::new(recording.sample_rate, n.div_ceil(window)));
     let starts: Vec<usize> = (0..n).step_by(window).collect();
+    let done = std::sync::atomic::AtomicUsize::new(0);
     let results: Vec<WindowResult> = starts
         .par_iter()
         .map(|&start| {
@@ -111,6 +144,7 @@ fn windows(recording: &Recording, settings: &FilterSettings, window_s: f64, stac
                 s.gather(&rec, &found, start - a..end - a);
                 s
             });
+            on_window(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1, starts.len());
             WindowResult { own: start..end, a, description: part_filtered.description, found, model, kept }
         })
         .collect();
@@ -237,5 +271,21 @@ mod tests {
             prop_assert_eq!(span.first, from.min(len));
             prop_assert!(span.recording.leads.iter().all(|l| l.samples.len() == to.min(len) - from.min(len)));
         }
+    }
+
+    #[test]
+    fn each_window_is_told_once_as_it_is_done() {
+        // A 60-s demo in 10-s windows: six windows, each told once with the count done so far and the six in all,
+        // and the beats as without anyone told.
+        let spec = crate::synth::SynthSpec { seconds: 60.0, ..crate::synth::Scenario::Normal.spec() };
+        let rec = crate::synth::generate(&spec).unwrap_or_else(|e| panic!("{e}")).recording;
+        let told = std::sync::Mutex::new(Vec::new());
+        let record =
+            |done: usize, all: usize| told.lock().unwrap_or_else(std::sync::PoisonError::into_inner).push((done, all));
+        let (beats, _) = beats_in_windows_reporting(&rec, &FilterSettings::default(), 10.0, &record);
+        let mut told = told.into_inner().unwrap_or_else(std::sync::PoisonError::into_inner);
+        told.sort_unstable();
+        assert_eq!(told, (1..=6).map(|k| (k, 6)).collect::<Vec<_>>());
+        assert_eq!(beats, beats_in_windows(&rec, &FilterSettings::default(), 10.0).0);
     }
 }

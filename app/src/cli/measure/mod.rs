@@ -47,18 +47,23 @@ pub struct Args {
     pub rate: Option<f64>,
 }
 
-/// Measures one recording: filters, beats, boundaries, representative beat, measurements.
-fn analyze(recording: &Recording) -> Measurements {
-    isoline_core::analysis::analyze(recording, &FilterSettings::default()).measurements
+/// Measures one recording: filters, beats, boundaries, representative beat, measurements; with `windows_shown`,
+/// a long recording's windows show their progress (when it is the only recording, whose bar is the only one).
+fn analyze(recording: &Recording, windows_shown: bool) -> Measurements {
+    let bar = if windows_shown { super::window_bar(recording, "analysed") } else { ProgressBar::hidden() };
+    let m = isoline_core::analysis::analyze_reporting(recording, &FilterSettings::default(), &super::on_window(&bar))
+        .measurements;
+    bar.finish_and_clear();
+    m
 }
 
 /// A measured row with the reader's warnings and the files it was read from, or why it could not be measured.
 type Outcome = anyhow::Result<(Row, Vec<String>, Vec<PathBuf>)>;
 
-fn measure_file(path: &Path, rate: Option<f64>) -> Outcome {
+fn measure_file(path: &Path, rate: Option<f64>, windows_shown: bool) -> Outcome {
     let opened = io::open(path, &io::OpenOptions { csv_rate_hz: rate })?;
     crate::cli::refuse_empty(&opened.recording, path)?;
-    let m = analyze(&opened.recording);
+    let m = analyze(&opened.recording, windows_shown);
     let r = &opened.recording;
     let row = Row {
         file: path.display().to_string(),
@@ -103,7 +108,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let mut results: Vec<(PathBuf, Outcome)> = Vec::with_capacity(found.files.len());
     for group in found.files.chunks(rayon::current_num_threads().max(1)) {
         results.par_extend(group.par_iter().map(|p| {
-            let r = measure_file(p, args.rate);
+            let r = measure_file(p, args.rate, !many);
             bar.inc(1);
             (p.clone(), r)
         }));
