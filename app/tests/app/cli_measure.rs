@@ -125,6 +125,15 @@ fn missing_file_is_exit_code_2_with_its_name() -> Result<(), Box<dyn std::error:
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("no-such-record.hea"));
     assert!(out.stdout.is_empty(), "{}", String::from_utf8_lossy(&out.stdout));
+    // In a batch, the table lists what it lacks, so a table saved with --out says so too (before, only stderr).
+    let dir = tempfile::tempdir()?;
+    let saved = dir.path().join("batch.txt");
+    let out =
+        isoline().args(["measure", "no-such-record.hea"]).arg(data("ludb/2.hea")).arg("--out").arg(&saved).output()?;
+    assert_eq!(out.status.code(), Some(2));
+    let table = std::fs::read_to_string(&saved)?;
+    assert!(table.contains("1 of 2 file(s) could not be measured:\n  no-such-record.hea"), "{table}");
+    assert!(table.trim_end().ends_with(isoline_core::CAUTION), "{table}");
     Ok(())
 }
 

@@ -133,9 +133,25 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
 
     let as_array = many || args.paths.len() > 1 || args.paths.iter().any(|p| p.is_dir());
+    // Each failure as one line; ReadError messages already start with the file name.
+    let failed: Vec<String> = failures
+        .iter()
+        .map(|(path, e)| {
+            let shown = path.display().to_string();
+            if e.starts_with(&shown) { e.clone() } else { format!("{shown}: {e}") }
+        })
+        .collect();
+    let not_measured = format!("{} of {} file(s) could not be measured:", failed.len(), failed.len() + rows.len());
     let text = match args.format {
         MeasureFormat::Json => output::to_json(&rows, as_array)? + "\n",
         MeasureFormat::Csv => output::to_csv(&rows),
+        // The table for people lists the recordings it lacks, so a saved batch says so too (also on stderr).
+        MeasureFormat::Table if !failed.is_empty() => format!(
+            "{}\n{not_measured}\n{}\n\n{}\n",
+            output::to_table(&rows),
+            failed.iter().map(|f| format!("  {f}")).collect::<Vec<_>>().join("\n"),
+            isoline_core::CAUTION
+        ),
         MeasureFormat::Table => format!("{}\n{}\n", output::to_table(&rows), isoline_core::CAUTION),
     };
     // A single recording that could not be measured gives its error and no table.
@@ -155,11 +171,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if failures.is_empty() {
         return Ok(ExitCode::SUCCESS);
     }
-    to_stderr!("isoline: {} of {} file(s) could not be measured:", failures.len(), failures.len() + rows.len());
-    for (path, e) in &failures {
-        // ReadError messages already start with the file name.
-        let shown = path.display().to_string();
-        if e.starts_with(&shown) { to_stderr!("  {e}") } else { to_stderr!("  {shown}: {e}") }
+    to_stderr!("isoline: {not_measured}");
+    for f in &failed {
+        to_stderr!("  {f}");
     }
     Ok(ExitCode::from(2))
 }
