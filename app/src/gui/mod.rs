@@ -419,6 +419,20 @@ pub fn run(file: Option<PathBuf>) -> anyhow::Result<ExitCode> {
             Ok(Box::new(EframeApp { app }))
         }),
     )
-    .map_err(|e| anyhow::anyhow!("could not open the window: {e}"))?;
+    .map_err(|e| anyhow::anyhow!("could not open the window: {}", no_window_reason(&e.to_string())))?;
     Ok(ExitCode::SUCCESS)
+}
+
+/// Why the window could not be opened, said for the person at the keyboard: with no display to draw on (neither
+/// `DISPLAY` nor `WAYLAND_DISPLAY` set, as over ssh or in a terminal session), that, and that the command-line tools
+/// work without one; otherwise the windowing system's own message (`detail`).
+fn no_window_reason(detail: &str) -> String {
+    let set = |v: &str| std::env::var_os(v).is_some_and(|x| !x.is_empty());
+    if cfg!(target_os = "linux") && !set("DISPLAY") && !set("WAYLAND_DISPLAY") {
+        "no display to draw on (neither DISPLAY nor WAYLAND_DISPLAY is set); the workstation needs a desktop \
+         session, while `isoline info`, `measure`, `render` and the other commands work without one"
+            .to_string()
+    } else {
+        detail.to_string()
+    }
 }

@@ -41,3 +41,18 @@ fn help_and_version_print_and_exit_0() -> Result<(), Box<dyn std::error::Error>>
     assert!(help.contains("Usage:") && help.lines().count() > 5, "{help}");
     Ok(())
 }
+
+#[test]
+#[cfg(target_os = "linux")]
+fn with_no_display_the_workstation_says_so_and_points_to_the_commands() -> std::io::Result<()> {
+    // Before, winit's own message: "winit EventLoopError: os error at /root/.cargo/registry/…".
+    let out = Command::new(env!("CARGO_BIN_EXE_isoline"))
+        .env_remove("DISPLAY")
+        .env_remove("WAYLAND_DISPLAY")
+        .arg("no-such-recording.edf")
+        .output()?;
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("no display to draw on") && err.contains("isoline info"), "{err}");
+    Ok(())
+}
