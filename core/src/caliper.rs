@@ -1,7 +1,8 @@
 //! Calipers: the reader's measuring tools, as plain data with their readings.
 
+use crate::beat::{Beat, MarkKind};
 use crate::recording::LeadName;
-use crate::units::bpm_from_rr_ms;
+use crate::units::{Hertz, bpm_from_rr_ms};
 
 /// What a caliper measures.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
@@ -118,6 +119,28 @@ impl Caliper {
     }
 }
 
+/// Where a caliper leg placed at time `t` (s) snaps to: the nearest R peak or wave boundary of `beats` (in time
+/// order, samples at `fs`) within `tolerance_s`, else `t` itself. Only beats whose R peak lies within a second of
+/// `t` are looked at (a beat's boundaries lie well within a second of its R peak), found by bisection, so a
+/// 24-hour recording's beats cost no more than a page's.
+#[must_use]
+pub fn snap_time(beats: &[Beat], fs: Hertz, t: f64, tolerance_s: f64) -> f64 {
+    const NEAR_S: f64 = 1.0;
+    let first = beats.partition_point(|b| fs.seconds_from_sample(b.r as f64) < t - NEAR_S);
+    let marks = beats[first..]
+        .iter()
+        .take_while(|b| fs.seconds_from_sample(b.r as f64) <= t + NEAR_S)
+        .flat_map(|b| std::iter::once(b.r).chain(MarkKind::BOUNDARIES.into_iter().filter_map(|k| b.bounds.get(k))));
+    let mut best = (tolerance_s, t);
+    for s in marks {
+        let st = fs.seconds_from_sample(s as f64);
+        if (st - t).abs() < best.0 {
+            best = ((st - t).abs(), st);
+        }
+    }
+    best.1
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -175,5 +198,27 @@ mod tests {
         assert!(on("II").shows_on(Some(&ii)) && on("ii").shows_on(Some(&ii)));
         assert!(!on("V1").shows_on(Some(&ii)) && !on("II").shows_on(None));
         assert!(time(1.0, 2.0, false).shows_on(Some(&ii)) && time(1.0, 2.0, false).shows_on(None));
+    }
+
+    #[test]
+    fn a_leg_snaps_to_the_nearest_r_peak_or_boundary_within_reach() {
+        let fs = Hertz::from_hz(500.0).unwrap_or_else(|_| unreachable!());
+        // Beats every second (R at 0.5 s, 1.5 s, …) with QRS onset 40 ms and T end 300 ms from their R peak.
+        let beats: Vec<Beat> = (0..3600)
+            .map(|k| {
+                let r = 250 + 500 * k;
+                let mut b = Beat::at(r, crate::beat::BeatKind::Dominant);
+                b.bounds.qrs_on = Some(r - 20);
+                b.bounds.t_end = Some(r + 150);
+                b
+            })
+            .collect();
+        let snap = |t: f64| snap_time(&beats, fs, t, 0.02);
+        assert!((snap(1000.51) - 1000.5).abs() < 1e-9, "to the R peak");
+        assert!((snap(1000.47) - 1000.46).abs() < 1e-9, "to the QRS onset");
+        assert!((snap(1000.79) - 1000.8).abs() < 1e-9, "to the T end");
+        assert!((snap(1001.1) - 1001.1).abs() < 1e-9, "nothing within 20 ms: stays");
+        assert!((snap(-3.0) + 3.0).abs() < 1e-9 && (snap(9999.0) - 9999.0).abs() < 1e-9);
+        assert!((snap_time(&[], fs, 2.0, 0.02) - 2.0).abs() < 1e-9);
     }
 }

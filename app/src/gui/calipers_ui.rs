@@ -49,8 +49,9 @@ pub fn calipers_ui(ui: &egui::Ui, response: &Response, cx: &SheetContext<'_>, st
         let (x_mm, y_mm) = geo.paper_from_screen(p);
         let mut t = cell.time_from_x(&geo.page.paper, x_mm).clamp(0.0, loaded.recording.duration_s());
         if view.snap {
-            t = snap_time(
-                loaded,
+            t = isoline_core::caliper::snap_time(
+                &loaded.beats,
+                loaded.recording.sample_rate,
                 t,
                 f64::from(GRAB_POINTS) / (geo.page.paper.speed_mm_per_s * f64::from(geo.points_per_mm)),
             );
@@ -109,27 +110,6 @@ pub fn time_uv_at(geo: &SheetGeometry, loaded: &Loaded, p: Pos2) -> Option<(f64,
     let t = cell.time_from_x(&geo.page.paper, x);
     (t >= 0.0 && t <= loaded.recording.duration_s())
         .then(|| (t, row.uv_from_y(&geo.page.paper, y, cell.inverted), ri, ci))
-}
-
-/// The nearest beat R peak or boundary within `tolerance_s` of `t`, else `t`.
-#[must_use]
-pub fn snap_time(loaded: &Loaded, t: f64, tolerance_s: f64) -> f64 {
-    let fs = loaded.recording.sample_rate.hz();
-    let mut best = (tolerance_s, t);
-    for b in &loaded.beats {
-        let bt = b.r as f64 / fs;
-        if (bt - t).abs() > 1.0 {
-            continue;
-        }
-        let bounds = [b.bounds.p_on, b.bounds.p_end, b.bounds.qrs_on, b.bounds.qrs_end, b.bounds.t_end];
-        for s in std::iter::once(b.r).chain(bounds.into_iter().flatten()) {
-            let st = s as f64 / fs;
-            if (st - t).abs() < best.0 {
-                best = ((st - t).abs(), st);
-            }
-        }
-    }
-    best.1
 }
 
 /// The caliper part under a screen point, with the row and cell it is in. Later calipers win.
