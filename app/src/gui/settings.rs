@@ -44,7 +44,7 @@ impl Settings {
     pub fn points_per_mm(&self, pixels_per_point: f32) -> f32 {
         match self.ruler_px_per_mm {
             Some(px) if px > 0.0 && pixels_per_point > 0.0 => px / pixels_per_point,
-            _ => NOMINAL_POINTS_PER_INCH / 25.4,
+            _ => isoline_core::paper::px_per_mm(f64::from(NOMINAL_POINTS_PER_INCH)) as f32,
         }
     }
 
@@ -88,7 +88,10 @@ pub fn ruler_ui(ctx: &egui::Context, settings: &Settings, bar_points: &mut f32) 
         ui.painter().rect_filled(rect, 2.0, Color32::from_rgb(60, 120, 200));
         ui.painter().line_segment([rect.left_bottom(), rect.right_bottom()], Stroke::new(1.0, Color32::BLACK));
         let px_per_mm = *bar_points * ppp / ID1_CARD_WIDTH_MM;
-        ui.label(format!("{px_per_mm:.2} screen pixels per mm ({:.0} dpi)", px_per_mm * 25.4));
+        ui.label(format!(
+            "{px_per_mm:.2} screen pixels per mm ({:.0} dpi)",
+            f64::from(px_per_mm) * isoline_core::paper::MM_PER_INCH
+        ));
         ui.horizontal(|ui| {
             if ui.button("Use this calibration").clicked() {
                 out.push(Command::SetRuler(Some(px_per_mm)));
