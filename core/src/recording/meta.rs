@@ -1,8 +1,9 @@
 //! What a recording carries beside its samples: descriptive metadata and annotations, and what of them a
 //! de-identified copy keeps.
 
-/// Descriptive data about the recording and the person recorded. Any of it may identify a patient;
-/// [`Meta::deidentified`] keeps only sex and age (a great age as [`OLDEST_AGE_SHOWN`]).
+/// Descriptive data about the recording and the person recorded. Any of the person's may identify a patient;
+/// [`Meta::deidentified`] keeps of it only sex and age (a great age as [`OLDEST_AGE_SHOWN`]), and keeps what is
+/// about the signal alone (which leads are uncalibrated).
 #[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Meta {
     /// Patient code or identifier as stored in the file.

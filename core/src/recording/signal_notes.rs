@@ -42,7 +42,8 @@ pub(crate) fn spoken_list<T: std::fmt::Display>(items: impl IntoIterator<Item = 
 
 impl Recording {
     /// Every note about the signal itself, for exports and tables: samples missing ([`Self::invalid_sample_notes`]),
-    /// flat leads ([`Self::flat_lead_notes`]) and a doubt about the amplitude ([`Self::amplitude_doubt`]).
+    /// flat leads ([`Self::flat_lead_notes`]), clipped leads ([`Self::clipped_lead_notes`]), a doubt about the
+    /// amplitude ([`Self::amplitude_doubt`]) and leads read at an assumed gain ([`Self::uncalibrated_note`]).
     #[must_use]
     pub fn signal_notes(&self) -> Vec<String> {
         let mut notes = self.invalid_sample_notes();

@@ -96,9 +96,9 @@ pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec
     ranges::condensed(&kept)
 }
 
-/// Notes on the signal itself, printed before the range notes: missing samples, flat leads and implausible
-/// amplitudes (see [`Recording::invalid_sample_notes`], [`Recording::flat_lead_notes`] and
-/// [`Recording::amplitude_doubt`]), each marked as about the whole recording. A blank stretch or a flat trace on
+/// Notes on the signal itself, printed before the range notes: missing samples, flat or clipped leads,
+/// implausible amplitudes and uncalibrated leads (see [`Recording::signal_notes`]), each marked as about the whole
+/// recording. A blank stretch or a flat trace on
 /// the page is then not read as the heart's own; the notes name leads, never the patient.
 #[must_use]
 pub fn signal_notes(recording: &Recording) -> Vec<String> {

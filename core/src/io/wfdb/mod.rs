@@ -144,16 +144,24 @@ pub fn read_record(path: &Path) -> Result<Opened, ReadError> {
             hea.display()
         ));
     }
+    // A gain of 0 marks an uncalibrated signal (WFDB header(5)); its samples are read at the default gain of 200,
+    // which may be far from the truth (a helper's test: lead I 8.6 times too large, QRS 90 → 72 ms, no word said).
+    // The recording's signal notes say so, in exports too (`Recording::signal_notes`). Counted among the leads
+    // kept: signals that are not voltages are left out, so a header's signal number is not a lead's index.
+    let uncalibrated_leads: Vec<usize> = leads
+        .iter()
+        .zip(&header.signals)
+        .filter(|(lead, _)| lead.is_some())
+        .enumerate()
+        .filter(|(_, (_, s))| s.uncalibrated)
+        .map(|(k, _)| k)
+        .collect();
     let leads: Vec<Lead> = leads.into_iter().flatten().collect();
 
     let mut meta =
         Meta { recording_info: (!header.comments.is_empty()).then(|| header.comments.join("\n")), ..Meta::default() };
     parse_comment_fields(&header.comments, &mut meta);
-    // A gain of 0 marks an uncalibrated signal (WFDB header(5)); its samples are read at the default gain of 200,
-    // which may be far from the truth (a helper's test: lead I 8.6 times too large, QRS 90 → 72 ms, no word said).
-    // The recording's signal notes say so, in exports too (`Recording::signal_notes`).
-    meta.uncalibrated_leads =
-        header.signals.iter().enumerate().filter(|(_, s)| s.uncalibrated).map(|(i, _)| i).collect();
+    meta.uncalibrated_leads = uncalibrated_leads;
     let start = parse_base_datetime(&header.record);
     let mut recording = Recording { leads, sample_rate, start, meta, annotations: Vec::new() };
     let atr = hea.with_extension("atr");
@@ -310,5 +318,25 @@ mod tests {
         assert_eq!(uv_per_unit("uV"), Some(1.0));
         assert_eq!(uv_per_unit("V"), Some(1.0e6));
         assert_eq!(uv_per_unit("mmHg"), None);
+    }
+
+    #[test]
+    fn an_uncalibrated_lead_is_counted_among_the_leads_kept() -> Result<(), Box<dyn std::error::Error>> {
+        // A blood pressure signal first (skipped: not a voltage), then II with gain 0 and V5 with a gain: the note
+        // names II. Counted by header signal number instead, it named V5, which is calibrated.
+        let dir = tempfile::tempdir()?;
+        std::fs::write(
+            dir.path().join("r.hea"),
+            "r 3 250 100\nr.dat 16 100/mmHg 16 0 0 0 0 ABP\nr.dat 16 0/mV 16 0 0 0 0 II\nr.dat 16 200/mV 16 0 0 0 0 V5\n",
+        )?;
+        let samples: Vec<u8> = (0..300i16).flat_map(|k| (k % 50).to_le_bytes()).collect();
+        std::fs::write(dir.path().join("r.dat"), samples)?;
+        let opened = read_record(&dir.path().join("r.hea"))?;
+        let names: Vec<String> = opened.recording.leads.iter().map(|l| l.name.to_string()).collect();
+        assert_eq!(names, ["II", "V5"]);
+        assert_eq!(opened.recording.meta.uncalibrated_leads, [0]);
+        let note = opened.recording.uncalibrated_note().unwrap_or_default();
+        assert!(note.starts_with("lead II has no gain"), "{note}");
+        Ok(())
     }
 }
