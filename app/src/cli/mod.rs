@@ -68,10 +68,12 @@ pub fn window_bar(recording: &isoline_core::Recording, what: &str) -> indicatif:
     bar
 }
 
-/// What [`window_bar`]'s `bar` is told as each window is done: `(windows done, windows in all)`.
+/// What [`window_bar`]'s `bar` is told as each window is done (`(windows done, windows in all)`): one more. The
+/// count done is not set as the position, since windows finishing on several cores may tell their counts out of
+/// order and the bar would step back.
 pub fn on_window(bar: &indicatif::ProgressBar) -> impl Fn(usize, usize) + Sync + '_ {
-    move |done, all| {
+    move |_, all| {
         bar.set_length(all as u64);
-        bar.set_position(done as u64);
+        bar.inc(1);
     }
 }

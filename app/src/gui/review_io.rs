@@ -8,6 +8,7 @@ use std::time::Instant;
 use anyhow::Context as _;
 use isoline_core::beat::MarkKind;
 use isoline_core::review::{MarkOn, Measurement, REVIEW_SUFFIX, RecordingIdentity, Review, Stage};
+use isoline_core::units::bpm_from_rr_ms;
 
 use super::command::Command;
 use super::ledger::LedgerRow;
@@ -159,9 +160,14 @@ pub fn document_from_review(review: &Review, loaded: &Loaded) -> Document {
     let qtc_derived = isoline_core::review::QTC_INPUT_KEYS
         .iter()
         .any(|k| review.measurement(k).is_some_and(|m| m.reviewed_value.is_some()));
+    // A rate equal to 60000 / the reviewed RR is the one the Ledger derives from that RR, not one the reader typed.
+    let rate_from_rr = review.measurement("rr_ms").and_then(|m| m.reviewed_value).and_then(bpm_from_rr_ms);
     for m in &review.measurements {
         let Some(v) = m.reviewed_value else { continue };
         if qtc_derived && m.key.starts_with("qtc_") {
+            continue;
+        }
+        if m.key == "heart_rate_bpm" && rate_from_rr.is_some_and(|hr| (hr - v).abs() < 1e-6) {
             continue;
         }
         let from_marks = rows.iter().find(|r| r.key == m.key).and_then(|r| r.reviewed);

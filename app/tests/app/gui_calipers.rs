@@ -123,7 +123,8 @@ fn arrow_keys_nudge_the_selected_leg_by_one_sample() {
     assert!((legs(&h).1 - t2 - 0.001).abs() < 1e-9);
     // ↑ / ↓ step voltage levels (the shortcuts' help): a time leg stays (before, ↑ moved it a sample).
     h.key_press(egui::Key::ArrowUp);
-    h.key_press(egui::Key::ArrowDown);
+    settle(&mut h);
+    h.key_press(egui::Key::ArrowUp);
     settle(&mut h);
     assert!((legs(&h).1 - t2 - 0.001).abs() < 1e-9);
 }

@@ -184,8 +184,15 @@ fn a_saved_review_carries_qtc_from_the_reviewed_qt_and_rr() {
         h.state().ledger_rows().into_iter().find(|r| r.key == "qtc_bazett_ms").unwrap().reviewed
     };
     assert!(ledger(&h).is_some_and(|v| (v - q.bazett).abs() < 1e-9));
-    let h2 = open(&rec);
+    let mut h2 = open(&rec);
     assert!(ledger(&h2).is_some_and(|v| (v - q.bazett).abs() < 1e-9));
+    // The rate the typed RR gave (75 bpm, saved as a reviewed value) comes back as following RR, not as typed: a
+    // new RR moves it again (before, it stayed at 75 after reopening).
+    assert!(!h2.state().doc.reviewed.contains_key("heart_rate_bpm"), "{:?}", h2.state().doc.reviewed);
+    h2.state_mut().run_cmd(Command::SetReviewed("rr_ms".into(), Some(1000.0)));
+    settle(&mut h2);
+    let hr = h2.state().ledger_rows().into_iter().find(|r| r.key == "heart_rate_bpm").unwrap().reviewed;
+    assert!(hr.is_some_and(|v| (v - 60.0).abs() < 1e-9), "{hr:?}");
 }
 
 #[test]

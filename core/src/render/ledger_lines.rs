@@ -82,17 +82,23 @@ pub fn ledger_lines(measurements: &Measurements, review: Option<&Review>) -> Vec
 
 /// The notes for a page made by the command line: the range notes of the automatic values (with their sources,
 /// see [`Measurements::notes`]), leaving out the note of a value the reader changed in `review` — the box prints
-/// the reader's value, and a note on the automatic one would no longer describe it. QTc notes breaking one limit
-/// share a line ([`ranges::condensed`]).
+/// the reader's value, and a note on the automatic one would no longer describe it — and adding the reader's
+/// value's own range note ([`ranges::for_value`], as the workstation's Ledger and its exported page do). QTc
+/// notes breaking one limit share a line ([`ranges::condensed`]).
 #[must_use]
 pub fn ledger_notes(measurements: &Measurements, review: Option<&Review>) -> Vec<String> {
     let auto = measurements.values();
     let changed = |key: &str| {
         let stored = review.and_then(|r| r.measurement(key)).and_then(|s| s.reviewed_value);
         let own = auto.iter().find(|v| v.key == key).and_then(|v| v.value);
-        stored.is_some_and(|x| own.is_none_or(|a| (a - x).abs() > 1e-9))
+        stored.filter(|&x| own.is_none_or(|a| (a - x).abs() > 1e-9))
     };
-    let kept: Vec<RangeNote> = measurements.notes().into_iter().filter(|n| !changed(&n.key)).collect();
+    let mut kept: Vec<RangeNote> = measurements.notes().into_iter().filter(|n| changed(&n.key).is_none()).collect();
+    kept.extend(
+        auto.iter()
+            .filter(|v| v.lead.is_none())
+            .filter_map(|v| ranges::for_value(v.key, changed(v.key)?, measurements.sex)),
+    );
     ranges::condensed(&kept)
 }
 
@@ -223,6 +229,13 @@ mod tests {
         r.set_measurement("qrs_ms", 130.0, "AB").unwrap_or_else(|e| panic!("{e}"));
         r.set_measurement("qt_ms", 400.0, "AB").unwrap_or_else(|e| panic!("{e}"));
         assert_eq!(ledger_notes(&m, Some(&r)), all[..1]);
+        // A reader's value outside its range gets its own note, as in the workstation's export (before, none): a
+        // rate of 40 bpm, and the QTc it recomputes from QT 400 ms at RR 1500 ms (Bazett 327 ms), short.
+        r.set_measurement("heart_rate_bpm", 40.0, "AB").unwrap_or_else(|e| panic!("{e}"));
+        let notes = ledger_notes(&m, Some(&r));
+        assert_eq!(notes.len(), 3, "{notes:#?}");
+        assert!(notes[1].starts_with("Heart rate 40 bpm — below the usual resting range"), "{notes:#?}");
+        assert!(notes[2].starts_with("QTc by Bazett 327 ms") && notes[2].contains("lower limit"), "{notes:#?}");
     }
 
     #[test]
