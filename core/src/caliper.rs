@@ -30,8 +30,10 @@ pub enum CaliperKind {
     },
 }
 
-/// One caliper placed by the reader.
+/// One caliper placed by the reader. A field it does not know is an error when read (a misspelt `lockd: true` in a
+/// hand-edited review was dropped without a word), as for every other part of a review.
 #[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct Caliper {
     /// Stable identifier within a review.
     pub id: u32,

@@ -134,7 +134,28 @@ fn check_values(path: &Path, text: &str, review: &Review) -> Result<(), ReviewEr
             return at_nth(field, nth, format!("`{field}` of caliper {} must be a finite number, found {v}", c.id));
         }
     }
+    // A second entry for the same measurement, mark or caliper would be read past (the first is the one used): a
+    // reader's value in it is lost without a word (a hand-edited second `qt_ms` with a reviewed 440 ms read as
+    // the automatic 500).
+    if let Some(i) = second_of(review.measurements.iter().map(|m| &m.key)) {
+        let key = &review.measurements[i].key;
+        return at_nth("key", i, format!("measurement `{key}` is given twice (one entry per measurement)"));
+    }
+    if let Some(i) = second_of(review.marks.iter().map(|m| (m.kind, m.on))) {
+        let m = &review.marks[i];
+        return at_nth("kind", i, format!("mark {:?} on {:?} is given twice (one per kind and beat)", m.kind, m.on));
+    }
+    if let Some(i) = second_of(review.calipers.iter().map(|c| c.id)) {
+        let id = review.calipers[i].id;
+        return at_nth("id", i, format!("caliper id {id} is given twice (ids are unique)"));
+    }
     Ok(())
+}
+
+/// Index of the first item equal to an earlier one.
+fn second_of<T: Eq + std::hash::Hash>(items: impl Iterator<Item = T>) -> Option<usize> {
+    let mut seen = std::collections::HashSet::new();
+    items.enumerate().find_map(|(i, x)| (!seen.insert(x)).then_some(i))
 }
 
 /// Loads a review and checks that it belongs to the recording at `recording_path` (as given to

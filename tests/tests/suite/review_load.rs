@@ -219,3 +219,39 @@ fn with_number(text: &str, field: &str, bad: &str) -> String {
     let len = text[at..].find(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-')).unwrap_or(0);
     format!("{}{bad}{}", &text[..at], &text[at + len..])
 }
+
+#[test]
+fn an_entry_given_twice_is_refused_where_the_second_stands() {
+    // A second entry for one measurement, mark or caliper was read past: a reader's value in it was lost without
+    // a word (a hand-edited second `qt_ms` with a reviewed 440 ms read as the automatic 500 in `agreement`).
+    let dir = tempfile::tempdir().unwrap();
+    let base = crate::review_support::sample_review("AB");
+    let mut twice = base.clone();
+    let mut again = twice.measurements[0].clone();
+    again.reviewed_value = Some(again.auto_value.unwrap_or(400.0) + 40.0);
+    twice.measurements.push(again);
+    let text = twice.to_ron().unwrap();
+    let second =
+        1 + text.lines().enumerate().filter(|(_, l)| l.contains("key:")).nth(twice.measurements.len() - 1).unwrap().0;
+    let (line, _, field, msg) = parse_err(&write(dir.path(), &text));
+    assert_eq!(field.as_deref(), Some("key"), "{msg}");
+    assert_eq!(line, second, "{msg}");
+    assert!(msg.contains(&format!("measurement `{}` is given twice", base.measurements[0].key)), "{msg}");
+    if let Some(c) = base.calipers.first() {
+        let mut twice = base.clone();
+        twice.calipers.push(c.clone());
+        let (_, _, field, msg) = parse_err(&write(dir.path(), &twice.to_ron().unwrap()));
+        assert_eq!(field.as_deref(), Some("id"), "{msg}");
+        assert!(msg.contains("is given twice"), "{msg}");
+    }
+    assert!(load(&write(dir.path(), &base.to_ron().unwrap())).is_ok());
+}
+
+#[test]
+fn a_misspelt_caliper_field_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text().replacen("locked:", "lockd:", 1);
+    let (_, _, field, msg) = parse_err(&write(dir.path(), &text));
+    assert_eq!(field.as_deref(), Some("lockd"), "{msg}");
+    assert!(msg.contains("unknown field `lockd`"), "{msg}");
+}

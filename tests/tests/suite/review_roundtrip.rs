@@ -99,6 +99,13 @@ prop_compose! {
         summary in text(),
         history in prop::collection::vec(change(), 0..5),
     ) -> Review {
+        // One entry per measurement key, mark kind and beat, and caliper id, as a review holds them (the loader
+        // refuses a second).
+        let (mut calipers, mut marks, mut measurements) = (calipers, marks, measurements);
+        let mut seen = std::collections::HashSet::new();
+        measurements.retain(|m: &Measurement| seen.insert(format!("m {}", m.key)));
+        marks.retain(|m: &Mark| seen.insert(format!("k {:?} {:?}", m.kind, m.on)));
+        calipers.retain(|c: &Caliper| seen.insert(format!("c {}", c.id)));
         Review {
             format_version: FORMAT_VERSION, recording, reader, stage, created, modified,
             calipers, marks, measurements, summary, history,
