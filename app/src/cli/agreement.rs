@@ -51,6 +51,14 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     if a.readers.len() < 2 {
         bail!("all reviews are by reader {:?}: agreement needs two or more readers", a.readers.join(", "));
     }
+    // Before, reviews of different recordings gave tables of dashes and exit 0.
+    if a.compared_recordings() == 0 {
+        bail!(
+            "no recording was read by two of the readers ({} recordings, matched by their signal, not their file \
+             name): agreement compares readers on the same recordings",
+            a.recordings.len()
+        );
+    }
     match args.format {
         AgreementFormat::Json => {
             let files: Vec<String> = args.files.iter().map(|f| f.display().to_string()).collect();

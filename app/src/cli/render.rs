@@ -79,6 +79,12 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     let raw = &opened.recording;
     super::refuse_empty(raw, &args.file)?;
+    // The same samples under another header (rate, leads) would put the review's marks and calipers elsewhere.
+    if let (Some(r), Some(path)) = (&review, &args.review)
+        && let Some(why) = r.recording.differs_from(raw)
+    {
+        bail!("{}: cannot use this review: {why}", path.display());
+    }
     if !(args.start.is_finite() && args.start >= 0.0 && args.start < raw.duration_s()) {
         // A huge or tiny start is written short (1e300 and -1e-300, not 300 digits).
         let plain = args.start == 0.0 || (1e-3..1e6).contains(&args.start.abs());

@@ -25,8 +25,9 @@ pub struct ReviewSession {
     pub stage: Stage,
     /// The reader's summary.
     pub summary: String,
-    /// A review made for another recording (SHA-256 differs), waiting for the reader's answer.
-    pub mismatch: Option<(PathBuf, Review)>,
+    /// A review made for another recording (SHA-256 differs) or for the same samples under another header (rate,
+    /// leads), waiting for the reader's answer, with the reason shown to the reader.
+    pub mismatch: Option<(PathBuf, Review, String)>,
     /// Autosaved work found at opening, waiting for the reader's answer.
     pub recovery: Option<Review>,
     /// The reader-name window is open; save to this path once the name is given.
@@ -255,13 +256,8 @@ pub fn review_windows_ui(ctx: &egui::Context, session: &mut ReviewSession) -> Ve
             }
         });
     }
-    if let Some((path, review)) = &session.mismatch {
-        let text = format!(
-            "{} was made for a different recording ({}, SHA-256 {}…). Its calipers and marks may not fit this one.",
-            path.display(),
-            review.recording.file_name,
-            review.recording.sha256.get(..12).unwrap_or_default()
-        );
+    if let Some((path, _, why)) = &session.mismatch {
+        let text = format!("{}: {why}. Its calipers and marks may not fit this one.", path.display());
         egui::Window::new("Review for another recording").collapsible(false).show(ctx, |ui| {
             ui.label(text);
             ui.horizontal(|ui| {

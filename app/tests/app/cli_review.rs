@@ -74,6 +74,12 @@ fn agreement_table_and_json() {
     assert!((ba["lower"].as_f64().unwrap() - -8.45).abs() < 1e-12);
     assert!((ba["upper"].as_f64().unwrap() - 20.95).abs() < 1e-12);
     assert_eq!(v["agreement"]["readers"], serde_json::json!(["AB", "CD"]));
+
+    // Reviews by two readers of different recordings: nothing to compare, said so (before, tables of dashes and
+    // exit 0).
+    let o = run(&[Path::new("agreement"), files[0].as_path(), files[5].as_path()]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("no recording was read by two of the readers"), "{}", stderr(&o));
 }
 
 #[test]
@@ -130,7 +136,11 @@ fn migrated_v1_review_is_read_by_agreement_without_change() {
     let v1 = dir.path().join("v1.review.ron");
     std::fs::copy(data("review-v1.review.ron"), &v1).unwrap();
     let before = std::fs::read(&v1).unwrap();
-    let other = write_review(dir.path(), "other.review.ron", "CD", '9', 400.0);
+    // A second reader's review of the same recording (sel100), to compare with.
+    let mut theirs = load(&v1).unwrap();
+    theirs.reader = "CD".into();
+    let other = dir.path().join("other.review.ron");
+    std::fs::write(&other, theirs.to_ron().unwrap()).unwrap();
     let o = run(&[Path::new("agreement"), &v1, &other]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(String::from_utf8_lossy(&o.stdout).contains("J. Demo"));
@@ -242,4 +252,29 @@ fn review_new_refuses_bad_input() {
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("control character"), "{}", stderr(&o));
     assert!(!dir.path().join("1.review.ron").exists());
+}
+
+#[test]
+fn a_review_is_not_drawn_on_the_same_samples_under_another_header() {
+    // LUDB 1's signal file with its header saying 250 Hz instead of 500: the signal hash is the same, but the
+    // review's marks (sample indices) and times would land elsewhere. Before, `render --review` drew it, exit 0.
+    let dir = tempfile::tempdir().unwrap();
+    let hea = copy_ludb_1(dir.path());
+    let o = run(&[Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("AB")]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let review = dir.path().join("1.review.ron");
+    let alt = dir.path().join("alt");
+    std::fs::create_dir(&alt).unwrap();
+    std::fs::copy(dir.path().join("1.dat"), alt.join("1.dat")).unwrap();
+    let header = std::fs::read_to_string(&hea).unwrap().replacen("1 12 500 5000", "1 12 250 5000", 1);
+    std::fs::write(alt.join("1.hea"), header).unwrap();
+    let png = dir.path().join("x.png");
+    let render =
+        |rec: &Path| run(&[Path::new("render"), rec, Path::new("--review"), &review, Path::new("--out"), &png]);
+    let o = render(&alt.join("1.hea"));
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("sampled at 250 Hz, the review's at 500 Hz"), "{}", stderr(&o));
+    assert!(!png.exists());
+    let o = render(&hea);
+    assert!(o.status.success(), "{}", stderr(&o));
 }

@@ -111,6 +111,19 @@ pub struct Agreement {
     pub keys: Vec<KeyAgreement>,
 }
 
+impl Agreement {
+    /// How many recordings two readers both gave a value on, for any measurement: none when the reviews are of
+    /// different recordings (reviews are matched by the recording's signal hash, not its file name).
+    #[must_use]
+    pub fn compared_recordings(&self) -> usize {
+        let mut seen: Vec<usize> =
+            self.keys.iter().flat_map(|k| &k.pairs).flat_map(|p| &p.differences).map(|d| d.recording).collect();
+        seen.sort_unstable();
+        seen.dedup();
+        seen.len()
+    }
+}
+
 /// Two reviews by the same reader of the same recording: the comparison would be ambiguous.
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 #[error("reviews {first} and {second} are both by reader {reader:?} of the same recording")]

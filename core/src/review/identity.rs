@@ -66,6 +66,24 @@ impl RecordingIdentity {
         self.sha256.eq_ignore_ascii_case(found)
     }
 
+    /// How the opened `recording` differs from this identity in what the signal hash does not cover (the header:
+    /// sampling rate and lead names), said for a person; `None` when it does not. The review's marks are sample
+    /// indices and its calipers lead names, so a review of the same samples under another rate or other leads
+    /// would put them in the wrong place.
+    #[must_use]
+    pub fn differs_from(&self, recording: &Recording) -> Option<String> {
+        let fs = recording.sample_rate.hz();
+        let leads: Vec<String> = recording.leads.iter().map(|l| l.name.to_string()).collect();
+        let mut what = Vec::new();
+        if (fs - self.sample_rate_hz).abs() > 1e-9 * self.sample_rate_hz.abs().max(1.0) {
+            what.push(format!("sampled at {fs} Hz, the review's at {} Hz", self.sample_rate_hz));
+        }
+        if leads != self.leads {
+            what.push(format!("leads {}, the review's {}", leads.join(" "), self.leads.join(" ")));
+        }
+        (!what.is_empty()).then(|| format!("the recording's header differs from the review's: {}", what.join("; ")))
+    }
+
     /// Where the recording is expected, resolving [`Self::relative_path`] against the review file's folder.
     #[must_use]
     pub fn recording_path(&self, review_path: &Path) -> PathBuf {

@@ -95,3 +95,23 @@ fn three_readers_give_three_pairs() {
     assert_eq!(pairs, [("A".into(), "B".into(), 5.0), ("A".into(), "C".into(), 10.0), ("B".into(), "C".into(), 5.0)]);
     assert!(qt.pairs.iter().all(|p| p.bland_altman.is_none()), "one recording: no limits");
 }
+
+#[test]
+fn the_recordings_compared_are_those_two_readers_both_gave_a_value_on() {
+    // Two readers, four recordings; they share recordings 2 and 3 only.
+    let reviews = [
+        review("AB", '1', 400.0, None, None),
+        review("AB", '2', 380.0, None, None),
+        review("CD", '2', 390.0, None, None),
+    ];
+    let mut more = reviews.to_vec();
+    more.extend([
+        review("AB", '3', 410.0, None, None),
+        review("CD", '3', 400.0, None, None),
+        review("CD", '4', 420.0, None, None),
+    ]);
+    assert_eq!(agreement(&more).unwrap().compared_recordings(), 2);
+    // No recording in common: none compared.
+    let apart = [review("AB", '1', 400.0, None, None), review("CD", '4', 420.0, None, None)];
+    assert_eq!(agreement(&apart).unwrap().compared_recordings(), 0);
+}
