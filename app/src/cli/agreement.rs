@@ -59,13 +59,33 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
             a.recordings.len()
         );
     }
+    // A draft's values may be automatic ones its reader has not yet checked: its "agreement" may be the engine's
+    // with itself, so the drafts are named.
+    let drafts: Vec<String> = args
+        .files
+        .iter()
+        .zip(&reviews)
+        .filter(|(_, r)| r.stage == isoline_core::review::Stage::Draft)
+        .map(|(f, _)| f.display().to_string())
+        .collect();
     match args.format {
         AgreementFormat::Json => {
             let files: Vec<String> = args.files.iter().map(|f| f.display().to_string()).collect();
-            let v = serde_json::json!({ "files": files, "agreement": a, "caution": CAUTION });
+            let v = serde_json::json!({ "files": files, "drafts": drafts, "agreement": a, "caution": CAUTION });
             super::to_stdout(&(serde_json::to_string_pretty(&v)? + "\n"))?;
         }
-        AgreementFormat::Table => super::to_stdout(&table(&a))?,
+        AgreementFormat::Table => {
+            let mut text = table(&a);
+            if !drafts.is_empty() {
+                // Before the caution, which ends the table.
+                let note = format!(
+                    "Still drafts (values their readers may not yet have checked, automatic ones included): {}\n\n",
+                    drafts.join(", ")
+                );
+                text.insert_str(text.rfind(CAUTION).unwrap_or(text.len()), &note);
+            }
+            super::to_stdout(&text)?;
+        }
     }
     Ok(ExitCode::SUCCESS)
 }

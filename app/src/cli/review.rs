@@ -55,8 +55,24 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
         bail!("--reader: the name {why}");
     }
     let out = args.out.clone().unwrap_or_else(|| default_review_path(&args.file));
-    if out.exists() && !args.force {
-        bail!("{}: a review already exists (use --force to replace it; the old one is kept as .bak)", out.display());
+    if out.exists() {
+        // Only a review is replaced, and never a final one (signed off: a fresh draft in its place would undo that
+        // without trace); before, --force wrote over a PNG or a signal file named by mistake, and over final work.
+        match isoline_core::review::load(&out) {
+            Err(e) => bail!("{}: exists and is not a review ({e}); not replaced", out.display()),
+            Ok(old) if old.is_final() => bail!(
+                "{}: a final review by {} exists; a new draft does not replace signed-off work (move it away first)",
+                out.display(),
+                old.reader
+            ),
+            Ok(old) if !args.force => bail!(
+                "{}: a review by {} ({}) already exists (use --force to replace it; the old one is kept as .bak)",
+                out.display(),
+                old.reader,
+                old.stage
+            ),
+            Ok(old) => to_stderr!("isoline: replacing the {} review by {} (kept as .bak)", old.stage, old.reader),
+        }
     }
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
     super::refuse_to_overwrite(&out, &opened.files)?;

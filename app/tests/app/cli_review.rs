@@ -63,6 +63,9 @@ fn agreement_table_and_json() {
     let text = String::from_utf8(o.stdout).unwrap();
     assert!(text.contains("bias 6.25, SD 7.50, 95 % limits of agreement -8.45 to 20.95"), "{text}");
     assert!(text.contains("Review aid only"), "caution shown: {text}");
+    // The reviews are drafts: said before the caution.
+    let drafts = text.find("Still drafts").unwrap_or(usize::MAX);
+    assert!(drafts < text.find("Review aid only").unwrap_or(0), "{text}");
 
     args.extend([Path::new("--format"), Path::new("json")]);
     let o = run(&args);
@@ -207,8 +210,25 @@ fn review_new_writes_a_draft_with_every_automatic_value() {
         Path::new("--force"),
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).contains("replacing the draft review by AB"), "{}", stderr(&o));
     assert_eq!(load(&path).unwrap().reader, "CD");
     assert_eq!(std::fs::read(dir.path().join("1.review.ron.bak")).unwrap(), before, "old review kept as .bak");
+
+    // Not even with --force: a final review (signed off), or a file that is not a review (before, both were
+    // written over; the PNG with review text).
+    let mut signed = load(&path).unwrap();
+    signed.set_stage(isoline_core::review::Stage::Final, "CD").unwrap();
+    std::fs::write(&path, signed.to_ron().unwrap()).unwrap();
+    let png = dir.path().join("page.png");
+    std::fs::write(&png, b"\x89PNG not a review").unwrap();
+    for (out, says) in [(&path, "a final review by CD exists"), (&png, "exists and is not a review")] {
+        let before = std::fs::read(out).unwrap();
+        let args = [Path::new("review"), Path::new("new"), &hea, Path::new("--reader"), Path::new("EF")];
+        let o = run(&[&args[..], &[Path::new("--out"), out, Path::new("--force")]].concat());
+        assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+        assert!(stderr(&o).contains(says), "{}", stderr(&o));
+        assert_eq!(std::fs::read(out).unwrap(), before);
+    }
 }
 
 #[test]
