@@ -71,6 +71,8 @@ pub enum Command {
     ResetMark(MarkKind),
     /// Set (or clear) the reviewed value of a Ledger row.
     SetReviewed(String, Option<f64>),
+    /// Set the reviewed value of a Ledger row with the reader's reason for it (one undo step).
+    SetReviewedWhy(String, f64, String),
     /// Take a caliper's reading into a Ledger row as its reviewed value.
     TakeCaliper {
         /// Caliper id.
@@ -135,6 +137,7 @@ impl Command {
                 | Self::MoveMark(..)
                 | Self::ResetMark(_)
                 | Self::SetReviewed(..)
+                | Self::SetReviewedWhy(..)
                 | Self::TakeCaliper { .. }
         )
     }
@@ -226,7 +229,7 @@ fn describe(cmd: &Command) -> String {
         Command::SetMarch(id, _) => format!("march caliper {id}"),
         Command::MoveMark(kind, _) => format!("move {kind}"),
         Command::ResetMark(kind) => format!("reset {kind}"),
-        Command::SetReviewed(key, _) => format!("edit {key}"),
+        Command::SetReviewed(key, _) | Command::SetReviewedWhy(key, ..) => format!("edit {key}"),
         Command::TakeCaliper { key, .. } => format!("caliper to {key}"),
         other => format!("{other:?}"),
     }

@@ -64,19 +64,28 @@ impl IsolineApp {
             Command::ResetMark(kind) => {
                 doc.marks.remove(kind);
             }
-            Command::SetReviewed(key, v) => match v {
-                Some(v) => {
-                    doc.reviewed.insert(key.clone(), *v);
+            Command::SetReviewed(key, v) => {
+                // A value given (or cleared) without a reason drops the reason given with an earlier one.
+                doc.reasons.remove(key);
+                match v {
+                    Some(v) => {
+                        doc.reviewed.insert(key.clone(), *v);
+                    }
+                    None => {
+                        doc.reviewed.remove(key);
+                    }
                 }
-                None => {
-                    doc.reviewed.remove(key);
-                }
-            },
+            }
+            Command::SetReviewedWhy(key, v, why) => {
+                doc.reviewed.insert(key.clone(), *v);
+                doc.reasons.insert(key.clone(), why.clone());
+            }
             Command::TakeCaliper { id, key } => {
                 let Some(ms) = doc.caliper(*id).and_then(isoline_core::caliper::Caliper::interval_ms) else {
                     return false;
                 };
                 doc.reviewed.insert(key.clone(), ms);
+                doc.reasons.remove(key);
             }
             _ => return false,
         }

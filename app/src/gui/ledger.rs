@@ -147,6 +147,19 @@ fn apply_overrides(rev: &mut [MeasuredValue], doc: &Document, sex: Sex) {
     }
 }
 
+/// A reviewed value as typed in the Ledger: a number, then, after a space, why (optional, in the reader's words):
+/// `412 T end hidden by the next P wave`. `Ok(None)` for blank text; `Err` saying what is wrong otherwise.
+fn value_and_why(text: &str) -> Result<Option<(f64, Option<String>)>, String> {
+    let text = text.trim();
+    if text.is_empty() {
+        return Ok(None);
+    }
+    let (number, why) = text.split_once(char::is_whitespace).unwrap_or((text, ""));
+    let v = number.parse::<f64>().map_err(|_| "not a number (type the value first, then why)".to_string())?;
+    let why = why.trim();
+    Ok(Some((v, (!why.is_empty()).then(|| why.to_string()))))
+}
+
 fn origin(auto: Option<f64>, reviewed: Option<f64>) -> Option<Origin> {
     match (auto, reviewed) {
         (Some(a), Some(r)) if (a - r).abs() < 1e-9 => Some(Origin::Auto),
@@ -182,15 +195,16 @@ pub fn ledger_ui(
                         // A value no ECG shows (a slip: −500 bpm) is not taken; the field stays open, its text
                         // red, and the reason shows under it (beside it, it widened the Reviewed column and pushed
                         // the range notes off a narrow panel).
-                        let refused = match text.trim() {
-                            "" => None,
-                            t => t.parse::<f64>().map_or_else(
-                                |_| Some("not a number".to_string()),
-                                |v| isoline_core::measure::implausible(r.key, v),
-                            ),
+                        let typed = value_and_why(text);
+                        let refused = match &typed {
+                            Ok(None) => None,
+                            Ok(Some((v, _))) => isoline_core::measure::implausible(r.key, *v),
+                            Err(why) => Some(why.clone()),
                         };
-                        let mut field =
-                            egui::TextEdit::singleline(text).desired_width(50.0).id_salt(("reviewed", r.key));
+                        let mut field = egui::TextEdit::singleline(text)
+                            .desired_width(50.0)
+                            .id_salt(("reviewed", r.key))
+                            .hint_text("value, then why");
                         if refused.is_some() {
                             field = field.text_color(ui.visuals().error_fg_color);
                         }
@@ -201,8 +215,12 @@ pub fn ledger_ui(
                             resp.show_tooltip_text(egui::RichText::new(why).color(ui.visuals().error_fg_color));
                         }
                         if enter && refused.is_none() {
-                            if let Ok(v) = text.trim().parse::<f64>() {
-                                out.push(Command::SetReviewed(r.key.to_string(), Some(v)));
+                            match typed {
+                                Ok(Some((v, Some(why)))) => {
+                                    out.push(Command::SetReviewedWhy(r.key.to_string(), v, why));
+                                }
+                                Ok(Some((v, None))) => out.push(Command::SetReviewed(r.key.to_string(), Some(v))),
+                                _ => {}
                             }
                             *editing = None;
                         } else if enter {
@@ -214,9 +232,12 @@ pub fn ledger_ui(
                         }
                     }
                     _ => {
-                        let label = ui
-                            .add(egui::Button::new(fmt(r.reviewed)).frame(false))
-                            .on_hover_text("Click to type a reviewed value");
+                        let hover = match doc.reasons.get(r.key) {
+                            Some(why) => format!("Why: {why}. Click to type a reviewed value"),
+                            None => "Click to type a reviewed value, then why if you like (412 T end hidden by P)"
+                                .to_string(),
+                        };
+                        let label = ui.add(egui::Button::new(fmt(r.reviewed)).frame(false)).on_hover_text(hover);
                         if label.clicked() && !r.key.starts_with("st_") {
                             *editing =
                                 Some((r.key.to_string(), r.reviewed.map_or_else(String::new, |v| format!("{v:.0}"))));
@@ -336,5 +357,17 @@ mod tests {
             assert!(note.is_some(), "{key}");
         }
         assert!(typed(&[("heart_rate_bpm", 72.0)]).iter().all(|v| v.note.is_none()));
+    }
+
+    #[test]
+    fn a_typed_value_may_carry_its_reason() {
+        assert_eq!(value_and_why("  412 "), Ok(Some((412.0, None))));
+        assert_eq!(
+            value_and_why("412  T end hidden by the next P wave "),
+            Ok(Some((412.0, Some("T end hidden by the next P wave".to_string()))))
+        );
+        assert_eq!(value_and_why(""), Ok(None));
+        assert!(value_and_why("T end 412").is_err());
+        assert!(value_and_why("4l2").is_err());
     }
 }

@@ -92,7 +92,7 @@ pub fn build_review(input: &ReviewInput<'_>) -> anyhow::Result<Review> {
         let current = r.measurement(row.key).and_then(|m| m.reviewed_value);
         match (row.origin, row.reviewed) {
             (Some(Origin::Moved | Origin::Placed), Some(v)) if current != Some(v) => {
-                r.set_measurement(row.key, v, reader)?
+                r.set_measurement_why(row.key, v, reader, doc.reasons.get(row.key).map(String::as_str))?;
             }
             (Some(Origin::Auto) | None, _) if current.is_some() => r.revert_measurement(row.key, reader)?,
             _ => {}

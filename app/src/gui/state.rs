@@ -37,6 +37,9 @@ pub struct Document {
     pub marks: BTreeMap<MarkKind, usize>,
     /// Values the reader typed or took from a caliper, by Ledger key (`qt_ms`, …), in the row's unit.
     pub reviewed: BTreeMap<String, f64>,
+    /// Why the reader gave a value, by Ledger key, when they said (typed after the value: `412 T end hidden by
+    /// the next P wave`); saved with the value's history entry.
+    pub reasons: BTreeMap<String, String>,
 }
 
 impl Document {

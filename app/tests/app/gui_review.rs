@@ -217,3 +217,26 @@ fn a_reader_name_with_a_control_character_is_refused_in_the_reader_window() {
     settle(&mut h);
     assert!(review_path.exists(), "{:?}", h.state().ui_state.error);
 }
+
+#[test]
+fn a_value_typed_with_its_reason_is_saved_with_the_reason() {
+    // Typed in the Ledger as "412 T end hidden by the next P wave": the value and its reason, one undo step; the
+    // saved review's history entry for QT says why.
+    let dir = tempfile::tempdir().unwrap();
+    let rec = copy_record(dir.path());
+    let mut h = open(&rec);
+    work_and_save(&mut h);
+    let why = "T end hidden by the next P wave";
+    h.state_mut().run_cmd(Command::SetReviewedWhy("qt_ms".into(), 412.0, why.into()));
+    settle(&mut h);
+    assert_eq!(h.state().doc.reasons.get("qt_ms").map(String::as_str), Some(why));
+    h.state_mut().run_cmd(Command::SaveReview);
+    settle(&mut h);
+    let review = isoline_core::review::load(&dir.path().join("s0010_re.review.ron")).unwrap();
+    let entry = review.history.iter().rev().find(|c| c.what.starts_with("measurement qt_ms")).unwrap();
+    assert_eq!((entry.new.as_deref(), entry.why.as_deref()), (Some("412 ms"), Some(why)), "{entry}");
+    // A value typed again without a reason carries none over.
+    h.state_mut().run_cmd(Command::SetReviewed("qt_ms".into(), Some(420.0)));
+    settle(&mut h);
+    assert!(!h.state().doc.reasons.contains_key("qt_ms"));
+}

@@ -15,7 +15,7 @@ impl Review {
     pub(super) fn record(&mut self, reader: &str, what: String, old: Option<String>, new: Option<String>) {
         let at = Timestamp::now();
         self.modified = at;
-        self.history.push(Change { at, by: reader.to_owned(), what, old, new });
+        self.history.push(Change { at, by: reader.to_owned(), what, old, new, why: None });
     }
 
     /// Adds (or replaces, by key) an automatic measurement, e.g. from the measurement engine. A reader's value
@@ -108,6 +108,29 @@ impl Review {
         );
         if super::derived::QTC_INPUT_KEYS.contains(&key) {
             self.recompute_qtc(reader);
+        }
+        Ok(())
+    }
+
+    /// [`Review::set_measurement`], with the reader's reason for the value (`why`; blank = none given) kept in the
+    /// history entry of the change. Control characters in it become spaces (the history is shown line by line).
+    ///
+    /// # Errors
+    /// As [`Review::set_measurement`].
+    pub fn set_measurement_why(
+        &mut self,
+        key: &str,
+        value: f64,
+        reader: &str,
+        why: Option<&str>,
+    ) -> Result<(), ReviewError> {
+        let at = self.history.len();
+        self.set_measurement(key, value, reader)?;
+        let why: Option<String> = why
+            .map(|w| w.chars().map(|c| if c.is_control() { ' ' } else { c }).collect::<String>().trim().to_owned())
+            .filter(|w| !w.is_empty());
+        if let Some(entry) = self.history.get_mut(at) {
+            entry.why = why;
         }
         Ok(())
     }

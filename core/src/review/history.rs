@@ -71,7 +71,7 @@ impl<'de> Deserialize<'de> for Timestamp {
     }
 }
 
-/// One change a reader made: what, old → new, when, by whom.
+/// One change a reader made: what, old → new, when, by whom, and why when the reader said.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Change {
@@ -85,13 +85,21 @@ pub struct Change {
     pub old: Option<String>,
     /// The value after, as text; `None` when removed.
     pub new: Option<String>,
+    /// Why, in the reader's words (`T wave end hidden by the next P wave`); `None` when not given. Left out of
+    /// the file when `None`, so a review written before this field reads and writes alike.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub why: Option<String>,
 }
 
 impl fmt::Display for Change {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         let old = self.old.as_deref().unwrap_or("—");
         let new = self.new.as_deref().unwrap_or("—");
-        write!(f, "{}  {}  {}: {} → {}", self.at, self.by, self.what, old, new)
+        write!(f, "{}  {}  {}: {} → {}", self.at, self.by, self.what, old, new)?;
+        match &self.why {
+            Some(why) => write!(f, " (why: {why})"),
+            None => Ok(()),
+        }
     }
 }
 

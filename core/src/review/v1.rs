@@ -33,6 +33,7 @@ impl ReviewV1 {
             what: "format_version (migrated on load; version 1 kept no history)".to_owned(),
             old: Some(self.format_version.to_string()),
             new: Some(FORMAT_VERSION.to_string()),
+            why: None,
         };
         Review {
             format_version: FORMAT_VERSION,

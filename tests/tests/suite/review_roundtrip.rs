@@ -82,8 +82,8 @@ fn measurement() -> impl Strategy<Value = Measurement> {
 }
 
 fn change() -> impl Strategy<Value = Change> {
-    (stamp(), name(), text(), prop::option::of(text()), prop::option::of(text()))
-        .prop_map(|(at, by, what, old, new)| Change { at, by, what, old, new })
+    (stamp(), name(), text(), prop::option::of(text()), prop::option::of(text()), prop::option::of(text()))
+        .prop_map(|(at, by, what, old, new, why)| Change { at, by, what, old, new, why })
 }
 
 prop_compose! {
@@ -144,4 +144,26 @@ fn file_uses_the_vocabulary() {
         assert!(text.contains(needle), "missing {needle:?} in\n{text}");
     }
     println!("{text}");
+}
+
+#[test]
+fn a_readers_reason_is_kept_with_the_change_it_explains() {
+    // Who changed which value and why: the reason goes with the measurement's own history entry (not with the
+    // QTc entries the new QT recomputes after it), is saved and read back, and shows in the history's text.
+    let mut r = crate::review_support::sample_review("AB");
+    let before = r.history.len();
+    r.set_measurement_why("qt_ms", 412.0, "CD", Some(" T wave end hidden by\nthe next P wave ")).unwrap();
+    let entry = &r.history[before];
+    assert!(entry.what.starts_with("measurement qt_ms"), "{entry:?}");
+    assert_eq!(entry.why.as_deref(), Some("T wave end hidden by the next P wave"));
+    assert!(r.history[before + 1..].iter().all(|c| c.why.is_none()), "{:?}", &r.history[before..]);
+    assert!(entry.to_string().ends_with("(why: T wave end hidden by the next P wave)"), "{entry}");
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ward7-bed2.review.ron");
+    r.save(&path).unwrap();
+    assert_eq!(load(&path).unwrap().history[before].why, entry.why);
+    // No reason given (or a blank one): none written, and files without the field read as before.
+    r.set_measurement_why("qrs_ms", 96.0, "CD", Some("   ")).unwrap();
+    assert!(r.history.last().is_some_and(|c| c.why.is_none()));
+    assert!(!crate::review_support::sample_review("AB").to_ron().unwrap().contains("why:"));
 }
