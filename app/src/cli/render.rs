@@ -68,9 +68,15 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         }
     }
     let review = match &args.review {
-        Some(r) => {
-            Some(review::load_for(r, &args.file).with_context(|| format!("{}: cannot use this review", r.display()))?)
-        }
+        // The review's name once: a reading error names it already, a mismatch does not.
+        Some(r) => Some(review::load_for(r, &args.file).map_err(|e| {
+            let (msg, shown) = (e.to_string(), r.display().to_string());
+            if msg.starts_with(&shown) {
+                anyhow::anyhow!("cannot use this review: {msg}")
+            } else {
+                anyhow::anyhow!("{shown}: cannot use this review: {msg}")
+            }
+        })?),
         None => None,
     };
     let opened = io::open(&args.file, &io::OpenOptions { csv_rate_hz: args.rate })?;
@@ -115,7 +121,7 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let span = analysis.filtered_span(raw, a, b);
     let name = args.file.file_name().map_or_else(|| file.to_string(), |n| n.to_string_lossy().into_owned());
     let title = render::page_title(&name, args.identify, || match &review {
-        Some(r) => Ok(r.recording.sha256.clone()),
+        Some(r) => Ok(r.recording.sha256.to_ascii_lowercase()),
         None => review::signal_sha256(&args.file),
     })?;
     let mut input = RenderInput {

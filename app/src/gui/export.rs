@@ -47,7 +47,7 @@ impl IsolineApp {
         let name = loaded.path.file_name().map_or_else(String::new, |n| n.to_string_lossy().into_owned());
         // The recording's identity: from its review when one is open, else read again from the file.
         input.title = render::page_title(&name, input.identify, || match self.review.base.as_ref() {
-            Some(r) => Ok(r.recording.sha256.clone()),
+            Some(r) => Ok(r.recording.sha256.to_ascii_lowercase()),
             None => isoline_core::review::signal_sha256(&loaded.path)
                 .with_context(|| format!("reading {} for its identity", loaded.path.display())),
         })?;

@@ -139,3 +139,23 @@ fn review_is_drawn_and_a_foreign_review_refused() -> Res {
     assert!(!refused.exists());
     Ok(())
 }
+
+#[test]
+fn a_review_that_cannot_be_read_is_named_once() -> Res {
+    // Before: "nope.review.ron: cannot use this review: nope.review.ron: No such file or directory".
+    let dir = tempfile::tempdir()?;
+    let review = dir.path().join("nope.review.ron");
+    let out = isoline()
+        .arg("render")
+        .arg(data("ludb/1.hea"))
+        .arg("--review")
+        .arg(&review)
+        .arg("--out")
+        .arg(dir.path().join("x.png"))
+        .output()?;
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert_eq!(err.matches("nope.review.ron").count(), 1, "{err}");
+    assert!(err.contains("cannot use this review"), "{err}");
+    Ok(())
+}

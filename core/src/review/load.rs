@@ -193,6 +193,16 @@ fn ron_error(path: &Path, e: &ron::error::SpannedError) -> ReviewError {
             (Some(*field), format!("field `{field}` given twice{}", within(outer.as_deref())))
         }
         E::Eof => (None, "the file ends early (cut short?)".to_owned()),
+        // The likeliest hand edits, said in the file's own terms rather than RON's.
+        E::ExpectedOption => {
+            (None, "expected an optional value: write `Some(460.0)` for a value, `None` for none".to_owned())
+        }
+        E::ExpectedIdentifier => (
+            None,
+            "expected a word without quotes here (a stage is draft, checked or final; an origin auto, moved or \
+             placed)"
+                .to_owned(),
+        ),
         // The first pass reads the version alone, into a struct of our own: name the review, not that struct.
         other => (None, other.to_string().replace("struct `VersionOnly`", "the review")),
     };

@@ -255,3 +255,17 @@ fn a_misspelt_caliper_field_is_named() {
     assert_eq!(field.as_deref(), Some("lockd"), "{msg}");
     assert!(msg.contains("unknown field `lockd`"), "{msg}");
 }
+
+#[test]
+fn the_likeliest_hand_edits_are_explained_in_the_files_terms() {
+    // A value written without `Some(…)`, a stage in quotes: RON said "Expected option" and "Expected identifier".
+    let dir = tempfile::tempdir().unwrap();
+    let text = current_text();
+    let p = write(dir.path(), &text.replacen("reviewed_value: Some(412.0)", "reviewed_value: 412.0", 1));
+    let (line, _, _, msg) = parse_err(&p);
+    assert_eq!(line, 1 + text.lines().position(|l| l.contains("reviewed_value: Some(412.0)")).unwrap(), "{msg}");
+    assert!(msg.contains("write `Some(460.0)` for a value"), "{msg}");
+    let p = write(dir.path(), &text.replacen("stage: draft", "stage: \"final\"", 1));
+    let (_, _, _, msg) = parse_err(&p);
+    assert!(msg.contains("a stage is draft, checked or final"), "{msg}");
+}
