@@ -37,7 +37,12 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let mut reviews: Vec<Review> = Vec::with_capacity(args.files.len());
     for f in &args.files {
         // The error names the file (and line, column, field for a malformed review).
-        reviews.push(load(f)?);
+        let r = load(f)?;
+        // Compared as it stands, with what its parts contradict said (a file edited by hand).
+        for what in r.inconsistencies() {
+            to_stderr!("isoline: warning: {}: {what}", f.display());
+        }
+        reviews.push(r);
     }
     let a = match agreement(&reviews) {
         Ok(a) => a,

@@ -85,6 +85,12 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     let raw = &opened.recording;
     super::refuse_empty(raw, &args.file)?;
+    // A review whose parts contradict each other (edited by hand) is drawn, with what it contradicts said.
+    if let (Some(r), Some(path)) = (&review, &args.review) {
+        for what in r.inconsistencies() {
+            to_stderr!("isoline: warning: {}: {what}", path.display());
+        }
+    }
     // The same samples under another header (rate, leads) would put the review's marks and calipers elsewhere.
     if let (Some(r), Some(path)) = (&review, &args.review)
         && let Some(why) = r.recording.differs_from(raw)

@@ -121,6 +121,12 @@ impl IsolineApp {
     /// Makes a loaded review the one being worked on.
     fn apply_review(&mut self, review: isoline_core::review::Review, path: PathBuf) {
         let Some(l) = &self.loaded else { return };
+        // Applied as it stands; what its parts contradict (a file edited by hand) is said.
+        let odd = review.inconsistencies();
+        if !odd.is_empty() {
+            self.ui_state.error =
+                Some(format!("{}: this review contradicts itself: {}.", path.display(), odd.join("; ")));
+        }
         self.doc = review_io::document_from_review(&review, l);
         self.history.clear();
         self.ledger_cache = None;

@@ -298,3 +298,37 @@ fn a_review_is_not_drawn_on_the_same_samples_under_another_header() {
     let o = render(&hea);
     assert!(o.status.success(), "{}", stderr(&o));
 }
+
+#[test]
+fn a_hand_edited_review_is_compared_with_what_it_contradicts_said() {
+    // QT set to 460 ms by hand in a draft from `review new`: origin still auto, no history entry, QTc stale.
+    let dir = tempfile::tempdir().unwrap();
+    let hea = copy_ludb_1(dir.path());
+    for (reader, out) in [("AB", "1.review.ron"), ("CD", "1.cd.review.ron")] {
+        let o = run(&[
+            Path::new("review"),
+            Path::new("new"),
+            &hea,
+            Path::new("--reader"),
+            Path::new(reader),
+            Path::new("--out"),
+            &dir.path().join(out),
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+    }
+    let edited = dir.path().join("1.cd.review.ron");
+    let text = std::fs::read_to_string(&edited).unwrap();
+    let at = text.find("key: \"qt_ms\"").unwrap();
+    let none = at + text[at..].find("reviewed_value: None").unwrap();
+    let text = format!("{}reviewed_value: Some(460.0){}", &text[..none], &text[none + "reviewed_value: None".len()..]);
+    std::fs::write(&edited, text).unwrap();
+    let o = run(&[Path::new("agreement"), &dir.path().join("1.review.ron"), &edited]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let err = stderr(&o);
+    assert!(
+        err.contains("1.cd.review.ron: measurement qt_ms holds a reviewed value (460) but says origin auto"),
+        "{err}"
+    );
+    assert!(err.contains("does not follow the review's QT and RR"), "{err}");
+    assert!(!err.contains("1.review.ron: measurement"), "the untouched review has none: {err}");
+}

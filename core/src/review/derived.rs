@@ -9,13 +9,13 @@ use crate::measure::qtc::{FORMULAS, qtc_checked};
 pub const QTC_INPUT_KEYS: [&str; 3] = ["qt_ms", "rr_ms", "heart_rate_bpm"];
 
 impl Review {
-    fn reviewed(&self, key: &str) -> Option<f64> {
+    pub(super) fn reviewed(&self, key: &str) -> Option<f64> {
         self.measurement(key).and_then(|m| m.reviewed_value)
     }
 
     /// The RR interval in force (ms): the reviewed RR, else RR from the reviewed heart rate, else the automatic
     /// RR, else RR from the automatic heart rate. Source: references.md §3 (RR = 60 / HR).
-    fn rr_in_force(&self) -> Option<f64> {
+    pub(super) fn rr_in_force(&self) -> Option<f64> {
         let from_hr = |hr: Option<f64>| hr.filter(|&h| h > 0.0).map(|h| 60_000.0 / h);
         let auto = |key: &str| self.measurement(key).and_then(|m| m.auto_value);
         self.reviewed("rr_ms")

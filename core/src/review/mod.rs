@@ -30,6 +30,7 @@ use thiserror::Error;
 
 pub mod agreement;
 pub mod automatic;
+mod consistency;
 mod derived;
 mod edit;
 pub mod history;
