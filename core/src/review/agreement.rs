@@ -148,7 +148,7 @@ pub fn agreement(reviews: &[Review]) -> Result<Agreement, DuplicateReview> {
     // cell[recording][reader] = index of the review
     let mut cell: Vec<Vec<Option<usize>>> = Vec::new();
     for (i, r) in reviews.iter().enumerate() {
-        let rec = match recordings.iter().position(|x| x.sha256.eq_ignore_ascii_case(&r.recording.sha256)) {
+        let rec = match recordings.iter().position(|x| r.recording.is_signal(&x.sha256)) {
             Some(k) => k,
             None => {
                 recordings.push(RecordingRef {

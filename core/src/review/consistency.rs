@@ -3,9 +3,8 @@
 //! values that no longer follow its QT and RR. Such a review loads (it may be all a reader has), and these are
 //! said beside it so that nobody takes it for a record the workstation kept.
 
-use super::derived::QTC_INPUT_KEYS;
 use super::model::{Origin, Review, Stage};
-use crate::measure::qtc::{FORMULAS, qtc_checked};
+use crate::measure::qtc::FORMULAS;
 
 /// QTc values this far (ms) from the ones the review's QT and RR give do not follow them.
 // Common practice, no source: values are written with their digits; a QTc recomputed and saved agrees to 1e-9.
@@ -40,13 +39,11 @@ impl Review {
         if self.stage != Stage::Draft && !migrated && !self.history.iter().any(|c| c.what == "stage") {
             found.push(format!("the stage is {} but no history entry sets it", self.stage));
         }
-        if QTC_INPUT_KEYS.iter().any(|k| self.reviewed(k).is_some()) {
-            let qt = self.measurement("qt_ms").and_then(super::model::Measurement::value);
-            let q = qtc_checked(qt, self.rr_in_force());
+        if let Some(q) = self.qtc_in_force() {
             let stale: Vec<&str> = FORMULAS
                 .iter()
                 .filter(|(key, _)| {
-                    let want = q.and_then(|q| q.by_key(key));
+                    let want = q.by_key(key);
                     let have = self.measurement(key).and_then(super::model::Measurement::value);
                     matches!((want, have), (Some(w), Some(h)) if (w - h).abs() > QTC_TOLERANCE_MS)
                 })

@@ -3,19 +3,19 @@
 //! review (rendered pages, agreement, the Ledger) shows QTc consistent with the reviewed QT and RR.
 
 use super::model::{Measurement, Origin, Review};
-use crate::measure::qtc::{FORMULAS, qtc_checked};
+use crate::measure::qtc::{FORMULAS, Qtc, qtc_checked};
 
 /// Keys whose reviewed value changes the QTc values.
 pub const QTC_INPUT_KEYS: [&str; 3] = ["qt_ms", "rr_ms", "heart_rate_bpm"];
 
 impl Review {
-    pub(super) fn reviewed(&self, key: &str) -> Option<f64> {
+    fn reviewed(&self, key: &str) -> Option<f64> {
         self.measurement(key).and_then(|m| m.reviewed_value)
     }
 
     /// The RR interval in force (ms): the reviewed RR, else RR from the reviewed heart rate, else the automatic
     /// RR, else RR from the automatic heart rate. Source: references.md §3 (RR = 60 / HR).
-    pub(super) fn rr_in_force(&self) -> Option<f64> {
+    fn rr_in_force(&self) -> Option<f64> {
         let from_hr = |hr: Option<f64>| hr.filter(|&h| h > 0.0).map(|h| 60_000.0 / h);
         let auto = |key: &str| self.measurement(key).and_then(|m| m.auto_value);
         self.reviewed("rr_ms")
@@ -24,14 +24,20 @@ impl Review {
             .or_else(|| from_hr(auto("heart_rate_bpm")))
     }
 
+    /// The QTc values the QT and RR in force give while any of [`QTC_INPUT_KEYS`] is reviewed; `None` while none
+    /// is (the automatic QTc values stand) or when they give none.
+    pub(super) fn qtc_in_force(&self) -> Option<Qtc> {
+        let any_reviewed = QTC_INPUT_KEYS.iter().any(|k| self.reviewed(k).is_some());
+        let qt = self.measurement("qt_ms").and_then(Measurement::value);
+        if any_reviewed { qtc_checked(qt, self.rr_in_force()) } else { None }
+    }
+
     /// Brings the QTc values in line with the QT and RR in force after a reviewed value of one of
     /// [`QTC_INPUT_KEYS`] changed. While any of them is reviewed, each QTc gets a reviewed value computed by
     /// [`crate::measure::qtc::qtc`] (origin `moved`, or `placed` with no automatic value); when none is reviewed,
     /// the automatic QTc values stand again. Each change is recorded in the history by `reader`.
     pub(super) fn recompute_qtc(&mut self, reader: &str) {
-        let any_reviewed = QTC_INPUT_KEYS.iter().any(|k| self.reviewed(k).is_some());
-        let qt = self.measurement("qt_ms").and_then(Measurement::value);
-        let q = if any_reviewed { qtc_checked(qt, self.rr_in_force()) } else { None };
+        let q = self.qtc_in_force();
         for (key, name) in FORMULAS {
             let idx = self.measurements.iter().position(|m| m.key == key);
             // A formula that gives no positive QTc gives none (`Qtc::by_key`): that QTc stays automatic.
