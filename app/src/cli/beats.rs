@@ -43,10 +43,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     let settings = filter::FilterSettings::default();
     let (beats, filters) = if raw.duration_s() > analysis::LONG_RECORDING_S {
         // A long recording window by window: memory stays near the recording's own size.
-        let bar = super::window_bar(raw, "analysed");
-        let found = analysis::beats_in_windows_reporting(raw, &settings, analysis::WINDOW_S, &super::on_window(&bar));
-        bar.finish_and_clear();
-        found
+        super::with_window_bar(raw, true, |on_window| {
+            analysis::beats_in_windows_reporting(raw, &settings, analysis::WINDOW_S, on_window)
+        })
     } else {
         let filtered = filter::apply(raw, &settings);
         // Only the filtered copy is needed from here on.

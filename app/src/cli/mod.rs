@@ -52,28 +52,30 @@ pub fn refuse_empty(recording: &isoline_core::Recording, path: &std::path::Path)
     Ok(())
 }
 
-/// A progress bar on stderr for the windows of a long recording's analysis (see
-/// [`isoline_core::analysis::LONG_RECORDING_S`]): long work shows progress. Hidden for a recording analysed whole,
-/// and by indicatif when stderr is not a terminal. `what` says what is being done ("analysed").
-pub fn window_bar(recording: &isoline_core::Recording, what: &str) -> indicatif::ProgressBar {
-    if recording.duration_s() <= isoline_core::analysis::LONG_RECORDING_S {
-        return indicatif::ProgressBar::hidden();
-    }
-    let bar = indicatif::ProgressBar::new(0);
-    let minutes = isoline_core::analysis::WINDOW_S / 60.0;
-    let template = format!("{{bar:30}} {{pos}}/{{len}} windows of {minutes:.0} min {what}, {{elapsed}}");
-    if let Ok(style) = indicatif::ProgressStyle::with_template(&template) {
-        bar.set_style(style);
-    }
-    bar
-}
-
-/// What [`window_bar`]'s `bar` is told as each window is done (`(windows done, windows in all)`): one more. The
-/// count done is not set as the position, since windows finishing on several cores may tell their counts out of
-/// order and the bar would step back.
-pub fn on_window(bar: &indicatif::ProgressBar) -> impl Fn(usize, usize) + Sync + '_ {
-    move |_, all| {
+/// Runs `work` (an analysis of `recording`, told of each window done) with a progress bar on stderr for a long
+/// recording's windows (see [`isoline_core::analysis::LONG_RECORDING_S`]): long work shows progress. No bar when
+/// not `shown`, for a recording analysed whole, or (indicatif) when stderr is not a terminal. The bar counts one
+/// up per window told, not to the count told: windows finishing on several cores tell theirs out of order.
+pub fn with_window_bar<T>(
+    recording: &isoline_core::Recording,
+    shown: bool,
+    work: impl FnOnce(isoline_core::analysis::OnWindow<'_>) -> T,
+) -> T {
+    let bar = if shown && recording.duration_s() > isoline_core::analysis::LONG_RECORDING_S {
+        let bar = indicatif::ProgressBar::new(0);
+        let minutes = isoline_core::analysis::WINDOW_S / 60.0;
+        let template = format!("{{bar:30}} {{pos}}/{{len}} windows of {minutes:.0} min analysed, {{elapsed}}");
+        if let Ok(style) = indicatif::ProgressStyle::with_template(&template) {
+            bar.set_style(style);
+        }
+        bar
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
+    let out = work(&|_, all| {
         bar.set_length(all as u64);
         bar.inc(1);
-    }
+    });
+    bar.finish_and_clear();
+    out
 }

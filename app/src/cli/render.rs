@@ -85,17 +85,15 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
     }
     let raw = &opened.recording;
     super::refuse_empty(raw, &args.file)?;
-    // A review whose parts contradict each other (edited by hand) is drawn, with what it contradicts said.
     if let (Some(r), Some(path)) = (&review, &args.review) {
+        // A review whose parts contradict each other (edited by hand) is drawn, with what it contradicts said.
         for what in r.inconsistencies() {
             to_stderr!("isoline: warning: {}: {what}", path.display());
         }
-    }
-    // The same samples under another header (rate, leads) would put the review's marks and calipers elsewhere.
-    if let (Some(r), Some(path)) = (&review, &args.review)
-        && let Some(why) = r.recording.differs_from(raw)
-    {
-        bail!("{}: cannot use this review: {why}", path.display());
+        // The same samples under another header (rate, leads) would put the review's marks and calipers elsewhere.
+        if let Some(why) = r.recording.differs_from(raw) {
+            bail!("{}: cannot use this review: {why}", path.display());
+        }
     }
     if !(args.start.is_finite() && args.start >= 0.0 && args.start < raw.duration_s()) {
         // A huge or tiny start is written short (1e300 and -1e-300, not 300 digits).
@@ -113,9 +111,9 @@ pub fn run(args: &Args) -> anyhow::Result<ExitCode> {
         bail!("{file}: --layout {}: the recording has no lead {lead} (it has {})", args.layout, have.join(", "));
     }
     // The page shows what was measured: the filtered recording, with the filters named in the header.
-    let bar = super::window_bar(raw, "analysed");
-    let analysis = analysis::analyze_reporting(raw, &filter::FilterSettings::default(), &super::on_window(&bar));
-    bar.finish_and_clear();
+    let analysis = super::with_window_bar(raw, true, |on_window| {
+        analysis::analyze_reporting(raw, &filter::FilterSettings::default(), on_window)
+    });
     let spec = PageSpec {
         layout,
         order,

@@ -95,9 +95,9 @@ fn new(args: &NewArgs) -> anyhow::Result<ExitCode> {
 /// Runs the measurement engine (default filters) and puts its automatic values and representative-beat marks
 /// into the review.
 fn fill_automatic(review: &mut Review, recording: &Recording) -> anyhow::Result<()> {
-    let bar = super::window_bar(recording, "analysed");
-    let analysis = analyze_reporting(recording, &FilterSettings::default(), &super::on_window(&bar));
-    bar.finish_and_clear();
+    let analysis = super::with_window_bar(recording, true, |on_window| {
+        analyze_reporting(recording, &FilterSettings::default(), on_window)
+    });
     review.put_analysis(&analysis).context("filling the new review")?;
     Ok(())
 }

@@ -98,20 +98,17 @@ impl IsolineApp {
         }
         let Some(l) = &self.loaded else { return };
         // Same signal and same header (rate, leads): applied; otherwise the reader is asked, and told why.
-        let other = |r: &isoline_core::review::Review| {
-            format!(
-                "it was made for a different recording ({}, SHA-256 {}…)",
-                r.recording.file_name,
-                r.recording.sha256.get(..12).unwrap_or_default()
-            )
-        };
         match review_io::matches_recording(&review, &l.path) {
             Ok(true) => match review.recording.differs_from(&l.recording) {
                 None => self.apply_review(review, path.to_path_buf()),
                 Some(why) => self.review.mismatch = Some((path.to_path_buf(), review, why)),
             },
             Ok(false) => {
-                let why = other(&review);
+                let why = format!(
+                    "it was made for a different recording ({}, SHA-256 {}…)",
+                    review.recording.file_name,
+                    review.recording.sha256.get(..12).unwrap_or_default()
+                );
                 self.review.mismatch = Some((path.to_path_buf(), review, why));
             }
             Err(e) => self.ui_state.error = Some(format!("{e:#}")),

@@ -50,11 +50,9 @@ pub struct Args {
 /// Measures one recording: filters, beats, boundaries, representative beat, measurements; with `windows_shown`,
 /// a long recording's windows show their progress (when it is the only recording, whose bar is the only one).
 fn analyze(recording: &Recording, windows_shown: bool) -> Measurements {
-    let bar = if windows_shown { super::window_bar(recording, "analysed") } else { ProgressBar::hidden() };
-    let m = isoline_core::analysis::analyze_reporting(recording, &FilterSettings::default(), &super::on_window(&bar))
-        .measurements;
-    bar.finish_and_clear();
-    m
+    super::with_window_bar(recording, windows_shown, |on_window| {
+        isoline_core::analysis::analyze_reporting(recording, &FilterSettings::default(), on_window).measurements
+    })
 }
 
 /// A measured row with the reader's warnings and the files it was read from, or why it could not be measured.
